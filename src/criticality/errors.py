@@ -1,0 +1,212 @@
+"""Exceptions of the criticality package.
+
+Every error the package raises on purpose derives from :class:`CriticalityError`,
+with one subclass per cause.  Messages say what was expected, what was found,
+where (equation, line, column) and, where possible, how to fix it.  The command
+line prints the message as one paragraph and exits with the class's
+``exit_code``.
+"""
+
+from __future__ import annotations
+
+__all__ = [
+    "CriticalityError",
+    "ModelError",
+    "ExpressionError",
+    "ExpressionSyntaxError",
+    "ForbiddenExpressionError",
+    "ExpressionLimitError",
+    "InvalidModelError",
+    "ModelFileError",
+    "ParameterError",
+    "EquilibriumError",
+    "NotAnEquilibriumError",
+    "EquilibriumNotFoundError",
+    "NotAnalyticError",
+    "NoHopfPointError",
+    "DegenerateHopfError",
+    "ClosedFormUnavailableError",
+    "ComputationLimitError",
+    "MissingExtraError",
+    "OutputExistsError",
+    "ValidationRunError",
+]
+
+
+class CriticalityError(Exception):
+    """Base class of every error raised on purpose by criticality."""
+
+    #: exit status used by the command line for this kind of error
+    exit_code = 1
+
+
+# --- model input ---------------------------------------------------------
+
+
+class ModelError(CriticalityError):
+    """The model as written cannot be used."""
+
+    exit_code = 3
+
+
+class ExpressionError(ModelError):
+    """An expression in a model could not be read.
+
+    Attributes
+    ----------
+    context : str or None
+        What the expression belongs to, e.g. ``"equation for 'x'"``.
+    line : int or None
+        Line in the model file (1-based), when the expression came from a file.
+    column : int or None
+        Column inside the expression text (1-based).
+    piece : str or None
+        The offending piece of text.
+    """
+
+    def __init__(self, message: str, *, context: str | None = None, line: int | None = None,
+                 column: int | None = None, piece: str | None = None):
+        self.context = context
+        self.line = line
+        self.column = column
+        self.piece = piece
+        where = []
+        if context:
+            where.append(context)
+        if line is not None:
+            where.append(f"line {line}")
+        if column is not None:
+            where.append(f"column {column}")
+        prefix = f"{', '.join(where)}: " if where else ""
+        super().__init__(prefix + message)
+
+
+class ExpressionSyntaxError(ExpressionError):
+    """The text is not a well-formed expression."""
+
+
+class ForbiddenExpressionError(ExpressionError):
+    """The text uses a construct outside the whitelist (attributes, calls to
+    unknown functions, keywords, strings, ...)."""
+
+
+class ExpressionLimitError(ExpressionError):
+    """The text exceeds a size, depth or exponent limit."""
+
+
+class InvalidModelError(ModelError):
+    """The model has one or more problems; all of them are listed.
+
+    Attributes
+    ----------
+    problems : tuple of str
+        One sentence per problem.
+    """
+
+    def __init__(self, problems, *, source: str | None = None):
+        self.problems = tuple(problems)
+        self.source = source
+        head = f"the model{f' in {source}' if source else ''} has "
+        head += "1 problem" if len(self.problems) == 1 else f"{len(self.problems)} problems"
+        super().__init__(head + ":\n" + "\n".join(f"  - {p}" for p in self.problems))
+
+
+class ModelFileError(ModelError):
+    """A model file cannot be read or is not valid TOML of the expected shape."""
+
+
+# --- analysis ------------------------------------------------------------
+
+
+class ParameterError(CriticalityError):
+    """A parameter named in a call is unknown, not usable, or lacks a value."""
+
+    exit_code = 4
+
+
+class EquilibriumError(CriticalityError):
+    """Base class of problems with the equilibrium."""
+
+    exit_code = 5
+
+
+class NotAnEquilibriumError(EquilibriumError):
+    """The given point does not make every right-hand side vanish."""
+
+
+class EquilibriumNotFoundError(EquilibriumError):
+    """No equilibrium could be found or selected as asked."""
+
+
+class NotAnalyticError(CriticalityError):
+    """The vector field is not analytic (or not defined) at the point."""
+
+    exit_code = 5
+
+
+class NoHopfPointError(CriticalityError):
+    """No pair of eigenvalues can cross the imaginary axis as the parameter varies.
+
+    Attributes
+    ----------
+    reason : str
+        A short machine-readable cause: ``"empty_critical_set"``,
+        ``"omega_squared_nonpositive"``, ``"parameter_absent"``, ...
+    """
+
+    exit_code = 6
+
+    def __init__(self, message: str, *, reason: str = "no_hopf_point"):
+        self.reason = reason
+        super().__init__(message)
+
+
+class DegenerateHopfError(CriticalityError):
+    """The critical point is not a simple Hopf point (zero eigenvalue, two
+    critical pairs, ...).
+
+    Attributes
+    ----------
+    reason : str
+        ``"zero_eigenvalue"``, ``"two_critical_pairs"``, ...
+    """
+
+    exit_code = 6
+
+    def __init__(self, message: str, *, reason: str = "degenerate"):
+        self.reason = reason
+        super().__init__(message)
+
+
+class ClosedFormUnavailableError(CriticalityError):
+    """A quantity has no closed form by the methods available (e.g. the
+    critical value is a root of a polynomial of high degree)."""
+
+    exit_code = 7
+
+
+class ComputationLimitError(CriticalityError):
+    """A computation would exceed a configured size limit."""
+
+    exit_code = 7
+
+
+# --- environment and outputs ----------------------------------------------
+
+
+class MissingExtraError(CriticalityError):
+    """An optional dependency is needed; the message names the install command."""
+
+    exit_code = 8
+
+
+class OutputExistsError(CriticalityError):
+    """An output file exists and overwriting was not asked for."""
+
+    exit_code = 9
+
+
+class ValidationRunError(CriticalityError):
+    """A numerical validation could not be carried out."""
+
+    exit_code = 10
