@@ -16,8 +16,11 @@ __all__ = [
     "ExpressionSyntaxError",
     "ForbiddenExpressionError",
     "ExpressionLimitError",
+    "UnknownSymbolError",
     "InvalidModelError",
     "ModelFileError",
+    "ModelFileSyntaxError",
+    "InvalidModelFileError",
     "ParameterError",
     "EquilibriumError",
     "NotAnEquilibriumError",
@@ -94,6 +97,23 @@ class ExpressionLimitError(ExpressionError):
     """The text exceeds a size, depth or exponent limit."""
 
 
+class UnknownSymbolError(ExpressionError):
+    """A name in an expression is neither a state nor a parameter of the model.
+
+    Attributes
+    ----------
+    name : str
+        The unknown name.
+    suggestions : tuple of str
+        Known names that are spelled alike (may be empty).
+    """
+
+    def __init__(self, message: str, *, name: str = "", suggestions=(), **where):
+        self.name = name
+        self.suggestions = tuple(suggestions)
+        super().__init__(message, **where)
+
+
 class InvalidModelError(ModelError):
     """The model has one or more problems; all of them are listed.
 
@@ -113,6 +133,30 @@ class InvalidModelError(ModelError):
 
 class ModelFileError(ModelError):
     """A model file cannot be read or is not valid TOML of the expected shape."""
+
+
+class ModelFileSyntaxError(ModelFileError):
+    """A model file is not valid TOML.
+
+    Attributes
+    ----------
+    source : str or None
+        The file path (or ``"<text>"``).
+    line, column : int or None
+        Where the TOML reader stopped (1-based).
+    """
+
+    def __init__(self, message: str, *, source: str | None = None, line: int | None = None,
+                 column: int | None = None):
+        self.source = source
+        self.line = line
+        self.column = column
+        super().__init__(message)
+
+
+class InvalidModelFileError(InvalidModelError, ModelFileError):
+    """A model file is valid TOML but its content has problems (unknown keys,
+    wrong types, invalid equations); all of them are listed in ``problems``."""
 
 
 # --- analysis ------------------------------------------------------------
