@@ -1,0 +1,387 @@
+"""The boundary between sympy expressions and the engine's tower of fields.
+
+A :class:`Tower` is the parameter field K = QQ(p1, ..., pk, g1, ..., gm)
+(parameters and transcendental atoms such as ``exp(E/T0)`` or ``x0**n``, each
+an independent generator) followed by quadratic extensions for the radicals
+met on the way (``sqrt(b*(r - 1))``).  Sympy expressions enter through
+:meth:`Tower.convert` and leave through :meth:`Tower.to_sympy`; everything in
+between is field arithmetic.
+
+The tower also carries the two maps the Hopf computation needs across the
+critical value: differentiation with respect to a generator
+(:meth:`Tower.derivative`, radicals included) and substitution of a generator
+by an element of another tower (:meth:`Tower.substitute`).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import sympy
+
+from ..errors import ClosedFormUnavailableError, CriticalityError
+from .flint_field import FlintRationalField, FlintRationalFunctionField
+from .quadratic import QuadraticElement, QuadraticExtension
+from .sympy_field import SympyRationalFunctionField
+
+__all__ = ["Tower", "Atom", "make_base_field", "collect_atoms"]
+
+_ANALYTIC = (sympy.exp, sympy.log, sympy.sin, sympy.cos, sympy.tan, sympy.sinh, sympy.cosh,
+             sympy.tanh, sympy.asin, sympy.acos, sympy.atan, sympy.asinh, sympy.acosh,
+             sympy.atanh, sympy.erf)
+
+
+def make_base_field(symbols, backend: str = "flint"):
+    """The parameter field QQ(symbols) on the chosen backend."""
+    symbols = tuple(symbols)
+    if backend == "flint":
+        return FlintRationalFunctionField(symbols) if symbols else FlintRationalField()
+    if backend == "sympy":
+        return SympyRationalFunctionField(symbols)
+    raise ValueError(f"unknown arithmetic backend {backend!r}; use 'flint' or 'sympy'")
+
+
+@dataclass(frozen=True)
+class Atom:
+    """A transcendental generator: ``symbol`` stands for ``expr`` in the field."""
+
+    symbol: sympy.Symbol
+    expr: sympy.Expr
+    positive: bool
+
+
+def _split_exponent(expr):
+    """``x**(n - 1)`` -> ``x**n * x**-1``; ``exp(a + b)`` -> ``exp(a)*exp(b)``."""
+    if expr.is_Pow and expr.exp.is_Add:
+        const, rest = expr.exp.as_coeff_Add()
+        if const.is_Rational and const != 0:
+            return sympy.Mul(sympy.Pow(expr.base, rest, evaluate=False),
+                             sympy.Pow(expr.base, const), evaluate=False)
+    if isinstance(expr, sympy.exp) and expr.args[0].is_Add:
+        return sympy.Mul(*[sympy.exp(t) for t in expr.args[0].args], evaluate=False)
+    return None
+
+
+def _atom_key(expr):
+    """Canonical atom and integer power: ``exp(-2*a) -> (exp(a), -2)``."""
+    if isinstance(expr, sympy.exp):
+        coeff, rest = expr.args[0].as_coeff_Mul()
+        if coeff.is_Integer and rest != 1:
+            return sympy.exp(rest), int(coeff)
+        if coeff.is_Rational and coeff < 0:
+            return sympy.exp(-expr.args[0]), -1
+    return expr, 1
+
+
+def _is_radical_power(expr) -> bool:
+    return expr.is_Pow and expr.exp.is_Rational and expr.exp.q == 2
+
+
+def collect_atoms(exprs, parameter_symbols, state_symbols=()):
+    """Transcendental atoms of ``exprs`` (in a deterministic order).
+
+    Raises
+    ------
+    ClosedFormUnavailableError
+        For algebraic powers other than square roots (cube roots, ...).
+    """
+    params = set(parameter_symbols)
+    states = set(state_symbols)
+    found: dict = {}
+    seen = set()
+
+    def walk(e):
+        if e in seen:
+            return
+        seen.add(e)
+        split = _split_exponent(e)
+        if split is not None:
+            walk(split)
+            return
+        if e.is_Symbol:
+            if e not in params and e not in states:
+                raise CriticalityError(f"internal: symbol {e} is not a generator")
+            return
+        if e.is_Number or e.is_Add or e.is_Mul:
+            for a in e.args:
+                walk(a)
+            return
+        if e.is_Pow and e.exp.is_Integer:
+            walk(e.base)
+            return
+        if _is_radical_power(e):
+            walk(e.base)
+            return
+        if e.is_Pow and e.exp.is_Rational:
+            raise ClosedFormUnavailableError(
+                f"the expression contains {e}, a root of order {e.exp.q}; only square roots are "
+                "handled exactly. Parametrise the equilibrium so that the root disappears.")
+        if isinstance(e, _ANALYTIC) or e.is_Pow:
+            atom, _ = _atom_key(e)
+            found.setdefault(atom, None)
+            return
+        if e is sympy.pi or e is sympy.E:
+            found.setdefault(e, None)
+            return
+        raise ClosedFormUnavailableError(f"cannot represent {e} in the parameter field")
+
+    for ex in exprs:
+        walk(sympy.sympify(ex))
+    return sorted(found, key=sympy.default_sort_key)
+
+
+class Tower:
+    """The parameter field and its quadratic extensions.
+
+    Parameters
+    ----------
+    parameters : sequence of sympy.Symbol
+        The symbolic parameters (generators of K, in this order).
+    atoms : sequence of sympy.Expr
+        Transcendental atoms that become further generators.
+    backend : {"flint", "sympy"}
+    positivity : callable, optional
+        ``positivity(expr) -> True | False | None`` deciding the sign of a
+        sympy expression under the model's assumptions; used to take the root
+        of a radicand that turns out to be a perfect square.
+    """
+
+    def __init__(self, parameters, atoms=(), backend: str = "flint", positivity=None):
+        self.parameters = tuple(parameters)
+        self.atoms = tuple(Atom(sympy.Dummy(f"g{k}", real=True), a, _atom_positive(a, positivity))
+                           for k, a in enumerate(atoms))
+        self.backend = backend
+        self.positivity = positivity
+        self.base = make_base_field(self.parameters + tuple(a.symbol for a in self.atoms), backend)
+        self.levels: list[QuadraticExtension] = []
+        self._radicals: list[tuple[object, object]] = []  # (radicand, element)
+        self._atom_index = {a.expr: a for a in self.atoms}
+        self._gen_index = {s: g for s, g in zip(self.base.symbols, getattr(self.base, "gens", ()))}
+        self._memo: dict = {}
+
+    def fresh(self) -> "Tower":
+        """A tower over the same base field and atoms, without extensions."""
+        other = object.__new__(Tower)
+        other.parameters, other.atoms, other.backend = self.parameters, self.atoms, self.backend
+        other.positivity, other.base = self.positivity, self.base
+        other.levels, other._radicals, other._memo = [], [], {}
+        other._atom_index, other._gen_index = self._atom_index, self._gen_index
+        return other
+
+    # -- structure ---------------------------------------------------------------------
+    @property
+    def top(self):
+        return self.levels[-1] if self.levels else self.base
+
+    def gen(self, symbol):
+        return self._gen_index[symbol]
+
+    def atom_substitution(self) -> dict:
+        return {a.symbol: a.expr for a in self.atoms}
+
+    def sqrt(self, radicand, root_expr=None):
+        """The element ``sqrt(radicand)``: an existing radical, the root of a
+        perfect square, or the generator of a new quadratic extension."""
+        radicand = self.top(radicand)
+        for r, element in self._radicals:
+            if r == radicand:
+                return element
+        root = self._square_root(radicand)
+        if root is None:
+            sym_root = root_expr if root_expr is not None else sympy.sqrt(self.to_sympy(radicand))
+            ext = QuadraticExtension(self.top, radicand, f"s{len(self.levels)}", root=sym_root)
+            self.levels.append(ext)
+            root = ext.gen
+        self._radicals.append((radicand, root))
+        return root
+
+    def _square_root(self, x):
+        """The principal root of ``x`` when ``x`` is a square in K, else None."""
+        if isinstance(x, QuadraticElement):
+            if x.b:
+                return None
+            x = x.a
+            while isinstance(x, QuadraticElement):
+                if x.b:
+                    return None
+                x = x.a
+        if not x:
+            return self.base.zero
+        K = self.base
+        if isinstance(K, FlintRationalFunctionField):
+            try:
+                r = (x.num * x.den).sqrt()
+            except Exception:  # not a perfect square
+                return None
+            root = K.from_polynomials(r, x.den)
+        else:
+            num, den = sympy.fraction(sympy.together(K.to_sympy(x)))
+            c, factors = sympy.factor_list(sympy.expand(num * den))
+            if not (c > 0 and sympy.sqrt(c).is_Rational and all(m % 2 == 0 for _, m in factors)):
+                return None
+            r = sympy.sqrt(c) * sympy.Mul(*[f ** (m // 2) for f, m in factors])
+            root = K.from_sympy(r / den)
+        expr = K.to_sympy(root)
+        sign = _sign_of(expr, self.positivity)
+        if sign is True:
+            return root
+        if sign is False:
+            return -root
+        raise ClosedFormUnavailableError(
+            f"sqrt(({expr})**2) = |{expr}| is not analytic in the parameters; state the "
+            "equilibrium without the absolute value (choose the branch explicitly).")
+
+    # -- conversion ------------------------------------------------------------------------
+    def convert(self, expr):
+        """A sympy expression in the parameters and atoms as a tower element."""
+        expr = sympy.sympify(expr)
+        try:
+            return self._convert(expr)
+        except ZeroDivisionError as exc:
+            raise CriticalityError(f"division by zero while converting {expr}") from exc
+
+    def _convert(self, e):
+        hit = self._memo.get(e)
+        if hit is not None:
+            return hit
+        out = self._convert_uncached(e)
+        self._memo[e] = out
+        return out
+
+    def _convert_uncached(self, e):
+        K = self.base
+        if e.is_Integer:
+            return K(int(e))
+        if e.is_Rational:
+            return K(e)
+        if e.is_Float:
+            return K(sympy.Rational(str(e)))
+        if e.is_Symbol:
+            if e in self._gen_index:
+                return self._gen_index[e]
+            raise CriticalityError(f"internal: {e} is not a generator of {self.base}")
+        split = _split_exponent(e)
+        if split is not None:
+            return self._convert(split)
+        if e.is_Add:
+            acc = K.zero
+            for a in e.args:
+                acc = acc + self._convert(a)
+            return acc
+        if e.is_Mul:
+            acc = K.one
+            for a in e.args:
+                acc = acc * self._convert(a)
+            return acc
+        if e.is_Pow and e.exp.is_Integer:
+            return self._convert(e.base) ** int(e.exp)
+        if _is_radical_power(e):
+            root = self.sqrt(self._convert(e.base), sympy.sqrt(e.base))
+            return root ** int(e.exp.p)
+        atom, power = _atom_key(e)
+        if atom in self._atom_index:
+            return self._gen_index[self._atom_index[atom].symbol] ** power
+        raise CriticalityError(f"internal: {e} was not registered as an atom")
+
+    def to_sympy(self, x) -> sympy.Expr:
+        """A tower element as a sympy expression (atoms restored)."""
+        out = self._to_sympy(x)
+        return out.xreplace(self.atom_substitution()) if self.atoms else out
+
+    def _to_sympy(self, x):
+        if isinstance(x, QuadraticElement):
+            return self._to_sympy(x.a) + self._to_sympy(x.b) * x.ext.root
+        return self.base.to_sympy(self.base(x))
+
+    # -- maps ---------------------------------------------------------------------------------
+    def derivative(self, x, symbol):
+        """``dx/d symbol`` with ``d sqrt(G) = G' / (2 sqrt(G))``."""
+        if isinstance(x, QuadraticElement):
+            ext = x.ext
+            da = self.derivative(x.a, symbol)
+            db = self.derivative(x.b, symbol)
+            dG = self.derivative(ext.radicand, symbol)
+            coeff = db + x.b * dG / (2 * ext.radicand) if dG else db
+            return QuadraticElement(ext.base(da), ext.base(coeff), ext)
+        return self.base.derivative(self.base(x), symbol)
+
+    def substitute(self, x, symbol, value, target: "Tower", level_map: dict):
+        """Image of ``x`` under ``symbol -> value`` in ``target``.
+
+        ``level_map`` maps each of this tower's extensions to the image of its
+        generator in ``target`` (see :meth:`radical_images`).
+        """
+        if isinstance(x, QuadraticElement):
+            a = self.substitute(x.a, symbol, value, target, level_map)
+            if not x.b:
+                return a
+            b = self.substitute(x.b, symbol, value, target, level_map)
+            return a + b * level_map[x.ext]
+        return _substitute_base(self.base, self.base(x), symbol, value, target)
+
+    def radical_images(self, symbol, value, target: "Tower", value_expr=None) -> dict:
+        """Adjoin to ``target`` the images of this tower's radicals under
+        ``symbol -> value`` and return the map extension -> image."""
+        images: dict = {}
+        for ext in self.levels:
+            radicand = self.substitute(ext.radicand, symbol, value, target, images)
+            root_expr = ext.root.subs(symbol, value_expr) if value_expr is not None else None
+            images[ext] = target.sqrt(radicand, root_expr)
+        return images
+
+
+def _substitute_base(K, x, symbol, value, target: Tower):
+    if isinstance(K, FlintRationalField) or symbol not in K.symbols:
+        return target.base(x) if not isinstance(K, FlintRationalFunctionField) else \
+            _reembed(K, x, target)
+    if isinstance(K, FlintRationalFunctionField):
+        num = _horner(K, K.coefficients_in(x.num, symbol), value, target)
+        den = _horner(K, K.coefficients_in(x.den, symbol), value, target)
+        return num / den
+    expr = K.to_sympy(x)
+    num, den = sympy.fraction(sympy.together(expr))
+    return _horner_sympy(num, symbol, value, target) / _horner_sympy(den, symbol, value, target)
+
+
+def _reembed(K, x, target):
+    if target.base is K:
+        return x
+    return target.convert(K.to_sympy(x))
+
+
+def _horner(K, coeffs: dict, value, target: Tower):
+    acc = target.base.zero
+    if not coeffs:
+        return acc
+    for k in range(max(coeffs), -1, -1):
+        acc = acc * value
+        c = coeffs.get(k)
+        if c is not None:
+            acc = acc + _reembed(K, K.from_polynomials(c, K._one_poly), target)
+    return acc
+
+
+def _horner_sympy(expr, symbol, value, target: Tower):
+    poly = sympy.Poly(expr, symbol)
+    acc = target.base.zero
+    for c in poly.all_coeffs():
+        acc = acc * value + target.convert(c)
+    return acc
+
+
+def _sign_of(expr, positivity):
+    if expr.is_Number:
+        return bool(expr > 0)
+    if positivity is None:
+        return None
+    return positivity(expr)
+
+
+def _atom_positive(atom, positivity) -> bool:
+    if isinstance(atom, sympy.exp):
+        return True
+    if atom is sympy.pi or atom is sympy.E:
+        return True
+    if atom.is_Pow and positivity is not None:
+        return positivity(atom.base) is True
+    return False

@@ -1,0 +1,336 @@
+"""The parameter field on python-flint: QQ(p1, ..., pk) and QQ itself.
+
+Elements of QQ(p1, ..., pk) are reduced fractions ``num/den`` of integer
+multivariate polynomials (``flint.fmpz_mpoly``) with ``gcd(num, den) = 1`` and
+a positive leading coefficient of ``den``, so that equality is equality of
+representations.  Addition and multiplication follow Henrici's scheme: the
+gcds are taken of the smallest possible operands.
+
+With no parameters the field is QQ and its elements are plain ``flint.fmpq``
+numbers, which already carry the arithmetic protocol.
+
+Both fields implement the protocol of :mod:`criticality.algebra.field`.
+"""
+
+from __future__ import annotations
+
+from fractions import Fraction
+
+import flint
+import sympy
+
+from .field import Field
+
+__all__ = ["FlintRationalFunctionField", "FlintRationalField", "RationalFunction"]
+
+_fmpz_mpoly = flint.fmpz_mpoly
+_fmpq = flint.fmpq
+_fmpz = flint.fmpz
+
+
+class RationalFunction:
+    """A reduced fraction of two ``fmpz_mpoly`` over one context."""
+
+    __slots__ = ("num", "den", "field")
+
+    def __init__(self, num, den, field):
+        # callers guarantee: gcd(num, den) == 1 and den normalised
+        self.num = num
+        self.den = den
+        self.field = field
+
+    # -- construction helpers ------------------------------------------------
+    def _coerce(self, other):
+        if isinstance(other, RationalFunction):
+            return other
+        if isinstance(other, (int, _fmpz, _fmpq, Fraction)):
+            return self.field(other)
+        return None
+
+    # -- arithmetic ------------------------------------------------------------
+    def __add__(self, other):
+        other = self._coerce(other)
+        if other is None:
+            return NotImplemented
+        a, b, c, d = self.num, self.den, other.num, other.den
+        if b.is_one() and d.is_one():
+            return RationalFunction(a + c, b, self.field)
+        if b == d:
+            num = a + c
+            g = num.gcd(b)
+            if g.is_one():
+                return RationalFunction(num, b, self.field)
+            return self.field._normalised(num / g, b / g)
+        g = b.gcd(d)
+        if g.is_one():
+            return RationalFunction(a * d + c * b, b * d, self.field)
+        bg, dg = b / g, d / g
+        num = a * dg + c * bg
+        g2 = num.gcd(g)
+        if g2.is_one():
+            return RationalFunction(num, bg * d, self.field)
+        return self.field._normalised(num / g2, bg * (d / g2))
+
+    __radd__ = __add__
+
+    def __neg__(self):
+        return RationalFunction(-self.num, self.den, self.field)
+
+    def __sub__(self, other):
+        other = self._coerce(other)
+        if other is None:
+            return NotImplemented
+        return self + (-other)
+
+    def __rsub__(self, other):
+        other = self._coerce(other)
+        if other is None:
+            return NotImplemented
+        return other + (-self)
+
+    def __mul__(self, other):
+        other = self._coerce(other)
+        if other is None:
+            return NotImplemented
+        a, b, c, d = self.num, self.den, other.num, other.den
+        if a.is_zero() or c.is_zero():
+            return self.field.zero
+        if b.is_one() and d.is_one():
+            return RationalFunction(a * c, b, self.field)
+        g1 = a.gcd(d)
+        g2 = c.gcd(b)
+        if not g1.is_one():
+            a, d = a / g1, d / g1
+        if not g2.is_one():
+            c, b = c / g2, b / g2
+        return self.field._normalised(a * c, b * d, reduced=True)
+
+    __rmul__ = __mul__
+
+    def inverse(self):
+        if self.num.is_zero():
+            raise ZeroDivisionError("division by zero in the parameter field")
+        return self.field._normalised(self.den, self.num, reduced=True)
+
+    def __truediv__(self, other):
+        other = self._coerce(other)
+        if other is None:
+            return NotImplemented
+        return self * other.inverse()
+
+    def __rtruediv__(self, other):
+        other = self._coerce(other)
+        if other is None:
+            return NotImplemented
+        return other * self.inverse()
+
+    def __pow__(self, k: int):
+        if not isinstance(k, int):
+            return NotImplemented
+        if k < 0:
+            return self.inverse() ** (-k)
+        return RationalFunction(self.num ** k, self.den ** k, self.field)
+
+    # -- comparison ------------------------------------------------------------
+    def __eq__(self, other):
+        other = self._coerce(other)
+        if other is None:
+            return NotImplemented
+        return self.num == other.num and self.den == other.den
+
+    def __ne__(self, other):
+        result = self.__eq__(other)
+        return result if result is NotImplemented else not result
+
+    def __hash__(self):
+        return hash((str(self.num), str(self.den)))
+
+    def __bool__(self):
+        return not self.num.is_zero()
+
+    def __repr__(self):
+        if self.den.is_one():
+            return f"({self.num})"
+        return f"({self.num})/({self.den})"
+
+
+class FlintRationalFunctionField(Field):
+    """QQ(p1, ..., pk) as reduced fractions of ``fmpz_mpoly`` (k >= 1).
+
+    Parameters
+    ----------
+    symbols : sequence of sympy.Symbol
+        The generators, in order.
+
+    Examples
+    --------
+    >>> import sympy
+    >>> a, b = sympy.symbols("a b")
+    >>> K = FlintRationalFunctionField([a, b])
+    >>> x = K.from_sympy((a**2 - b**2) / (a + b))
+    >>> K.to_sympy(x)
+    a - b
+    """
+
+    backend = "flint"
+
+    def __init__(self, symbols):
+        symbols = tuple(symbols)
+        if not symbols:
+            raise ValueError("use FlintRationalField for a field without generators")
+        self.symbols = symbols
+        self.ctx = flint.fmpz_mpoly_ctx.get(tuple(str(s) for s in symbols), "degrevlex")
+        self._one_poly = self.ctx.from_dict({(0,) * len(symbols): 1})
+        self._zero_poly = self.ctx.from_dict({})
+        self.zero = RationalFunction(self._zero_poly, self._one_poly, self)
+        self.one = RationalFunction(self._one_poly, self._one_poly, self)
+        self.gens = tuple(RationalFunction(g, self._one_poly, self) for g in self.ctx.gens())
+
+    # -- element construction ----------------------------------------------------
+    def _normalised(self, num, den, reduced: bool = False) -> RationalFunction:
+        if not reduced:
+            g = num.gcd(den)
+            if not g.is_one():
+                num, den = num / g, den / g
+        if den.leading_coefficient() < 0:
+            num, den = -num, -den
+        return RationalFunction(num, den, self)
+
+    def __call__(self, value) -> RationalFunction:
+        if isinstance(value, RationalFunction):
+            return value
+        if isinstance(value, (int, _fmpz)):
+            return RationalFunction(self._one_poly * int(value), self._one_poly, self)
+        if isinstance(value, (_fmpq, Fraction, sympy.Rational)):
+            q = _fmpq(int(value.numerator), int(value.denominator)) if not isinstance(value, _fmpq) else value
+            num = self._one_poly * int(q.p)
+            den = self._one_poly * int(q.q)
+            return RationalFunction(num, den, self)
+        raise TypeError(f"cannot convert {value!r} into {self}")
+
+    def from_polynomials(self, num, den) -> RationalFunction:
+        """Element ``num/den`` from two ``fmpz_mpoly`` of this field's context."""
+        if den.is_zero():
+            raise ZeroDivisionError("zero denominator")
+        return self._normalised(num, den)
+
+    def from_sympy(self, expr) -> RationalFunction:
+        num, den = sympy.fraction(sympy.together(sympy.sympify(expr)))
+        return self._from_sympy_poly(num) / self._from_sympy_poly(den)
+
+    def _from_sympy_poly(self, expr) -> RationalFunction:
+        poly = sympy.Poly(expr, *self.symbols, domain="QQ")
+        terms = poly.terms()
+        denominator = 1
+        for _, c in terms:
+            denominator = sympy.ilcm(denominator, int(c.denominator))
+        data = {m: int(c.numerator) * (denominator // int(c.denominator)) for m, c in terms}
+        num = self.ctx.from_dict(data) if data else self._zero_poly
+        return self._normalised(num, self._one_poly * int(denominator))
+
+    # -- conversion back --------------------------------------------------------------
+    def poly_to_sympy(self, poly) -> sympy.Expr:
+        """A ``fmpz_mpoly`` of this context as a sympy expression (one Add)."""
+        syms = self.symbols
+        terms = []
+        for monom, coeff in poly.to_dict().items():
+            factors = [sympy.Integer(int(coeff))]
+            factors.extend(s ** e if e != 1 else s for s, e in zip(syms, monom) if e)
+            terms.append(sympy.Mul(*factors))
+        return sympy.Add(*terms)
+
+    def to_sympy(self, x: RationalFunction) -> sympy.Expr:
+        num = self.poly_to_sympy(x.num)
+        if x.den.is_one():
+            return num
+        return num / self.poly_to_sympy(x.den)
+
+    # -- structure ---------------------------------------------------------------------
+    def size(self, x: RationalFunction) -> int:
+        return len(x.num) + len(x.den)
+
+    def numerator_denominator(self, x):
+        return x.num, x.den
+
+    def factor_polynomial(self, poly):
+        """``(content, [(sympy_factor, multiplicity), ...])`` of an ``fmpz_mpoly``."""
+        content, factors = poly.factor()
+        return sympy.Integer(int(content)), [(self.poly_to_sympy(f), int(m)) for f, m in factors]
+
+    def derivative(self, x: RationalFunction, symbol) -> RationalFunction:
+        i = self.symbols.index(symbol)
+        dn = x.num.derivative(i)
+        if x.den.is_one():
+            return RationalFunction(dn, x.den, self)
+        dd = x.den.derivative(i)
+        return self._normalised(dn * x.den - x.num * dd, x.den * x.den)
+
+    def degree_in(self, x: RationalFunction, symbol) -> tuple[int, int]:
+        i = self.symbols.index(symbol)
+        return x.num.degrees()[i], x.den.degrees()[i]
+
+    def coefficients_in(self, poly, symbol) -> dict[int, object]:
+        """Split an ``fmpz_mpoly`` as ``{k: coefficient of symbol**k}`` (polys)."""
+        i = self.symbols.index(symbol)
+        buckets: dict[int, dict] = {}
+        for monom, coeff in poly.to_dict().items():
+            k = monom[i]
+            rest = monom[:i] + (0,) + monom[i + 1:]
+            buckets.setdefault(k, {})[rest] = coeff
+        return {k: self.ctx.from_dict(d) for k, d in buckets.items()}
+
+    def is_rational_number(self, x: RationalFunction) -> bool:
+        return x.num.is_constant() and x.den.is_constant()
+
+    def to_fraction(self, x: RationalFunction) -> Fraction:
+        if not self.is_rational_number(x):
+            raise ValueError("not a constant")
+        n = int(x.num.coefficient(0)) if len(x.num) else 0
+        return Fraction(n, int(x.den.coefficient(0)))
+
+    def __repr__(self):
+        return f"QQ({', '.join(map(str, self.symbols))})[flint]"
+
+
+class FlintRationalField(Field):
+    """QQ with ``flint.fmpq`` elements (no generators)."""
+
+    backend = "flint"
+    symbols: tuple = ()
+    gens: tuple = ()
+
+    def __init__(self):
+        self.zero = _fmpq(0)
+        self.one = _fmpq(1)
+
+    def __call__(self, value):
+        if isinstance(value, _fmpq):
+            return value
+        if isinstance(value, (int, _fmpz)):
+            return _fmpq(int(value))
+        if isinstance(value, (Fraction, sympy.Rational)):
+            return _fmpq(int(value.numerator), int(value.denominator))
+        raise TypeError(f"cannot convert {value!r} into QQ")
+
+    def from_sympy(self, expr):
+        if not getattr(expr, "is_Rational", False):
+            raise ValueError(f"{expr} is not a rational number")
+        return _fmpq(int(expr.p), int(expr.q))
+
+    def to_sympy(self, x):
+        return sympy.Rational(int(x.p), int(x.q))
+
+    def size(self, x) -> int:
+        return int(x.p).bit_length() + int(x.q).bit_length()
+
+    def is_rational_number(self, x) -> bool:
+        return True
+
+    def to_fraction(self, x) -> Fraction:
+        return Fraction(int(x.p), int(x.q))
+
+    def derivative(self, x, symbol):
+        raise ValueError(f"{symbol} is not a generator of QQ")
+
+    def __repr__(self):
+        return "QQ[flint]"

@@ -1,0 +1,251 @@
+"""Exact linear algebra over the engine's fields.
+
+Matrices are lists of rows of field elements.  Elimination is Gaussian with
+size-aware pivoting: in each column the non-zero entry with the fewest terms
+(``field.size``) becomes the pivot, which keeps intermediate rational functions
+small; zero entries are skipped, so sparse Jacobians stay cheap.  Over QQ
+itself the work is handed to ``flint.fmpq_mat``.
+"""
+
+from __future__ import annotations
+
+import flint
+
+from ..errors import CriticalityError
+from .flint_field import FlintRationalField
+
+__all__ = [
+    "SingularMatrixError",
+    "identity",
+    "matmul",
+    "matvec",
+    "transpose",
+    "solve",
+    "kernel",
+    "rank_and_pivots",
+    "inverse",
+    "determinant",
+    "solve_vector",
+    "solve_consistent",
+]
+
+
+class SingularMatrixError(CriticalityError, ZeroDivisionError):
+    """A linear system that should have a unique solution is singular."""
+
+
+def identity(K, n: int):
+    return [[K.one if i == j else K.zero for j in range(n)] for i in range(n)]
+
+
+def transpose(M):
+    return [list(col) for col in zip(*M)]
+
+
+def matmul(K, A, B):
+    """``A @ B`` skipping zero entries of ``A``."""
+    cols = len(B[0]) if B else 0
+    out = []
+    for row in A:
+        acc = [K.zero] * cols
+        for k, a in enumerate(row):
+            if not a:
+                continue
+            brow = B[k]
+            for j in range(cols):
+                b = brow[j]
+                if b:
+                    acc[j] = acc[j] + a * b
+        out.append(acc)
+    return out
+
+
+def matvec(K, A, v):
+    out = []
+    for row in A:
+        acc = K.zero
+        for a, x in zip(row, v):
+            if a and x:
+                acc = acc + a * x
+        out.append(acc)
+    return out
+
+
+def _is_qq(K) -> bool:
+    return isinstance(K, FlintRationalField)
+
+
+def _to_fmpq_mat(M):
+    return flint.fmpq_mat(len(M), len(M[0]) if M else 0, [x for row in M for x in row])
+
+
+def _from_fmpq_mat(M):
+    return [[M[i, j] for j in range(M.ncols())] for i in range(M.nrows())]
+
+
+def _eliminate(K, M, ncols_pivot: int):
+    """Row-reduce ``M`` (modified in place) to reduced row echelon form in its
+    first ``ncols_pivot`` columns.  Returns the pivot columns."""
+    rows = len(M)
+    pivots = []
+    r = 0
+    size = K.size
+    for c in range(ncols_pivot):
+        best, best_size = None, None
+        for i in range(r, rows):
+            x = M[i][c]
+            if x:
+                s = size(x)
+                if best is None or s < best_size:
+                    best, best_size = i, s
+        if best is None:
+            continue
+        M[r], M[best] = M[best], M[r]
+        prow = M[r]
+        inv = 1 / prow[c]
+        for j in range(c, len(prow)):
+            if prow[j]:
+                prow[j] = prow[j] * inv
+        for i in range(rows):
+            if i == r:
+                continue
+            f = M[i][c]
+            if not f:
+                continue
+            row = M[i]
+            for j in range(c, len(row)):
+                pj = prow[j]
+                if pj:
+                    row[j] = row[j] - f * pj
+        pivots.append(c)
+        r += 1
+        if r == rows:
+            break
+    return pivots
+
+
+def solve(K, A, B):
+    """Solve ``A X = B`` for square, non-singular ``A``; ``B`` is a list of rows.
+
+    Raises
+    ------
+    SingularMatrixError
+        If ``A`` is singular.
+    """
+    n = len(A)
+    if n == 0:
+        return []
+    m = len(B[0])
+    if _is_qq(K):
+        try:
+            X = _to_fmpq_mat(A).solve(_to_fmpq_mat(B))
+        except ZeroDivisionError as exc:
+            raise SingularMatrixError("singular matrix") from exc
+        return _from_fmpq_mat(X)
+    M = [list(A[i]) + list(B[i]) for i in range(n)]
+    pivots = _eliminate(K, M, n)
+    if len(pivots) < n:
+        raise SingularMatrixError("singular matrix")
+    return [row[n:n + m] for row in M]
+
+
+def solve_vector(K, A, b):
+    """Solve ``A x = b`` for one right-hand side vector ``b``."""
+    X = solve(K, A, [[x] for x in b])
+    return [row[0] for row in X]
+
+
+def rank_and_pivots(K, A):
+    M = [list(r) for r in A]
+    if _is_qq(K) and M:
+        R, rank = _to_fmpq_mat(M).rref()
+        pivots = []
+        R = _from_fmpq_mat(R)
+        for i in range(rank):
+            pivots.append(next(j for j, x in enumerate(R[i]) if x))
+        return rank, pivots, R
+    pivots = _eliminate(K, M, len(M[0]) if M else 0)
+    return len(pivots), pivots, M
+
+
+def kernel(K, A):
+    """A basis of the null space of ``A`` (list of column vectors)."""
+    ncols = len(A[0])
+    rank, pivots, R = rank_and_pivots(K, A)
+    free = [j for j in range(ncols) if j not in pivots]
+    basis = []
+    for f in free:
+        v = [K.zero] * ncols
+        v[f] = K.one
+        for i, pc in enumerate(pivots):
+            x = R[i][f]
+            if x:
+                v[pc] = -x
+        basis.append(v)
+    return basis
+
+
+def inverse(K, A):
+    return solve(K, A, identity(K, len(A)))
+
+
+def determinant(K, A):
+    """Determinant by elimination over the field (size-aware pivots)."""
+    n = len(A)
+    if _is_qq(K):
+        return _to_fmpq_mat(A).det()
+    M = [list(r) for r in A]
+    det = K.one
+    for c in range(n):
+        best, best_size = None, None
+        for i in range(c, n):
+            x = M[i][c]
+            if x:
+                s = K.size(x)
+                if best is None or s < best_size:
+                    best, best_size = i, s
+        if best is None:
+            return K.zero
+        if best != c:
+            M[c], M[best] = M[best], M[c]
+            det = -det
+        p = M[c][c]
+        det = det * p
+        inv = 1 / p
+        for i in range(c + 1, n):
+            f = M[i][c]
+            if not f:
+                continue
+            f = f * inv
+            row, prow = M[i], M[c]
+            for j in range(c + 1, n):
+                if prow[j]:
+                    row[j] = row[j] - f * prow[j]
+    return det
+
+
+def solve_consistent(K, A, B):
+    """Solve ``A X = B`` for a full-column-rank ``A`` with at least as many
+    rows as columns, when the system is known to be consistent (e.g. a square
+    singular operator bordered by normalisation rows).
+
+    Raises
+    ------
+    SingularMatrixError
+        If ``A`` has a non-trivial kernel or the system is inconsistent.
+    """
+    rows, cols = len(A), len(A[0])
+    m = len(B[0])
+    M = [list(A[i]) + list(B[i]) for i in range(rows)]
+    if _is_qq(K):
+        R, rank = _to_fmpq_mat(M).rref()
+        M = _from_fmpq_mat(R)
+        pivots = [next(j for j, x in enumerate(M[i]) if x) for i in range(rank)]
+    else:
+        pivots = _eliminate(K, M, cols)
+    if pivots != list(range(cols)):
+        raise SingularMatrixError("the bordered system does not determine the solution")
+    for i in range(cols, rows):
+        if any(M[i][cols:cols + m]):
+            raise SingularMatrixError("the bordered system is inconsistent")
+    return [M[i][cols:cols + m] for i in range(cols)]

@@ -1,0 +1,245 @@
+"""Quadratic extensions F(t), t**2 = d, and towers of them.
+
+Two kinds of algebraic numbers occur in a Hopf computation and both are
+quadratic over the field below them:
+
+* radicals of the equilibrium or of the critical value, ``s = sqrt(G)``
+  (a multi-quadratic extension is a tower of these), and
+* ``nu = i*omega`` with ``nu**2 = -W``, ``W = omega**2`` in the field below;
+  complex conjugation is ``nu -> -nu``.
+
+An element ``a + b*t`` is stored as the pair ``(a, b)`` of elements of the base
+field and reduced by ``t**2 -> d`` after each product.  The radicand must not be
+a square in the base field (otherwise the ring has zero divisors); the
+constructor does not prove this, and a division by a zero divisor raises
+``ZeroDivisionError``.
+"""
+
+from __future__ import annotations
+
+from fractions import Fraction
+
+import sympy
+
+from .field import Field
+
+__all__ = ["QuadraticExtension", "QuadraticElement", "lower"]
+
+
+class QuadraticElement:
+    """``a + b*t`` in a :class:`QuadraticExtension`."""
+
+    __slots__ = ("a", "b", "ext")
+
+    def __init__(self, a, b, ext):
+        self.a = a
+        self.b = b
+        self.ext = ext
+
+    def _coerce(self, other):
+        """Return other as ``(a, b)`` in this extension, or None if it is of a
+        higher extension (so that its reflected operation takes over)."""
+        if isinstance(other, QuadraticElement):
+            if other.ext is self.ext:
+                return other.a, other.b
+            if other.ext.level > self.ext.level:
+                return None
+        elif isinstance(other, (int, Fraction)):
+            other = self.ext.base(other)
+        return other, None
+
+    # Python does not try the reflected method when both operands have the same
+    # type, so an operand of a higher extension is handed over explicitly.
+    def __add__(self, other):
+        c = self._coerce(other)
+        if c is None:
+            return other.__add__(self)
+        a, b = c
+        if b is None:
+            return QuadraticElement(self.a + a, self.b, self.ext)
+        return QuadraticElement(self.a + a, self.b + b, self.ext)
+
+    __radd__ = __add__
+
+    def __neg__(self):
+        return QuadraticElement(-self.a, -self.b, self.ext)
+
+    def __sub__(self, other):
+        c = self._coerce(other)
+        if c is None:
+            return (-other).__add__(self)
+        a, b = c
+        if b is None:
+            return QuadraticElement(self.a - a, self.b, self.ext)
+        return QuadraticElement(self.a - a, self.b - b, self.ext)
+
+    def __rsub__(self, other):
+        return (-self) + other
+
+    def __mul__(self, other):
+        c = self._coerce(other)
+        if c is None:
+            return other.__mul__(self)
+        a, b = c
+        if b is None:
+            if not a:
+                return self.ext.zero
+            return QuadraticElement(self.a * a, self.b * a, self.ext)
+        sa, sb = self.a, self.b
+        if not sb:
+            return QuadraticElement(sa * a, sa * b, self.ext)
+        if not b:
+            return QuadraticElement(sa * a, sb * a, self.ext)
+        return QuadraticElement(sa * a + sb * b * self.ext.radicand, sa * b + sb * a, self.ext)
+
+    __rmul__ = __mul__
+
+    def norm(self):
+        """``a**2 - b**2 d``, an element of the base field."""
+        return self.a * self.a - self.b * self.b * self.ext.radicand
+
+    def conjugate(self):
+        """``a - b*t`` (for ``nu = i*omega`` this is complex conjugation)."""
+        return QuadraticElement(self.a, -self.b, self.ext)
+
+    def inverse(self):
+        if not self.b:
+            return QuadraticElement(1 / self.a, self.b, self.ext)
+        n = self.norm()
+        if not n:
+            raise ZeroDivisionError(f"division by a zero divisor of {self.ext}")
+        inv = 1 / n
+        return QuadraticElement(self.a * inv, -self.b * inv, self.ext)
+
+    def __truediv__(self, other):
+        c = self._coerce(other)
+        if c is None:
+            return other.inverse().__mul__(self)
+        a, b = c
+        if b is None:
+            inv = 1 / a
+            return QuadraticElement(self.a * inv, self.b * inv, self.ext)
+        return self * QuadraticElement(a, b, self.ext).inverse()
+
+    def __rtruediv__(self, other):
+        return self.inverse() * other
+
+    def __pow__(self, k: int):
+        if not isinstance(k, int):
+            return NotImplemented
+        if k < 0:
+            return self.inverse() ** (-k)
+        result, base = self.ext.one, self
+        while k:
+            if k & 1:
+                result = result * base
+            base = base * base
+            k >>= 1
+        return result
+
+    def __eq__(self, other):
+        c = self._coerce(other)
+        if c is None:
+            return other.__eq__(self)
+        a, b = c
+        if b is None:
+            return not self.b and self.a == a
+        return self.a == a and self.b == b
+
+    def __ne__(self, other):
+        r = self.__eq__(other)
+        return r if r is NotImplemented else not r
+
+    def __hash__(self):
+        return hash((self.a, self.b)) if self.b else hash(self.a)
+
+    def __bool__(self):
+        return bool(self.a) or bool(self.b)
+
+    def __repr__(self):
+        return f"[{self.a!r} + {self.b!r}*{self.ext.name}]"
+
+
+def lower(x):
+    """``x`` in the smallest field of its tower that contains it: strips
+    extension levels whose generator has a zero coefficient."""
+    while isinstance(x, QuadraticElement) and not x.b:
+        x = x.a
+    return x
+
+
+class QuadraticExtension(Field):
+    """The extension ``base(t)`` with ``t**2 = radicand``.
+
+    Parameters
+    ----------
+    base : Field
+        The field below (a parameter field or another quadratic extension).
+    radicand : element of base
+        ``d`` in ``t**2 = d``; must not be a square in ``base``.
+    name : str
+        Name of the generator (for printing).
+    root : sympy.Expr, optional
+        The sympy expression the generator stands for in outputs, e.g.
+        ``sqrt(b*(r - 1))`` or ``I*sqrt(W)``; defaults to ``Symbol(name)``.
+
+    Examples
+    --------
+    >>> from criticality.algebra.flint_field import FlintRationalField
+    >>> QQ = FlintRationalField()
+    >>> L = QuadraticExtension(QQ, QQ(2), "s")
+    >>> s = L.gen
+    >>> (1 + s) * (1 - s) == L(-1)
+    True
+    """
+
+    def __init__(self, base: Field, radicand, name: str, root=None):
+        self.base = base
+        self.radicand = base(radicand) if not isinstance(radicand, QuadraticElement) else radicand
+        self.name = name
+        self.root = root if root is not None else sympy.Symbol(name)
+        self.level = getattr(base, "level", 0) + 1
+        self.backend = base.backend
+        self.symbols = base.symbols
+        self.zero = QuadraticElement(base.zero, base.zero, self)
+        self.one = QuadraticElement(base.one, base.zero, self)
+        self.gen = QuadraticElement(base.zero, base.one, self)
+
+    def __call__(self, value) -> QuadraticElement:
+        if isinstance(value, QuadraticElement) and value.ext is self:
+            return value
+        return QuadraticElement(self.base(value), self.base.zero, self)
+
+    def element(self, a, b) -> QuadraticElement:
+        """``a + b*t`` from two elements of the base field."""
+        return QuadraticElement(self.base(a), self.base(b), self)
+
+    def contains(self, x) -> bool:
+        return isinstance(x, QuadraticElement) and x.ext is self
+
+    def components(self, x):
+        """``(a, b)`` with ``x = a + b*t``; base elements give ``(x, 0)``."""
+        if self.contains(x):
+            return x.a, x.b
+        return self.base(x), self.base.zero
+
+    def to_sympy(self, x) -> sympy.Expr:
+        a, b = self.components(x)
+        return self.base.to_sympy(a) + self.base.to_sympy(b) * self.root
+
+    def size(self, x) -> int:
+        a, b = self.components(x)
+        return self.base.size(a) + self.base.size(b)
+
+    def is_rational_number(self, x) -> bool:
+        a, b = self.components(x)
+        return not b and self.base.is_rational_number(a)
+
+    def to_fraction(self, x) -> Fraction:
+        a, b = self.components(x)
+        if b:
+            raise ValueError("not a rational number")
+        return self.base.to_fraction(a)
+
+    def __repr__(self):
+        return f"{self.base!r}({self.name}: {self.name}^2 = {self.base.to_sympy(self.radicand)})"
