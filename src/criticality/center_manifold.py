@@ -1,0 +1,174 @@
+"""Reduction onto the two-dimensional center manifold, as a series.
+
+Pipeline place: eigenbasis + Taylor forms -> **center manifold** -> normal form.
+
+In the real center coordinates ``(xi1, xi2)`` of the basis
+``e1 = A v = Re q``, ``e2 = -v = -Im q / omega`` the linear part is
+``J = [[0, -1], [W, 0]]`` and every coefficient stays in the real field (no
+square root of ``W``).  The manifold is the graph
+``u = xi1 e1 + xi2 e2 + h(xi)`` with ``h`` in the complementary invariant
+subspace (annihilated by ``w`` and ``A^T w``) and the reduced system is
+``xi' = J xi + g(xi)``.  At each degree k the invariance equation
+
+    Dh_k(xi) J xi - A h_k(xi) = pi_s [F(u)]_k - sum_j Dh_j(xi) g_(k+1-j)(xi)
+
+is a linear system for the ``(k+1) n`` coefficients of ``h_k`` in the
+monomials ``xi1^(k-b) xi2^b``; it is solved exactly, with the two
+normalisation rows per monomial that pin ``h_k`` to the complementary subspace
+(needed at odd k, where the operator is singular on the whole space).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import sympy
+
+from .algebra.linalg import SingularMatrixError, solve, solve_consistent
+from .errors import DegenerateHopfError
+from .taylor import compose
+
+__all__ = ["ReducedSystem", "reduce_to_center_manifold"]
+
+
+@dataclass(frozen=True)
+class ReducedSystem:
+    """The vector field restricted to the center manifold.
+
+    ``xi1' = -xi2 + g1(xi)``, ``xi2' = W xi1 + g2(xi)``, where the state is
+    ``x = x0 + xi1 Re(q) - xi2 Im(q)/omega + h(xi)``.  ``g1`` and ``g2`` map
+    exponent pairs ``(a, b)`` (for ``xi1^a xi2^b``) to field elements, degrees
+    2 to ``order``; ``h`` maps a degree to the list of coefficient vectors of
+    ``xi1^(k-b) xi2^b``, b = 0..k.
+    """
+
+    W: object
+    g1: dict
+    g2: dict
+    h: dict
+    order: int
+    field: object
+
+    def rotation_form(self, to_sympy, omega, x, y):
+        """The right-hand sides in the coordinates ``x = xi1``, ``y = xi2 / omega``
+        where the linear part is the rotation ``[[0, -omega], [omega, 0]]``:
+        returns ``(f, g)`` with ``x' = -omega y + f``, ``y' = omega x + g``."""
+        f = sympy.Add(*[to_sympy(c) * x ** a * (omega * y) ** b for (a, b), c in self.g1.items()])
+        g = sympy.Add(*[to_sympy(c) * x ** a * (omega * y) ** b for (a, b), c in self.g2.items()])
+        return sympy.expand(f), sympy.expand(g / omega)
+
+    def sympy_form(self, to_sympy, xi1, xi2):
+        """``(xi1', xi2')`` as sympy expressions in the field's own coordinates."""
+        f = -xi2 + sympy.Add(*[to_sympy(c) * xi1 ** a * xi2 ** b for (a, b), c in self.g1.items()])
+        g = to_sympy(self.W) * xi1 + sympy.Add(
+            *[to_sympy(c) * xi1 ** a * xi2 ** b for (a, b), c in self.g2.items()])
+        return f, g
+
+
+def reduce_to_center_manifold(taylor, eb, order: int) -> ReducedSystem:
+    """Compute ``g`` up to degree ``order`` (and ``h`` up to ``order - 1``)."""
+    K, n = eb.field, len(eb.A)
+    e1, e2 = eb.Av, [-x for x in eb.v]
+    u = [{(1, 0): e1[j], (0, 1): e2[j]} for j in range(n)]
+    for j in range(n):
+        u[j] = {m: c for m, c in u[j].items() if c}
+    g1, g2, h = {}, {}, {}
+    for k in range(2, order + 1):
+        cache: dict = {}
+        R = [_degree_part(taylor, i, u, k, cache) for i in range(n)]
+        stable = []
+        for b in range(k + 1):
+            y = [R[i].get((k - b, b), K.zero) for i in range(n)]
+            alpha, beta = eb.center_coordinates(y)
+            if alpha:
+                g1[(k - b, b)] = alpha
+            if beta:
+                g2[(k - b, b)] = beta
+            stable.append([y[i] - alpha * e1[i] - beta * e2[i] for i in range(n)])
+        if k == order:
+            break
+        rhs = _subtract_drift(K, stable, h, g1, g2, k, n)
+        h[k] = _solve_homological(eb, rhs, k)
+        for b in range(k + 1):
+            for j in range(n):
+                c = h[k][b][j]
+                if c:
+                    u[j][(k - b, b)] = c
+    return ReducedSystem(eb.W, g1, g2, h, order, K)
+
+
+def _degree_part(taylor, i, u, k, cache):
+    out: dict = {}
+    for d in range(2, k + 1):
+        part = taylor.degree_part(i, d)
+        if not part:
+            continue
+        for m, c in compose(taylor.field, part, u, k, cache).items():
+            if sum(m) == k:
+                out[m] = out[m] + c if m in out else c
+    return out
+
+
+def _subtract_drift(K, stable, h, g1, g2, k, n):
+    """``rhs_b = stable_b - [sum_j Dh_j g_(k+1-j)]`` at ``xi1^(k-b) xi2^b``."""
+    rhs = [list(v) for v in stable]
+    for j in range(2, k):
+        i = k + 1 - j
+        for c in range(j + 1):  # h_j coefficient of xi1^(j-c) xi2^c
+            vec = h[j][c]
+            for (a, bb), gv in g1.items():
+                if a + bb != i or j - c == 0:
+                    continue
+                _accumulate(rhs, vec, (j - c) * gv, j - c - 1 + a, c + bb, n)
+            for (a, bb), gv in g2.items():
+                if a + bb != i or c == 0:
+                    continue
+                _accumulate(rhs, vec, c * gv, j - c + a, c - 1 + bb, n)
+    return rhs
+
+
+def _accumulate(rhs, vec, factor, p1, p2, n):
+    b = p2
+    for t in range(n):
+        if vec[t]:
+            rhs[b][t] = rhs[b][t] - factor * vec[t]
+
+
+def _solve_homological(eb, rhs, k):
+    """Solve for ``h_k`` (list over b of vectors) with ``h_k`` in the
+    complementary subspace."""
+    K, A, W, n = eb.field, eb.A, eb.W, len(eb.A)
+    size = (k + 1) * n
+    rows = []
+    rhs_rows = []
+    for b in range(k + 1):
+        for i in range(n):
+            row = [K.zero] * size
+            for j in range(n):
+                if A[i][j]:
+                    row[b * n + j] = -A[i][j]
+            if b >= 1:
+                row[(b - 1) * n + i] = K(-(k - b + 1))
+            if b + 1 <= k:
+                row[(b + 1) * n + i] = (b + 1) * W
+            rows.append(row)
+            rhs_rows.append([rhs[b][i]])
+    odd = k % 2 == 1
+    try:
+        if not odd:
+            sol = solve(K, rows, rhs_rows)
+        else:
+            for b in range(k + 1):
+                for vec in (eb.w, eb.wA):
+                    row = [K.zero] * size
+                    for j in range(n):
+                        row[b * n + j] = vec[j]
+                    rows.append(row)
+                    rhs_rows.append([K.zero])
+            sol = solve_consistent(K, rows, rhs_rows)
+    except SingularMatrixError as exc:
+        raise DegenerateHopfError(
+            f"the center-manifold equation of degree {k} is singular: an eigenvalue of the "
+            f"Jacobian is an integer multiple of i omega (resonance)", reason="resonance") from exc
+    flat = [r[0] for r in sol]
+    return [flat[b * n:(b + 1) * n] for b in range(k + 1)]

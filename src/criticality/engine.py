@@ -1,0 +1,116 @@
+"""The computational core of the Hopf analysis, on plain sympy inputs.
+
+Pipeline: Taylor data (sympy) -> tower of fields -> Jacobian and characteristic
+polynomial with the bifurcation parameter symbolic -> critical branches -> for
+each branch, substitution of the critical value, eigenbasis, the two routes to
+the normal-form coefficients (projection formula; center manifold series +
+planar normal form), and their exact comparison.
+
+This module knows nothing about model files, names or outputs: it takes sympy
+objects and returns :class:`BranchComputation` records of field elements, which
+:mod:`criticality.hopf` turns into results.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import sympy
+
+from .algebra import Tower, collect_atoms
+from .center_manifold import ReducedSystem, reduce_to_center_manifold
+from .critical import CriticalBranch, find_critical_branches
+from .eigenbasis import Eigenbasis, critical_eigenbasis
+from .errors import NotAnEquilibriumError
+from .linear import characteristic_polynomial
+from .normal_form import complexify, planar_normal_form, unit_coefficients
+from .projection import projection_c1
+from .taylor import TaylorForms, raw_taylor
+
+__all__ = ["Problem", "BranchComputation", "EngineOutput", "run_engine"]
+
+
+@dataclass(frozen=True)
+class Problem:
+    """A shifted-and-ready Hopf problem in sympy terms."""
+
+    equations: tuple
+    states: tuple
+    parameters: tuple
+    parameter: sympy.Symbol
+    equilibrium: tuple
+    order: int = 3
+    backend: str = "flint"
+    state_names: tuple = ()
+    positivity: object = None
+
+
+@dataclass(frozen=True)
+class BranchComputation:
+    """Everything computed on one branch (field elements)."""
+
+    branch: CriticalBranch
+    taylor: TaylorForms
+    eigenbasis: Eigenbasis
+    reduced: ReducedSystem
+    c_center: tuple      # c_k, unit normalisation, center-manifold route
+    c1_projection: object  # c_1, unit normalisation, projection route
+
+    @property
+    def routes_agree(self) -> bool:
+        return self.c_center[0] == self.c1_projection
+
+
+@dataclass(frozen=True)
+class EngineOutput:
+    tower_mu: Tower
+    chi: list
+    jacobian_mu: list
+    branches: tuple
+    notes: tuple
+    degenerate: tuple
+
+
+def run_engine(problem: Problem) -> EngineOutput:
+    """Run the pipeline on every closed-form branch of the critical set."""
+    order = max(3, problem.order)
+    raw = raw_taylor(problem.equations, problem.states, problem.equilibrium, order,
+                     problem.state_names or None)
+    exprs = list(raw.coefficients()) + list(problem.equilibrium)
+    atoms = collect_atoms(exprs, problem.parameters)
+    tower = Tower(problem.parameters, atoms, problem.backend, problem.positivity)
+    x0 = [tower.convert(e) for e in problem.equilibrium]
+    taylor_mu = TaylorForms.from_raw(raw, x0, tower.convert, tower.base)
+    _check_equilibrium(tower, taylor_mu, problem)
+    K = tower.top
+    taylor_mu = TaylorForms(K, taylor_mu.n, taylor_mu.order, taylor_mu.components)
+    A_mu = taylor_mu.jacobian()
+    chi = characteristic_polynomial(K, A_mu)
+    branches, notes, degenerate = find_critical_branches(
+        tower, problem.parameter, chi, describe=lambda s: f"'{s}'")
+    computed = tuple(_compute_branch(tower, taylor_mu, b, problem, order) for b in branches)
+    return EngineOutput(tower, chi, A_mu, computed, tuple(notes), tuple(degenerate))
+
+
+def _check_equilibrium(tower, taylor, problem):
+    names = problem.state_names or [str(s) for s in problem.states]
+    bad = [(names[i], r) for i, r in enumerate(taylor.residual()) if r]
+    if bad:
+        parts = "; ".join(f"the right-hand side for '{n}' equals {tower.to_sympy(r)}" for n, r in bad)
+        raise NotAnEquilibriumError(
+            f"the given point is not an equilibrium: {parts} there instead of 0. Check the "
+            "equilibrium coordinates, or let the engine solve for the equilibrium.")
+
+
+def _compute_branch(tower, taylor_mu, branch, problem, order) -> BranchComputation:
+    target = branch.tower
+    mu, value, images = problem.parameter, branch.value, branch.images
+    K = target.top
+    taylor = taylor_mu.map(lambda c: tower.substitute(c, mu, value, target, images), K)
+    N = branch.nu_field
+    eb = critical_eigenbasis(K, taylor.jacobian(), branch.W, N)
+    c1_proj = projection_c1(taylor, eb) / eb.qq
+    reduced = reduce_to_center_manifold(taylor, eb, order)
+    G = complexify(reduced, N, order)
+    c_center = tuple(unit_coefficients(planar_normal_form(G, N, order), eb.qq))
+    return BranchComputation(branch, taylor, eb, reduced, c_center, c1_proj)
