@@ -52,10 +52,18 @@ class ReducedSystem:
     def rotation_form(self, to_sympy, omega, x, y):
         """The right-hand sides in the coordinates ``x = xi1``, ``y = xi2 / omega``
         where the linear part is the rotation ``[[0, -omega], [omega, 0]]``:
-        returns ``(f, g)`` with ``x' = -omega y + f``, ``y' = omega x + g``."""
-        f = sympy.Add(*[to_sympy(c) * x ** a * (omega * y) ** b for (a, b), c in self.g1.items()])
-        g = sympy.Add(*[to_sympy(c) * x ** a * (omega * y) ** b for (a, b), c in self.g2.items()])
-        return sympy.expand(f), sympy.expand(g / omega)
+        returns ``(f, g)`` with ``x' = -omega y + f``, ``y' = omega x + g``.
+        Coefficients are converted by ``to_sympy``; powers of omega are split
+        into ``W^k`` (in the field) times at most one ``omega``."""
+        def term(c, a, b, shift):
+            k = b + shift  # power of omega multiplying c
+            w = self.W ** (k // 2) if k >= 0 else self.W ** (-((-k + 1) // 2))
+            odd = k % 2
+            return to_sympy(c * w) * omega ** odd * x ** a * y ** b
+
+        f = sympy.Add(*[term(c, a, b, 0) for (a, b), c in sorted(self.g1.items())])
+        g = sympy.Add(*[term(c, a, b, -1) for (a, b), c in sorted(self.g2.items())])
+        return f, g
 
     def sympy_form(self, to_sympy, xi1, xi2):
         """``(xi1', xi2')`` as sympy expressions in the field's own coordinates."""

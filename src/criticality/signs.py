@@ -1,23 +1,28 @@
 """Deciding signs of rational functions of the parameters.
 
 Pipeline place: used by the critical set (is omega^2 > 0? is the critical
-value admissible?) and by the criticality condition (the sign of l1).
+value admissible?), by the criticality condition (the sign of l1) and by the
+choice of equilibrium branches.
 
 A polynomial is proved positive when, after replacing negative parameters by
 their opposites, every parameter it contains is positive (or nonnegative with a
 non-zero constant term) and every coefficient has the same sign.  Where that
 fails, the admissibility conditions of the Hopf set are used the way one does
 by hand: a condition ``sigma - b - 1 > 0`` that is linear in ``sigma`` becomes
-the substitution ``sigma = b + 1 + t`` with ``t > 0``, after which the factor
+the substitution ``sigma = b + 1 + t`` with ``t > 0``, after which a factor
 often is a sum of positive terms.  Nothing is guessed: what cannot be proved
-is reported as undecided.
+is reported as ``"unknown"``.
+
+All polynomial work is done with python-flint in one context over every known
+symbol (plus two slack variables for the substitutions).
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from itertools import combinations
 
+import flint
 import sympy
 
 __all__ = ["POSITIVE", "NEGATIVE", "NONNEGATIVE", "NONPOSITIVE", "ZERO", "UNKNOWN",
@@ -28,16 +33,18 @@ POSITIVE, NEGATIVE, NONNEGATIVE, NONPOSITIVE, ZERO, UNKNOWN = (
 
 _NEG = {POSITIVE: NEGATIVE, NEGATIVE: POSITIVE, NONNEGATIVE: NONPOSITIVE,
         NONPOSITIVE: NONNEGATIVE, ZERO: ZERO, UNKNOWN: UNKNOWN}
+_VALUE = {POSITIVE: 1, NEGATIVE: -1, NONNEGATIVE: 1, NONPOSITIVE: -1}
+_SLACK = 2
 
 
-def _mul_sign(s, t):
+def mul_sign(s: str, t: str) -> str:
+    """Sign of a product from the signs of the factors."""
     if ZERO in (s, t):
         return ZERO
     if UNKNOWN in (s, t):
         return UNKNOWN
     neg = (s in (NEGATIVE, NONPOSITIVE)) != (t in (NEGATIVE, NONPOSITIVE))
-    strict = s in (POSITIVE, NEGATIVE) and t in (POSITIVE, NEGATIVE)
-    if strict:
+    if s in (POSITIVE, NEGATIVE) and t in (POSITIVE, NEGATIVE):
         return NEGATIVE if neg else POSITIVE
     return NONPOSITIVE if neg else NONNEGATIVE
 
@@ -56,12 +63,8 @@ class FactorSign:
 class FactoredSign:
     """A rational function as ``constant * prod(factor**m)`` with signs.
 
-    Attributes
-    ----------
-    constant : sympy.Rational
-    factors : tuple of FactorSign
-    sign : str
-        The proven sign of the whole, or ``"unknown"``.
+    Factors proved negative are stored negated (the constant absorbs the
+    sign), so every displayed factor is positive, nonnegative or undecided.
     """
 
     constant: sympy.Rational
@@ -74,35 +77,22 @@ class FactoredSign:
         return tuple(f for f in self.factors if f.sign == UNKNOWN and f.multiplicity % 2)
 
     def as_expr(self) -> sympy.Expr:
-        """``constant * prod`` in one Mul, known-sign factors first."""
-        num, den = [], []
+        """``constant * prod`` built in one go, known-sign factors first."""
+        num = [f.expr ** f.multiplicity for f in self.factors if not f.in_denominator]
+        den = [f.expr ** f.multiplicity for f in self.factors if f.in_denominator]
+        out = sympy.Mul(self.constant, *num)
+        return out / sympy.Mul(*den) if den else out
+
+    def sign_part(self) -> tuple:
+        """``(s, P)``: the sign of the whole is ``s * sign(P)``, with ``P`` the
+        product of the undecided factors and ``s`` = +1 or -1."""
+        rest = 1 if self.constant > 0 else -1
         for f in self.factors:
-            (den if f.in_denominator else num).append(f.expr ** f.multiplicity)
-        out = sympy.Mul(self.constant, *num, evaluate=True)
-        if den:
-            out = out / sympy.Mul(*den)
-        return out
-
-    def sign_part(self) -> sympy.Expr:
-        """Product of the undecided factors, times the sign of the rest."""
-        rest = _sign_value(self.constant)
-        for f in self.factors:
-            if f.sign == UNKNOWN:
-                continue
-            rest *= _sign_value_str(f.sign) ** f.multiplicity
-        und = [f.expr for f in self.undecided]
-        return sympy.Mul(rest, *und)
+            if f.sign != UNKNOWN:
+                rest *= _VALUE.get(f.sign, 1) ** f.multiplicity
+        return rest, sympy.Mul(*[f.expr for f in self.undecided])
 
 
-def _sign_value(c):
-    return 1 if c > 0 else -1 if c < 0 else 0
-
-
-def _sign_value_str(s):
-    return {POSITIVE: 1, NEGATIVE: -1, NONNEGATIVE: 1, NONPOSITIVE: -1}.get(s, 1)
-
-
-@dataclass
 class SignContext:
     """What is known about the signs of the symbols.
 
@@ -110,128 +100,211 @@ class SignContext:
     ----------
     assumptions : dict
         symbol -> ``"positive" | "nonnegative" | "negative" | "nonzero" | "real"``.
-    side_conditions : list of sympy.Expr
-        Expressions known to be positive on the admissible set.
+    side_conditions : sequence of sympy.Expr
+        Polynomials known to be positive on the admissible set.
     """
 
-    assumptions: dict
-    side_conditions: list = field(default_factory=list)
+    def __init__(self, assumptions, side_conditions=()):
+        self.assumptions = dict(assumptions)
+        self.side_conditions = tuple(side_conditions)
+        self._symbols = sorted(self.assumptions, key=sympy.default_sort_key)
+        self._index = {s: i for i, s in enumerate(self._symbols)}
+        n = len(self._symbols)
+        names = tuple(f"v{i}" for i in range(n)) + tuple(f"t{i}" for i in range(_SLACK))
+        self.ctx = flint.fmpq_mpoly_ctx.get(names, "degrevlex")
+        self._kinds = [self.assumptions[s] for s in self._symbols] + ["positive"] * _SLACK
+        self._subs = None
 
     def with_conditions(self, conditions) -> "SignContext":
-        return SignContext(dict(self.assumptions), list(self.side_conditions) + list(conditions))
+        return SignContext(self.assumptions, self.side_conditions + tuple(conditions))
 
-    # -- polynomials ----------------------------------------------------------------
-    def polynomial_sign(self, expr) -> str:
-        """Sign of a polynomial expression in the symbols (``unknown`` if not proved)."""
-        expr = sympy.expand(expr)
-        if expr.is_Number:
-            return POSITIVE if expr > 0 else NEGATIVE if expr < 0 else ZERO
-        s = self._plain_sign(expr)
-        if s != UNKNOWN:
-            return s
-        return self._sign_with_conditions(expr)
+    # -- conversion ------------------------------------------------------------------
+    def _poly_from_sympy(self, expr):
+        syms = sorted(expr.free_symbols, key=sympy.default_sort_key)
+        if any(s not in self._index for s in syms):
+            return None
+        n = self.ctx.nvars()
+        if not syms:
+            return self.ctx.from_dict({(0,) * n: flint.fmpq(int(expr.p), int(expr.q))}) \
+                if expr.is_Rational else None
+        try:
+            poly = sympy.Poly(expr, *syms, domain="QQ")
+        except sympy.PolynomialError:
+            return None
+        idx = [self._index[s] for s in syms]
+        data = {}
+        for monom, c in poly.terms():
+            e = [0] * n
+            for i, k in zip(idx, monom):
+                e[i] = k
+            data[tuple(e)] = flint.fmpq(int(c.p), int(c.q))
+        return self.ctx.from_dict(data)
 
-    def _plain_sign(self, expr) -> str:
-        flips = {}
-        for sym in expr.free_symbols:
-            a = self.assumptions.get(sym, "real")
-            if a in ("negative", "nonpositive"):
-                flips[sym] = -sym
-            elif a not in ("positive", "nonnegative"):
-                return _square_sign(expr)
-        if flips:
-            expr = sympy.expand(expr.xreplace(flips))
-        gens = sorted(expr.free_symbols, key=sympy.default_sort_key)
-        if not gens:
-            return POSITIVE if expr > 0 else NEGATIVE if expr < 0 else ZERO
-        terms = sympy.Poly(expr, *gens).terms()
-        signs = {c > 0 for _, c in terms}
-        if len(signs) != 1:
+    def poly_from_flint(self, poly, field_symbols):
+        """Embed an ``fmpz_mpoly`` over ``field_symbols`` (None if a symbol is unknown)."""
+        try:
+            idx = [self._index[s] for s in field_symbols]
+        except KeyError:
+            return None
+        n = self.ctx.nvars()
+        data = {}
+        for monom, c in poly.to_dict().items():
+            e = [0] * n
+            for i, k in zip(idx, monom):
+                e[i] = k
+            data[tuple(e)] = flint.fmpq(int(c))
+        return self.ctx.from_dict(data)
+
+    # -- polynomial signs ----------------------------------------------------------------
+    def polynomial_sign(self, poly) -> str:
+        """Sign of a polynomial (sympy expression or embedded flint polynomial)."""
+        if isinstance(poly, sympy.Basic):
+            poly = self._poly_from_sympy(sympy.expand(poly))
+            if poly is None:
+                return UNKNOWN
+        s = self._plain_sign(poly)
+        return s if s != UNKNOWN else self._sign_with_conditions(poly)
+
+    def _plain_sign(self, p) -> str:
+        if p.is_zero():
+            return ZERO
+        used = [i for i, d in enumerate(p.degrees()) if d > 0]
+        if not used:
+            c = p.coeffs()[0]
+            return POSITIVE if c > 0 else NEGATIVE
+        gens = list(self.ctx.gens())
+        flip = False
+        for i in used:
+            kind = self._kinds[i]
+            if kind in ("negative", "nonpositive"):
+                gens[i] = -gens[i]
+                flip = True
+            elif kind not in ("positive", "nonnegative"):
+                return _square_sign(p)
+        if flip:
+            p = p.compose(*gens)
+        coeffs = p.coeffs()
+        positive = coeffs[0] > 0
+        if any((c > 0) != positive for c in coeffs):
             return UNKNOWN
-        positive = signs.pop()
-        strict = all(self.assumptions.get(s) in ("positive", "negative") for s in gens) or \
-            any(all(e == 0 for e in m) for m, _ in terms)
+        strict = all(self._kinds[i] in ("positive", "negative") for i in used) or _has_constant(p)
         if strict:
             return POSITIVE if positive else NEGATIVE
         return NONNEGATIVE if positive else NONPOSITIVE
 
-    def _sign_with_conditions(self, expr) -> str:
-        subs_list = [s for s in (self._linear_substitution(c) for c in self.side_conditions) if s]
-        for r in (1, 2):
-            for combo in combinations(subs_list, r):
-                e = expr
-                used = set()
-                ok = True
-                for var, repl, t in combo:
-                    if var in used:
-                        ok = False
-                        break
-                    used.add(var)
-                    e = e.xreplace({var: repl})
-                if not ok:
+    def _substitutions(self):
+        """``(var index, replacement)`` from side conditions linear in a
+        positive symbol with a positive constant coefficient."""
+        if self._subs is None:
+            subs = []
+            n = len(self._symbols)
+            for cond in self.side_conditions:
+                p = self._poly_from_sympy(sympy.expand(cond))
+                if p is None:
                     continue
-                e = sympy.expand(e)
-                extra = {t: "positive" for _, _, t in combo}
-                ctx = SignContext({**self.assumptions, **extra})
-                num, den = sympy.fraction(sympy.together(e))
-                s = _mul_sign(ctx._plain_sign(sympy.expand(num)), ctx._plain_sign(sympy.expand(den)))
+                for i in range(n):
+                    if p.degrees()[i] != 1 or self._kinds[i] not in ("positive", "nonnegative"):
+                        continue
+                    lin = _linear_part(self.ctx, p, i)
+                    if lin is None:
+                        continue
+                    c, rest = lin
+                    subs.append((i, rest, c))
+            self._subs = subs
+        return self._subs
+
+    def _sign_with_conditions(self, p) -> str:
+        subs = self._substitutions()
+        gens = self.ctx.gens()
+        n = len(self._symbols)
+        for r in (1, 2):
+            for combo in combinations(subs, r):
+                if len({i for i, _, _ in combo}) < r:
+                    continue
+                images = list(gens)
+                for k, (i, rest, c) in enumerate(combo):
+                    images[i] = (gens[n + k] - rest) / c
+                q = p
+                for _ in range(r):  # resolve replacements that mention replaced symbols
+                    q = q.compose(*images)
+                if any(q.degrees()[i] for i, _, _ in combo):
+                    continue
+                s = self._plain_sign(q)
                 if s != UNKNOWN:
                     return s
         return UNKNOWN
 
-    def _linear_substitution(self, cond):
-        """For ``cond > 0`` linear in some positive symbol with a constant
-        coefficient: ``(symbol, replacement, t)`` meaning symbol = (t - rest)/c."""
-        cond = sympy.expand(cond)
-        for sym in sorted(cond.free_symbols, key=sympy.default_sort_key):
-            poly = sympy.Poly(cond, sym)
-            if poly.degree() != 1:
-                continue
-            c = poly.coeff_monomial(sym)
-            if not c.is_Number:
-                continue
-            rest = sympy.expand(cond - c * sym)
-            t = sympy.Dummy(f"t_{sym}", positive=True)
-            return sym, (t - rest) / c, t
-        return None
-
-    # -- rational functions -----------------------------------------------------------------
-    def factored(self, expr) -> FactoredSign:
-        """Factor a rational function and decide the sign of each factor."""
-        num, den = sympy.fraction(sympy.together(expr))
-        cn, fn = sympy.factor_list(num)
-        cd, fd = sympy.factor_list(den)
-        return self._assemble(cn / cd, [(f, m, False) for f, m in fn] + [(f, m, True) for f, m in fd])
-
-    def from_factors(self, constant, factors) -> FactoredSign:
-        """Like :meth:`factored` for a factorisation already at hand:
-        ``factors`` is a list of ``(expr, multiplicity, in_denominator)``."""
-        return self._assemble(constant, factors)
-
-    def _assemble(self, constant, factors) -> FactoredSign:
-        out = []
-        total = POSITIVE if constant > 0 else NEGATIVE if constant < 0 else ZERO
-        for f, m, in_den in factors:
-            s = self.polynomial_sign(f)
-            if s == UNKNOWN and m % 2 == 0:
-                s = NONNEGATIVE
-            fs = s
-            if s in (NEGATIVE, NONPOSITIVE):
-                # keep factors positive on display: flip the sign into the constant
-                f, constant = sympy.expand(-f), constant * (-1) ** m
-                fs = _NEG[s]
-            out.append(FactorSign(f, m, in_den, fs))
-            total = _mul_sign(total, s if m % 2 else (POSITIVE if s != ZERO else ZERO))
-        out.sort(key=lambda f: (f.sign == UNKNOWN, f.in_denominator, sympy.count_ops(f.expr)))
-        return FactoredSign(sympy.Rational(constant), tuple(out), total)
-
+    # -- rational functions ----------------------------------------------------------------
     def sign(self, expr) -> str:
+        """Sign of a sympy rational function of the known symbols."""
         return self.factored(expr).sign
 
+    def factored(self, expr) -> FactoredSign:
+        """Factor a sympy rational function (with flint) and decide each factor."""
+        from .algebra.flint_field import FlintRationalFunctionField
 
-def _square_sign(expr) -> str:
-    """Nonnegative when the polynomial is a constant times a perfect square."""
-    c, factors = sympy.factor_list(expr)
-    if factors and all(m % 2 == 0 for _, m in factors):
-        return NONNEGATIVE if c > 0 else NONPOSITIVE
+        expr = sympy.together(expr)
+        syms = sorted(expr.free_symbols, key=sympy.default_sort_key)
+        if not syms:
+            return self.assemble(sympy.Rational(expr), [])
+        K = FlintRationalFunctionField(syms)
+        x = K.from_sympy(expr)
+        return self.from_flint(K, x.num, x.den)
+
+    def from_flint(self, K, num, den) -> FactoredSign:
+        """Factored sign of ``num/den`` (``fmpz_mpoly`` of the field ``K``)."""
+        cn, fn = num.factor()
+        cd, fd = den.factor()
+        items = [(f, int(m), False) for f, m in fn] + [(f, int(m), True) for f, m in fd]
+        decided = []
+        for f, m, in_den in items:
+            emb = self.poly_from_flint(f, K.symbols)
+            s = self.polynomial_sign(emb) if emb is not None else UNKNOWN
+            decided.append((K.poly_to_sympy(f), m, in_den, s))
+        return self.assemble(sympy.Rational(int(cn), int(cd)), decided)
+
+    def assemble(self, constant, decided) -> FactoredSign:
+        """Combine ``(expr, multiplicity, in_denominator, sign)`` factors."""
+        out = []
+        total = POSITIVE if constant > 0 else NEGATIVE if constant < 0 else ZERO
+        for f, m, in_den, s in decided:
+            if s == UNKNOWN and m % 2 == 0:
+                s = NONNEGATIVE
+            if m % 2:
+                total = mul_sign(total, s)
+            else:
+                total = mul_sign(total, ZERO if s == ZERO else
+                                 POSITIVE if s in (POSITIVE, NEGATIVE) else NONNEGATIVE)
+            if s in (NEGATIVE, NONPOSITIVE):
+                f, constant, s = sympy.expand(-f), constant * (-1) ** m, _NEG[s]
+            out.append(FactorSign(f, m, in_den, s))
+        out.sort(key=lambda f: (f.sign == UNKNOWN, f.in_denominator, len(f.expr.args)))
+        return FactoredSign(sympy.Rational(constant), tuple(out), total)
+
+
+def _has_constant(p) -> bool:
+    zero = (0,) * p.context().nvars()
+    return zero in p.to_dict()
+
+
+def _linear_part(ctx, p, i):
+    """``(c, rest)`` with ``p = c * v_i + rest``, c a positive constant, else None."""
+    c, rest = None, {}
+    for monom, coeff in p.to_dict().items():
+        if monom[i] == 1:
+            if any(monom[j] for j in range(len(monom)) if j != i):
+                return None
+            c = coeff
+        else:
+            rest[monom] = coeff
+    if c is None or c <= 0:
+        return None
+    return c, ctx.from_dict(rest) if rest else ctx.from_dict({})
+
+
+def _square_sign(p) -> str:
+    """Nonnegative (nonpositive) when the polynomial is a constant times a square."""
+    content, factors = p.factor()
+    if factors and all(int(m) % 2 == 0 for _, m in factors):
+        return NONNEGATIVE if content > 0 else NONPOSITIVE
     return UNKNOWN

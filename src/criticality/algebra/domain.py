@@ -188,7 +188,8 @@ class Tower:
                 return element
         root = self._square_root(radicand)
         if root is None:
-            sym_root = root_expr if root_expr is not None else sympy.sqrt(self.to_sympy(radicand))
+            sym_root = root_expr if root_expr is not None else \
+                sympy.sqrt(sympy.factor(self.to_sympy(radicand)))
             ext = QuadraticExtension(self.top, radicand, f"s{len(self.levels)}", root=sym_root)
             self.levels.append(ext)
             root = ext.gen

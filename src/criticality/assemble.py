@@ -1,0 +1,237 @@
+"""From the engine's field elements to a :class:`HopfResult`.
+
+Pipeline place: engine -> **assemble** -> result.
+
+Here the admissibility conditions of the branch are stated and, where
+possible, proved (omega^2 > 0, the critical value in the parameter's declared
+range, transversality, stability of the other eigenvalues); they then serve
+as side conditions for the sign of l1.  Every expression leaves the field in
+canonical factored form (:mod:`criticality.canonical`).
+"""
+
+from __future__ import annotations
+
+import sympy
+
+from .algebra.quadratic import lower
+from .canonical import canonical_expr, factored
+from .classify import classify
+from .critical import Condition, cofactor_hurwitz
+from .results import CyclePrediction, HopfResult, ReducedSystemView
+from .signs import NEGATIVE, NONNEGATIVE, NONPOSITIVE, POSITIVE, ZERO, SignContext
+
+__all__ = ["build_result", "sign_context"]
+
+_OMEGA = sympy.Symbol("omega", positive=True)
+
+
+def sign_context(parameters, assumptions, atoms) -> SignContext:
+    known = {s: assumptions.get(s, "real") for s in parameters}
+    for atom in atoms:
+        known[atom.symbol] = "positive" if atom.positive else "real"
+    return SignContext(known)
+
+
+def _status(fs, relation=">"):
+    if relation == "!=":
+        if fs.sign in (POSITIVE, NEGATIVE):
+            return "holds"
+        return "fails" if fs.sign == ZERO else "open"
+    if fs.sign == POSITIVE:
+        return "holds"
+    if fs.sign in (NEGATIVE, NONPOSITIVE, ZERO):
+        return "fails"
+    return "open"
+
+
+def _side(fs):
+    """Expression known positive on the admissible set, from an open ``> 0``."""
+    s, product = fs.sign_part()
+    return s * product if fs.undecided else None
+
+
+def _raw(tower, x, ctx):
+    """Factored sign with atoms left as placeholders (for side conditions)."""
+    return factored(tower, x, ctx, restore=False)
+
+
+class _Branch:
+    """Helper bundling one branch's conversions."""
+
+    def __init__(self, bc, ctx):
+        self.bc = bc
+        self.tower = bc.branch.tower
+        self.ctx = ctx
+
+    def expr(self, x):
+        return canonical_expr(self.tower, x, self.ctx)
+
+    def fs(self, x):
+        return factored(self.tower, x, self.ctx)
+
+
+def _admissibility(B, mu_name, mu_assumption, value, W):
+    conds, sides = [], []
+    fs_w = _raw(B.tower, W, B.ctx)
+    conds.append(Condition("omega_squared_positive", "omega^2 > 0: the pair is imaginary, not a "
+                           "real pair +-kappa", B.expr(W), ">", _status(fs_w)))
+    if _side(fs_w) is not None:
+        sides.append(_side(fs_w))
+    if mu_assumption in ("positive", "nonnegative", "negative", "nonzero"):
+        x = -value if mu_assumption == "negative" else value
+        fs_v = _raw(B.tower, x, B.ctx)
+        rel = "!=" if mu_assumption == "nonzero" else ">"
+        status = _status(fs_v, rel)
+        if mu_assumption == "nonnegative" and fs_v.sign in (NONNEGATIVE, ZERO):
+            status = "holds"
+        conds.append(Condition("critical_value_admissible",
+                               f"the critical value respects the declared sign of '{mu_name}' "
+                               f"({mu_assumption})", B.expr(x), rel, status))
+        if rel == ">" and _side(fs_v) is not None:
+            sides.append(_side(fs_v))
+    return conds, sides
+
+
+def build_result(model, name, mu, choice, out, bc, assumptions, params):
+    """The :class:`HopfResult` of one computed branch, or None when the branch
+    is provably not a Hopf point (omega^2 <= 0)."""
+    tower = bc.branch.tower
+    ctx0 = sign_context(params, assumptions, tower.atoms)
+    B = _Branch(bc, ctx0)
+    br, eb = bc.branch, bc.eigenbasis
+    conds, sides = _admissibility(B, name, assumptions.get(mu, "real"), br.value, br.W)
+    if conds[0].status == "fails":
+        return None
+    ctx = ctx0.with_conditions(sides)
+    B = _Branch(bc, ctx)
+    omega = sympy.sqrt(B.expr(br.W))
+    beta1, beta_nu = br.transversality
+    conds.append(Condition("transversal", "the pair crosses with non-zero speed: Re "
+                           "d lambda / d mu != 0", B.expr(beta1), "!=",
+                           _status(_raw(tower, beta1, ctx), "!=")))
+    stab = []
+    for k, d in enumerate(cofactor_hurwitz(br), start=1):
+        st = _status(_raw(tower, d, ctx))
+        stab.append(st)
+        conds.append(Condition(f"others_stable_{k}", f"Hurwitz determinant {k} of the remaining "
+                               "eigenvalues is positive (all of them together: the other "
+                               "eigenvalues lie in the left half-plane)", B.expr(d), ">", st))
+    c1 = bc.c_center[0]
+    re_c1, im_c1_nu = lower(c1.a), lower(c1.b)
+    fs_l1 = factored(tower, re_c1, ctx)
+    verdict = classify(fs_l1)
+    re_c1_expr = fs_l1.as_expr()
+    im_c1_expr = B.expr(im_c1_nu) * omega
+    lyap = tuple(B.expr(lower(c.a)) / omega for c in bc.c_center)
+    cycle = _cycle(B, model, bc, omega, verdict, stab, mu)
+    return HopfResult(
+        model=model, parameter=name, parameter_symbol=mu,
+        equilibrium={s: v for s, v in zip(model.states, choice.point)},
+        equilibrium_how=choice.how,
+        critical_value=B.expr(br.value), omega_squared=B.expr(br.W), omega=omega,
+        transversality=B.expr(beta1),
+        eigenvalue_derivative=B.expr(beta1) + sympy.I * omega * B.expr(beta_nu),
+        c1=re_c1_expr + sympy.I * im_c1_expr, l1=re_c1_expr / omega,
+        planar_coefficient=re_c1_expr / 2, lyapunov_coefficients=lyap,
+        classification=verdict.classification, verdict=verdict.text,
+        supercritical_where=verdict.supercritical_where, l1_zero_set=verdict.zero_set,
+        conditions=tuple(conds), cycle=cycle,
+        q_norm_squared=B.expr(eb.qq), routes_agree=bc.routes_agree,
+        branch_index=br.index, branch_count=len(out.branches),
+        substitutions={str(k): v for k, v in choice.substitutions.items()},
+        notes=tuple(_notes(model, choice, out, bc)),
+        assumptions={str(k): v for k, v in assumptions.items()},
+        _details=_Details(B, bc, omega, model),
+    )
+
+
+class _Details:
+    """Builds the display-oriented parts of a result on first access."""
+
+    def __init__(self, B, bc, omega, model):
+        self.B, self.bc, self.omega, self.model = B, bc, omega, model
+
+    def reduced_system(self):
+        return _reduced_view(self.B, self.bc, self.omega, self.model)
+
+    def jacobian(self):
+        tower = self.bc.branch.tower
+        return sympy.Matrix([[tower.to_sympy(x) for x in row] for row in self.bc.eigenbasis.A])
+
+    def characteristic_polynomial(self):
+        return _charpoly(self.B, self.bc.branch)
+
+    def eigenvector_q(self):
+        eb, B = self.bc.eigenbasis, self.B
+        return tuple(B.expr(a) + sympy.I * self.omega * B.expr(b) for a, b in zip(eb.Av, eb.v))
+
+    def eigenvector_p(self):
+        return tuple(_conj_expr(self.B, x, self.omega) for x in self.bc.eigenbasis.pbar)
+
+
+def _conj_expr(B, x, omega):
+    a, b = x.ext.components(x)
+    return B.expr(a) - sympy.I * omega * B.expr(b)
+
+
+def _charpoly(B, br):
+    lam = sympy.Symbol("lambda")
+    rest = sympy.Add(*[B.expr(c) * lam ** k for k, c in enumerate(br.cofactor)])
+    return sympy.Mul(lam ** 2 + B.expr(br.W), rest, evaluate=False)
+
+
+def _cycle(B, model, bc, omega, verdict, stab, mu):
+    br, eb = bc.branch, bc.eigenbasis
+    beta1, beta_nu = br.transversality
+    c1 = bc.c_center[0]
+    R, S = lower(c1.a), lower(c1.b)
+    k = -beta1 / R if R else None
+    offset = mu - B.expr(br.value)
+    amps, coeffs = {}, {}
+    if k is not None:
+        for name, a, v in zip(model.states, eb.Av, eb.v):
+            kj = 4 * k * (a * a + eb.W * v * v) / eb.qq
+            coeffs[name] = B.expr(kj)
+            amps[name] = sympy.sqrt(coeffs[name] * offset)
+        fs_k = _raw(B.tower, k, B.ctx)
+        side = {POSITIVE: "above", NEGATIVE: "below"}.get(fs_k.sign, "undecided")
+        rho2 = B.expr(k) * offset
+        side_cond = None if side != "undecided" else sympy.StrictGreaterThan(B.expr(k), 0)
+        slope = omega * B.expr(beta_nu - beta1 * S / R)
+    else:
+        side, side_cond, rho2, slope = "undecided", None, sympy.nan, sympy.nan
+    if verdict.classification == "supercritical":
+        stable = True if all(s == "holds" for s in stab) else (False if "fails" in stab else None)
+    elif verdict.classification == "subcritical":
+        stable = False
+    else:
+        stable = None
+    return CyclePrediction(side, side_cond, stable, rho2, amps, coeffs, 2 * sympy.pi / omega, slope)
+
+
+def _reduced_view(B, bc, omega, model):
+    x, y = sympy.symbols("x y", real=True)
+    rs = bc.reduced
+    f, g = rs.rotation_form(B.expr, _OMEGA, x, y)
+    eb = bc.eigenbasis
+    q = tuple(B.expr(a) + sympy.I * _OMEGA * B.expr(b) for a, b in zip(eb.Av, eb.v))
+    manifold = []
+    for i in range(len(model.states)):
+        terms = []
+        for k, vecs in rs.h.items():
+            for b, vec in enumerate(vecs):
+                if vec[i]:
+                    terms.append(B.expr(vec[i]) * x ** (k - b) * (_OMEGA * y) ** b)
+        manifold.append(sympy.Add(*terms))
+    return ReducedSystemView(x, y, f, g, rs.order, q, tuple(manifold))
+
+
+def _notes(model, choice, out, bc):
+    notes = list(getattr(model, "notes", ()))
+    if choice.note:
+        notes.append(choice.note)
+    notes.extend(out.notes)
+    if not bc.routes_agree:
+        notes.append("WARNING: the center-manifold route and the projection formula disagree; "
+                     "please report this model")
+    return notes

@@ -1,0 +1,159 @@
+"""The public Hopf analysis: ``hopf(model, parameter, ...)``.
+
+Pipeline place: model -> equilibrium -> **engine** -> result.  This module
+chooses the equilibrium, hands sympy objects to :mod:`criticality.engine`, and
+turns the field elements of each branch into a :class:`HopfResult`
+(:mod:`criticality.assemble`).
+"""
+
+from __future__ import annotations
+
+from typing import Mapping
+
+from .assemble import build_result, sign_context
+from .engine import Problem, run_engine
+from .equilibria import (given_equilibrium, parametrised_equilibrium, select_equilibrium,
+                         solve_equilibria)
+from .errors import NoHopfPointError, ParameterError
+from .results import HopfResult
+
+__all__ = ["hopf", "hopf_all"]
+
+_ASSUMPTIONS = ("real", "positive", "nonnegative", "negative", "nonzero")
+
+
+def hopf(model, parameter: str | None = None, *, equilibrium=None, eliminate=None,
+         branch: int | None = None, order: int = 3, values: Mapping | None = None,
+         assume: Mapping | None = None, backend: str = "flint") -> HopfResult:
+    """Hopf analysis of ``model`` with respect to ``parameter``.
+
+    Parameters
+    ----------
+    model : criticality.Model
+    parameter : str, optional
+        The bifurcation parameter (default: the model's own choice, if its
+        file names one).
+    equilibrium : mapping, int or str, optional
+        A mapping ``{state: expression}``; or, to let the engine solve
+        ``f(x) = 0``, the index of the equilibrium or one of ``"positive"``,
+        ``"nonnegative"``, ``"nonzero"``.  Default: the model file's
+        equilibrium, else the only equilibrium.
+    eliminate : sequence of str, optional
+        Parametrise the family by the equilibrium: these names (parameters or
+        states, one per state) are solved from ``f(x0) = 0``; the other states
+        become free symbols ``<state>_eq``.
+    branch : int, optional
+        Which branch of the critical set to return when there are several
+        (default 0; all branches: :func:`hopf_all`).
+    order : int
+        Highest order of the normal form: 3 gives ``l1``; ``2k + 1`` gives
+        ``l1 .. lk``.
+    values : mapping, optional
+        Exact values for some parameters, fixed before the analysis.
+    assume : mapping, optional
+        Extra or changed sign assumptions, e.g. ``{"x_eq": "positive"}``.
+    backend : {"flint", "sympy"}
+        The exact arithmetic used for the parameter field.
+
+    Returns
+    -------
+    HopfResult
+        With ``branch_index`` and ``branch_count`` telling where it stands
+        among the branches.
+
+    Examples
+    --------
+    >>> from criticality import Model, hopf
+    >>> m = Model(states=["x", "y"], equations={"x": "y", "y": "-x + mu*y - x^2*y"},
+    ...           parameters={"mu": "real"})
+    >>> r = hopf(m, "mu", equilibrium={"x": 0, "y": 0})
+    >>> r.critical_value, r.l1, r.classification
+    (0, -1/4, 'supercritical')
+    """
+    results = hopf_all(model, parameter, equilibrium=equilibrium, eliminate=eliminate,
+                       order=order, values=values, assume=assume, backend=backend)
+    index = 0 if branch is None else branch
+    if not 0 <= index < len(results):
+        raise ParameterError(f"branch {index} does not exist: the critical set has "
+                             f"{len(results)} closed-form branch(es)")
+    return results[index]
+
+
+def hopf_all(model, parameter: str | None = None, *, equilibrium=None, eliminate=None,
+             order: int = 3, values: Mapping | None = None, assume: Mapping | None = None,
+             backend: str = "flint") -> tuple:
+    """Like :func:`hopf`, returning one :class:`HopfResult` per branch of the
+    critical set (in the order the factors of the Hurwitz determinant come)."""
+    if order < 3 or order % 2 == 0:
+        raise ParameterError(f"order must be an odd integer >= 3 (3 gives l1, 5 gives l2); "
+                             f"got {order}")
+    if values:
+        model = model.with_values(**{k: v for k, v in values.items()})
+    name = parameter or getattr(model, "bifurcation_parameter", None)
+    if not name:
+        raise ParameterError("name the bifurcation parameter (the model file does not choose one)")
+    if name in model.states:
+        raise ParameterError(f"'{name}' is a state variable, not a parameter")
+    model.parameter(name)  # raises with a did-you-mean if unknown
+    assumptions = _assumptions(model, assume)
+    choice = _equilibrium(model, equilibrium, eliminate, assumptions)
+    eqs = tuple(e.xreplace(choice.substitutions) for e in model.equations)
+    mu = model.symbols[name]
+    if any(s == mu for s in choice.substitutions):
+        raise ParameterError(f"the bifurcation parameter '{name}' cannot be eliminated")
+    for s in choice.new_symbols:
+        assumptions.setdefault(s, (assume or {}).get(s.name, "real"))
+    params = tuple(s for s in model.parameter_symbols if s not in choice.substitutions)
+    params += tuple(choice.new_symbols)
+    if not any(e.has(mu) for e in eqs) and not any(x.has(mu) for x in choice.point):
+        raise NoHopfPointError(f"the bifurcation parameter '{name}' does not occur in the model",
+                               reason="parameter_absent")
+    ctx = sign_context(params, assumptions, ())
+    problem = Problem(eqs, tuple(model.state_symbols), params, mu, choice.point, order, backend,
+                      tuple(model.states), lambda e: ctx.sign(e) == "positive" or None)
+    out = run_engine(problem)
+    results, rejected = [], []
+    for bc in out.branches:
+        r = build_result(model, name, mu, choice, out, bc, assumptions, params)
+        (rejected if r is None else results).append(r)
+    if not results:
+        raise NoHopfPointError(
+            "on every branch of the critical set omega^2 <= 0 under the declared assumptions: "
+            "where two eigenvalues sum to zero they are a real pair +-kappa (a neutral saddle), "
+            "not a pair crossing the imaginary axis", reason="omega_squared_nonpositive")
+    count = len(results)
+    return tuple(_renumber(r, i, count) for i, r in enumerate(results))
+
+
+def _renumber(result, index, count):
+    from dataclasses import replace
+
+    return replace(result, branch_index=index, branch_count=count)
+
+
+def _assumptions(model, assume) -> dict:
+    out = {}
+    for p in model.parameters:
+        out[model.symbols[p.name]] = p.assumption
+    for key, value in (assume or {}).items():
+        if value not in _ASSUMPTIONS:
+            raise ParameterError(f"unknown assumption {value!r} for '{key}'; expected one of "
+                                 f"{', '.join(_ASSUMPTIONS)}")
+        if key in model.symbols:
+            out[model.symbols[key]] = value
+    return out
+
+
+def _equilibrium(model, equilibrium, eliminate, assumptions):
+    if eliminate is not None:
+        if equilibrium is not None:
+            raise ParameterError("give either an equilibrium or eliminate=..., not both")
+        return parametrised_equilibrium(model, eliminate)
+    if isinstance(equilibrium, Mapping):
+        return given_equilibrium(model, equilibrium)
+    hint = getattr(model, "equilibrium_hint", None)
+    if equilibrium is None and hint:
+        return given_equilibrium(model, hint)
+    candidates = solve_equilibria(model)
+    ctx = sign_context(model.parameter_symbols, assumptions, ())
+    return select_equilibrium(model, candidates, equilibrium, ctx)
