@@ -20,6 +20,7 @@ from .results import HopfResult
 __all__ = ["hopf", "hopf_all"]
 
 _ASSUMPTIONS = ("real", "positive", "nonnegative", "negative", "nonzero")
+_SIGN_TRUTH = {"positive": True, "negative": False}
 
 
 def hopf(model, parameter: str | None = None, *, equilibrium=None, eliminate=None,
@@ -110,7 +111,7 @@ def hopf_all(model, parameter: str | None = None, *, equilibrium=None, eliminate
                                reason="parameter_absent")
     ctx = sign_context(params, assumptions, ())
     problem = Problem(eqs, tuple(model.state_symbols), params, mu, choice.point, order, backend,
-                      tuple(model.states), lambda e: ctx.sign(e) == "positive" or None)
+                      tuple(model.states), lambda e: _SIGN_TRUTH.get(ctx.sign(e)))
     out = run_engine(problem)
     results, rejected = [], []
     for bc in out.branches:

@@ -17,6 +17,7 @@ from .algebra.quadratic import lower
 from .canonical import canonical_expr, factored
 from .classify import classify
 from .critical import Condition, cofactor_hurwitz
+from .errors import CriticalityError
 from .results import CyclePrediction, HopfResult, ReducedSystemView
 from .signs import NEGATIVE, NONNEGATIVE, NONPOSITIVE, POSITIVE, ZERO, SignContext
 
@@ -104,7 +105,7 @@ def build_result(model, name, mu, choice, out, bc, assumptions, params):
         return None
     ctx = ctx0.with_conditions(sides)
     B = _Branch(bc, ctx)
-    omega = sympy.sqrt(B.expr(br.W))
+    omega = _omega(B, br.W)
     beta1, beta_nu = br.transversality
     conds.append(Condition("transversal", "the pair crosses with non-zero speed: Re "
                            "d lambda / d mu != 0", B.expr(beta1), "!=",
@@ -167,6 +168,18 @@ class _Details:
 
     def eigenvector_p(self):
         return tuple(_conj_expr(self.B, x, self.omega) for x in self.bc.eigenbasis.pbar)
+
+
+def _omega(B, W):
+    """``sqrt(W)``, taken in the field when ``W`` is the square of an
+    expression of known sign (e.g. ``W = A**2`` with ``A > 0`` gives ``A``)."""
+    try:
+        root = B.tower.square_root(W)
+    except CriticalityError:
+        root = None
+    if root is not None:
+        return B.expr(root)
+    return sympy.sqrt(B.expr(W))
 
 
 def _conj_expr(B, x, omega):

@@ -27,8 +27,9 @@ __all__ = ["NumericHopfResult", "evaluate_result", "parameter_values"]
 class NumericHopfResult:
     """A :class:`HopfResult` evaluated at one parameter point.
 
-    Numbers are ``mpmath.mpf`` (``mpc`` for complex ones) with ``digits``
-    significant digits.  ``eigenvalues`` are the numeric eigenvalues of the
+    Numbers are ``mpmath.mpf`` (``mpc`` for complex ones) computed with
+    ``digits`` significant digits (plus guard digits); do arithmetic on them
+    inside ``mpmath.workdps(digits)`` to keep that precision.  ``eigenvalues`` are the numeric eigenvalues of the
     Jacobian at the critical point; ``pair_error`` is the distance of the
     nearest one to ``i omega`` (a check of the closed forms), and
     ``others_stable`` says whether all other eigenvalues have negative real
@@ -168,11 +169,11 @@ def evaluate_result(result, values: Mapping, *, digits: int = 30) -> NumericHopf
         others = [e for e in eigs if abs(e - target) > tol and abs(e + target) > tol]
         conds = tuple((c.key, _num(c.expr, subs, digits + 5), c.relation) for c in result.conditions)
         cls = "supercritical" if l1 < 0 else "subcritical" if l1 > 0 else "degenerate"
-    return NumericHopfResult(
-        values=exact, digits=digits, critical_value=+mu_c, omega_squared=+omega ** 2,
-        omega=+omega, period=2 * mpmath.pi / omega, transversality=_num(result.transversality, subs,
-                                                                     digits),
-        c1=_num(result.c1, subs, digits), l1=+l1, lyapunov_coefficients=lyap, classification=cls,
-        equilibrium=eq, amplitude_coefficients=amps, eigenvalues=tuple(eigs),
-        pair_error=pair_error, others_stable=all(mpmath.re(e) < 0 for e in others),
-        conditions=conds)
+        return NumericHopfResult(
+            values=exact, digits=digits, critical_value=mu_c, omega_squared=omega ** 2,
+            omega=omega, period=2 * mpmath.pi / omega,
+            transversality=_num(result.transversality, subs, digits + 5),
+            c1=_num(result.c1, subs, digits + 5), l1=l1, lyapunov_coefficients=lyap,
+            classification=cls, equilibrium=eq, amplitude_coefficients=amps,
+            eigenvalues=tuple(eigs), pair_error=pair_error,
+            others_stable=all(mpmath.re(e) < 0 for e in others), conditions=conds)

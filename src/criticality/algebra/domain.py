@@ -186,7 +186,7 @@ class Tower:
         for r, element in self._radicals:
             if r == radicand:
                 return element
-        root = self._square_root(radicand)
+        root = self.square_root(radicand)
         if root is None:
             sym_root = root_expr if root_expr is not None else \
                 sympy.sqrt(sympy.factor(self.to_sympy(radicand)))
@@ -196,7 +196,7 @@ class Tower:
         self._radicals.append((radicand, root))
         return root
 
-    def _square_root(self, x):
+    def square_root(self, x):
         """The principal root of ``x`` when ``x`` is a square in K, else None."""
         if isinstance(x, QuadraticElement):
             if x.b:
