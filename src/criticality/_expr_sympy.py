@@ -201,6 +201,8 @@ def format_expression(expr) -> str:
 
 
 def _text(e) -> tuple[str, int]:
+    if e in _NOT_FINITE:
+        raise ForbiddenExpressionError(f"cannot write {e}: it is not finite")
     if e.is_Number:
         return _number(e)
     if e is sympy.pi:
@@ -233,7 +235,9 @@ def _number(e) -> tuple[str, int]:
     if e.is_Rational:
         text = f"{abs(int(e.p))}/{int(e.q)}"
         return (text, _MUL) if e > 0 else ("-" + text, _NEG)
-    text = mpmath.libmp.to_str(e._mpf_, mpmath.libmp.prec_to_dps(e._prec))
+    text = repr(float(e)) if e._prec == 53 else "inf"
+    if text in ("inf", "-inf"):
+        text = mpmath.libmp.to_str(e._mpf_, mpmath.libmp.prec_to_dps(e._prec) + 2)
     return text, (_NEG if text.startswith("-") else _ATOM)
 
 

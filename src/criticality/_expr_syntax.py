@@ -110,10 +110,28 @@ def name_problem(name: object) -> str | None:
     return None
 
 
+def _distance(a: str, b: str) -> int:
+    """Levenshtein distance (insertions, deletions, substitutions)."""
+    previous = list(range(len(b) + 1))
+    for i, ca in enumerate(a, 1):
+        current = [i]
+        for j, cb in enumerate(b, 1):
+            current.append(min(previous[j] + 1, current[j - 1] + 1, previous[j - 1] + (ca != cb)))
+        previous = current
+    return previous[-1]
+
+
 def _suggest(name: str, candidates) -> list[str]:
-    candidates = list(candidates)
-    folded = [c for c in candidates if c.lower() == name.lower() and c != name]
-    return folded or difflib.get_close_matches(name, candidates, n=3, cutoff=0.75)
+    """Known names that ``name`` is probably a misspelling of (best first)."""
+    candidates = [c for c in dict.fromkeys(candidates) if c != name]
+    folded = [c for c in candidates if c.lower() == name.lower()]
+    if folded:
+        return folded[:3]
+    limit = 0 if len(name) < 2 else 1 if len(name) < 6 else 2
+    near = sorted((d, c) for c in candidates
+                  if abs(len(c) - len(name)) <= limit and (d := _distance(name, c)) <= limit)
+    similar = difflib.get_close_matches(name, candidates, n=3, cutoff=0.75)
+    return list(dict.fromkeys([c for _, c in near] + similar))[:3]
 
 
 class _Where:
@@ -136,6 +154,8 @@ class _Where:
             line, column = self.position(start)
             end = max(end if end is not None else start + 1, start + 1)
             piece = " ".join(self.text[start:end].split())[:60] or None
+            if piece and piece not in message:
+                message = f"{message} (at {piece!r})"
         return cls(message, context=self.context, line=line, column=column, piece=piece, **kw)
 
 

@@ -37,6 +37,8 @@ class _Assembler:
         self.problems: list[str] = list(problems)
         self.notes: list[str] = []
         self.bad_names: set[str] = set()
+        self.parameter_names: set[str] = set()
+        self.noted_symbols: set[str] = set()
 
     # -- locations --------------------------------------------------------
 
@@ -96,6 +98,7 @@ class _Assembler:
             return []
         result: list[Parameter] = []
         for name, spec in items:
+            self.parameter_names.add(str(name))
             if any(p.name == name for p in result):
                 self.problem(f"parameter {name!r}", "parameters", name, "declared twice")
                 continue
@@ -204,7 +207,8 @@ class _Assembler:
             if name in states:
                 table[name] = value
             elif str(name) not in self.bad_names:
-                what = "a parameter, not a state" if name in symbols else "not a state"
+                known = name in symbols or str(name) in self.parameter_names
+                what = "a parameter, not a state" if known else "not a state"
                 hint = _suggest(str(name), states)
                 hint = f"; did you mean {hint[0]!r}?" if hint else ""
                 self.problem(f"equation for {str(name)[:40]!r}", "equations", str(name),
@@ -222,6 +226,7 @@ class _Assembler:
                 return parse_expression(raw, symbols, context=context, on_unknown=on_unknown,
                                         line=self.line(*place, True))
             self.note_floats(raw, context)
+            self.note_assumptions(raw)
             return convert_sympy(raw, symbols, context=context, on_unknown=on_unknown,
                                  line=self.line(*place))
         except ExpressionError as exc:
@@ -236,6 +241,23 @@ class _Assembler:
             self.notes.append(f"the floating-point number {format_expression(sympy.Float(number))} "
                               f"in the {context} was read as the exact fraction "
                               f"{format_expression(value)}")
+
+    def note_assumptions(self, raw: object) -> None:
+        """Note user symbols whose sympy assumptions the model drops."""
+        if not isinstance(raw, sympy.Basic):
+            return
+        for symbol in sorted(raw.free_symbols, key=str):
+            plain = sympy.Symbol(symbol.name).assumptions0
+            real = sympy.Symbol(symbol.name, real=True).assumptions0
+            if symbol.assumptions0 not in (plain, real) and symbol.name not in self.noted_symbols:
+                self.noted_symbols.add(symbol.name)
+                given = getattr(symbol, "_assumptions_orig", None) or symbol.assumptions0
+                given = ", ".join(f"{k}={v}" for k, v in sorted(given.items())
+                                  if k not in ("commutative", "real"))
+                self.notes.append(
+                    f"the sympy symbol {symbol.name!r} came with assumptions ({given or 'other'});"
+                    " the model uses its own real symbol of that name, but sympy may already "
+                    "have rewritten your expression with them (e.g. sqrt(b*c) as sqrt(b)*sqrt(c))")
 
     def undeclared(self, unknown: dict, known: list[str]) -> list[Parameter]:
         result = []

@@ -161,7 +161,7 @@ class _Builder:
         if self.exact:
             return value
         self.floats = True
-        return sympy.Float(value)
+        return sympy.Float(value, 15)
 
     def name(self, node, depth):
         ident = node.id
@@ -208,7 +208,18 @@ class _Builder:
         if op in (ast.Add, ast.Sub):
             return sympy.Add(*self.chain(node, (ast.Add, ast.Sub), depth))
         if op in (ast.Mult, ast.Div):
-            return sympy.Mul(*self.chain(node, (ast.Mult, ast.Div), depth))
+            # Python reads -a*b as (-a)*b; sympy's -(a*b) keeps a sum a unexpanded,
+            # so take the sign of the first factor off the whole product.
+            negative = False
+            first = node
+            while isinstance(first, ast.BinOp) and isinstance(first.op, (ast.Mult, ast.Div)):
+                first = first.left
+            parent = first
+            while isinstance(first, ast.UnaryOp) and isinstance(first.op, (ast.USub, ast.UAdd)):
+                negative ^= isinstance(first.op, ast.USub)
+                first = first.operand
+            product = sympy.Mul(*self.chain(node, (ast.Mult, ast.Div), depth, parent, first))
+            return -product if negative else product
         if op is ast.Pow:
             base = self.build(node.left, depth + 1)
             exponent = self.build(node.right, depth + 1)
@@ -216,14 +227,15 @@ class _Builder:
         raise self.error(ForbiddenExpressionError, f"the operator {_OPERATORS.get(op, op.__name__)!r}"
                          f" in {self.piece(node)} is not allowed", node)
 
-    def chain(self, node, ops, depth) -> list:
+    def chain(self, node, ops, depth, replace=None, by=None) -> list:
         """Operands of a left-associated run of + and - (or * and /), built in
-        text order without recursing along the run."""
+        text order without recursing along the run; the first operand
+        ``replace`` is built as ``by``."""
         items = []
         while isinstance(node, ast.BinOp) and isinstance(node.op, ops):
             items.append((node.op, node.right))
             node = node.left
-        items.append((None, node))
+        items.append((None, by if node is replace and by is not None else node))
         operands = []
         for op, operand in reversed(items):
             value = self.build(operand, depth + 1)
@@ -307,6 +319,10 @@ class _Builder:
     # -- checks on values -------------------------------------------------
 
     def check_value(self, value, node):
+        if value.has(sympy.Abs, sympy.sign):
+            raise self.error(ForbiddenExpressionError, f"{self.piece(node)} equals {value} for "
+                             "real values, which is not analytic at 0; write the analytic "
+                             "form you mean (e.g. x instead of sqrt(x^2))", node)
         if value.is_number:
             if value.has(*_NOT_FINITE):
                 raise self.error(ForbiddenExpressionError, f"{self.piece(node)} is not finite "

@@ -216,8 +216,11 @@ class Model:
         raise AttributeError("a Model is immutable")
 
     def __reduce__(self):
-        return (Model._build, ({k: getattr(self, k) for k in _FIELDS if k != "lines"},
-                               dict(self.lines)))
+        fields = {k: getattr(self, k) for k in _FIELDS if k != "lines"}
+        fields["symbols"] = dict(self.symbols)
+        if self.equilibrium_hint is not None:
+            fields["equilibrium_hint"] = dict(self.equilibrium_hint)
+        return (_restore, (fields, dict(self.lines)))
 
     # -- reading ----------------------------------------------------------------
 
@@ -382,6 +385,14 @@ class Model:
             value = "" if p.default is None else f" = {format_expression(p.default)}"
             lines.append(f"  {p.name}: {p.assumption}{value}")
         return "\n".join(lines)
+
+
+def _restore(fields: dict, lines: dict) -> Model:
+    """Rebuild a pickled model."""
+    fields = dict(fields, symbols=MappingProxyType(fields["symbols"]))
+    if fields["equilibrium_hint"] is not None:
+        fields["equilibrium_hint"] = MappingProxyType(fields["equilibrium_hint"])
+    return Model._build(fields, lines)
 
 
 def _broken(table: Mapping[str, sympy.Expr], label: str, substitution: dict) -> list[str]:
