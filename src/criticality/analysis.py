@@ -10,7 +10,8 @@ from __future__ import annotations
 
 from typing import Mapping
 
-from .assemble import build_result, sign_context
+from .assemble import build_result
+from .signs import context_for
 from .engine import Problem, run_engine
 from .equilibria import (given_equilibrium, parametrised_equilibrium, select_equilibrium,
                          solve_equilibria)
@@ -20,7 +21,6 @@ from .results import HopfResult
 __all__ = ["hopf", "hopf_all"]
 
 _ASSUMPTIONS = ("real", "positive", "nonnegative", "negative", "nonzero")
-_SIGN_TRUTH = {"positive": True, "negative": False}
 
 
 def hopf(model, parameter: str | None = None, *, equilibrium=None, eliminate=None,
@@ -109,9 +109,8 @@ def hopf_all(model, parameter: str | None = None, *, equilibrium=None, eliminate
     if not any(e.has(mu) for e in eqs) and not any(x.has(mu) for x in choice.point):
         raise NoHopfPointError(f"the bifurcation parameter '{name}' does not occur in the model",
                                reason="parameter_absent")
-    ctx = sign_context(params, assumptions, ())
     problem = Problem(eqs, tuple(model.state_symbols), params, mu, choice.point, order, backend,
-                      tuple(model.states), lambda e: _SIGN_TRUTH.get(ctx.sign(e)))
+                      tuple(model.states), assumptions)
     out = run_engine(problem)
     results, rejected = [], []
     for bc in out.branches:
@@ -156,5 +155,5 @@ def _equilibrium(model, equilibrium, eliminate, assumptions):
     if equilibrium is None and hint:
         return given_equilibrium(model, hint)
     candidates = solve_equilibria(model)
-    ctx = sign_context(model.parameter_symbols, assumptions, ())
+    ctx = context_for(model.parameter_symbols, assumptions)
     return select_equilibrium(model, candidates, equilibrium, ctx)

@@ -19,18 +19,11 @@ from .classify import classify
 from .critical import Condition, cofactor_hurwitz
 from .errors import CriticalityError
 from .results import CyclePrediction, HopfResult, ReducedSystemView
-from .signs import NEGATIVE, NONNEGATIVE, NONPOSITIVE, POSITIVE, ZERO, SignContext
+from .signs import NEGATIVE, NONNEGATIVE, NONPOSITIVE, POSITIVE, ZERO, context_for
 
-__all__ = ["build_result", "sign_context"]
+__all__ = ["build_result"]
 
 _OMEGA = sympy.Symbol("omega", positive=True)
-
-
-def sign_context(parameters, assumptions, atoms) -> SignContext:
-    known = {s: assumptions.get(s, "real") for s in parameters}
-    for atom in atoms:
-        known[atom.symbol] = "positive" if atom.positive else "real"
-    return SignContext(known)
 
 
 def _status(fs, relation=">"):
@@ -97,7 +90,7 @@ def build_result(model, name, mu, choice, out, bc, assumptions, params):
     """The :class:`HopfResult` of one computed branch, or None when the branch
     is provably not a Hopf point (omega^2 <= 0)."""
     tower = bc.branch.tower
-    ctx0 = sign_context(params, assumptions, tower.atoms)
+    ctx0 = context_for(params, assumptions, tower.atoms)
     B = _Branch(bc, ctx0)
     br, eb = bc.branch, bc.eigenbasis
     conds, sides = _admissibility(B, name, assumptions.get(mu, "real"), br.value, br.W)

@@ -141,6 +141,21 @@ def _branch_values(tower_mu, mu, solution):
     return out
 
 
+def _pair_carriers(factors):
+    """Factors that can carry a pair summing to zero: every factor of degree
+    >= 2, and the product of two linear factors (two real eigenvalues, which
+    can meet at zero: a double zero eigenvalue)."""
+    linear = []
+    for f, mult in factors:
+        if len(f) - 1 >= 2:
+            yield f
+        else:
+            linear.extend([f] * min(mult, 2))
+    for i in range(len(linear)):
+        for j in range(i + 1, len(linear)):
+            yield upoly.mul(linear[i], linear[j])
+
+
 def find_critical_branches(tower_mu, mu, chi, *, describe=str):
     """All closed-form branches of the critical set.
 
@@ -151,10 +166,8 @@ def find_critical_branches(tower_mu, mu, chi, *, describe=str):
     notes, branches, degenerate = [], [], []
     K = tower_mu.top
     candidates = []
-    for f, _mult in factor_univariate(tower_mu, chi):
+    for f in _pair_carriers(factor_univariate(tower_mu, chi)):
         m = len(f) - 1
-        if m < 2:
-            continue
         d = hurwitz_determinant(K, f, m - 1)
         if not d:
             notes.append("a factor of the characteristic polynomial has a pair of opposite "

@@ -13,7 +13,7 @@ objects and returns :class:`BranchComputation` records of field elements, which
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import sympy
 
@@ -21,10 +21,12 @@ from .algebra import Tower, collect_atoms
 from .center_manifold import ReducedSystem, reduce_to_center_manifold
 from .critical import CriticalBranch, find_critical_branches
 from .eigenbasis import Eigenbasis, critical_eigenbasis
-from .errors import NotAnEquilibriumError
+from .canonical import factored
+from .errors import NoHopfPointError, NotAnEquilibriumError
 from .linear import characteristic_polynomial
 from .normal_form import complexify, planar_normal_form, unit_coefficients
 from .projection import projection_c1
+from .signs import NEGATIVE, NONPOSITIVE, ZERO, context_for, truth
 from .taylor import TaylorForms, raw_taylor
 
 __all__ = ["Problem", "BranchComputation", "EngineOutput", "run_engine"]
@@ -42,7 +44,7 @@ class Problem:
     order: int = 3
     backend: str = "flint"
     state_names: tuple = ()
-    positivity: object = None
+    assumptions: dict = field(default_factory=dict)
 
 
 @dataclass(frozen=True)
@@ -78,7 +80,8 @@ def run_engine(problem: Problem) -> EngineOutput:
                      problem.state_names or None)
     exprs = list(raw.coefficients()) + list(problem.equilibrium)
     atoms = collect_atoms(exprs, problem.parameters)
-    tower = Tower(problem.parameters, atoms, problem.backend, problem.positivity)
+    plain = context_for(problem.parameters, problem.assumptions)
+    tower = Tower(problem.parameters, atoms, problem.backend, lambda e: truth(plain.sign(e)))
     x0 = [tower.convert(e) for e in problem.equilibrium]
     taylor_mu = TaylorForms.from_raw(raw, x0, tower.convert, tower.base)
     _check_equilibrium(tower, taylor_mu, problem)
@@ -88,8 +91,23 @@ def run_engine(problem: Problem) -> EngineOutput:
     chi = characteristic_polynomial(K, A_mu)
     branches, notes, degenerate = find_critical_branches(
         tower, problem.parameter, chi, describe=lambda s: f"'{s}'")
-    computed = tuple(_compute_branch(tower, taylor_mu, b, problem, order) for b in branches)
+    ctx = context_for(problem.parameters, problem.assumptions, tower.atoms)
+    imaginary = [b for b in branches if _may_be_positive(b, ctx)]
+    if not imaginary:
+        raise NoHopfPointError(
+            "on every branch of the critical set omega^2 <= 0 under the declared assumptions: "
+            "where two eigenvalues sum to zero they are a real pair +-kappa (a neutral saddle), "
+            "not a pair crossing the imaginary axis", reason="omega_squared_nonpositive")
+    if len(imaginary) < len(branches):
+        notes.append(f"{len(branches) - len(imaginary)} branch(es) of the critical set have "
+                     "omega^2 <= 0 (neutral saddles) and were dropped")
+    computed = tuple(_compute_branch(tower, taylor_mu, b, problem, order) for b in imaginary)
     return EngineOutput(tower, chi, A_mu, computed, tuple(notes), tuple(degenerate))
+
+
+def _may_be_positive(branch, ctx) -> bool:
+    sign = factored(branch.tower, branch.W, ctx, restore=False).sign
+    return sign not in (NEGATIVE, NONPOSITIVE, ZERO)
 
 
 def _check_equilibrium(tower, taylor, problem):

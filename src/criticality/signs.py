@@ -26,7 +26,7 @@ import flint
 import sympy
 
 __all__ = ["POSITIVE", "NEGATIVE", "NONNEGATIVE", "NONPOSITIVE", "ZERO", "UNKNOWN",
-           "SignContext", "FactorSign", "FactoredSign"]
+           "SignContext", "FactorSign", "FactoredSign", "context_for", "truth"]
 
 POSITIVE, NEGATIVE, NONNEGATIVE, NONPOSITIVE, ZERO, UNKNOWN = (
     "positive", "negative", "nonnegative", "nonpositive", "zero", "unknown")
@@ -280,6 +280,21 @@ class SignContext:
             out.append(FactorSign(f, m, in_den, s))
         out.sort(key=lambda f: (f.sign == UNKNOWN, f.in_denominator, len(f.expr.args)))
         return FactoredSign(sympy.Rational(constant), tuple(out), total)
+
+
+def context_for(parameters, assumptions, atoms=()) -> SignContext:
+    """The sign context of a parameter field: declared assumptions for the
+    parameters, and positivity for atoms such as ``exp(...)``."""
+    known = {s: assumptions.get(s, "real") for s in parameters}
+    for atom in atoms:
+        known[atom.symbol] = "positive" if atom.positive else "real"
+    return SignContext(known)
+
+
+def truth(sign: str):
+    """``True`` for a proven positive sign, ``False`` for a proven negative one,
+    else None."""
+    return {POSITIVE: True, NEGATIVE: False}.get(sign)
 
 
 def _has_constant(p) -> bool:

@@ -113,7 +113,9 @@ def _shifted_derivatives(f, states, equilibrium, order, name):
                 for b in beta:
                     denom *= factorial(b)
                 val = dg.xreplace(at)
-                _check_finite(val, name, f"derivative {beta}")
+                _check_finite(val, name, "derivative with respect to " + " and ".join(
+                    f"{states[k]}" + (f" (order {m})" if m > 1 else "")
+                    for k, m in enumerate(beta) if m))
                 if val != 0:
                     out[beta] = val / denom
                 nxt.append((beta, dg, j))

@@ -1,0 +1,140 @@
+"""The exact arithmetic layer: the flint field against its pure-sympy stand-in,
+quadratic extensions, linear algebra and the characteristic polynomial, each
+checked against sympy's own routines (a general-purpose reference library)."""
+
+import random
+
+import pytest
+import sympy
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from criticality.algebra import QuadraticExtension, Tower
+from criticality.algebra.flint_field import FlintRationalField, FlintRationalFunctionField
+from criticality.algebra.linalg import determinant, kernel, matmul, solve
+from criticality.algebra.sympy_field import SympyRationalFunctionField
+from criticality.linear import characteristic_polynomial, hurwitz_determinants
+
+a, b, c = sympy.symbols("a b c", real=True)
+SYMS = (a, b, c)
+
+small = st.integers(-4, 4)
+monomial = st.tuples(small.filter(bool), st.integers(0, 2), st.integers(0, 2), st.integers(0, 2))
+
+
+@st.composite
+def rational_functions(draw):
+    def poly():
+        terms = draw(st.lists(monomial, min_size=1, max_size=4))
+        return sum(k * a ** i * b ** j * c ** l for k, i, j, l in terms)
+    num, den = poly(), poly()
+    if sympy.expand(den) == 0:
+        den = sympy.Integer(1)
+    return num / den
+
+
+@settings(max_examples=60, deadline=None)
+@given(x=rational_functions(), y=rational_functions())
+def test_flint_field_matches_sympy_stand_in(x, y):
+    """+, -, *, / and derivatives agree between the two implementations."""
+    F, S = FlintRationalFunctionField(SYMS), SympyRationalFunctionField(SYMS)
+    fx, fy, sx, sy = F.from_sympy(x), F.from_sympy(y), S.from_sympy(x), S.from_sympy(y)
+    results = [(fx + fy, sx + sy), (fx - fy, sx - sy), (fx * fy, sx * sy)]
+    if fy:
+        results.append((fx / fy, sx / sy))
+    for f, s in results:
+        assert F.from_sympy(S.to_sympy(s)) == f  # canonical form: equality of representations
+        assert S.from_sympy(F.to_sympy(f)) == s
+    assert F.derivative(fx, a) == F.from_sympy(sympy.diff(x, a))
+
+
+def test_quadratic_extension_arithmetic():
+    """(1 + s)(1 - s) = 1 - G and inverses in Q(a)(sqrt(G)) and its nu-extension."""
+    K = FlintRationalFunctionField((a,))
+    G = K.from_sympy(a ** 2 + 1)
+    L = QuadraticExtension(K, G, "s")
+    s = L.gen
+    assert (1 + s) * (1 - s) == L(1 - G)
+    x = L.element(K.from_sympy(a), K.from_sympy(1 / (a - 1)))
+    assert x * x.inverse() == L.one
+    N = QuadraticExtension(L, L(-2), "nu")
+    z = N.element(x, s)
+    assert z * (1 / z) == N.one
+    assert (z.conjugate() * z).b == 0  # the norm is real
+
+
+@pytest.mark.parametrize("backend", ["flint", "sympy"])
+def test_linear_solve_and_kernel_against_sympy(backend):
+    rng = random.Random(3)
+    T = Tower(SYMS, backend=backend)
+    M = sympy.Matrix(4, 4, lambda i, j: rng.choice([0, 1, -2, a, b, a * b - c, 3]))
+    rhs = sympy.Matrix(4, 1, lambda i, j: rng.choice([1, a, b + c]))
+    A = [[T.convert(M[i, j]) for j in range(4)] for i in range(4)]
+    B = [[T.convert(rhs[i, 0])] for i in range(4)]
+    X = solve(T.top, A, B)
+    ref = M.LUsolve(rhs)
+    for i in range(4):  # compare in the field: sympy's cancel is slow on LUsolve output
+        assert T.convert(ref[i]) == X[i][0]
+    assert T.convert(M.det()) == determinant(T.top, A)
+    singular = [row[:] for row in A]
+    singular[3] = [x + y for x, y in zip(A[0], A[1])]
+    ker = kernel(T.top, singular)
+    assert len(ker) == 1
+    product = matmul(T.top, singular, [[x] for x in ker[0]])
+    assert all(not row[0] for row in product)
+
+
+def test_rational_fast_path_matches_generic():
+    """Over QQ the solver uses flint's fmpq_mat; it agrees with sympy."""
+    Q = FlintRationalField()
+    M = sympy.Matrix([[2, 1, 0], [1, 3, 1], [0, 1, 4]])
+    X = solve(Q, [[Q(int(x)) for x in M.row(i)] for i in range(3)], [[Q(1)], [Q(2)], [Q(3)]])
+    ref = M.LUsolve(sympy.Matrix([1, 2, 3]))
+    assert [Q.to_sympy(r[0]) for r in X] == list(ref)
+
+
+@pytest.mark.parametrize("seed", [1, 2, 3])
+def test_characteristic_polynomial_against_sympy(seed):
+    rng = random.Random(seed)
+    n = 5
+    M = sympy.Matrix(n, n, lambda i, j: rng.choice([0, 0, 1, -2, a, b, a * b - 1, 3]))
+    T = Tower(SYMS)
+    chi = characteristic_polynomial(T.top, [[T.convert(M[i, j]) for j in range(n)] for i in range(n)])
+    lam = sympy.Symbol("lambda")
+    mine = sum(T.to_sympy(x) * lam ** k for k, x in enumerate(chi))
+    assert sympy.expand(mine - M.charpoly(lam).as_expr()) == 0
+
+
+def test_hurwitz_determinants_of_a_cubic():
+    """For l^3 + a1 l^2 + a2 l + a3: Delta_1 = a1, Delta_2 = a1 a2 - a3,
+    Delta_3 = a3 Delta_2 (common practice, no source)."""
+    a1, a2, a3 = sympy.symbols("a1 a2 a3", real=True)
+    T = Tower((a1, a2, a3))
+    coeffs = [T.convert(a3), T.convert(a2), T.convert(a1), T.base.one]
+    d = [T.to_sympy(x) for x in hurwitz_determinants(T.top, coeffs)]
+    assert d[0] == a1
+    assert sympy.expand(d[1] - (a1 * a2 - a3)) == 0
+    assert sympy.expand(d[2] - a3 * (a1 * a2 - a3)) == 0
+
+
+def test_tower_substitution_and_derivative_with_radicals():
+    """d sqrt(b(r-1))/dr and the substitution r -> r_c carry the radical along."""
+    r = sympy.Symbol("r", real=True)
+    T = Tower((b, r))
+    s = T.convert(sympy.sqrt(b * (r - 1)))
+    ds = T.derivative(s, r)
+    assert sympy.simplify(T.to_sympy(ds) - sympy.diff(sympy.sqrt(b * (r - 1)), r)) == 0
+    target = T.fresh()
+    value = T.convert(b + 2)
+    images = T.radical_images(r, value, target)
+    img = T.substitute(s * s + s, r, value, target, images)
+    expected = b * (b + 1) + sympy.sqrt(b * (b + 1))
+    assert sympy.simplify(target.to_sympy(img) - expected) == 0
+
+
+def test_perfect_square_radicand_becomes_rational():
+    """sqrt(4 a^2) with a > 0 is 2a, not a new generator."""
+    T = Tower((a,), positivity=lambda e: True if e.could_extract_minus_sign() is False else None)
+    x = T.convert(sympy.sqrt(sympy.Mul(4, a ** 2, evaluate=False), evaluate=False))
+    assert not T.levels
+    assert T.to_sympy(x) == 2 * a
