@@ -24,6 +24,7 @@ from .eigenbasis import Eigenbasis, critical_eigenbasis
 from .canonical import factored
 from .errors import NoHopfPointError, NotAnEquilibriumError
 from .linear import characteristic_polynomial
+from .lyapunov import complex_normal_form
 from .normal_form import complexify, planar_normal_form, unit_coefficients
 from .projection import projection_c1
 from .signs import NEGATIVE, NONPOSITIVE, ZERO, context_for, truth
@@ -57,10 +58,13 @@ class BranchComputation:
     reduced: ReducedSystem
     c_center: tuple      # c_k, unit normalisation, center-manifold route
     c1_projection: object  # c_1, unit normalisation, projection route
+    c_complex: tuple = ()  # c_k, unit normalisation, normalization method (order >= 5)
 
     @property
     def routes_agree(self) -> bool:
-        return self.c_center[0] == self.c1_projection
+        # every c_k is the same exact element on both series routes (criticality.lyapunov)
+        return self.c_center[0] == self.c1_projection and all(
+            a == b for a, b in zip(self.c_center, self.c_complex))
 
 
 @dataclass(frozen=True)
@@ -131,4 +135,5 @@ def _compute_branch(tower, taylor_mu, branch, problem, order) -> BranchComputati
     reduced = reduce_to_center_manifold(taylor, eb, order)
     G = complexify(reduced, N, order)
     c_center = tuple(unit_coefficients(planar_normal_form(G, N, order), eb.qq))
-    return BranchComputation(branch, taylor, eb, reduced, c_center, c1_proj)
+    c_complex = complex_normal_form(taylor, eb, order) if order >= 5 else ()
+    return BranchComputation(branch, taylor, eb, reduced, c_center, c1_proj, c_complex)
