@@ -99,7 +99,13 @@ def prepare(result, values: Mapping, np) -> Setup:
     ValidationRunError
         If the equilibrium or the right-hand side is not real and finite.
     """
-    num = result.evaluate(values, digits=20)
+    try:
+        num = result.evaluate(values, digits=20)
+    except (TypeError, ZeroDivisionError, ValueError) as exc:
+        # a closed form is undefined here (e.g. k_j = -beta'/Re(c1) where l1 = 0)
+        raise ValidationRunError(
+            f"the prediction is undefined at this parameter point ({exc}); the usual cause is "
+            "l1 = 0 (a degenerate Hopf point), where the cycle is not predicted by l1") from exc
     by_name = dict(num.values)
     mu = result.parameter_symbol
     by_name.pop(result.parameter, None)

@@ -213,8 +213,11 @@ def _level_set(np, result, x, y, xr, yr, n, values):
     X, Y = np.meshgrid(np.linspace(*xr, n), np.linspace(*yr, n))
     grid = {x: X, y: Y}
     mu_c = sweep(result, "critical_value", grid, values=rest, progress="auto")
-    z = np.where(mu_c.admissible, np.real(mu_c.values) - mu0, np.nan)
+    z = np.ma.masked_invalid(np.where(mu_c.admissible, np.real(mu_c.values) - mu0, np.nan))
     lines = contourpy.contour_generator(X, Y, z).lines(0.0)
+    fn = grid_function(result, result.critical_value, [x, y], rest)[0]
+    lines = [_refine(np, lambda a, b: np.real(fn(a, b)) - mu0, line, X[0], Y[:, 0])
+             for line in lines]
     xs, ys, seg = [], [], []
     for k, line in enumerate(lines):
         xs += [*line[:, 0], np.nan]
@@ -234,6 +237,33 @@ def _level_set(np, result, x, y, xr, yr, n, values):
     return CurveData(x_name=x, y_name=y, x=xs, y=ys, segment=seg, l1=l1, others_stable=stab,
                      zeros=tuple(zeros), mode="level set", fixed={**mu_c.fixed,
                                                                  result.parameter: mu0})
+
+
+def _refine(np, f, line, xs, ys, steps=60):
+    """Move contour vertices onto the level set ``f = 0`` by bisection along
+    the grid edge each one lies on (contour vertices are linear interpolates)."""
+    out = np.array(line, dtype=float)
+    dx, dy = xs[1] - xs[0], ys[1] - ys[0]
+    i = np.clip(np.floor((out[:, 0] - xs[0]) / dx).astype(int), 0, len(xs) - 2)
+    j = np.clip(np.floor((out[:, 1] - ys[0]) / dy).astype(int), 0, len(ys) - 2)
+    on_column = np.isclose(out[:, 0], xs[np.clip(np.rint((out[:, 0] - xs[0]) / dx).astype(int),
+                                                 0, len(xs) - 1)], rtol=0, atol=1e-9 * abs(dx))
+    lo = np.where(on_column[:, None], np.stack([out[:, 0], ys[j]], 1),
+                  np.stack([xs[i], out[:, 1]], 1))
+    hi = np.where(on_column[:, None], np.stack([out[:, 0], ys[j + 1]], 1),
+                  np.stack([xs[i + 1], out[:, 1]], 1))
+    with np.errstate(all="ignore"):
+        flo, fhi = f(lo[:, 0], lo[:, 1]), f(hi[:, 0], hi[:, 1])
+        good = np.isfinite(flo) & np.isfinite(fhi) & (np.sign(flo) * np.sign(fhi) <= 0)
+        for _ in range(steps):
+            mid = 0.5 * (lo + hi)
+            fm = f(mid[:, 0], mid[:, 1])
+            left = np.sign(fm) == np.sign(flo)
+            lo = np.where(left[:, None], mid, lo)
+            flo = np.where(left, fm, flo)
+            hi = np.where(left[:, None], hi, mid)
+    out[good] = 0.5 * (lo + hi)[good]
+    return out
 
 
 @dataclass(frozen=True)
