@@ -25,7 +25,8 @@ _ASSUMPTIONS = ("real", "positive", "nonnegative", "negative", "nonzero")
 
 def hopf(model, parameter: str | None = None, *, equilibrium=None, eliminate=None,
          branch: int | None = None, order: int = 3, values: Mapping | None = None,
-         assume: Mapping | None = None, backend: str = "flint") -> HopfResult:
+         assume: Mapping | None = None, backend: str = "flint", guess: Mapping | None = None,
+         digits: int = 30) -> HopfResult:
     """Hopf analysis of ``model`` with respect to ``parameter``.
 
     Parameters
@@ -55,6 +56,12 @@ def hopf(model, parameter: str | None = None, *, equilibrium=None, eliminate=Non
         Extra or changed sign assumptions, e.g. ``{"x_eq": "positive"}``.
     backend : {"flint", "sympy"}
         The exact arithmetic used for the parameter field.
+    guess : mapping, optional
+        Numeric mode (:mod:`criticality.numeric_mode`): starting values for
+        every state and for ``parameter``; the Hopf point is located by
+        mpmath and every quantity evaluated to ``digits`` digits.
+    digits : int
+        Significant digits of the numeric mode.
 
     Returns
     -------
@@ -71,6 +78,10 @@ def hopf(model, parameter: str | None = None, *, equilibrium=None, eliminate=Non
     >>> r.critical_value, r.l1, r.classification
     (0, -1/4, 'supercritical')
     """
+    if guess is not None:
+        from .numeric_mode import hopf_numeric
+        return hopf_numeric(model, parameter or model.bifurcation_parameter, guess,
+                            digits=digits, order=order, values=values)
     results = hopf_all(model, parameter, equilibrium=equilibrium, eliminate=eliminate,
                        order=order, values=values, assume=assume, backend=backend)
     index = 0 if branch is None else branch
