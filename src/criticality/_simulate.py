@@ -245,30 +245,32 @@ def measure_cycle(setup: Setup, frame: LocalFrame, radius: float, *, direction: 
     if first.status == 1:
         return RunOutcome("escaped", float(first.t_events[0][0]))
     y1 = first.y[:, -1]
-    if frame.radius(np, y1) < 0.05 * radius:
-        return RunOutcome("decayed", transient)
     events = []
     for j in range(len(setup.states)):
         ev = (lambda j: lambda t, y: setup.rhs(mu, y)[j])(j)
         events.append(ev)
     sol = _solve(ivp, fun, jac, (transient, transient + window), y1, method, rtol, atol,
                  events=events, dense_output=True)
-    return _measurements(setup, sol, np, transient, window)
+    return _measurements(setup, sol, np, transient, window, radius, frame)
 
 
-def _measurements(setup, sol, np, transient, window):
+def _measurements(setup, sol, np, transient, window, radius, frame):
     amps, halves = {}, []
     mid = transient + window / 2
     for j, name in enumerate(setup.states):
         times, ys = sol.t_events[j], sol.y_events[j]
         if len(times) < 4:
-            return RunOutcome("undecided", transient + window)
+            continue
         vals = ys[:, j]
         amps[name] = float(vals.max() - vals.min()) / 2
         early, late = vals[times < mid], vals[times >= mid]
         if len(early) >= 2 and len(late) >= 2:
             halves.append(((early.max() - early.min()) / 2, (late.max() - late.min()) / 2))
-    ref = max(range(len(setup.states)), key=lambda j: amps[setup.states[j]])
+    if not amps or max(amps.values()) < 1e-3 * radius:
+        # no state oscillates measurably: the orbit came to rest, here or elsewhere
+        near = np.linalg.norm(sol.y[:, -1] - frame.x0) < 0.1 * radius
+        return RunOutcome("decayed" if near else "escaped", transient + window)
+    ref = max(range(len(setup.states)), key=lambda j: amps.get(setup.states[j], -1.0))
     period = _period(sol, ref, np, transient, window, setup)
     drift = max((abs(b - a) / max(abs(b), 1e-300) for a, b in halves), default=0.0)
     return RunOutcome("measured", transient + window, amps, period, drift)

@@ -218,6 +218,10 @@ def _measure(setup, offset, direction, window_periods, max_periods, notes, opts)
     np = opts["np"]
     mu = setup.mu_c + offset
     frame = local_frame(setup, mu, np)
+    if abs(frame.eigenvalue.imag) < 0.5 * setup.omega:
+        notes.append(f"at offset {offset:+.4g} the eigenvalues next to the critical pair are "
+                     f"{frame.eigenvalue:.3g} and its conjugate: the offset is far outside the "
+                     "range where the local prediction can hold")
     radius = math.sqrt(setup.radius_coefficient * abs(offset))
     period0 = 2 * math.pi / setup.omega
     window = window_periods * period0
