@@ -152,12 +152,26 @@ def solve_for(tower, x, symbol, positive=False):
             unsolved = unsolved[:-1] if len(unsolved) == 1 else unsolved
     out = []
     for value, target in points:
-        images = tower.radical_images(symbol, value, target)
-        sp = SolvedPoint(symbol, value, tower, target, images)
-        if positive and sign_word(target, value, None) in ("negative", "zero"):
+        if not _may_be_real(target, value, positive):
             continue
-        out.append(sp)
+        images = tower.radical_images(symbol, value, target)
+        out.append(SolvedPoint(symbol, value, tower, target, images))
     return out, unsolved
+
+
+def _may_be_real(target, value, positive) -> bool:
+    """False for a value proved non-real (a root of a negative number) or,
+    with ``positive``, proved non-positive; numbers are checked numerically."""
+    e = target.to_sympy(value)
+    if not e.free_symbols:
+        v = sympy.N(e, 30)
+        re, im = v.as_real_imag()
+        if abs(im) > 1e-20 * max(1, abs(re)):
+            return False
+        return not positive or re > 0
+    if positive and sign_word(target, value, None) in ("negative", "zero", "nonpositive"):
+        return False
+    return True
 
 
 def sign_word(tower, x, ctx) -> str:
@@ -166,6 +180,9 @@ def sign_word(tower, x, ctx) -> str:
     x = lower(x)
     if not x:
         return "zero"
+    numeric = _numeric_sign(tower, x)
+    if numeric is not None:
+        return numeric
     if ctx is None:
         ctx = context_for((), {}, tower.atoms)
     try:
@@ -176,6 +193,20 @@ def sign_word(tower, x, ctx) -> str:
         return "undecided"
     return {POSITIVE: "positive", NEGATIVE: "negative", ZERO: "zero",
             NONNEGATIVE: "nonnegative", NONPOSITIVE: "nonpositive"}.get(fs.sign, "undecided")
+
+
+def _numeric_sign(tower, x):
+    """The sign of a constant (an algebraic number, possibly with radicals
+    and transcendental atoms), decided at 60 digits; None for expressions
+    with free symbols or values too close to zero to decide."""
+    e = tower.to_sympy(x)
+    if e.free_symbols:
+        return None
+    v = sympy.N(e, 60)
+    re, im = v.as_real_imag()
+    if abs(im) > 1e-40 * max(1, abs(re)) or abs(re) < sympy.Float(10) ** -40:
+        return None
+    return "positive" if re > 0 else "negative"
 
 
 def expr(tower, x, ctx):

@@ -1,0 +1,100 @@
+"""The registry of analyses: one entry per kind of local bifurcation.
+
+Pipeline place: beside the public API; the command line and the outputs list
+this registry instead of hard-coding the analyses.  An entry names the
+function that computes the analysis (imported only when used, so that
+listing the registry stays cheap) and the symbols it needs from the user.
+
+Examples
+--------
+>>> [a.name for a in analyses()]
+['hopf', 'fold', 'bautin', 'bogdanov_takens']
+>>> get("fold").needs
+('parameter',)
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from importlib import import_module
+
+__all__ = ["Analysis", "register", "analyses", "get"]
+
+
+@dataclass(frozen=True)
+class Analysis:
+    """A registered analysis.
+
+    Attributes
+    ----------
+    name : str
+        The registry key (also the command-line word).
+    description : str
+        One sentence for listings.
+    target : str
+        ``"module:function"`` inside the package, imported on first use.
+    needs : tuple of str
+        The positional symbols the function takes after the model:
+        ``("parameter",)`` or ``("parameter", "second")``.
+    result : str
+        The name of the result class.
+    """
+
+    name: str
+    description: str
+    target: str
+    needs: tuple = ("parameter",)
+    result: str = ""
+
+    @property
+    def function(self):
+        """The computing function (imported on first access)."""
+        module, _, attr = self.target.partition(":")
+        return getattr(import_module(f"criticality.{module}"), attr)
+
+    def __call__(self, model, *symbols, **options):
+        if len(symbols) != len(self.needs):
+            raise TypeError(f"analysis '{self.name}' needs {len(self.needs)} symbol(s) "
+                            f"({', '.join(self.needs)}), got {len(symbols)}")
+        return self.function(model, *symbols, **options)
+
+
+_REGISTRY: dict = {}
+
+
+def register(analysis: Analysis) -> Analysis:
+    """Add (or replace) an analysis under its name."""
+    _REGISTRY[analysis.name] = analysis
+    return analysis
+
+
+def analyses() -> tuple:
+    """Every registered analysis, in registration order."""
+    return tuple(_REGISTRY.values())
+
+
+def get(name: str) -> Analysis:
+    """The analysis called ``name``.
+
+    Raises
+    ------
+    KeyError
+        With the list of known names.
+    """
+    try:
+        return _REGISTRY[name]
+    except KeyError:
+        raise KeyError(f"no analysis called {name!r}; known: {', '.join(_REGISTRY)}") from None
+
+
+register(Analysis("hopf", "Hopf bifurcation: critical value, frequency, Lyapunov coefficients "
+                  "and the criticality verdict", "analysis:hopf", ("parameter",), "HopfResult"))
+register(Analysis("fold", "a simple zero eigenvalue: fold (saddle-node), transcritical or "
+                  "pitchfork point and its normal form", "fold:fold", ("parameter",),
+                  "FoldResult"))
+register(Analysis("bautin", "points of the Hopf set where l1 = 0, with l2 and the scenario "
+                  "(fold of cycles, hysteresis)", "bautin:bautin_points",
+                  ("parameter", "second"), "BautinPoint"))
+register(Analysis("bogdanov_takens", "double zero eigenvalue in two parameters: the normal-form "
+                  "coefficients a and b and the sign of a b", "bogdanov_takens:bogdanov_takens",
+                  ("parameter", "second"), "BogdanovTakensResult"))
