@@ -74,7 +74,7 @@ def test_van_der_pol_type_amplitude_by_simulation(planar_report):
     assert rep.classification == "supercritical" and rep.side == "above"
     assert len(rep.measurements) == 3
     for m in rep.measurements:
-        assert m.measured and m.direction == "forward"
+        assert m.measured and m.approach == "forward"
         assert m.offset > 0
         assert m.measured_amplitudes["x"] == pytest.approx(2 * math.sqrt(m.mu), rel=1e-3)
         assert m.measured_period == pytest.approx(2 * math.pi, rel=1e-4)
@@ -120,12 +120,55 @@ def test_lorenz_subcritical_bracketing():
         sympy.Rational(470, 19)
     rep = validate(r, sigma=10, b="8/3", offsets=[0.2, 0.08])
     assert rep.classification == "subcritical" and rep.side == "below"
-    assert rep.measurements == ()  # the unstable cycle is a saddle for the flow
     assert len(rep.brackets) == 2
     for b in rep.brackets:
         assert b.offset < 0 and b.mu < 470 / 19
         assert (b.inside, b.outside) == ("decayed", "escaped")
     assert rep.confirmed, str(rep)
+
+
+@pytest.mark.slow
+def test_lorenz_unstable_cycle_by_shooting():
+    """The unstable cycle of the Lorenz system below r = 470/19 (sigma = 10,
+    b = 8/3), found by Newton's method on the periodic orbit, has the predicted
+    amplitudes within 1 % and the error falls like the offset."""
+    rep = validate(_lorenz(), sigma=10, b="8/3", offsets=[0.2, 0.08, 0.032],
+                   bracket_factors=(0.5, 1.5))
+    assert [m.approach for m in rep.measurements] == ["shooting"] * 3
+    for m in rep.measurements:
+        assert m.measured and m.worst_amplitude_error < 1e-2
+        assert abs(m.corrected_period_error) < 1e-5
+    assert all(0.8 < o < 1.3 for o in rep.orders)
+    assert rep.confirmed, str(rep)
+
+
+def _saddle_model():
+    """Invented: the three-dimensional pair with a fourth state that grows on
+    its own (eigenvalue +1/2) and feeds the third, so that the cycle born at
+    mu = 0 attracts on the center manifold but repels along s: a saddle."""
+    m = Model(states=["u", "v", "w", "s"],
+              equations={"u": "v - u*w", "v": "-u + mu*v - u^2*v", "w": "-w + u^2 + s*u",
+                         "s": "s/2 + u^2"})
+    return hopf(m, "mu", equilibrium={"u": 0, "v": 0, "w": 0, "s": 0})
+
+
+@pytest.mark.slow
+def test_saddle_type_cycle_by_shooting():
+    """No integration reaches a saddle-type cycle; shooting finds it, with the
+    predicted amplitudes of u and v within 0.2 %."""
+    rep = validate(_saddle_model())
+    assert rep.brackets == ()
+    assert rep.confirmed, str(rep)
+    for m in rep.measurements:
+        assert m.approach == "shooting"
+        assert abs(m.amplitude_errors["u"]) < 2e-3 and abs(m.amplitude_errors["v"]) < 2e-3
+        assert m.amplitude_errors["s"] is None and m.measured_amplitudes["s"] > 0
+
+
+def test_saddle_type_cycle_without_shooting_is_inconclusive():
+    rep = validate(_saddle_model(), shooting=False)
+    assert rep.verdict == "inconclusive" and rep.measurements == () and rep.brackets == ()
+    assert "saddle" in rep.reasons[0]
 
 
 @pytest.mark.slow
@@ -136,7 +179,7 @@ def test_planar_subcritical_exact_unstable_cycle():
     rep = validate(_quintic(), offsets=[0.02, 0.008])
     assert rep.classification == "subcritical" and rep.confirmed, str(rep)
     for m in rep.measurements:
-        assert m.direction == "backward" and m.measured
+        assert m.approach == "backward" and m.measured
         exact = math.sqrt((1 - math.sqrt(1 + 4 * m.mu)) / 2)
         assert m.measured_amplitudes["x"] == pytest.approx(exact, rel=1e-6)
     assert all(b.as_predicted for b in rep.brackets)

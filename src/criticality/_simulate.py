@@ -24,7 +24,7 @@ import sympy
 from .errors import ParameterError, ValidationRunError
 
 __all__ = ["Setup", "LocalFrame", "RunOutcome", "prepare", "local_frame", "measure_cycle",
-           "bracket", "settle_time"]
+           "shoot_cycle", "bracket", "settle_time"]
 
 #: the residual transient, relative to the starting deviation, that the
 #: integration waits for before measuring
@@ -245,21 +245,17 @@ def measure_cycle(setup: Setup, frame: LocalFrame, radius: float, *, direction: 
     if first.status == 1:
         return RunOutcome("escaped", float(first.t_events[0][0]))
     y1 = first.y[:, -1]
-    events = []
-    for j in range(len(setup.states)):
-        ev = (lambda j: lambda t, y: setup.rhs(mu, y)[j])(j)
-        events.append(ev)
     sol = _solve(ivp, fun, jac, (transient, transient + window), y1, method, rtol, atol,
-                 events=events, dense_output=True)
+                 events=_extrema_events(setup, mu), dense_output=True)
     return _measurements(setup, sol, np, transient, window, radius, frame)
 
 
-def _measurements(setup, sol, np, transient, window, radius, frame):
+def _measurements(setup, sol, np, transient, window, radius, frame, least=4):
     amps, halves = {}, []
     mid = transient + window / 2
     for j, name in enumerate(setup.states):
         times, ys = sol.t_events[j], sol.y_events[j]
-        if len(times) < 4:
+        if len(times) < least:
             continue
         vals = ys[:, j]
         amps[name] = float(vals.max() - vals.min()) / 2
@@ -292,6 +288,71 @@ def _period(sol, j, np, t0, window, setup):
     roots = [brentq(lambda t: sol.sol(t)[j] - mean, ts[i], ts[i + 1], xtol=1e-14 * per)
              for i in ups]
     return float((roots[-1] - roots[0]) / (len(roots) - 1))
+
+
+def _extrema_events(setup, mu):
+    return [(lambda j: lambda t, y: setup.rhs(mu, y)[j])(j) for j in range(len(setup.states))]
+
+
+def _newton_step(setup, frame, y, period, rtol, np, ivp):
+    """One Newton step for (y(0), T) with y(T) = y(0) and Im(pbar . (y(0) - x0)) = 0."""
+    n, mu = len(y), frame.mu
+
+    def variational(t, big):
+        state, mono = big[:n], big[n:].reshape(n, n)
+        return np.concatenate([setup.rhs(mu, state), (setup.jac(mu, state) @ mono).ravel()])
+
+    start = np.concatenate([y, np.eye(n).ravel()])
+    sol = _solve(ivp, variational, None, (0.0, period), start, "DOP853", rtol,
+                 rtol * 1e-3 * float(np.linalg.norm(y - frame.x0) + 1e-300), t_eval=[period])
+    end, mono = sol.y[:n, -1], sol.y[n:, -1].reshape(n, n)
+    phase = np.imag(frame.pbar)
+    system = np.zeros((n + 1, n + 1))
+    system[:n, :n] = mono - np.eye(n)
+    system[:n, n] = setup.rhs(mu, end)
+    system[n, :n] = phase
+    residual = np.append(end - y, phase @ (y - frame.x0))
+    try:
+        return np.linalg.solve(system, -residual)
+    except np.linalg.LinAlgError:
+        return None
+
+
+def shoot_cycle(setup: Setup, frame: LocalFrame, radius: float, period: float, *, rtol: float,
+                np, ivp, iterations: int = 30) -> RunOutcome:
+    """Find the cycle by Newton's method on the periodic orbit (single shooting).
+
+    For cycles that integration in neither time direction reaches (a
+    subcritical cycle whose other eigenvalues are stable, a saddle-type
+    cycle): unknowns are the start ``y(0)`` on the section
+    ``Im(pbar . (y - x0)) = 0`` and the period ``T``; the monodromy matrix
+    comes from the variational equations.  Steps are limited to half the
+    predicted radius, so that Newton cannot jump onto the equilibrium.
+    The converged orbit is integrated once more to measure the amplitudes.
+    """
+    y, T = frame.start(np, radius), float(period)
+    tight = max(rtol * 1e-2, 1e-13)
+    step = None
+    for _ in range(iterations):
+        step = _newton_step(setup, frame, y, T, tight, np, ivp)
+        if step is None or not np.all(np.isfinite(step)):
+            return RunOutcome("undecided", T)
+        size = float(np.linalg.norm(step[:-1]))
+        if size > 0.5 * radius:
+            step = step * (0.5 * radius / size)
+        y, T = y + step[:-1], T + step[-1]
+        if T <= 0 or frame.radius(np, y) < 0.05 * radius:
+            return RunOutcome("decayed", T)
+        if size < 1e-10 * radius and abs(step[-1]) < 1e-10 * T:
+            break
+    else:
+        return RunOutcome("undecided", T)
+    mu = frame.mu
+    sol = _solve(ivp, lambda t, v: setup.rhs(mu, v), None, (0.0, 1.25 * T), y, "DOP853", tight,
+                 tight * 1e-2 * radius, events=_extrema_events(setup, mu), dense_output=True)
+    out = _measurements(setup, sol, np, 0.0, 1.25 * T, radius, frame, least=2)
+    return RunOutcome(out.status, T, out.amplitudes, T if out.amplitudes else None,
+                      float(np.linalg.norm(step[:-1])) / radius)
 
 
 def bracket(setup: Setup, frame: LocalFrame, radius: float, factor: float, *, horizon: float,

@@ -17,7 +17,10 @@ with the prediction:
   other eigenvalue unstable) is measured the same way in reversed time;
 * a subcritical onset with the other eigenvalues stable is bracketed: before
   onset, a start at 0.7 of the predicted cycle must fall onto the equilibrium
-  and a start at 1.3 of it must leave.
+  and a start at 1.3 of it must leave; and the unstable cycle itself (like a
+  saddle-type cycle, which no integration reaches) is located by Newton's
+  method on the periodic orbit (single shooting with the variational
+  equations) and measured the same way.
 
 Two or three offsets ``delta`` show whether the relative error shrinks as the
 prediction says it should (``O(delta)``): when it does not, the local
@@ -32,7 +35,7 @@ import math
 import time
 from typing import Mapping, Sequence
 
-from ._simulate import bracket, local_frame, measure_cycle, prepare, settle_time
+from ._simulate import bracket, local_frame, measure_cycle, prepare, settle_time, shoot_cycle
 from .errors import MissingExtraError, ParameterError, ValidationRunError
 from .validation_report import BracketOutcome, CycleMeasurement, ValidationReport
 
@@ -45,6 +48,9 @@ RELATIVE_OFFSETS = (1e-2, 4e-3, 1.6e-3)
 ERROR_FLOOR = 1e-5
 #: the observed order below which the error is said not to shrink
 MIN_ORDER = 0.5
+#: how many of the offsets (the largest) are bracketed: the time to decide
+#: grows like 1 / offset, and the cycle itself is measured at every offset
+BRACKET_OFFSETS = 2
 
 
 def _extras():
@@ -110,7 +116,7 @@ def _method(setup, method):
                                  "Radau, BDF, LSODA")
         return method
     fastest = max((abs(e) for e in setup.others), default=0.0)
-    return "Radau" if fastest > 100 * setup.omega else "DOP853"
+    return "LSODA" if fastest > 100 * setup.omega else "DOP853"
 
 
 def _plan(setup) -> tuple:
@@ -126,7 +132,8 @@ def _plan(setup) -> tuple:
 def validate(result, values: Mapping | None = None, *, offsets: Sequence[float] | None = None,
              tolerance: float = 0.05, method: str | None = None, rtol: float = 1e-9,
              window_periods: int = 10, max_periods: int = 4000,
-             bracket_factors: tuple = (0.7, 1.3), **kwargs) -> ValidationReport:
+             bracket_factors: tuple = (0.7, 1.3), shooting: bool = True,
+             **kwargs) -> ValidationReport:
     """Check the predicted cycle of ``result`` by simulating the original model.
 
     Parameters
@@ -142,8 +149,8 @@ def validate(result, values: Mapping | None = None, *, offsets: Sequence[float] 
         Largest relative amplitude (and first-order period) error accepted at
         the smallest offset.
     method : str, optional
-        scipy integrator; default DOP853 (8th order), Radau when the other
-        eigenvalues are far faster than the oscillation.
+        scipy integrator; default DOP853 (8th order), LSODA (switching to
+        BDF) when the other eigenvalues are far faster than the oscillation.
     rtol : float
         Relative tolerance of the integrator (absolute: ``rtol`` times 1e-2 of
         the predicted radius).
@@ -154,6 +161,10 @@ def validate(result, values: Mapping | None = None, *, offsets: Sequence[float] 
     bracket_factors : (float, float)
         Inside and outside starts of the bracketing, as multiples of the
         predicted radius.
+    shooting : bool
+        Measure, by Newton's method on the periodic orbit, a cycle that
+        integration in neither time direction can reach (a subcritical cycle
+        with the other eigenvalues stable, a saddle-type cycle).
 
     Returns
     -------
@@ -180,11 +191,12 @@ def validate(result, values: Mapping | None = None, *, offsets: Sequence[float] 
     how = _method(setup, method)
     opts = dict(method=how, rtol=rtol, np=np, ivp=ivp)
     measure_dir, bracket_dir = _plan(setup)
+    approach = {1: "forward", -1: "backward"}.get(measure_dir, "shooting" if shooting else None)
     notes = []
-    measurements = tuple(_measure(setup, sign * d, measure_dir, window_periods, max_periods,
-                                  notes, opts) for d in deltas) if measure_dir else ()
+    measurements = tuple(_measure(setup, sign * d, approach, window_periods, max_periods,
+                                  notes, opts) for d in deltas) if approach else ()
     brackets = tuple(_bracket(setup, sign * d, bracket_dir, bracket_factors, max_periods, opts)
-                     for d in deltas) if bracket_dir else ()
+                     for d in deltas[:BRACKET_OFFSETS]) if bracket_dir else ()
     verdict, reasons, warnings, orders = _judge(setup, measurements, brackets, tolerance)
     return ValidationReport(
         parameter=result.parameter, values=setup.values, critical_value=setup.mu_c,
@@ -211,10 +223,10 @@ def _check_options(tolerance, rtol, window_periods, max_periods, factors):
 
 
 def _predicted_amplitudes(setup, offset) -> dict:
-    return {s: math.sqrt(max(k * offset, 0.0)) for s, k in setup.k.items()}
+    return {s: math.sqrt(k * offset) if k * offset > 0 else 0.0 for s, k in setup.k.items()}
 
 
-def _measure(setup, offset, direction, window_periods, max_periods, notes, opts):
+def _measure(setup, offset, approach, window_periods, max_periods, notes, opts):
     np = opts["np"]
     mu = setup.mu_c + offset
     frame = local_frame(setup, mu, np)
@@ -224,6 +236,12 @@ def _measure(setup, offset, direction, window_periods, max_periods, notes, opts)
                      "range where the local prediction can hold")
     radius = math.sqrt(setup.radius_coefficient * abs(offset))
     period0 = 2 * math.pi / setup.omega
+    if approach == "shooting":
+        guess = 2 * math.pi / (setup.omega + (setup.slope * offset if math.isfinite(
+            setup.slope) else 0.0))
+        run = shoot_cycle(setup, frame, radius, guess, rtol=opts["rtol"], np=np,
+                          ivp=opts["ivp"])
+        return _measurement(setup, offset, mu, approach, run, 0.0, run.time)
     window = window_periods * period0
     settle = settle_time(setup, offset)
     cap = max_periods * period0 - window
@@ -231,12 +249,12 @@ def _measure(setup, offset, direction, window_periods, max_periods, notes, opts)
         notes.append(f"at offset {offset:+.4g} the transient was cut at {max_periods} periods "
                      f"(it needs about {settle / period0:.0f}); raise max_periods or the offset")
         settle = cap
-    run = measure_cycle(setup, frame, radius, direction=direction, transient=settle,
-                        window=window, **opts)
-    return _measurement(setup, offset, mu, direction, run, settle, window)
+    run = measure_cycle(setup, frame, radius, direction=1 if approach == "forward" else -1,
+                        transient=settle, window=window, **opts)
+    return _measurement(setup, offset, mu, approach, run, settle, window)
 
 
-def _measurement(setup, offset, mu, direction, run, settle, window) -> CycleMeasurement:
+def _measurement(setup, offset, mu, approach, run, settle, window) -> CycleMeasurement:
     predicted = _predicted_amplitudes(setup, offset)
     big = max(predicted.values())
     measured = dict(run.amplitudes or {})
@@ -247,7 +265,7 @@ def _measurement(setup, offset, mu, direction, run, settle, window) -> CycleMeas
     p1 = 2 * math.pi / freq
     got = run.period
     return CycleMeasurement(
-        offset=offset, mu=mu, direction="forward" if direction > 0 else "backward",
+        offset=offset, mu=mu, approach=approach,
         status=run.status, predicted_amplitudes=predicted, measured_amplitudes=measured,
         amplitude_errors=errors, predicted_period=p0, corrected_period=p1, measured_period=got,
         period_error=None if got is None else got / p0 - 1,

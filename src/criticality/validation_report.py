@@ -33,9 +33,11 @@ class CycleMeasurement:
         ``mu - mu_c`` (its sign is the side where the cycle exists).
     mu : float
         The value of the bifurcation parameter.
-    direction : str
-        ``"forward"`` or ``"backward"`` (time reversed, for a cycle that
-        repels in every direction).
+    approach : str
+        How the cycle was found: ``"forward"`` (integration past the
+        transient), ``"backward"`` (the same in reversed time, for a cycle
+        that repels in every direction) or ``"shooting"`` (Newton's method on
+        the periodic orbit, for a cycle that integration cannot reach).
     status : str
         ``"measured"``, ``"escaped"`` (the orbit left the neighbourhood: no
         cycle there), ``"decayed"`` (it fell onto the equilibrium) or
@@ -54,17 +56,18 @@ class CycleMeasurement:
         The measured period and its relative errors against the two
         predictions.
     settle_time : float
-        Time integrated before the measurement window.
+        Time integrated before the measurement window (0 for shooting).
     window : float
         Length of the measurement window.
     drift : float or None
         Relative change of the amplitude between the two halves of the
-        window (what is left of the transient).
+        window (what is left of the transient); for shooting, the size of
+        the last Newton step relative to the radius.
     """
 
     offset: float
     mu: float
-    direction: str
+    approach: str
     status: str
     predicted_amplitudes: Mapping[str, float]
     measured_amplitudes: Mapping[str, float]
@@ -204,6 +207,8 @@ class ValidationReport:
 
 # -- text -------------------------------------------------------------------------------------
 
+_APPROACH = {"forward": "", "backward": " (reversed time)", "shooting": " (shooting)"}
+
 
 def _g(x, digits=6) -> str:
     if x is None:
@@ -228,7 +233,7 @@ def _header(r: ValidationReport) -> list:
 def _rows(r: ValidationReport) -> list:
     rows = []
     for m in r.measurements:
-        off = f"{m.offset:+.4g}" + (" (reversed time)" if m.direction == "backward" else "")
+        off = f"{m.offset:+.4g}" + _APPROACH[m.approach]
         if not m.measured:
             rows.append((off, "-", "-", m.status, "-"))
             continue
@@ -304,9 +309,7 @@ def _latex_measurements(r: ValidationReport, p: str) -> list:
     lines = ["\\begin{tabular}{rlrrr}", "\\hline",
              f"${p} - {p}_c$ & & predicted & measured & relative error \\\\", "\\hline"]
     for m in r.measurements:
-        off = f"${_tex_num(m.offset, 4)}$"
-        if m.direction == "backward":
-            off += " (reversed time)"
+        off = f"${_tex_num(m.offset, 4)}$" + _APPROACH[m.approach]
         if not m.measured:
             lines.append(f"{off} & & & {m.status} & \\\\")
             continue
