@@ -121,7 +121,8 @@ def test_bad_input_gives_the_package_error(model_file, tmp_path, capsys):
 def test_survey_writes_every_file(model_file, tmp_path, capsys):
     out = tmp_path / "survey"
     code = run(["survey", model_file, "--x", "a", "--x-range", "-12", "4", "--y-range", "-5",
-                "100", "--offsets", "0.08", "0.04", "--out-dir", out, "--points", "60"])
+                "100", "--offsets", "0.08", "0.04", "--out-dir", out, "--points", "60",
+                "--set", "a=1/2"])
     assert code == 0
     names = sorted(p.name for p in out.iterdir())
     assert names == sorted(["report.txt", "report.tex", "plane.png", "plane.svg", "curve.csv",

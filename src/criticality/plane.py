@@ -96,6 +96,11 @@ def _axis_check(result, x, y):
             raise ParameterError(f"{name!r} is a state of the model; the axes are parameters")
 
 
+def _off_axes(values, x, y) -> dict:
+    """The given values without those of the axis parameters (the axes vary them)."""
+    return {k: v for k, v in dict(values or {}).items() if k not in (x, y)}
+
+
 def _range(name, rng):
     try:
         lo, hi = (float(v) for v in rng)
@@ -117,7 +122,7 @@ def curve_data(result, x: str, y: str, *, values: Mapping | None = None, x_range
         Parameters on the horizontal and vertical axes.
     values : mapping, optional
         Values of the other parameters (and of the bifurcation parameter when
-        neither axis is it).
+        neither axis is it); values of the axis parameters are ignored.
     x_range, y_range : (float, float)
     points : int
         Samples along the free axis (graph) or per side of the grid (level
@@ -130,6 +135,7 @@ def curve_data(result, x: str, y: str, *, values: Mapping | None = None, x_range
     np = _numpy()
     _axis_check(result, x, y)
     xr, yr = _range(x, x_range), _range(y, y_range)
+    values = _off_axes(values, x, y)
     if points < 10:
         raise ParameterError(f"points must be at least 10, got {points}")
     mu = result.parameter
@@ -297,7 +303,7 @@ def stability_grid(result, x: str, y: str, *, values: Mapping | None = None,
     xr, yr = _range(x, x_range), _range(y, y_range)
     X, Y = np.meshgrid(np.linspace(*xr, points), np.linspace(*yr, points))
     mu = result.parameter
-    vals = dict(values or {})
+    vals = _off_axes(values, x, y)
     if method == "eigenvalues":
         return _eigen_stability(np, result, x, y, X, Y, vals)
     if method != "closed form":
