@@ -331,12 +331,12 @@ def test_sweep_reports_progress(monkeypatch, capsys):
 def test_family_parametrised_by_the_equilibrium():
     """An invented model analysed with eliminate=["k", "y"]: the eliminated
     parameter k = x_eq - mu moves with mu, and the simulation follows the same
-    family (amplitude error within 1 %, shrinking like the offset)."""
+    family (amplitude error within 2 %, shrinking like the offset)."""
     m = Model(states=["x", "y"], equations={"x": "k - x + x^2*y", "y": "mu - x^2*y"})
     r = hopf(m, "mu", eliminate=["k", "y"])
     assert r.substitutions and "k" in r.substitutions
     rep = validate(r, x_eq=1, offsets=[0.006, 0.003])
     assert rep.critical_value == pytest.approx(1.0)
     assert rep.confirmed, str(rep)
-    assert rep.measurements[-1].worst_amplitude_error < 1e-2
+    assert rep.measurements[-1].worst_amplitude_error < 2e-2
     assert 0.8 < rep.orders[0] < 1.3
