@@ -83,7 +83,7 @@ def _float(x) -> float:
     return float(x)
 
 
-def _substitute(expr, by_name: Mapping, what: str) -> sympy.Expr:
+def _substitute(expr, by_name: Mapping) -> sympy.Expr:
     repl = {s: by_name[s.name] for s in expr.free_symbols if s.name in by_name}
     return expr.xreplace(repl)
 
@@ -111,11 +111,11 @@ def prepare(result, values: Mapping, np) -> Setup:
     by_name.pop(result.parameter, None)
     # parameters eliminated in favour of equilibrium coordinates (parametrised families)
     for name, expr in result.substitutions.items():
-        by_name[name] = _substitute(expr, by_name, name)
+        by_name[name] = _substitute(expr, by_name)
     model = result.model
     states = tuple(model.state_symbols)
-    eqs = [_substitute(e, by_name, s) for e, s in zip(model.equations, model.states)]
-    point = [_substitute(result.equilibrium[s], by_name, s) for s in model.states]
+    eqs = [_substitute(e, by_name) for e in model.equations]
+    point = [_substitute(result.equilibrium[s], by_name) for s in model.states]
     allowed = set(states) | {mu}
     left = set().union(*(e.free_symbols for e in eqs + point)) - allowed
     if left:
@@ -129,7 +129,7 @@ def prepare(result, values: Mapping, np) -> Setup:
     pair = {i for i, e in enumerate(num.eigenvalues) if abs(abs(mpmath.im(e)) - num.omega)
             < 1e-8 * (1 + num.omega) and abs(mpmath.re(e)) < 1e-8 * (1 + num.omega)}
     others = tuple(complex(e) for i, e in enumerate(num.eigenvalues) if i not in pair)
-    slope = sympy.N(_substitute(result.cycle.frequency_slope, by_name, "slope"), 20)
+    slope = sympy.N(_substitute(result.cycle.frequency_slope, by_name), 20)
     return Setup(
         states=tuple(model.states),
         values={k: float(sympy.N(v)) for k, v in num.values.items() if k != result.parameter},
