@@ -21,6 +21,8 @@ from dataclasses import dataclass
 
 import sympy
 
+import flint
+
 from .algebra import upoly
 from .algebra.flint_field import FlintRationalFunctionField
 from .algebra.quadratic import QuadraticElement, QuadraticExtension, lower
@@ -156,6 +158,46 @@ def _pair_carriers(factors):
             yield upoly.mul(linear[i], linear[j])
 
 
+def pair_sum_condition(tower, f):
+    """An element vanishing exactly where two roots of ``f`` sum to zero.
+
+    For ``f(l) = E(l^2) + l O(l^2)`` this is the resultant ``Res_s(E, O)``,
+    which equals the Hurwitz determinant ``Delta_(m-1)`` up to a constant
+    factor and a power of the leading coefficient (Orlando's formula:
+    ``Delta_(m-1)`` is, up to sign, the product of ``l_i + l_j`` over the pairs
+    of roots).  With coefficients in the flint field it is computed by
+    python-flint's multivariate resultant, much faster than the determinant;
+    otherwise the Hurwitz determinant is used.
+    """
+    K = tower.base
+    coeffs = [lower(c) for c in f]
+    if not isinstance(K, FlintRationalFunctionField) or any(
+            isinstance(c, QuadraticElement) for c in coeffs):
+        return hurwitz_determinant(tower.top, f, len(f) - 2)
+    coeffs = [K(c) for c in coeffs]
+    den = K._one_poly
+    for c in coeffs:
+        den = den * (c.den / den.gcd(c.den))
+    polys = [c.num * (den / c.den) for c in coeffs]
+    names = tuple(str(x) for x in K.symbols) + ("s_",)
+    ctx = flint.fmpz_mpoly_ctx.get(names, "degrevlex")
+    nv = len(K.symbols)
+
+    def lift(part):
+        data = {}
+        for k, p in enumerate(part):
+            for monom, v in p.to_dict().items():
+                data[tuple(monom) + (k,)] = v
+        return ctx.from_dict(data)
+
+    E, O = lift(polys[0::2]), lift(polys[1::2])
+    if O.is_zero():
+        return K.zero
+    R = E.resultant(O, "s_")
+    data = {tuple(m[:nv]): v for m, v in R.to_dict().items()}
+    return K.from_polynomials(K.ctx.from_dict(data), K._one_poly) if data else K.zero
+
+
 def find_critical_branches(tower_mu, mu, chi, *, describe=str):
     """All closed-form branches of the critical set.
 
@@ -167,8 +209,7 @@ def find_critical_branches(tower_mu, mu, chi, *, describe=str):
     K = tower_mu.top
     candidates = []
     for f in _pair_carriers(factor_univariate(tower_mu, chi)):
-        m = len(f) - 1
-        d = hurwitz_determinant(K, f, m - 1)
+        d = pair_sum_condition(tower_mu, f)
         if not d:
             notes.append("a factor of the characteristic polynomial has a pair of opposite "
                          "eigenvalues for every parameter value (a conservative part); it is "

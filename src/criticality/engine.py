@@ -105,8 +105,20 @@ def run_engine(problem: Problem) -> EngineOutput:
     if len(imaginary) < len(branches):
         notes.append(f"{len(branches) - len(imaginary)} branch(es) of the critical set have "
                      "omega^2 <= 0 (neutral saddles) and were dropped")
-    computed = tuple(_compute_branch(tower, taylor_mu, b, problem, order) for b in imaginary)
-    return EngineOutput(tower, chi, A_mu, computed, tuple(notes), tuple(degenerate))
+    computed = []
+    for b in imaginary:
+        bc = _compute_branch(tower, taylor_mu, b, problem, order)
+        if bc is None:
+            notes.append("a branch of the critical set has <q, q> = 0, which means omega^2 <= 0 "
+                         "there (a real pair +-kappa, not a Hopf pair); it was dropped")
+        else:
+            computed.append(bc)
+    if not computed:
+        raise NoHopfPointError(
+            "on every branch of the critical set omega^2 <= 0: where two eigenvalues sum to "
+            "zero they are a real pair +-kappa (a neutral saddle), not a pair crossing the "
+            "imaginary axis", reason="omega_squared_nonpositive")
+    return EngineOutput(tower, chi, A_mu, tuple(computed), tuple(notes), tuple(degenerate))
 
 
 def _may_be_positive(branch, ctx) -> bool:
@@ -131,6 +143,8 @@ def _compute_branch(tower, taylor_mu, branch, problem, order) -> BranchComputati
     taylor = taylor_mu.map(lambda c: tower.substitute(c, mu, value, target, images), K)
     N = branch.nu_field
     eb = critical_eigenbasis(K, taylor.jacobian(), branch.W, N)
+    if not eb.qq:  # |Av|^2 + W |v|^2 = 0 forces W <= 0: not an imaginary pair
+        return None
     c1_proj = projection_c1(taylor, eb) / eb.qq
     reduced = reduce_to_center_manifold(taylor, eb, order)
     G = complexify(reduced, N, order)
