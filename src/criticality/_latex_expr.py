@@ -214,12 +214,33 @@ class TexWriter:
         return new
 
     def shorten(self, e):
-        """``e`` with wide inner sums replaced by named factors."""
+        """``e`` with wide inner sums replaced by named factors, and the
+        numerator or denominator of a fraction that is still too wide named
+        as a whole."""
         e = sympy.sympify(e)
         if e.is_Relational:
             return e.func(self._rebuild(e.lhs, True), self._rebuild(e.rhs, True),
                           evaluate=False)
-        return self._rebuild(e, True)
+        e = self._rebuild(e, True)
+        if e in self.table:
+            return self.table[e]
+        if e.is_Add and -e in self.table:
+            return -self.table[-e]
+        return self._fit(e)
+
+    def _fit(self, e):
+        if not e.is_Mul or self.measure(e) <= self.width:
+            return e
+        num, den = sympy.fraction(e, exact=True)
+        parts = []
+        for part in (num, den):
+            factors = sympy.Mul.make_args(part)
+            simple = [f for f in factors if f.is_Atom]
+            composite = [f for f in factors if not f.is_Atom]
+            if len(composite) > 1 and self._product(part) > 0.8 * self.width:
+                composite = [self._symbol_for(sympy.Mul(*composite))]
+            parts.append(sympy.Mul(*simple, *composite))
+        return parts[0] / parts[1] if parts[1] != 1 else parts[0]
 
     def take_definitions(self) -> list:
         """The factors named since the last call, as ``(symbol, expression)``."""
@@ -236,8 +257,10 @@ class TexWriter:
         """``e`` (already shortened) as LaTeX lines no wider than ``width``,
         broken between the terms of a sum."""
         width = self.width if width is None else width
-        if self.measure(e) <= width or not e.is_Add:
+        if self.measure(e) <= width or not (e.is_Add or e.is_Mul):
             return [self.tex(e)]
+        if e.is_Mul:
+            return self._product_pieces(e, width)
         items = []
         for i, term in enumerate(self.printer._as_ordered_terms(e)):
             negative = term.could_extract_minus_sign()
@@ -261,9 +284,31 @@ class TexWriter:
         lines.append(current)
         return lines
 
-    def align_rows(self, lhs: str, e, width: float | None = None, relation: str = "=") -> list:
+    def _product_pieces(self, e, width: float) -> list:
+        """A wide product without denominator, broken between factors."""
+        num, den = sympy.fraction(e, exact=True)
+        if den != 1:
+            return [self.tex(e)]
+        lines, current, used = [], [], 0.0
+        for factor in e.as_ordered_factors():
+            size = self.measure(factor) + 1.5 * factor.is_Add
+            if current and used + size > width:
+                lines.append(current)
+                current, used = [], 0.0
+            current.append(factor)
+            used += size
+        lines.append(current)
+        out = []
+        for k, group in enumerate(lines):
+            text = " ".join(self.printer.parenthesize(f, 50) if f.is_Add else self.tex(f)
+                            for f in group)
+            out.append(text if k == 0 else "{}\\cdot " + text)
+        return out
+
+    def align_rows(self, lhs: str, e, width: float | None = None, relation: str = "=",
+                   fit: bool = True) -> list:
         """Rows of an ``align*`` block for ``lhs = e`` (``e`` shortened here)."""
-        short = self.shorten(e)
+        short = self.shorten(e) if fit else self._rebuild(sympy.sympify(e), True)
         lines = self.pieces(short, width)
         rows = [f"{lhs} &{relation} {lines[0]}"]
         rows += [f"&\\qquad {line}" for line in lines[1:]]
@@ -274,5 +319,5 @@ class TexWriter:
         rows = []
         while self.pending:
             for symbol, expr in self.take_definitions():
-                rows += self.align_rows(self.names[symbol.name], expr, width)
+                rows += self.align_rows(self.names[symbol.name], expr, width, fit=False)
         return rows

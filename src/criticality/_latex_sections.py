@@ -367,13 +367,14 @@ def _section_cycle(doc: Document) -> str:
     r, w = doc.result, doc.writer
     rows = _offset_rows(doc, "\\rho^{2}", r.cycle.radius_squared)
     for state, coefficient in r.cycle.amplitude_coefficients.items():
-        rows += w.align_rows(f"k_{{{latex_name(state)}}}", coefficient)
+        rows += w.align_rows(f"\\frac{{A_{{{latex_name(state)}}}^{{2}}}}{{{doc.mu} - {doc.mu_c}}}",
+                             coefficient)
     rows += w.align_rows(f"\\frac{{d{doc.omega_tex}_{{\\mathrm{{cycle}}}}}}{{d{doc.mu}}}",
                          doc.with_omega(r.cycle.frequency_slope))
     return _section("Predicted cycle", _side_words(doc),
-                    "Squared radius (unit normalisation), the amplitude coefficients $k_{j}$ with "
-                    f"$(\\text{{amplitude of }} x_{{j}})^{{2}} = k_{{j}}\\,({doc.mu} - {doc.mu_c})$ "
-                    "(half peak-to-peak, to leading order), and the slope of the cycle's angular "
+                    "Squared radius (unit normalisation), the squared amplitude $A_{j}^{2}$ of "
+                    "each state per unit of the distance from the critical value (half "
+                    "peak-to-peak, to leading order), and the slope of the cycle's angular "
                     f"frequency $\\omega_{{\\mathrm{{cycle}}}} = {doc.omega_tex} + "
                     f"\\frac{{d{doc.omega_tex}_{{\\mathrm{{cycle}}}}}}{{d{doc.mu}}}({doc.mu} - "
                     f"{doc.mu_c}) + \\dots$; the period at onset is $2\\pi/{doc.omega_tex}$:",

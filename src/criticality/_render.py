@@ -148,7 +148,7 @@ def wrap_expression(text: str, width: int) -> list:
 
 def transversality_sentence(result) -> str:
     """Which side of the critical value the equilibrium is unstable on."""
-    sign = _sign(result.transversality)
+    sign = _sign(result.transversality, result.assumptions)
     name = result.parameter
     if sign > 0:
         return (f"The pair crosses into the right half-plane as {name} increases: the "
@@ -190,18 +190,31 @@ def cycle_sentences(result) -> list:
     else:
         out.append("Its stability is not decided for all parameters (see the verdict and the "
                    "conditions).")
-    out.append("Amplitudes (half peak-to-peak) follow amplitude_j^2 = k_j*"
+    out.append("Amplitudes (half peak-to-peak) follow amplitude_j^2 = slope_j*"
                f"({name} - {name}_c) to leading order; the period is 2*pi/omega at onset.")
     return out
 
 
-def _sign(expr) -> int:
+_SIGN_KEYWORDS = {"positive": {"positive": True}, "negative": {"negative": True},
+                  "nonnegative": {"nonnegative": True}}
+
+
+def _sign(expr, assumptions=None) -> int:
+    """+1, -1 or 0 (unknown) for a small expression, using the declared signs."""
     if expr.is_number:
         try:
             value = float(expr)
         except TypeError:
             return 0
         return (value > 0) - (value < 0)
+    if sympy.count_ops(expr) > 300:
+        return 0
+    repl = {}
+    for symbol in expr.free_symbols:
+        keywords = _SIGN_KEYWORDS.get((assumptions or {}).get(symbol.name))
+        if keywords:
+            repl[symbol] = sympy.Symbol(symbol.name, real=True, **keywords)
+    expr = expr.xreplace(repl)
     if expr.is_positive:
         return 1
     if expr.is_negative:

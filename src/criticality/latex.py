@@ -56,7 +56,7 @@ def _quantity_rows(doc: Document) -> list:
     rows += w.align_rows("\\ell_{1}", doc.with_omega(r.l1))
     for k, coefficient in enumerate(r.lyapunov_coefficients[1:], start=2):
         rows += w.align_rows(f"\\ell_{{{k}}}", doc.with_omega(coefficient))
-    rows.append(f"&\\text{{{doc.text(r.classification)}}}")
+    rows.append(f"&\\text{{classification: {doc.text(r.classification)}}}")
     if r.supercritical_where is not None:
         rows.append("&\\text{supercritical exactly where}")
         rows += doc.inequality_rows(r.supercritical_where)

@@ -120,8 +120,8 @@ def _cycle(result, width: int) -> list:
         out.append(f"  squared radius rho^2 = K*({name} - {name}_c) (unit normalisation), K:")
         out += _expr_lines("", k, width)
     for state, k in result.cycle.amplitude_coefficients.items():
-        out.append(f"  k_{state} (amplitude of {state} squared, per unit of "
-                   f"{result.parameter} - {result.parameter}_c):")
+        out.append(f"  slope_{state}: (amplitude of {state})^2 per unit of "
+                   f"{result.parameter} - {result.parameter}_c:")
         out += _expr_lines("", k, width)
     out.append(f"  frequency slope d omega_cycle / d {result.parameter}:")
     out += _expr_lines("", result.cycle.frequency_slope, width)
@@ -191,7 +191,7 @@ def numeric_summary(numeric, digits: int | None = None) -> str:
     rows += [(f"l{k}", v) for k, v in enumerate(numeric.lyapunov_coefficients[1:], start=2)]
     rows += [("classification", numeric.classification)]
     rows += [(f"equilibrium {k}", v) for k, v in numeric.equilibrium.items()]
-    rows += [(f"k_{k} (amplitude^2 slope)", v)
+    rows += [(f"amplitude^2 slope of {k}", v)
              for k, v in numeric.amplitude_coefficients.items()]
     rows += [("|lambda - i*omega| (check)", numeric.pair_error),
              ("other eigenvalues stable", numeric.others_stable)]
