@@ -31,6 +31,9 @@ _LAZY = {
     "validate": "validation",
     "plot_parameter_plane": "plots",
     "analyses": "registry",
+    "fold": "fold_points",
+    "bautin_points": "bautin",
+    "bogdanov_takens": "double_zero",
 }
 
 __all__ = sorted(["__version__", *_LAZY, *_error_names])

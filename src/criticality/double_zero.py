@@ -37,7 +37,7 @@ import sympy
 from ._analysis_setup import expr, prepare, sign_word, solve_for
 from ._renderers import render_json, render_latex, render_text
 from .algebra.linalg import kernel, matvec, solve_consistent, transpose
-from .errors import DegenerateHopfError, NoHopfPointError
+from .errors import DegenerateBifurcationError, NoHopfPointError
 from .linear import characteristic_polynomial
 
 __all__ = ["BogdanovTakensResult", "bogdanov_takens", "bogdanov_takens_all", "BT_CONVENTIONS"]
@@ -109,7 +109,7 @@ def generalised_eigenvectors(K, A):
     """``(q0, q1, p0, p1)`` normalised as in the module docstring."""
     right, left = kernel(K, A), kernel(K, transpose(A))
     if len(right) != 1:
-        raise DegenerateHopfError(f"the kernel of the Jacobian has dimension {len(right)}: the "
+        raise DegenerateBifurcationError(f"the kernel of the Jacobian has dimension {len(right)}: the "
                                   "double zero eigenvalue is not a single Jordan block",
                                   reason="double_zero")
     q0, p1 = right[0], left[0]
@@ -117,11 +117,11 @@ def generalised_eigenvectors(K, A):
         q1 = _chain(K, A, q0)
         p0 = _chain(K, transpose(A), p1)
     except Exception as exc:  # noqa: BLE001 - no chain: the zero eigenvalue is simple
-        raise DegenerateHopfError("the zero eigenvalue is simple (no Jordan chain): a fold, not a "
+        raise DegenerateBifurcationError("the zero eigenvalue is simple (no Jordan chain): a fold, not a "
                                   "Bogdanov-Takens point", reason="zero_eigenvalue") from exc
     s = _dot(K, p1, q1)
     if not s:
-        raise DegenerateHopfError("the zero eigenvalue has multiplicity above two (a triple zero)",
+        raise DegenerateBifurcationError("the zero eigenvalue has multiplicity above two (a triple zero)",
                                   reason="double_zero")
     p1 = [x / s for x in p1]
     p0 = [x / s for x in p0]
@@ -166,10 +166,10 @@ def _point(prep, sp1, sp2, names):
     A = taylor.jacobian()
     chi = characteristic_polynomial(K, A)
     if chi[0] or chi[1]:
-        raise DegenerateHopfError("internal: the double-zero conditions do not hold",
+        raise DegenerateBifurcationError("internal: the double-zero conditions do not hold",
                                   reason="double_zero")
     if len(chi) > 3 and not chi[2]:
-        raise DegenerateHopfError("a third eigenvalue is zero", reason="double_zero")
+        raise DegenerateBifurcationError("a third eigenvalue is zero", reason="double_zero")
     q0, q1, p0, p1 = generalised_eigenvectors(K, A)
     Bq0q0 = taylor.form(2, q0, q0)
     a = _dot(K, p1, Bq0q0) / 2
@@ -202,7 +202,7 @@ def bogdanov_takens_all(model, parameter: str, second: str, *, equilibrium=None,
     for sp1, sp2 in _solve_pair(prep, u1, u2, chi[0], chi[1]):
         try:
             out.append(_point(prep, sp1, sp2, (parameter, second)))
-        except DegenerateHopfError:
+        except DegenerateBifurcationError:
             continue
     if not out:
         raise NoHopfPointError(

@@ -27,6 +27,7 @@ __all__ = [
     "EquilibriumNotFoundError",
     "NotAnalyticError",
     "NoHopfPointError",
+    "DegenerateBifurcationError",
     "DegenerateHopfError",
     "ClosedFormUnavailableError",
     "ComputationLimitError",
@@ -205,7 +206,24 @@ class NoHopfPointError(CriticalityError):
         super().__init__(message)
 
 
-class DegenerateHopfError(CriticalityError):
+class DegenerateBifurcationError(CriticalityError):
+    """The critical point is more degenerate than the analysis asked for
+    (e.g. a double zero eigenvalue where a fold was expected).
+
+    Attributes
+    ----------
+    reason : str
+        A short machine-readable cause.
+    """
+
+    exit_code = 6
+
+    def __init__(self, message: str, *, reason: str = "degenerate"):
+        self.reason = reason
+        super().__init__(message)
+
+
+class DegenerateHopfError(DegenerateBifurcationError):
     """The critical point is not a simple Hopf point (zero eigenvalue, two
     critical pairs, ...).
 
@@ -215,11 +233,6 @@ class DegenerateHopfError(CriticalityError):
         ``"zero_eigenvalue"``, ``"two_critical_pairs"``, ...
     """
 
-    exit_code = 6
-
-    def __init__(self, message: str, *, reason: str = "degenerate"):
-        self.reason = reason
-        super().__init__(message)
 
 
 class ClosedFormUnavailableError(CriticalityError):

@@ -42,7 +42,7 @@ import sympy
 from ._analysis_setup import expr, prepare, sign_word, solve_for
 from ._renderers import render_json, render_latex, render_text
 from .algebra.linalg import determinant, kernel, matvec, solve, transpose
-from .errors import DegenerateHopfError, NoHopfPointError
+from .errors import DegenerateBifurcationError, NoHopfPointError
 
 __all__ = ["FoldResult", "fold", "fold_all", "FOLD_CONVENTIONS"]
 
@@ -122,13 +122,13 @@ def _dot(K, a, b):
 def _null_vectors(K, A):
     right, left = kernel(K, A), kernel(K, transpose(A))
     if len(right) != 1:
-        raise DegenerateHopfError(
+        raise DegenerateBifurcationError(
             f"the Jacobian has a {len(right)}-dimensional kernel at this point; a simple zero "
             "eigenvalue was expected", reason="double_zero")
     q, p = right[0], left[0]
     s = _dot(K, p, q)
     if not s:
-        raise DegenerateHopfError(
+        raise DegenerateBifurcationError(
             "the zero eigenvalue is not simple (<p, q> = 0: a Jordan block, as at a "
             "Bogdanov-Takens point); use bogdanov_takens()", reason="double_zero")
     return q, [x / s for x in p]
@@ -243,7 +243,7 @@ def fold_all(model, parameter: str, *, solve_for_name: str | None = None, equili
     for sp in points:
         try:
             results.append(_result(prep, sp, unknown))
-        except DegenerateHopfError:
+        except DegenerateBifurcationError:
             continue
     if not results:
         extra = f" (no closed form for {', '.join(map(str, unsolved))} = 0)" if unsolved else ""

@@ -90,11 +90,11 @@ def get(name: str) -> Analysis:
 register(Analysis("hopf", "Hopf bifurcation: critical value, frequency, Lyapunov coefficients "
                   "and the criticality verdict", "analysis:hopf", ("parameter",), "HopfResult"))
 register(Analysis("fold", "a simple zero eigenvalue: fold (saddle-node), transcritical or "
-                  "pitchfork point and its normal form", "fold:fold", ("parameter",),
+                  "pitchfork point and its normal form", "fold_points:fold", ("parameter",),
                   "FoldResult"))
 register(Analysis("bautin", "points of the Hopf set where l1 = 0, with l2 and the scenario "
                   "(fold of cycles, hysteresis)", "bautin:bautin_points",
                   ("parameter", "second"), "BautinPoint"))
 register(Analysis("bogdanov_takens", "double zero eigenvalue in two parameters: the normal-form "
-                  "coefficients a and b and the sign of a b", "bogdanov_takens:bogdanov_takens",
+                  "coefficients a and b and the sign of a b", "double_zero:bogdanov_takens",
                   ("parameter", "second"), "BogdanovTakensResult"))
