@@ -62,7 +62,7 @@ def latex_name(name: str) -> str:
         out = "\\mathit{" + base + "}"
     if subs:
         out += "_{" + ",".join(_piece(s) for s in subs) + "}"
-    return out + "'" * primes
+    return "{" + out + "'" * primes + "}" if primes else out
 
 
 def _name_width(name: str) -> float:

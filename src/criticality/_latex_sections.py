@@ -95,10 +95,8 @@ class Document:
         """``e`` with the frequency written as the symbol omega where it
         appears as a factor (``l1 = R / omega`` rather than a radical)."""
         e = sympy.sympify(e)
-        if self._omega_expr.is_Rational or self._omega_expr.is_Float:
-            return e
         if not self._bases:
-            return e.xreplace({self._omega_expr: self.omega})
+            return e
         if e.is_Add:
             return sympy.Add(*[self.with_omega(t) for t in e.args])
         if not self._has_radical(e):
@@ -112,6 +110,14 @@ class Document:
                 if best is None or size < best[0]:
                     best = (size, candidate)
         return e if best is None else best[1]
+
+    def over_omega(self, e):
+        """``e`` written as ``(e*omega)/omega`` (for ``l_k = Re(c_k)/omega``)."""
+        e = sympy.sympify(e)
+        if not self._bases:
+            return e
+        t = e * self._omega_expr
+        return self.with_omega(e) if self._has_radical(t) else t * self.omega ** -1
 
     def complex_with_omega(self, e):
         """``re + i*im`` with the frequency factored out of both parts."""
@@ -297,11 +303,11 @@ def _section_normal_form(doc: Document) -> str:
     rows = w.align_rows("\\operatorname{Re} c_{1}", re_c1)
     rows += w.align_rows("\\operatorname{Im} c_{1}", doc.with_omega(im_c1))
     rows += w.align_rows("\\ell_{1} = \\frac{\\operatorname{Re} c_{1}}{" + doc.omega_tex + "}",
-                         doc.with_omega(r.l1))
+                         doc.over_omega(r.l1))
     rows += w.align_rows("a_{\\mathrm{GH}} = \\frac{" + doc.omega_tex + "\\,\\ell_{1}}{2}",
                          r.planar_coefficient)
     for k, coefficient in enumerate(r.lyapunov_coefficients[1:], start=2):
-        rows += w.align_rows(f"\\ell_{{{k}}}", doc.with_omega(coefficient))
+        rows += w.align_rows(f"\\ell_{{{k}}}", doc.over_omega(coefficient))
     text = ("On the center manifold the normal form is $\\dot z = (\\beta + i" + doc.omega_tex +
             ")z + c_{1} z|z|^{2} + \\dots$ with the unit normalisation "
             "$\\langle \\mathbf{q}, \\mathbf{q}\\rangle = 1$; $a_{\\mathrm{GH}}$ is the planar "

@@ -38,6 +38,7 @@ _PREAMBLE = r"""\documentclass[11pt]{article}
 \allowdisplaybreaks
 \setlength{\parindent}{0pt}
 \setlength{\parskip}{0.6\baselineskip}
+\renewcommand{\arraystretch}{1.5}
 \newcommand{\statuslabel}[1]{\textsc{#1}}
 """
 
@@ -53,9 +54,9 @@ def _quantity_rows(doc: Document) -> list:
     re_c1, im_c1 = doc.split(r.c1)
     rows += w.align_rows("\\operatorname{Re} c_{1}", re_c1)
     rows += w.align_rows("\\operatorname{Im} c_{1}", doc.with_omega(im_c1))
-    rows += w.align_rows("\\ell_{1}", doc.with_omega(r.l1))
+    rows += w.align_rows("\\ell_{1}", doc.over_omega(r.l1))
     for k, coefficient in enumerate(r.lyapunov_coefficients[1:], start=2):
-        rows += w.align_rows(f"\\ell_{{{k}}}", doc.with_omega(coefficient))
+        rows += w.align_rows(f"\\ell_{{{k}}}", doc.over_omega(coefficient))
     rows.append(f"&\\text{{classification: {doc.text(r.classification)}}}")
     if r.supercritical_where is not None:
         rows.append("&\\text{supercritical exactly where}")
@@ -109,8 +110,11 @@ def result_to_notebook_latex(result, width: float = 70) -> str:
     w, r = doc.writer, result
     rows = w.align_rows(doc.mu_c, r.critical_value)
     rows += w.align_rows(doc.omega_tex + "^{2}", r.omega_squared)
-    rows += w.align_rows("\\ell_{1}", doc.with_omega(r.l1))
-    rows.append(f"&\\text{{{doc.text(r.verdict)[:300]}}}")
+    rows += w.align_rows("\\ell_{1}", doc.over_omega(r.l1))
+    rows.append(f"&\\text{{classification: {doc.text(r.classification)}}}")
+    if r.supercritical_where is not None:
+        rows.append("&\\text{supercritical exactly where}")
+        rows += doc.inequality_rows(r.supercritical_where)
     rows = _with_definitions(doc, rows, "aligned")
     return "$$\\begin{aligned}\n" + " \\\\\n".join(rows) + "\n\\end{aligned}$$"
 

@@ -98,8 +98,8 @@ def _verdict(result, width: int) -> list:
 
 
 def _conditions(result, width: int) -> list:
-    out = ["Conditions (holds: proved under the assumptions; open: stated, not proved -- the "
-           "result is valid where it holds)"]
+    out = _paragraph("Conditions (holds: proved under the assumptions; open: stated, not "
+                     "proved -- the result is valid where it holds)", width, "")
     for c in result.conditions:
         out += _paragraph(f"[{_STATUS.get(c.status, c.status)}] {c.description}", width)
         out += _expr_lines("", c.expr, width, "          ")
