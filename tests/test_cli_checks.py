@@ -1,7 +1,7 @@
 """The command-line subcommands for the simulation check and the diagrams.
 
-The subcommands are registered on a fresh parser, as the main command does,
-and run in-process.
+They run in-process through the main command, :func:`criticality.cli.main`,
+which registers them.
 """
 
 import argparse
@@ -10,7 +10,8 @@ import struct
 
 import pytest
 
-from criticality.cli_checks import EXIT_NOT_CONFIRMED, register
+from criticality.cli import main
+from criticality.cli_checks import EXIT_INCONCLUSIVE, EXIT_NOT_CONFIRMED, register
 from criticality.errors import OutputExistsError, ParameterError
 
 MODEL = """
@@ -44,11 +45,19 @@ z = "x*y - b*z"
 
 
 def run(argv):
+    return main([str(a) for a in argv] + ["--quiet"])
+
+
+def test_register_adds_the_subcommands():
+    """register() adds confirm, plane and survey, each with a handler, to any parser."""
     parser = argparse.ArgumentParser(prog="criticality")
-    sub = parser.add_subparsers(dest="command", required=True)
+    sub = parser.add_subparsers(dest="command")
     assert register(sub) is None
-    args = parser.parse_args([str(a) for a in argv])
-    return args.handler(args)
+    plane = ["--x", "a", "--x-range", "0", "1", "--y-range", "0", "1"]
+    for argv in (["confirm", "m.toml"], ["plane", "m.toml", *plane, "-o", "f.png"],
+                 ["survey", "m.toml", *plane, "--out-dir", "d"]):
+        assert callable(parser.parse_args(argv).handler)
+    assert EXIT_NOT_CONFIRMED not in (0, 2) and EXIT_INCONCLUSIVE not in (0, 2)
 
 
 @pytest.fixture
@@ -68,7 +77,7 @@ def test_confirm_prints_the_report(model_file, capsys):
 
 def test_confirm_writes_latex_and_refuses_to_overwrite(model_file, tmp_path, capsys):
     target = tmp_path / "report.tex"
-    argv = ["confirm", model_file, "--offsets", "0.08", "--set", "a=1/2", "--format", "latex",
+    argv = ["confirm", model_file, "--offsets", "0.08", "--at", "a=1/2", "--format", "latex",
             "-o", target]
     assert run(argv) == 0
     assert "\\begin{tabular}" in target.read_text()
@@ -95,7 +104,6 @@ def test_plane_writes_png_and_csv(model_file, tmp_path, capsys):
     lines = table.read_text().splitlines()
     assert lines[0] == "segment,a,mu,l1,classification,others_stable"
     assert len(lines) == 81
-    assert f"wrote {png}" in capsys.readouterr().out
 
 
 def test_equilibrium_option_and_standard_input(tmp_path, monkeypatch, capsys):
@@ -103,14 +111,16 @@ def test_equilibrium_option_and_standard_input(tmp_path, monkeypatch, capsys):
     monkeypatch.setattr("sys.stdin", io.StringIO(LORENZ))
     png = tmp_path / "lorenz.svg"
     code = run(["plane", "-", "-p", "r", "--equilibrium",
-                "x=sqrt(b*(r-1)), y=sqrt(b*(r-1)), z=r-1", "--set", "b=8/3", "--x", "sigma",
+                "x=sqrt(b*(r-1)), y=sqrt(b*(r-1)), z=r-1", "--at", "b=8/3", "--x", "sigma",
                 "--x-range", "1", "30", "--y-range", "0", "100", "-o", png])
     assert code == 0 and png.read_text().lstrip().startswith("<?xml")
 
 
 def test_bad_input_gives_the_package_error(model_file, tmp_path, capsys):
-    assert run(["confirm", model_file, "--set", "a"]) == ParameterError.exit_code
+    assert run(["confirm", model_file, "--at", "a"]) == 2  # a usage error of argparse
     assert "NAME=VALUE" in capsys.readouterr().err
+    assert run(["confirm", model_file, "--at", "zeta=1"]) == ParameterError.exit_code
+    assert "zeta" in capsys.readouterr().err
     code = run(["plane", model_file, "--x", "b", "--x-range", "0", "1", "--y-range", "0", "1",
                 "-o", tmp_path / "p.png"])
     assert code == ParameterError.exit_code
@@ -122,7 +132,7 @@ def test_survey_writes_every_file(model_file, tmp_path, capsys):
     out = tmp_path / "survey"
     code = run(["survey", model_file, "--x", "a", "--x-range", "-12", "4", "--y-range", "-5",
                 "100", "--offsets", "0.08", "0.04", "--out-dir", out, "--points", "60",
-                "--set", "a=1/2"])
+                "--at", "a=1/2"])
     assert code == 0
     names = sorted(p.name for p in out.iterdir())
     assert names == sorted(["report.txt", "report.tex", "plane.png", "plane.svg", "curve.csv",

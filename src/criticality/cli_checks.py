@@ -8,8 +8,8 @@ writes what it returns; there is no mathematics here.
 
 ``confirm``
     simulate the model near onset and print (or write) the check report;
-    exit status 0 when the prediction is confirmed, 2 when it is not or the
-    check is inconclusive.
+    exit status 0 when the prediction is confirmed, 11 when it is not, 12
+    when the check is inconclusive.
 ``plane``
     draw the Hopf curve in a plane of two parameters (PNG, SVG or PDF) and
     optionally write its points as CSV.
@@ -17,12 +17,14 @@ writes what it returns; there is no mathematics here.
     both at once into a folder: ``report.txt``, ``report.tex``,
     ``plane.png``, ``plane.svg``, ``curve.csv`` and ``amplitude.png``.
 
-Every subcommand takes the model file (``-`` for standard input), the
-bifurcation parameter (``-p``; default: the file's own), an equilibrium
-(``--equilibrium "x=0, y=0"``; default: the file's, else the engine's
-choice), the branch (``--branch``) and parameter values (``--set name=value``,
-repeatable; values are read exactly by the model's own parser).  Files are
-written atomically and never overwritten without ``--force``.
+Every subcommand takes the analysis options of the main command
+(:func:`criticality.cli.add_analysis_options`: the model file, ``-p``,
+``--equilibrium``, ``--eliminate``, ``--set`` to fix parameters before the
+analysis, ...) and ``--at NAME=VALUE`` (repeatable) for the parameter point
+of the check and the fixed parameters of the diagram; model defaults fill the
+rest.  Files are written atomically and never overwritten without
+``--force``.  Errors of the package are reported by the main command's
+:func:`criticality.cli.main` with their exit status.
 """
 
 from __future__ import annotations
@@ -31,40 +33,47 @@ import argparse
 import os
 import sys
 
-from .errors import CriticalityError, ParameterError
+__all__ = ["register", "EXIT_NOT_CONFIRMED", "EXIT_INCONCLUSIVE"]
 
-__all__ = ["register", "EXIT_NOT_CONFIRMED"]
+#: exit status of ``confirm`` and ``survey`` when the simulation contradicts the prediction
+EXIT_NOT_CONFIRMED = 11
+#: exit status when the simulation can neither confirm nor contradict it
+EXIT_INCONCLUSIVE = 12
 
-#: exit status of ``confirm`` when the simulation does not confirm the prediction
-EXIT_NOT_CONFIRMED = 2
+_SURVEY_FILES = ("report.txt", "report.tex", "plane.png", "plane.svg", "curve.csv",
+                 "amplitude.png")
 
 
-# -- shared options ---------------------------------------------------------------------------
+# -- options ---------------------------------------------------------------------------------
+
+
+def _flags(parser) -> None:
+    parser.add_argument("-q", "--quiet", action="store_true", default=argparse.SUPPRESS,
+                        help="no progress messages on standard error")
+    parser.add_argument("--debug", action="store_true", default=argparse.SUPPRESS,
+                        help="show the traceback of an error")
 
 
 def _common(parser) -> None:
-    parser.add_argument("model", help="TOML model file, or - to read standard input")
-    parser.add_argument("-p", "--parameter", help="the bifurcation parameter (default: the "
-                        "model file's bifurcation_parameter)")
-    parser.add_argument("--equilibrium", metavar="STATE=EXPR,...",
-                        help='the equilibrium, e.g. "x=0, y=sqrt(b*(r-1))" (default: the '
-                        "model file's, else the engine's choice)")
-    parser.add_argument("--branch", type=int, default=None, help="branch of the critical set "
-                        "(default 0)")
-    parser.add_argument("--set", dest="values", action="append", default=[],
-                        metavar="NAME=VALUE", help="a parameter value, read exactly "
-                        "(repeatable); model defaults fill the rest")
-    parser.add_argument("--force", action="store_true", help="overwrite existing files")
+    from ._cli_support import pairs
+    from .cli import add_analysis_options
+
+    _flags(parser)
+    add_analysis_options(parser)
+    parser.add_argument("--at", dest="point", action="append", default=[], metavar="NAME=VALUE",
+                        type=lambda s: pairs([s], "--at"),
+                        help="the parameter point of the check, and the fixed parameters of "
+                        "the diagram (repeatable, exact text such as 8/3); model defaults "
+                        "fill the rest")
+    parser.add_argument("-f", "--force", action="store_true", help="overwrite existing files")
 
 
-def _plane_options(parser, required: bool) -> None:
-    parser.add_argument("--x", required=required, help="parameter on the horizontal axis")
+def _plane_options(parser) -> None:
+    parser.add_argument("--x", required=True, help="parameter on the horizontal axis")
     parser.add_argument("--y", help="parameter on the vertical axis (default: the bifurcation "
                         "parameter)")
-    parser.add_argument("--x-range", nargs=2, type=float, metavar=("LOW", "HIGH"),
-                        required=required)
-    parser.add_argument("--y-range", nargs=2, type=float, metavar=("LOW", "HIGH"),
-                        required=required)
+    parser.add_argument("--x-range", nargs=2, type=float, metavar=("LOW", "HIGH"), required=True)
+    parser.add_argument("--y-range", nargs=2, type=float, metavar=("LOW", "HIGH"), required=True)
     parser.add_argument("--stability", choices=("closed-form", "eigenvalues"),
                         default="closed-form", help="how the stable region is decided")
     parser.add_argument("--size", nargs=2, type=float, default=(6.4, 4.8),
@@ -92,145 +101,107 @@ def register(subparsers) -> None:
     """
     p = subparsers.add_parser(
         "confirm", help="check the predicted cycle by simulating the model",
-        description="Simulate the model near onset and compare the cycle with the prediction.")
+        description="Simulate the model near onset and compare the cycle with the prediction. "
+                    f"Exit status 0: confirmed; {EXIT_NOT_CONFIRMED}: not confirmed; "
+                    f"{EXIT_INCONCLUSIVE}: inconclusive.")
     _common(p)
     _check_options(p)
     p.add_argument("--format", choices=("text", "latex"), default="text")
-    p.add_argument("-o", "--output", help="write the report here instead of standard output")
+    p.add_argument("-o", "--output", metavar="FILE",
+                   help="write the report to FILE instead of standard output")
     p.add_argument("--amplitude-plot", metavar="FILE",
                    help="also draw the predicted and simulated amplitudes (PNG, SVG or PDF)")
-    p.set_defaults(handler=_guarded(_confirm))
+    p.set_defaults(handler=_confirm)
 
     p = subparsers.add_parser(
         "plane", help="draw the Hopf curve in a plane of two parameters",
         description="Draw the Hopf curve, its super- and subcritical pieces, the points where "
                     "l1 vanishes and the region where the equilibrium is stable.")
     _common(p)
-    _plane_options(p, required=True)
-    p.add_argument("-o", "--output", required=True, help="image file (.png, .svg or .pdf)")
+    _plane_options(p)
+    p.add_argument("-o", "--output", required=True, metavar="FILE",
+                   help="image file (.png, .svg or .pdf)")
     p.add_argument("--csv", metavar="FILE", help="also write the curve's points as CSV")
-    p.set_defaults(handler=_guarded(_plane))
+    p.set_defaults(handler=_plane)
 
     p = subparsers.add_parser(
         "survey", help="the check report and the diagrams, into one folder",
-        description="Write report.txt, report.tex, plane.png, plane.svg, curve.csv and "
-                    "amplitude.png into a folder.")
+        description="Write " + ", ".join(_SURVEY_FILES) + " into a folder.")
     _common(p)
     _check_options(p)
-    _plane_options(p, required=True)
-    p.add_argument("--out-dir", required=True, help="folder for the files (created if needed)")
-    p.set_defaults(handler=_guarded(_survey))
-
-
-def _guarded(handler):
-    """Report the package's own errors as one paragraph and their exit status."""
-    def run(args) -> int:
-        try:
-            return handler(args)
-        except CriticalityError as exc:
-            print(f"criticality: error: {exc}", file=sys.stderr)
-            return exc.exit_code
-    run.__name__ = handler.__name__
-    run.__doc__ = handler.__doc__
-    return run
+    _plane_options(p)
+    p.add_argument("--out-dir", required=True, metavar="DIR",
+                   help="folder for the files (created if needed)")
+    p.set_defaults(handler=_survey)
 
 
 # -- turning arguments into library calls -------------------------------------------------------
 
 
-def _pairs(items, what: str) -> dict:
+def _quiet(args) -> bool:
+    return bool(getattr(args, "quiet", False))
+
+
+def _point(args) -> dict:
+    from .errors import ParameterError
+
     out = {}
-    for item in items:
-        name, sep, value = item.partition("=")
-        if not sep or not name.strip() or not value.strip():
-            raise ParameterError(f"{what} must be written NAME=VALUE, got {item!r}")
-        out[name.strip()] = value.strip()
+    for d in args.point:
+        for key, value in d.items():
+            if key in out:
+                raise ParameterError(f"--at: {key!r} is given twice")
+            out[key] = value
     return out
 
 
-def _split_top_level(text: str) -> list:
-    """Split at commas that are not inside parentheses."""
-    parts, depth, current = [], 0, []
-    for ch in text:
-        if ch == "," and depth == 0:
-            parts.append("".join(current))
-            current = []
-            continue
-        depth += (ch == "(") - (ch == ")")
-        current.append(ch)
-    parts.append("".join(current))
-    return [p for p in (x.strip() for x in parts) if p]
+def _analyse(args):
+    from .cli import analyse_from_args
 
-
-def _load(args):
-    """The model, the result and the parameter values named by ``args``."""
-    from .analysis import hopf
-    from .model import Model
-
-    if args.model == "-":
-        model = Model.from_text(sys.stdin.read(), source="<stdin>")
-    else:
-        model = Model.from_file(args.model)
-    equilibrium = None
-    if args.equilibrium:
-        equilibrium = _pairs(_split_top_level(args.equilibrium), "each equilibrium entry")
-    result = hopf(model, args.parameter, equilibrium=equilibrium, branch=args.branch)
-    return result, _pairs(args.values, "--set")
-
-
-def _write(path: str, text: str, force: bool) -> None:
-    from ._files import write_text_atomic
-
-    write_text_atomic(path, text, force=force)
+    return analyse_from_args(args), _point(args)
 
 
 def _validate(args, result, values):
+    from ._cli_support import Stage
     from .validation import validate
 
-    return validate(result, values, offsets=args.offsets, tolerance=args.tolerance,
-                    method=args.method, max_periods=args.max_periods)
+    with Stage("simulating the model near onset", quiet=_quiet(args)):
+        return validate(result, values, offsets=args.offsets, tolerance=args.tolerance,
+                        method=args.method, max_periods=args.max_periods)
+
+
+def _status(report) -> int:
+    return {"confirmed": 0, "not confirmed": EXIT_NOT_CONFIRMED}.get(report.verdict,
+                                                                    EXIT_INCONCLUSIVE)
 
 
 def _confirm(args) -> int:
     """``confirm``: the simulation check report."""
-    result, values = _load(args)
+    from ._cli_support import write_output
+
+    result, values = _analyse(args)
+    if args.amplitude_plot:
+        _refuse_existing(args.amplitude_plot, args.force)
     report = _validate(args, result, values)
     text = report.to_latex() if args.format == "latex" else str(report)
-    if args.output:
-        _write(args.output, text + "\n", args.force)
-    else:
-        print(text)
+    write_output(text + "\n", args.output, force=args.force)
     if args.amplitude_plot:
         from .plots import plot_amplitude, save_figure
 
         drawn = plot_amplitude(result, values, simulated=report)
         save_figure(drawn.figure, args.amplitude_plot, force=args.force)
-    return 0 if report.confirmed else EXIT_NOT_CONFIRMED
+    return _status(report)
 
 
 def _diagram(args, result, values):
+    from ._cli_support import Stage
     from .plots import plot_parameter_plane
 
     y = args.y or result.parameter
-    return plot_parameter_plane(
-        result, args.x, y, values=values, x_range=tuple(args.x_range),
-        y_range=tuple(args.y_range), stability=args.stability.replace("-", " "),
-        figsize=tuple(args.size), dpi=args.dpi, points=args.points)
-
-
-def _plane(args) -> int:
-    """``plane``: the parameter-plane diagram (and its CSV)."""
-    from .plots import save_figure, write_curve_csv
-
-    result, values = _load(args)
-    for path in filter(None, (args.output, args.csv)):
-        _refuse_existing(path, args.force)
-    drawn = _diagram(args, result, values)
-    save_figure(drawn.figure, args.output, force=args.force)
-    if args.csv:
-        write_curve_csv(drawn.curve, args.csv, force=args.force)
-    print(f"wrote {args.output}" + (f" and {args.csv}" if args.csv else ""))
-    return 0
+    with Stage("drawing the parameter plane", quiet=_quiet(args)):
+        return plot_parameter_plane(
+            result, args.x, y, values=values, x_range=tuple(args.x_range),
+            y_range=tuple(args.y_range), stability=args.stability.replace("-", " "),
+            figsize=tuple(args.size), dpi=args.dpi, points=args.points)
 
 
 def _refuse_existing(path, force):
@@ -239,15 +210,29 @@ def _refuse_existing(path, force):
     check_writable(path, force)
 
 
-_SURVEY_FILES = ("report.txt", "report.tex", "plane.png", "plane.svg", "curve.csv",
-                 "amplitude.png")
+def _plane(args) -> int:
+    """``plane``: the parameter-plane diagram (and its CSV)."""
+    from .plots import save_figure, write_curve_csv
+
+    result, values = _analyse(args)
+    for path in filter(None, (args.output, args.csv)):
+        _refuse_existing(path, args.force)
+    drawn = _diagram(args, result, values)
+    save_figure(drawn.figure, args.output, force=args.force)
+    if args.csv:
+        write_curve_csv(drawn.curve, args.csv, force=args.force)
+    if not _quiet(args):
+        print(f"criticality: wrote {args.output}" + (f" and {args.csv}" if args.csv else ""),
+              file=sys.stderr)
+    return 0
 
 
 def _survey(args) -> int:
     """``survey``: report and diagrams into one folder."""
+    from ._cli_support import write_output
     from .plots import plot_amplitude, save_figure, write_curve_csv
 
-    result, values = _load(args)
+    result, values = _analyse(args)
     os.makedirs(args.out_dir, exist_ok=True)
     paths = {name: os.path.join(args.out_dir, name) for name in _SURVEY_FILES}
     for path in paths.values():
@@ -257,19 +242,12 @@ def _survey(args) -> int:
     save_figure(drawn.figure, paths["plane.svg"], force=args.force)
     write_curve_csv(drawn.curve, paths["curve.csv"], force=args.force)
     report = _validate(args, result, values)
-    _write(paths["report.txt"], str(report) + "\n", args.force)
-    _write(paths["report.tex"], report.to_latex() + "\n", args.force)
+    write_output(str(report) + "\n", paths["report.txt"], force=args.force)
+    write_output(report.to_latex() + "\n", paths["report.tex"], force=args.force)
     amp = plot_amplitude(result, values, simulated=report)
     save_figure(amp.figure, paths["amplitude.png"], force=args.force)
     print(str(report))
-    print(f"\nwrote {', '.join(_SURVEY_FILES)} into {args.out_dir}")
-    return 0 if report.confirmed else EXIT_NOT_CONFIRMED
-
-
-def _standalone(argv=None) -> int:
-    """Run these subcommands without the main command (for tests and debugging)."""
-    parser = argparse.ArgumentParser(prog="criticality")
-    sub = parser.add_subparsers(dest="command", required=True)
-    register(sub)
-    args = parser.parse_args(argv)
-    return args.handler(args)
+    if not _quiet(args):
+        print(f"criticality: wrote {', '.join(_SURVEY_FILES)} into {args.out_dir}",
+              file=sys.stderr)
+    return _status(report)
