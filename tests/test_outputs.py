@@ -220,3 +220,18 @@ def test_split_complex_and_wrap():
     a = R("a")
     assert split_complex(a - sympy.I * a**2 / 3) == (a, -a**2 / 3)
     assert wrap_expression("a*(b + c) + d*(e + f) - g", 15) == ["a*(b + c)", "+ d*(e + f) - g"]
+
+
+def test_planar_conversion_factor_with_a_symbolic_frequency():
+    """For x' = mu x - w y - x^3, y' = w x + mu y the coefficient of
+    Guckenheimer and Holmes (1983, Section 3.4) is a = f_xxx/16 = -3/8
+    (common practice to evaluate, formula from the same source), and the
+    reported l1 = 2 a / omega = -3/(4 w): the factor 2/omega of
+    docs/conventions.md, checked with omega != 1."""
+    w = sympy.Symbol("w", real=True)
+    model = Model(["x", "y"], {"x": "mu*x - w*y - x^3", "y": "w*x + mu*y"},
+                  {"mu": "real", "w": "positive"})
+    result = hopf(model, "mu", equilibrium={"x": 0, "y": 0})
+    a_gh = sympy.Rational(1, 16) * sympy.diff(-R("x")**3, R("x"), 3)
+    assert result.planar_coefficient == a_gh == sympy.Rational(-3, 8)
+    assert sympy.simplify(result.l1 - 2 * a_gh / w) == 0

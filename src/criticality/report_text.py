@@ -57,10 +57,15 @@ def _paragraph(text: str, width: int, indent: str = "  ") -> list:
                          break_on_hyphens=False) or [indent]
 
 
-def _expr_lines(prefix: str, expr, width: int, indent: str = "    ") -> list:
+def _expr_lines(prefix: str, expr, width: int, indent: str = "    ", suffix: str = "") -> list:
     pieces = wrap_expression(model_text(expr), max(width - len(prefix) - len(indent), 20))
-    return [f"{indent}{prefix}{pieces[0]}"] + [f"{indent}{' ' * len(prefix)}  {p}"
-                                               for p in pieces[1:]]
+    lines = [f"{indent}{prefix}{pieces[0]}"] + [f"{indent}{' ' * len(prefix)}  {p}"
+                                                for p in pieces[1:]]
+    if suffix and len(lines[-1]) + len(suffix) + 1 <= width:
+        lines[-1] += " " + suffix
+    elif suffix:
+        lines.append(f"{indent}{suffix}")
+    return lines
 
 
 def _header(result, width: int) -> list:
@@ -87,12 +92,10 @@ def _verdict(result, width: int) -> list:
         rel = result.supercritical_where
         op = ">" if rel.rel_op == ">" else "<"
         out.append("  supercritical exactly where")
-        out += _expr_lines(f"", rel.lhs, width)
-        out.append(f"    {op} 0")
+        out += _expr_lines("", rel.lhs, width, suffix=f"{op} 0")
     if result.l1_zero_set is not None:
         out.append("  l1 = 0 (a degenerate, Bautin point) where")
-        out += _expr_lines("", result.l1_zero_set.lhs, width)
-        out.append("    = 0")
+        out += _expr_lines("", result.l1_zero_set.lhs, width, suffix="= 0")
     out += _paragraph(transversality_sentence(result), width)
     return out
 
@@ -102,8 +105,7 @@ def _conditions(result, width: int) -> list:
                      "proved -- the result is valid where it holds)", width, "")
     for c in result.conditions:
         out += _paragraph(f"[{_STATUS.get(c.status, c.status)}] {c.description}", width)
-        out += _expr_lines("", c.expr, width, "          ")
-        out.append(f"          {c.relation} 0")
+        out += _expr_lines("", c.expr, width, "          ", suffix=f"{c.relation} 0")
     return out
 
 
