@@ -252,6 +252,13 @@ def build_parser() -> argparse.ArgumentParser:
     parser.add_argument("--version", action="version", version=f"criticality {__version__}")
     _flags(parser)
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
+    _add_subcommands(sub)
+    _register_extensions(sub)
+    return parser
+
+
+def _add_subcommands(sub) -> None:
+    """The subcommands of this module."""
     p = _subcommand(sub, "analyse", _analyse, "terminal summary of the Hopf analysis",
                     "Analyse a model file and print a summary: a table of quantities, the "
                     "verdict in words, the conditions, the cycle, conventions and cautions.",
@@ -285,8 +292,6 @@ def build_parser() -> argparse.ArgumentParser:
                    help="also write the model, the LaTeX report and the JSON into DIR")
     p.add_argument("-f", "--force", action="store_true", help="overwrite files in DIR")
     p.add_argument("--digits", type=int, default=20, help="digits of the numeric evaluation")
-    _register_extensions(sub)
-    return parser
 
 
 # -- entry point -----------------------------------------------------------------------------

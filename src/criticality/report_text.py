@@ -40,10 +40,10 @@ def _rows(result) -> list:
     return rows
 
 
-def _table(rows, width: int) -> list:
+def _table(rows, width: int, heading: str = "closed form") -> list:
     """Label column plus wrapped expression column."""
     room = max(width - _LABEL - 2, 20)
-    out = [f"{'quantity'.ljust(_LABEL)}  closed form", f"{'-' * _LABEL}  {'-' * min(room, 40)}"]
+    out = [f"{'quantity'.ljust(_LABEL)}  {heading}", f"{'-' * _LABEL}  {'-' * min(room, 40)}"]
     for label, value in rows:
         text = value if isinstance(value, str) else model_text(value)
         pieces = wrap_expression(text, room)
@@ -153,7 +153,9 @@ def result_summary(result, width: int = DEFAULT_WIDTH) -> str:
     >>> [line for line in text.splitlines() if line.startswith("l1")]
     ['l1 = Re(c1)/omega           -1/4']
     """
-    sections = [_header(result, width), _table(_rows(result), width),
+    sections = [_header(result, width), _table(_rows(result), width,
+                                                   "closed form" if result.status == "closed form"
+                                                   else result.status),
                 ["Classification: " + result.classification], _verdict(result, width),
                 _conditions(result, width), _cycle(result, width)]
     if result.notes:
