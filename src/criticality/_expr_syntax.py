@@ -23,7 +23,7 @@ from .errors import ExpressionLimitError, ExpressionSyntaxError, ForbiddenExpres
 __all__ = [
     "FUNCTIONS", "NOT_ANALYTIC", "RESERVED_NAMES", "EXPRESSION_KEYWORDS", "MAX_TEXT_LENGTH",
     "MAX_DEPTH", "MAX_NODES", "MAX_LITERAL_DIGITS", "MAX_EXPONENT", "MAX_NAME_LENGTH",
-    "name_problem",
+    "MAX_NESTING", "MAX_TRANSCENDENTAL", "name_problem",
 ]
 
 MAX_TEXT_LENGTH = 20_000      #: characters in one expression
@@ -32,6 +32,8 @@ MAX_NODES = 20_000            #: syntax-tree nodes in one expression
 MAX_LITERAL_DIGITS = 1_000    #: characters in one number literal
 MAX_EXPONENT = 1_000          #: largest |exponent| of a power with a numeric exponent
 MAX_NAME_LENGTH = 100         #: characters in one name
+MAX_NESTING = 6               #: functions and non-integer powers inside one another
+MAX_TRANSCENDENTAL = 200      #: function calls and non-integer powers in one expression
 _MAX_DECIMAL_EXPONENT = 400   # |e| in a literal such as 1e-400
 _MAX_POWER_BITS = 20_000      # size of the exact result of one numeric power
 _MAX_TOTAL_POWER_BITS = 200_000

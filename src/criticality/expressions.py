@@ -38,6 +38,12 @@ Grammar
   await yield`` may not.
 * Only ASCII is accepted; the error for a look-alike character (a Unicode
   minus, a Greek letter, a superscript) names the ASCII spelling to use.
+* sympy evaluates each operation as usual (``sin(-x)`` is ``-sin(x)``,
+  ``sqrt(4*x)`` is ``2*sqrt(x)``), except that a function of a function or of
+  a non-integer power is kept as written: sympy's rewriting of such
+  compositions (``cosh(asinh(x))`` to ``sqrt(x**2 + 1)``) queries its
+  assumption system at a cost that grows steeply with depth.  ``sqrt(x^2)``,
+  which sympy makes ``Abs(x)`` for real ``x``, is refused as not analytic.
 * Refused: attributes, subscripts, calls of anything but the functions above,
   keyword or star arguments, lambdas, comprehensions, conditionals,
   comparisons, boolean operators, strings, complex literals, several
@@ -54,7 +60,8 @@ from typing import Callable, Mapping
 import sympy
 
 from ._expr_syntax import (EXPRESSION_KEYWORDS, FUNCTIONS, MAX_DEPTH, MAX_EXPONENT,
-                           MAX_LITERAL_DIGITS, MAX_NAME_LENGTH, MAX_NODES, MAX_TEXT_LENGTH,
+                           MAX_LITERAL_DIGITS, MAX_NAME_LENGTH, MAX_NESTING, MAX_NODES,
+                           MAX_TEXT_LENGTH, MAX_TRANSCENDENTAL,
                            NOT_ANALYTIC, RESERVED_NAMES, _DECIMAL, _FLOAT_RANGE, _KW_PREFIX,
                            _MAX_DECIMAL_EXPONENT, _MAX_POWER_BITS, _MAX_ROOT_BITS,
                            _MAX_TOTAL_POWER_BITS, _NOT_FINITE, _Chunk, _decimal_to_rational,
@@ -68,7 +75,7 @@ __all__ = [
     "parse_expression", "format_expression", "convert_sympy", "name_problem",
     "FUNCTIONS", "NOT_ANALYTIC", "RESERVED_NAMES", "EXPRESSION_KEYWORDS",
     "MAX_TEXT_LENGTH", "MAX_DEPTH", "MAX_NODES", "MAX_LITERAL_DIGITS", "MAX_EXPONENT",
-    "MAX_NAME_LENGTH",
+    "MAX_NAME_LENGTH", "MAX_NESTING", "MAX_TRANSCENDENTAL",
 ]
 
 _REFUSED_NODES = {
@@ -104,6 +111,8 @@ class _Builder:
         self.where, self.symbols, self.on_unknown, self.exact = where, symbols, on_unknown, exact
         self.power_budget = _MAX_TOTAL_POWER_BITS
         self.floats = False
+        self.level = 0          # functions and non-integer powers around the current node
+        self.transcendental = 0
         self.chunk: _Chunk | None = None
 
     def error(self, cls, message: str, node, **kw):
@@ -221,8 +230,15 @@ class _Builder:
             product = sympy.Mul(*self.chain(node, (ast.Mult, ast.Div), depth, parent, first))
             return -product if negative else product
         if op is ast.Pow:
-            base = self.build(node.left, depth + 1)
-            exponent = self.build(node.right, depth + 1)
+            if _integer_literal(node.right):
+                base = self.build(node.left, depth + 1)
+                return self.power(base, self.build(node.right, depth + 1), node)
+            self.enter(node)
+            try:
+                base = self.build(node.left, depth + 1)
+                exponent = self.build(node.right, depth + 1)
+            finally:
+                self.level -= 1
             return self.power(base, exponent, node)
         raise self.error(ForbiddenExpressionError, f"the operator {_OPERATORS.get(op, op.__name__)!r}"
                          f" in {self.piece(node)} is not allowed", node)
@@ -242,7 +258,7 @@ class _Builder:
             if isinstance(op, ast.Sub):
                 value = -value
             elif isinstance(op, ast.Div):
-                if value.is_zero:
+                if _is_zero(value):
                     raise self.error(ForbiddenExpressionError,
                                      f"division by zero: {self.piece(operand)} is 0", operand)
                 value = sympy.Pow(value, -1)
@@ -250,12 +266,13 @@ class _Builder:
         return operands
 
     def power(self, base, exponent, node):
-        if base.is_zero and exponent.is_extended_negative:
+        if _is_zero(base) and exponent.is_number and exponent.is_extended_negative:
             raise self.error(ForbiddenExpressionError,
                              f"division by zero: {self.piece(node)} is a negative power of 0", node)
         if exponent.is_Number:
             self.check_numeric_power(base, exponent, node)
-        return self.check_value(sympy.Pow(base, exponent), node)
+        evaluate = exponent.is_Integer or not _composed(base)
+        return self.check_value(sympy.Pow(base, exponent, evaluate=evaluate), node)
 
     def check_numeric_power(self, base, exponent, node) -> None:
         trivial = base in (sympy.S.Zero, sympy.S.One, sympy.S.NegativeOne)
@@ -274,14 +291,35 @@ class _Builder:
             raise self.error(ExpressionLimitError, f"the value of {self.piece(node)} would have "
                              f"about {int(size * 0.30103)} digits, beyond the limit", node)
 
+    def enter(self, node) -> None:
+        """Count a function call or non-integer power around the nodes built next.
+
+        sympy's automatic rewriting and assumption queries on such nested
+        constructs cost time that grows steeply with their nesting."""
+        self.level += 1
+        self.transcendental += 1
+        if self.level > MAX_NESTING:
+            self.level -= 1
+            raise self.error(ExpressionLimitError, f"functions and non-integer powers are nested "
+                             f"more than {MAX_NESTING} deep in {self.piece(node)}", node)
+        if self.transcendental > MAX_TRANSCENDENTAL:
+            self.level -= 1
+            raise self.error(ExpressionLimitError, f"more than {MAX_TRANSCENDENTAL} function "
+                             "calls and non-integer powers in one expression", node)
+
     def call(self, node, depth):
         name = self.function_name(node)
-        argument = self.build(node.args[0], depth + 1)
+        self.enter(node)
+        try:
+            argument = self.build(node.args[0], depth + 1)
+        finally:
+            self.level -= 1
         if self.floats:
             self.check_floats(argument, node)
         if name == "sqrt":
             return self.power(argument, sympy.Rational(1, 2), node)
-        return self.check_value(FUNCTIONS[name](argument), node)
+        value = FUNCTIONS[name](argument, evaluate=not _composed(argument))
+        return self.check_value(value, node)
 
     def function_name(self, node) -> str:
         func = node.func
@@ -339,6 +377,32 @@ class _Builder:
             if not abs(number) <= _FLOAT_RANGE:
                 raise self.error(ExpressionLimitError, f"{self.piece(node)} leaves the range of "
                                  "floating-point numbers (1e308)", node)
+
+
+def _integer_literal(node) -> bool:
+    """Whether an exponent is written as an integer, such as 2 or -3."""
+    while isinstance(node, ast.UnaryOp) and isinstance(node.op, (ast.USub, ast.UAdd)):
+        node = node.operand
+    return isinstance(node, ast.Constant) and type(node.value) is int
+
+
+def _is_zero(value: sympy.Expr) -> bool:
+    """Whether a value is 0, without asking sympy's assumptions about symbols."""
+    return bool(value.is_zero) if value.is_number else value == 0
+
+
+def _composed(argument: sympy.Expr) -> bool:
+    """Whether an argument holds a function or a fractional power of symbols.
+
+    Such compositions are built unevaluated: sympy's rewriting of them
+    (cosh(asinh(x)) -> sqrt(x**2 + 1), log(exp(x)) -> x, ...) asks its
+    assumption system questions whose cost grows steeply with the depth of
+    the composition, seconds for a few levels.
+    """
+    if argument.is_number:
+        return False
+    return any(isinstance(part, sympy.Function) or part.is_Pow and not part.exp.is_Integer
+               for part in sympy.preorder_traversal(argument))
 
 
 _METHODS: dict[type, Callable] = {
