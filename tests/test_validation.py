@@ -138,8 +138,29 @@ def test_lorenz_unstable_cycle_by_shooting():
     for m in rep.measurements:
         assert m.measured and m.worst_amplitude_error < 1e-2
         assert abs(m.corrected_period_error) < 1e-5
+        # the cycle repels radially with multiplier exp(2 |beta'(r_c) (r - r_c)| T)
+        assert m.floquet > 1 and abs(m.floquet_error) < 2e-2
     assert all(0.8 < o < 1.3 for o in rep.orders)
     assert rep.confirmed, str(rep)
+
+
+@pytest.mark.slow
+def test_long_transient_falls_back_to_shooting():
+    """The lagged spring-mass example (invented, examples/lagged_oscillator.toml)
+    has a weak nonlinearity: its transients would take thousands of periods, so
+    the cycle is located by shooting; the Floquet multipliers show that it
+    attracts, with the predicted radial multiplier exp(-2 beta' (g - g_c) T)."""
+    from pathlib import Path
+
+    path = Path(__file__).resolve().parents[1] / "examples" / "lagged_oscillator.toml"
+    if not path.exists():
+        pytest.skip("the example model files are not in this checkout")
+    rep = validate(hopf(Model.from_file(path)))
+    assert rep.confirmed, str(rep)
+    assert any("shooting instead" in w for w in rep.warnings)
+    for m in rep.measurements:
+        assert m.approach == "shooting" and m.floquet < 1
+        assert abs(m.floquet_error) < 2e-2 and m.worst_amplitude_error < 1.5e-2
 
 
 def _saddle_model():

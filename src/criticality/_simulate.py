@@ -196,7 +196,9 @@ class RunOutcome:
 
     ``status`` is ``"measured"``, ``"escaped"`` (the orbit left the
     neighbourhood), ``"decayed"`` (it fell onto the equilibrium) or
-    ``"undecided"``; amplitudes and period are set when measured.
+    ``"undecided"``; amplitudes and period are set when measured;
+    ``multiplier`` (shooting only) is the largest modulus of the nontrivial
+    Floquet multipliers.
     """
 
     status: str
@@ -204,6 +206,7 @@ class RunOutcome:
     amplitudes: Mapping[str, float] | None = None
     period: float | None = None
     residual: float | None = None
+    multiplier: float | None = None
 
 
 def _solve(ivp, fun, jac, span, y0, method, rtol, atol, **extra):
@@ -313,9 +316,9 @@ def _newton_step(setup, frame, y, period, rtol, np, ivp):
     system[n, :n] = phase
     residual = np.append(end - y, phase @ (y - frame.x0))
     try:
-        return np.linalg.solve(system, -residual)
+        return np.linalg.solve(system, -residual), mono
     except np.linalg.LinAlgError:
-        return None
+        return None, mono
 
 
 def shoot_cycle(setup: Setup, frame: LocalFrame, radius: float, period: float, *, rtol: float,
@@ -332,9 +335,9 @@ def shoot_cycle(setup: Setup, frame: LocalFrame, radius: float, period: float, *
     """
     y, T = frame.start(np, radius), float(period)
     tight = max(rtol * 1e-2, 1e-13)
-    step = None
+    step = mono = None
     for _ in range(iterations):
-        step = _newton_step(setup, frame, y, T, tight, np, ivp)
+        step, mono = _newton_step(setup, frame, y, T, tight, np, ivp)
         if step is None or not np.all(np.isfinite(step)):
             return RunOutcome("undecided", T)
         size = float(np.linalg.norm(step[:-1]))
@@ -352,7 +355,16 @@ def shoot_cycle(setup: Setup, frame: LocalFrame, radius: float, period: float, *
                  tight * 1e-2 * radius, events=_extrema_events(setup, mu), dense_output=True)
     out = _measurements(setup, sol, np, 0.0, 1.25 * T, radius, frame, least=2)
     return RunOutcome(out.status, T, out.amplitudes, T if out.amplitudes else None,
-                      float(np.linalg.norm(step[:-1])) / radius)
+                      float(np.linalg.norm(step[:-1])) / radius, _largest_multiplier(np, mono))
+
+
+def _largest_multiplier(np, mono) -> float | None:
+    """The largest modulus of the Floquet multipliers other than the trivial 1."""
+    if mono is None or not np.all(np.isfinite(mono)):
+        return None
+    values = np.linalg.eigvals(mono)
+    rest = np.delete(values, int(np.argmin(np.abs(values - 1.0))))
+    return float(np.max(np.abs(rest))) if rest.size else None
 
 
 def bracket(setup: Setup, frame: LocalFrame, radius: float, factor: float, *, horizon: float,

@@ -202,7 +202,9 @@ def validate(result, values: Mapping | None = None, *, offsets: Sequence[float] 
         parameter=result.parameter, values=setup.values, critical_value=setup.mu_c,
         omega=setup.omega, l1=setup.l1,
         classification="supercritical" if setup.l1 < 0 else "subcritical",
-        side="above" if sign > 0 else "below", states=setup.states, measurements=measurements,
+        side="above" if sign > 0 else "below",
+        predicted_stable=setup.l1 < 0 and all(e.real < 0 for e in setup.others),
+        states=setup.states, measurements=measurements,
         brackets=brackets, orders=orders, verdict=verdict, reasons=reasons,
         warnings=tuple(notes) + warnings, tolerance=tolerance, method=how, rtol=rtol,
         elapsed=time.perf_counter() - started)
@@ -236,19 +238,19 @@ def _measure(setup, offset, approach, window_periods, max_periods, notes, opts):
                      "range where the local prediction can hold")
     radius = math.sqrt(setup.radius_coefficient * abs(offset))
     period0 = 2 * math.pi / setup.omega
+    window = window_periods * period0
+    settle = settle_time(setup, offset)
+    if approach != "shooting" and settle > max_periods * period0 - window:
+        notes.append(f"at offset {offset:+.4g} the transient would take about "
+                     f"{settle / period0:.0f} periods (more than max_periods = {max_periods}): "
+                     "the cycle was located by shooting instead")
+        approach = "shooting"
     if approach == "shooting":
         guess = 2 * math.pi / (setup.omega + (setup.slope * offset if math.isfinite(
             setup.slope) else 0.0))
         run = shoot_cycle(setup, frame, radius, guess, rtol=opts["rtol"], np=np,
                           ivp=opts["ivp"])
         return _measurement(setup, offset, mu, approach, run, 0.0, run.time)
-    window = window_periods * period0
-    settle = settle_time(setup, offset)
-    cap = max_periods * period0 - window
-    if settle > cap:
-        notes.append(f"at offset {offset:+.4g} the transient was cut at {max_periods} periods "
-                     f"(it needs about {settle / period0:.0f}); raise max_periods or the offset")
-        settle = cap
     run = measure_cycle(setup, frame, radius, direction=1 if approach == "forward" else -1,
                         transient=settle, window=window, **opts)
     return _measurement(setup, offset, mu, approach, run, settle, window)
@@ -270,7 +272,21 @@ def _measurement(setup, offset, mu, approach, run, settle, window) -> CycleMeasu
         amplitude_errors=errors, predicted_period=p0, corrected_period=p1, measured_period=got,
         period_error=None if got is None else got / p0 - 1,
         corrected_period_error=None if got is None else got / p1 - 1,
-        settle_time=settle, window=window, drift=run.residual)
+        settle_time=settle, window=window, drift=run.residual, floquet=run.multiplier,
+        **_floquet_prediction(setup, offset, got, run.multiplier))
+
+
+def _floquet_prediction(setup, offset, period, multiplier) -> dict:
+    """The largest nontrivial Floquet multiplier the local prediction gives, and the
+    relative error of the measured one in the exponent."""
+    if multiplier is None or period is None:
+        return {}
+    exponents = [-2.0 * setup.beta1 * offset] + [e.real for e in setup.others]
+    predicted = math.exp(max(exponents) * period)
+    if predicted == 1.0 or multiplier <= 0:
+        return {"predicted_floquet": predicted}
+    return {"predicted_floquet": predicted,
+            "floquet_error": math.log(multiplier) / math.log(predicted) - 1}
 
 
 def _bracket(setup, offset, direction, factors, max_periods, opts) -> BracketOutcome:
@@ -313,6 +329,8 @@ def _judge(setup, measurements, brackets, tolerance):
                      "reach it")
     if measurements:
         _judge_measurements(measurements, orders, tolerance, fails, reasons, warnings)
+        _judge_floquet(measurements, setup.l1 < 0 and all(e.real < 0 for e in setup.others),
+                       tolerance, fails, reasons)
     if brackets:
         _judge_brackets(brackets, fails, opens, reasons)
     if fails:
@@ -356,6 +374,29 @@ def _judge_measurements(ms, orders, tolerance, fails, reasons, warnings):
         if m.drift is not None and m.drift > max(ERROR_FLOOR, 0.1 * e):
             warnings.append(f"at offset {m.offset:+.4g} the amplitude still drifts by "
                             f"{m.drift:.1e} within the measurement window (transient not settled)")
+
+
+def _judge_floquet(ms, predicted_stable, tolerance, fails, reasons):
+    """Compare the stability shooting finds (Floquet multipliers) with the prediction."""
+    found = [m for m in ms if m.measured and m.floquet is not None]
+    last = found[-1] if found else None
+    if last is not None and last.floquet_error is not None and abs(
+            last.floquet_error) > tolerance:
+        fails.append(f"the largest Floquet multiplier at offset {last.offset:+.4g} differs from "
+                     f"the prediction by {last.floquet_error:+.2e} in the exponent (tolerance "
+                     f"{tolerance:g})")
+    wrong = [m for m in found if (m.floquet < 1) != predicted_stable]
+    want = "attract (all nontrivial |multipliers| < 1)" if predicted_stable else \
+        "repel in some direction (a nontrivial |multiplier| > 1)"
+    for m in wrong:
+        fails.append(f"at offset {m.offset:+.4g} the Floquet multipliers of the cycle found by "
+                     f"shooting (largest modulus {m.floquet:.6g}) contradict the prediction that "
+                     f"it should {want}")
+    if found and not wrong:
+        errs = [abs(m.floquet_error) for m in found if m.floquet_error is not None]
+        detail = f" (largest modulus within {max(errs):.1e} in the exponent)" if errs else ""
+        reasons.append(f"the Floquet multipliers of the cycles found by shooting confirm that "
+                       f"they {want}{detail}")
 
 
 def _judge_shrinking(ms, orders, fails, reasons):

@@ -63,6 +63,16 @@ class CycleMeasurement:
         Relative change of the amplitude between the two halves of the
         window (what is left of the transient); for shooting, the size of
         the last Newton step relative to the radius.
+    floquet : float or None
+        Shooting only: the largest modulus of the nontrivial Floquet
+        multipliers (below 1: the cycle attracts; above 1: it repels in some
+        direction).
+    predicted_floquet : float or None
+        Its prediction: the larger of the radial multiplier
+        ``exp(-2 Re(dlambda/dmu) (mu - mu_c) T)`` and ``exp(Re(lambda_k) T)``
+        for the other eigenvalues, with the measured period ``T``.
+    floquet_error : float or None
+        ``log(floquet) / log(predicted_floquet) - 1``.
     """
 
     offset: float
@@ -80,6 +90,9 @@ class CycleMeasurement:
     settle_time: float
     window: float
     drift: float | None
+    floquet: float | None = None
+    predicted_floquet: float | None = None
+    floquet_error: float | None = None
 
     @property
     def measured(self) -> bool:
@@ -147,6 +160,9 @@ class ValidationReport:
         ``"supercritical"`` or ``"subcritical"`` (from the sign of l1 there).
     side : str
         ``"above"`` or ``"below"``: where the predicted cycle exists.
+    predicted_stable : bool
+        Whether the predicted cycle attracts (l1 < 0 and the other
+        eigenvalues stable).
     states : tuple of str
     measurements : tuple of CycleMeasurement
         One per offset (empty when the cycle cannot be reached by
@@ -180,6 +196,7 @@ class ValidationReport:
     l1: float
     classification: str
     side: str
+    predicted_stable: bool
     states: tuple
     measurements: tuple
     brackets: tuple
@@ -243,6 +260,9 @@ def _rows(r: ValidationReport) -> list:
             off = ""
         rows.append(("", "period", _g(m.corrected_period, 8), _g(m.measured_period, 8),
                      _e(m.corrected_period_error)))
+        if m.floquet is not None:
+            rows.append(("", "max |Floquet|", _g(m.predicted_floquet, 8), _g(m.floquet, 8),
+                         _e(m.floquet_error)))
     return rows
 
 
@@ -322,6 +342,11 @@ def _latex_measurements(r: ValidationReport, p: str) -> list:
         cells = (_tex_num(m.corrected_period, 8), _tex_num(m.measured_period, 8),
                  _tex_err(m.corrected_period_error))
         lines.append(" & period & " + " & ".join(f"${c}$" for c in cells) + " \\\\")
+        if m.floquet is not None:
+            cells = (_tex_num(m.predicted_floquet, 8), _tex_num(m.floquet, 8),
+                     _tex_err(m.floquet_error))
+            lines.append(" & $\\max|\\rho_k|$ & " + " & ".join(f"${c}$" for c in cells)
+                         + " \\\\")
     return lines + ["\\hline", "\\end{tabular}", ""]
 
 
