@@ -399,6 +399,7 @@ def test_toml_floats_are_read_exactly():
           {"beta": {"assume": "positive", "value": "2.5e-3", "description": "contact rate"},
            "lambda": "nonnegative"}),
     Model(["u"], {"u": sympy.sqrt(2) * R("u") - sympy.pi * R("u")**3 + sympy.E}),
+    Model(["u", "v"], {"u": "log(1 + exp(k*v)) - u", "v": "tanh(sqrt(1 + u^2)) - v^(3/2)"}),
     toy().with_values(b="1/3"),
 ])
 def test_to_toml_round_trip(model):

@@ -160,7 +160,8 @@ def _refusal(node) -> str:
     if isinstance(node, sympy.NumberSymbol):
         return f"the constant {kind} is not allowed; write its value (only pi and exp(1) are known)"
     if isinstance(node, sympy.Function):
-        return f"the function {kind} in {_short(node)} is not allowed (allowed: {', '.join(FUNCTIONS)})"
+        return (f"the function {kind} in {_short(node)} is not allowed "
+                f"(allowed: {', '.join(FUNCTIONS)})")
     return f"{_short(node)} ({kind}) is not allowed in a model expression"
 
 
@@ -223,7 +224,8 @@ def _text(e) -> tuple[str, int]:
     if type(e) in _FUNCTION_CLASSES and len(e.args) == 1:
         return f"{_FUNCTION_NAMES[type(e)]}({_text(e.args[0])[0]})", _ATOM
     if e is sympy.I:
-        raise ForbiddenExpressionError("cannot write the imaginary unit I: model expressions are real")
+        raise ForbiddenExpressionError("cannot write the imaginary unit I: "
+                                       "model expressions are real")
     raise ForbiddenExpressionError("cannot write " + _refusal(e).replace(" is not allowed", ""))
 
 

@@ -184,7 +184,8 @@ def _refuse_character(where: _Where, ch: str, i: int):
         hint = unicodedata.normalize("NFKC", ch)
     advice = f"; write {hint!r} instead" if hint else "; only ASCII characters are allowed"
     return where.error(ExpressionSyntaxError,
-                       f"the character {ch!r} ({code} {uname or 'unnamed'}) is not ASCII{advice}", i)
+                       f"the character {ch!r} ({code} {uname or 'unnamed'}) is not ASCII"
+                       f"{advice}", i)
 
 
 def _scan(text: str, where: _Where) -> list[tuple[str, int, int, str]]:
@@ -305,8 +306,9 @@ def _parse_chunk(chunk: _Chunk, where: _Where) -> ast.expr:
         detail = "" if exc.msg == "invalid syntax" else f": {exc.msg}"
         raise where.error(ExpressionSyntaxError, f"invalid syntax{detail}", start) from None
     except (RecursionError, MemoryError, ValueError, OverflowError) as exc:
-        raise where.error(ExpressionLimitError, "the expression is too long or nested too "
-                          f"deeply for the parser ({type(exc).__name__})", chunk.starts[0]) from None
+        message = ("the expression is too long or nested too deeply for the parser "
+                   f"({type(exc).__name__})")
+        raise where.error(ExpressionLimitError, message, chunk.starts[0]) from None
     return tree.body
 
 

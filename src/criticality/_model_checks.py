@@ -324,7 +324,8 @@ class _Assembler:
                   "description": self.text("description", description)}
         state_names = self.states(states)
         declared = self.clashes(state_names, self.parameters(parameters))
-        symbols = {n: sympy.Symbol(n, real=True) for n in [*state_names, *(p.name for p in declared)]}
+        names = [*state_names, *(p.name for p in declared)]
+        symbols = {n: sympy.Symbol(n, real=True) for n in names}
         rhs, unknown = self.equations(equations, state_names, symbols)
         unknown = {n: c for n, c in unknown.items() if n not in self.bad_names}
         extra = self.undeclared(unknown, list(symbols))

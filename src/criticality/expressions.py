@@ -104,6 +104,7 @@ _REFUSED_NODES = {
 _OPERATORS = {ast.Mod: "%", ast.FloorDiv: "//", ast.MatMult: "@", ast.LShift: "<<",
               ast.RShift: ">>", ast.BitOr: "|", ast.BitAnd: "&", ast.BitXor: "^"}
 
+
 class _Builder:
     """Walks a checked syntax tree and builds the sympy expression."""
 
@@ -160,9 +161,10 @@ class _Builder:
         literal = self.chunk.code[node.col_offset:node.end_col_offset].replace("_", "")
         match = _DECIMAL.fullmatch(literal)
         if match is None:
-            raise self.error(ExpressionSyntaxError, f"{self.piece(node)} is not a decimal number", node)
+            raise self.error(ExpressionSyntaxError,
+                             f"{self.piece(node)} is not a decimal number", node)
         intpart, frac, exp = match.group(1), match.group(2) or "", match.group(3)
-        if abs(int(exp or 0)) > _MAX_DECIMAL_EXPONENT or node.value in (float("inf"),):
+        if abs(int(exp or 0)) > _MAX_DECIMAL_EXPONENT or node.value == float("inf"):
             raise self.error(ExpressionLimitError, f"the number {self.piece(node)} is out of "
                              f"range (decimal exponents are limited to +-{_MAX_DECIMAL_EXPONENT} "
                              "and values to 1e308)", node)
@@ -206,8 +208,8 @@ class _Builder:
                 negative = not negative
             elif not isinstance(node.op, ast.UAdd):
                 word = "not" if isinstance(node.op, ast.Not) else "~"
-                raise self.error(ForbiddenExpressionError,
-                                 f"the operator {word!r} in {self.piece(node)} is not allowed", node)
+                raise self.error(ForbiddenExpressionError, f"the operator {word!r} in "
+                                 f"{self.piece(node)} is not allowed", node)
             node = node.operand
         value = self.build(node, depth + 1)
         return -value if negative else value
@@ -220,14 +222,15 @@ class _Builder:
             # Python reads -a*b as (-a)*b; sympy's -(a*b) keeps a sum a unexpanded,
             # so take the sign of the first factor off the whole product.
             negative = False
-            first = node
-            while isinstance(first, ast.BinOp) and isinstance(first.op, (ast.Mult, ast.Div)):
-                first = first.left
-            parent = first
-            while isinstance(first, ast.UnaryOp) and isinstance(first.op, (ast.USub, ast.UAdd)):
-                negative ^= isinstance(first.op, ast.USub)
-                first = first.operand
-            product = sympy.Mul(*self.chain(node, (ast.Mult, ast.Div), depth, parent, first))
+            leftmost = node
+            while isinstance(leftmost, ast.BinOp) and isinstance(leftmost.op, (ast.Mult, ast.Div)):
+                leftmost = leftmost.left
+            unsigned = leftmost
+            while isinstance(unsigned, ast.UnaryOp) and isinstance(unsigned.op,
+                                                                   (ast.USub, ast.UAdd)):
+                negative ^= isinstance(unsigned.op, ast.USub)
+                unsigned = unsigned.operand
+            product = sympy.Mul(*self.chain(node, (ast.Mult, ast.Div), depth, leftmost, unsigned))
             return -product if negative else product
         if op is ast.Pow:
             if _integer_literal(node.right):
@@ -240,8 +243,9 @@ class _Builder:
             finally:
                 self.level -= 1
             return self.power(base, exponent, node)
-        raise self.error(ForbiddenExpressionError, f"the operator {_OPERATORS.get(op, op.__name__)!r}"
-                         f" in {self.piece(node)} is not allowed", node)
+        symbol = _OPERATORS.get(op, op.__name__)
+        raise self.error(ForbiddenExpressionError, f"the operator {symbol!r} in "
+                         f"{self.piece(node)} is not allowed", node)
 
     def chain(self, node, ops, depth, replace=None, by=None) -> list:
         """Operands of a left-associated run of + and - (or * and /), built in
@@ -251,7 +255,7 @@ class _Builder:
         while isinstance(node, ast.BinOp) and isinstance(node.op, ops):
             items.append((node.op, node.right))
             node = node.left
-        items.append((None, by if node is replace and by is not None else node))
+        items.append((None, by if node is replace else node))
         operands = []
         for op, operand in reversed(items):
             value = self.build(operand, depth + 1)
@@ -339,7 +343,8 @@ class _Builder:
             raise self.error(ForbiddenExpressionError,
                              f"star arguments are not allowed in {self.piece(node)}", node)
         if len(node.args) != 1:
-            hint = "; for a logarithm to base b write log(x)/log(b)" if name in ("log", "ln") else ""
+            hint = ("; for a logarithm to base b write log(x)/log(b)"
+                    if name in ("log", "ln") else "")
             raise self.error(ExpressionSyntaxError, f"{name} takes exactly one argument "
                              f"({len(node.args)} given){hint}", node)
         return name
