@@ -115,6 +115,12 @@ def test_numeric_section_matches_mpmath():
         for key in ("critical_value", "omega", "l1", "transversality"):
             exact = mpmath.mpf(sympy.N(back[key].xreplace(values), 50))
             assert abs(mpmath.mpf(numeric[key]) - exact) <= abs(exact) * mpmath.mpf(10) ** -38
+        for part in ("re", "im"):
+            exact = mpmath.mpf(sympy.N(back[f"c1.{part}"].xreplace(values), 50))
+            assert abs(mpmath.mpf(numeric["c1"][part]) - exact) <= abs(exact) * 1e-38
+        # the real eigenvalue is -(sigma + b + 1) = -41/3 (trace of the Jacobian)
+        real = [e for e in numeric["eigenvalues"] if abs(mpmath.mpf(e["im"])) < 1e-20]
+        assert abs(mpmath.mpf(real[0]["re"]) + mpmath.mpf(41) / 3) < mpmath.mpf(10) ** -35
     # the critical value of this system is sigma (sigma + b + 3) / (sigma - b - 1)
     # (Guckenheimer and Holmes 1983, Section 2.3, for the convection model; from memory)
     assert mpmath.almosteq(mpmath.mpf(numeric["critical_value"]), mpmath.mpf(470) / 19, 1e-35)

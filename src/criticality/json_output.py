@@ -101,6 +101,11 @@ def _number(value, digits: int):
 
 def _numeric(result, point: Mapping, digits: int) -> dict:
     num = result.evaluate(dict(point), digits=digits)
+    with mpmath.workdps(digits + 10):  # mpc() rounds to the working precision
+        return _numeric_fields(num, digits)
+
+
+def _numeric_fields(num, digits: int) -> dict:
     n = lambda v: _number(v, digits)  # noqa: E731
     return {
         "point": {k: _expr(v) for k, v in num.values.items()},
