@@ -82,20 +82,25 @@ def hopf(model, parameter: str | None = None, *, equilibrium=None, eliminate=Non
         from .numeric_mode import hopf_numeric
         return hopf_numeric(model, parameter or model.bifurcation_parameter, guess,
                             digits=digits, order=order, values=values)
-    results = hopf_all(model, parameter, equilibrium=equilibrium, eliminate=eliminate,
-                       order=order, values=values, assume=assume, backend=backend)
-    index = 0 if branch is None else branch
-    if not 0 <= index < len(results):
-        raise ParameterError(f"branch {index} does not exist: the critical set has "
-                             f"{len(results)} closed-form branch(es)")
-    return results[index]
+    return _analyse(model, parameter, equilibrium, eliminate, order, values, assume, backend,
+                    select=0 if branch is None else branch)[0]
 
 
 def hopf_all(model, parameter: str | None = None, *, equilibrium=None, eliminate=None,
              order: int = 3, values: Mapping | None = None, assume: Mapping | None = None,
              backend: str = "flint") -> tuple:
     """Like :func:`hopf`, returning one :class:`HopfResult` per branch of the
-    critical set (in the order the factors of the Hurwitz determinant come)."""
+    critical set.
+
+    Branches are ordered: those whose critical value needs no new square root
+    first, then in the order of the factors of the pair condition; ``hopf``
+    returns branch 0 unless asked for another.
+    """
+    return _analyse(model, parameter, equilibrium, eliminate, order, values, assume, backend,
+                    select=None)
+
+
+def _analyse(model, parameter, equilibrium, eliminate, order, values, assume, backend, select):
     if order < 3 or order % 2 == 0:
         raise ParameterError(f"order must be an odd integer >= 3 (3 gives l1, 5 gives l2); "
                              f"got {order}")
@@ -122,24 +127,15 @@ def hopf_all(model, parameter: str | None = None, *, equilibrium=None, eliminate
                                reason="parameter_absent")
     problem = Problem(eqs, tuple(model.state_symbols), params, mu, choice.point, order, backend,
                       tuple(model.states), assumptions)
-    out = run_engine(problem)
-    results, rejected = [], []
-    for bc in out.branches:
-        r = build_result(model, name, mu, choice, out, bc, assumptions, params)
-        (rejected if r is None else results).append(r)
-    if not results:
+    out = run_engine(problem, select=select)
+    results = [build_result(model, name, mu, choice, out, bc, assumptions, params)
+               for bc in out.branches]
+    if any(r is None for r in results):
         raise NoHopfPointError(
-            "on every branch of the critical set omega^2 <= 0 under the declared assumptions: "
-            "where two eigenvalues sum to zero they are a real pair +-kappa (a neutral saddle), "
-            "not a pair crossing the imaginary axis", reason="omega_squared_nonpositive")
-    count = len(results)
-    return tuple(_renumber(r, i, count) for i, r in enumerate(results))
-
-
-def _renumber(result, index, count):
-    from dataclasses import replace
-
-    return replace(result, branch_index=index, branch_count=count)
+            "omega^2 <= 0 on this branch under the declared assumptions: the two eigenvalues "
+            "that sum to zero are a real pair +-kappa (a neutral saddle), not a pair crossing "
+            "the imaginary axis", reason="omega_squared_nonpositive")
+    return tuple(results)
 
 
 def _assumptions(model, assume) -> dict:

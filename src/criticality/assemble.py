@@ -131,7 +131,7 @@ def build_result(model, name, mu, choice, out, bc, assumptions, params):
         supercritical_where=verdict.supercritical_where, l1_zero_set=verdict.zero_set,
         conditions=tuple(conds), cycle=cycle,
         q_norm_squared=B.expr(eb.qq), routes_agree=bc.routes_agree,
-        branch_index=br.index, branch_count=len(out.branches),
+        branch_index=br.index, branch_count=out.branch_count,
         substitutions={str(k): v for k, v in choice.substitutions.items()},
         notes=tuple(_notes(model, choice, out, bc)),
         assumptions={str(k): v for k, v in assumptions.items()},

@@ -13,9 +13,10 @@ subspace (annihilated by ``w`` and ``A^T w``) and the reduced system is
     Dh_k(xi) J xi - A h_k(xi) = pi_s [F(u)]_k - sum_j Dh_j(xi) g_(k+1-j)(xi)
 
 is a linear system for the ``(k+1) n`` coefficients of ``h_k`` in the
-monomials ``xi1^(k-b) xi2^b``; it is solved exactly, with the two
-normalisation rows per monomial that pin ``h_k`` to the complementary subspace
-(needed at odd k, where the operator is singular on the whole space).
+monomials ``xi1^(k-b) xi2^b``.  It is block-diagonalised by the complex
+monomials ``z^j conj(z)^l`` and solved exactly with n x n real solves (see
+:func:`_solve_homological`); at odd k the operator is singular on the whole
+space and two bordering rows pin ``h_k`` to the complementary subspace.
 """
 
 from __future__ import annotations
@@ -24,9 +25,11 @@ from dataclasses import dataclass
 
 import sympy
 
-from .algebra.linalg import SingularMatrixError, solve, solve_consistent
-from .errors import DegenerateHopfError
-from .taylor import compose
+from .algebra.linalg import SingularMatrixError, matvec, solve_consistent
+from .algebra.quadratic import QuadraticElement
+from .errors import CriticalityError, DegenerateHopfError
+from .projection import solve_shifted
+from .taylor import compose, poly_mul
 
 __all__ = ["ReducedSystem", "reduce_to_center_manifold"]
 
@@ -144,39 +147,100 @@ def _accumulate(rhs, vec, factor, p1, p2, n):
 
 def _solve_homological(eb, rhs, k):
     """Solve for ``h_k`` (list over b of vectors) with ``h_k`` in the
-    complementary subspace."""
-    K, A, W, n = eb.field, eb.A, eb.W, len(eb.A)
-    size = (k + 1) * n
-    rows = []
-    rhs_rows = []
+    complementary subspace.
+
+    The operator ``h -> Dh J xi - A h`` is diagonal in the complex monomials
+    ``z^j conj(z)^l`` (``z = xi1 + i xi2 / omega``), where it is
+    ``i omega (j - l) - A``: the right-hand side is moved to that basis, each
+    coefficient is solved by an n x n real solve (``A``, ``A^2 + m^2 W``, or at
+    ``j - l = +-1`` the singular ``A^2 + W`` bordered by the two rows that pin
+    the solution to the complementary subspace), and the result is moved back.
+    Real coefficients give ``h_lj = conj(h_jl)``, so only ``j >= l`` is solved.
+    """
+    N, n = eb.nu_field, len(eb.A)
+    to_complex, to_real = _monomial_maps(eb, k)
+    h_c = {}
+    for j in range(k, (k - 1) // 2, -1):
+        l = k - j
+        r = [N.zero] * n
+        for b in range(k + 1):
+            t = to_complex[b].get((j, l))
+            if t:
+                r = [x + t * y for x, y in zip(r, rhs[b])]
+        h_c[(j, l)] = _solve_resonant(eb, r) if j - l == 1 else \
+            _shifted(eb, j - l, r, k)
+        if j != l:
+            h_c[(l, j)] = [x.conjugate() for x in h_c[(j, l)]]
+    out = []
     for b in range(k + 1):
-        for i in range(n):
-            row = [K.zero] * size
-            for j in range(n):
-                if A[i][j]:
-                    row[b * n + j] = -A[i][j]
-            if b >= 1:
-                row[(b - 1) * n + i] = K(-(k - b + 1))
-            if b + 1 <= k:
-                row[(b + 1) * n + i] = (b + 1) * W
-            rows.append(row)
-            rhs_rows.append([rhs[b][i]])
-    odd = k % 2 == 1
+        vec = [N.zero] * n
+        for (j, l), h in h_c.items():
+            t = to_real[(j, l)].get(b)
+            if t:
+                vec = [x + t * y for x, y in zip(vec, h)]
+        out.append([_real_part(x, N) for x in vec])
+    return out
+
+
+def _real_part(x, N):
+    if isinstance(x, QuadraticElement) and x.ext is N:
+        if x.b:
+            raise CriticalityError("internal: the center manifold came out complex")
+        return x.a
+    return x
+
+
+def _shifted(eb, m, r, k):
     try:
-        if not odd:
-            sol = solve(K, rows, rhs_rows)
-        else:
-            for b in range(k + 1):
-                for vec in (eb.w, eb.wA):
-                    row = [K.zero] * size
-                    for j in range(n):
-                        row[b * n + j] = vec[j]
-                    rows.append(row)
-                    rhs_rows.append([K.zero])
-            sol = solve_consistent(K, rows, rhs_rows)
-    except SingularMatrixError as exc:
+        return solve_shifted(eb, m, r)
+    except DegenerateHopfError as exc:
         raise DegenerateHopfError(
             f"the center-manifold equation of degree {k} is singular: an eigenvalue of the "
-            f"Jacobian is an integer multiple of i omega (resonance)", reason="resonance") from exc
-    flat = [r[0] for r in sol]
-    return [flat[b * n:(b + 1) * n] for b in range(k + 1)]
+            f"Jacobian is {m} i omega (a resonance)", reason="resonance") from exc
+
+
+def _solve_resonant(eb, r):
+    """``(nu I - A) h = r`` with ``r`` and ``h`` in the complementary subspace:
+    ``h = -(nu I + A) y`` with ``(A^2 + W I) y = r``, ``w.y = (A^T w).y = 0``."""
+    K, N, A, n = eb.field, eb.nu_field, eb.A, len(eb.A)
+    M = [[eb.A2[i][j] + (eb.W if i == j else K.zero) for j in range(n)] for i in range(n)]
+    rows = M + [list(eb.w), list(eb.wA)]
+    parts = [N.components(x) for x in r]
+    B = [[a, b] for a, b in parts] + [[K.zero, K.zero], [K.zero, K.zero]]
+    try:
+        Y = solve_consistent(K, rows, B)
+    except SingularMatrixError as exc:
+        raise DegenerateHopfError("the resonant center-manifold equation is singular: the "
+                                  "pair +-i omega is not simple", reason="resonance") from exc
+    X = [row[0] for row in Y]
+    Z = [row[1] for row in Y]
+    AX, AZ = matvec(K, A, X), matvec(K, A, Z)
+    # y = X + nu Z; (nu + A) y = (A X - W Z) + nu (X + A Z)
+    return [N.element(-(ax - eb.W * z), -(x + az)) for ax, z, x, az in zip(AX, Z, X, AZ)]
+
+
+def _monomial_maps(eb, k):
+    """Coefficient maps between ``xi1^(k-b) xi2^b`` and ``z^j conj(z)^l``."""
+    N, W = eb.nu_field, eb.W
+    nu, half = N.gen, N(1) / 2
+    xi1 = {(1, 0): half, (0, 1): half}
+    xi2 = {(1, 0): -nu * half, (0, 1): nu * half}
+    to_complex = []
+    for b in range(k + 1):
+        p = {(0, 0): N.one}
+        for _ in range(k - b):
+            p = poly_mul(p, xi1, k)
+        for _ in range(b):
+            p = poly_mul(p, xi2, k)
+        to_complex.append(p)
+    c = nu / W  # z = xi1 + (nu/W) xi2, conj(z) = xi1 - (nu/W) xi2
+    z, zb = {(1, 0): N.one, (0, 1): c}, {(1, 0): N.one, (0, 1): -c}
+    to_real = {}
+    for j in range(k + 1):
+        p = {(0, 0): N.one}
+        for _ in range(j):
+            p = poly_mul(p, z, k)
+        for _ in range(k - j):
+            p = poly_mul(p, zb, k)
+        to_real[(j, k - j)] = {bb: v for (aa, bb), v in p.items()}
+    return to_complex, to_real

@@ -13,7 +13,7 @@ objects and returns :class:`BranchComputation` records of field elements, which
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import sympy
 
@@ -22,7 +22,7 @@ from .center_manifold import ReducedSystem, reduce_to_center_manifold
 from .critical import CriticalBranch, find_critical_branches
 from .eigenbasis import Eigenbasis, critical_eigenbasis
 from .canonical import factored
-from .errors import NoHopfPointError, NotAnEquilibriumError
+from .errors import NoHopfPointError, NotAnEquilibriumError, ParameterError
 from .linear import characteristic_polynomial
 from .lyapunov import complex_normal_form
 from .normal_form import complexify, planar_normal_form, unit_coefficients
@@ -75,10 +75,13 @@ class EngineOutput:
     branches: tuple
     notes: tuple
     degenerate: tuple
+    branch_count: int = 1
 
 
-def run_engine(problem: Problem) -> EngineOutput:
-    """Run the pipeline on every closed-form branch of the critical set."""
+def run_engine(problem: Problem, select: int | None = None) -> EngineOutput:
+    """Run the pipeline on every closed-form branch of the critical set, or
+    only on branch ``select`` of the ordered list (branches that need no new
+    square root come first)."""
     order = max(3, problem.order)
     raw = raw_taylor(problem.equations, problem.states, problem.equilibrium, order,
                      problem.state_names or None)
@@ -105,8 +108,18 @@ def run_engine(problem: Problem) -> EngineOutput:
     if len(imaginary) < len(branches):
         notes.append(f"{len(branches) - len(imaginary)} branch(es) of the critical set have "
                      "omega^2 <= 0 (neutral saddles) and were dropped")
+    imaginary.sort(key=lambda b: (len(b.tower.levels), b.index))
+    imaginary = [replace(b, index=i) for i, b in enumerate(imaginary)]
+    if select is not None:
+        if not 0 <= select < len(imaginary):
+            raise ParameterError(f"branch {select} does not exist: the critical set has "
+                                 f"{len(imaginary)} closed-form branch(es) (0 to "
+                                 f"{len(imaginary) - 1})")
+        todo = [imaginary[select]]
+    else:
+        todo = imaginary
     computed = []
-    for b in imaginary:
+    for b in todo:
         bc = _compute_branch(tower, taylor_mu, b, problem, order)
         if bc is None:
             notes.append("a branch of the critical set has <q, q> = 0, which means omega^2 <= 0 "
@@ -118,7 +131,8 @@ def run_engine(problem: Problem) -> EngineOutput:
             "on every branch of the critical set omega^2 <= 0: where two eigenvalues sum to "
             "zero they are a real pair +-kappa (a neutral saddle), not a pair crossing the "
             "imaginary axis", reason="omega_squared_nonpositive")
-    return EngineOutput(tower, chi, A_mu, tuple(computed), tuple(notes), tuple(degenerate))
+    return EngineOutput(tower, chi, A_mu, tuple(computed), tuple(notes), tuple(degenerate),
+                        len(imaginary))
 
 
 def _may_be_positive(branch, ctx) -> bool:

@@ -93,9 +93,32 @@ def hurwitz_determinant(K, coeffs, k: int):
 
 
 def hurwitz_determinants(K, coeffs):
-    """``[Delta_1, ..., Delta_m]`` of a polynomial of degree m."""
+    """``[Delta_1, ..., Delta_m]`` of a polynomial of degree m.
+
+    Computed from Routh's array, whose first column holds the ratios
+    ``Delta_k / Delta_(k-1)`` (Gantmacher, The Theory of Matrices, vol. 2,
+    1959, Chapter XV): O(m^2) field operations instead of m determinants.
+    Where a first-column entry vanishes the determinants are taken directly.
+    """
     m = len(coeffs) - 1
-    return [hurwitz_determinant(K, coeffs, k) for k in range(1, m + 1)]
+    a = list(reversed(coeffs))
+    if a[0] != 1:
+        inv = 1 / a[0]
+        a = [x * inv for x in a]
+    zero = coeffs[0] - coeffs[0]
+    prev, cur = a[0::2], a[1::2]
+    out, acc = [], None
+    for k in range(1, m + 1):
+        pivot = cur[0] if cur else zero
+        if not pivot:
+            return out + [hurwitz_determinant(K, coeffs, j) for j in range(k, m + 1)]
+        acc = pivot if acc is None else acc * pivot
+        out.append(acc)
+        inv = 1 / pivot
+        nxt = [prev[j + 1] - prev[0] * inv * (cur[j + 1] if j + 1 < len(cur) else zero)
+               for j in range(len(prev) - 1)]
+        prev, cur = cur, nxt
+    return out
 
 
 def _in_base(x) -> bool:
