@@ -11,7 +11,7 @@ from __future__ import annotations
 import os
 import secrets
 
-from .errors import OutputExistsError, ParameterError
+from .errors import OutputError, OutputExistsError
 
 __all__ = ["write_bytes_atomic", "write_text_atomic", "check_writable"]
 
@@ -24,7 +24,7 @@ def check_writable(path: str, force: bool) -> str:
                                 "to overwrite it")
     folder = os.path.dirname(os.path.abspath(path))
     if not os.path.isdir(folder):
-        raise ParameterError(f"cannot write {path}: the folder {folder} does not exist")
+        raise OutputError(f"cannot write {path}: the folder {folder} does not exist")
     return path
 
 

@@ -273,7 +273,7 @@ def _section_reduced(doc: Document) -> str:
         return _section("Reduced system on the center manifold",
                         "Not available for this result (" + doc.text(doc.result.status) + ").")
     n = doc.notation
-    sub = {rs.x: n.xi, rs.y: n.eta, sympy.Symbol("omega", positive=True): n.omega}
+    sub = {rs.x: n.xi, rs.y: n.eta, rs.omega: n.omega}
     xi, eta = n.names["~xi"], n.names["~eta"]
     w, om = doc.writer, doc.omega_tex
     rows = []

@@ -19,11 +19,10 @@ from .classify import classify
 from .critical import Condition, cofactor_hurwitz
 from .errors import CriticalityError
 from .results import CyclePrediction, HopfResult, ReducedSystemView
-from .signs import NEGATIVE, NONNEGATIVE, NONPOSITIVE, POSITIVE, ZERO, context_for
+from .signs import NEGATIVE, NONNEGATIVE, NONPOSITIVE, POSITIVE, UNKNOWN, ZERO, context_for
 
 __all__ = ["build_result"]
 
-_OMEGA = sympy.Symbol("omega", positive=True)
 
 
 def _status(fs, relation=">"):
@@ -164,15 +163,28 @@ class _Details:
 
 
 def _omega(B, W):
-    """``sqrt(W)``, taken in the field when ``W`` is the square of an
-    expression of known sign (e.g. ``W = A**2`` with ``A > 0`` gives ``A``)."""
+    """``sqrt(W)`` without absolute values: the root of a square is taken in
+    the field when its sign is known (``W = A**2``, ``A > 0`` gives ``A``), and
+    factors of even multiplicity and known sign leave the square root."""
     try:
         root = B.tower.square_root(W)
     except CriticalityError:
         root = None
     if root is not None:
         return B.expr(root)
-    return sympy.sqrt(B.expr(W))
+    fs = B.fs(W)
+    if fs.sign == UNKNOWN and not fs.factors:
+        return sympy.sqrt(B.expr(W))
+    outside, inside = [], [fs.constant]
+    for f in fs.factors:
+        known = f.sign in (POSITIVE, NONNEGATIVE)
+        half, odd = divmod(f.multiplicity, 2) if known else (0, f.multiplicity)
+        power = -1 if f.in_denominator else 1
+        if half:
+            outside.append(f.expr ** (half * power))
+        if odd:
+            inside.append(f.expr ** (odd * power))
+    return sympy.Mul(*outside) * sympy.sqrt(sympy.Mul(*inside))
 
 
 def _conj_expr(B, x, omega):
@@ -216,20 +228,41 @@ def _cycle(B, model, bc, omega, verdict, stab, mu):
 
 
 def _reduced_view(B, bc, omega, model):
-    x, y = sympy.symbols("x y", real=True)
+    x, y = _fresh_coordinates(model)
+    w = _frequency_symbol(model)
     rs = bc.reduced
-    f, g = rs.rotation_form(B.expr, _OMEGA, x, y)
+    f, g = rs.rotation_form(B.expr, w, x, y)
     eb = bc.eigenbasis
-    q = tuple(B.expr(a) + sympy.I * _OMEGA * B.expr(b) for a, b in zip(eb.Av, eb.v))
+    q = tuple(B.expr(a) + sympy.I * w * B.expr(b) for a, b in zip(eb.Av, eb.v))
     manifold = []
     for i in range(len(model.states)):
         terms = []
         for k, vecs in rs.h.items():
             for b, vec in enumerate(vecs):
                 if vec[i]:
-                    terms.append(B.expr(vec[i]) * x ** (k - b) * (_OMEGA * y) ** b)
+                    terms.append(B.expr(vec[i]) * x ** (k - b) * (w * y) ** b)
         manifold.append(sympy.Add(*terms))
-    return ReducedSystemView(x, y, f, g, rs.order, q, tuple(manifold))
+    return ReducedSystemView(x, y, f, g, rs.order, q, tuple(manifold), w)
+
+
+def _frequency_symbol(model):
+    """The symbol standing for omega in the reduced system (not a model name)."""
+    name = "omega"
+    while name in model.symbols:
+        name += "_c"
+    return sympy.Symbol(name, positive=True)
+
+
+def _fresh_coordinates(model):
+    """Center-plane coordinates named so that they clash with no model name."""
+    taken = set(model.symbols)
+    for pair in (("x", "y"), ("xi", "eta"), ("X", "Y")):
+        if not taken & set(pair):
+            return sympy.symbols(pair, real=True)
+    k = 1
+    while {f"xi{k}", f"eta{k}"} & taken:
+        k += 1
+    return sympy.symbols((f"xi{k}", f"eta{k}"), real=True)
 
 
 def _notes(model, choice, out, bc):

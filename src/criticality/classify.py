@@ -21,7 +21,7 @@ from dataclasses import dataclass
 
 import sympy
 
-from .signs import NEGATIVE, NONNEGATIVE, NONPOSITIVE, POSITIVE, ZERO, FactoredSign
+from .signs import NEGATIVE, NONNEGATIVE, NONPOSITIVE, POSITIVE, UNKNOWN, ZERO, FactoredSign
 
 __all__ = ["Verdict", "classify"]
 
@@ -62,11 +62,11 @@ def classify(fs: FactoredSign, *, coefficient: str = "l1") -> Verdict:
         return Verdict(DEGENERATE, f"degenerate: {coefficient} vanishes identically; the next "
                        "Lyapunov coefficient decides", None, None, sympy.Integer(0))
     undecided = fs.undecided
-    even_unknown = [f for f in fs.factors if f.sign == NONNEGATIVE and f.multiplicity % 2 == 0
+    even_unknown = [f for f in fs.factors if f.sign in (UNKNOWN, NONNEGATIVE) and f.multiplicity % 2 == 0
                     and not f.expr.is_number]
     zero_exprs = [f.expr for f in undecided if not f.in_denominator] + \
                  [f.expr for f in even_unknown if not f.in_denominator]
-    zero_set = sympy.Eq(sympy.Mul(*zero_exprs), 0) if zero_exprs else None
+    zero_set = sympy.Eq(sympy.Mul(*zero_exprs), 0, evaluate=False) if zero_exprs else None
     where = f" except where {zero_set.lhs} = 0" if zero_set is not None else ""
     if fs.sign in (NEGATIVE, NONPOSITIVE) and not undecided:
         return Verdict(SUPERCRITICAL, "supercritical for all admissible parameters" + where,

@@ -32,6 +32,7 @@ __all__ = [
     "ClosedFormUnavailableError",
     "ComputationLimitError",
     "MissingExtraError",
+    "OutputError",
     "OutputExistsError",
     "ValidationRunError",
 ]
@@ -257,10 +258,14 @@ class MissingExtraError(CriticalityError):
     exit_code = 8
 
 
-class OutputExistsError(CriticalityError):
-    """An output file exists and overwriting was not asked for."""
+class OutputError(CriticalityError):
+    """An output file cannot be written (missing folder, permissions, ...)."""
 
     exit_code = 9
+
+
+class OutputExistsError(OutputError):
+    """An output file exists and overwriting was not asked for."""
 
 
 class ValidationRunError(CriticalityError):

@@ -131,10 +131,18 @@ def _free_parameters(result):
     return syms
 
 
-def _num(expr, subs, digits):
+def _num(expr, subs, digits, what=None):
+    """``expr`` at the point as an mpmath number.  Where it is undefined (a
+    pole, e.g. an amplitude coefficient where l1 = 0) the result is NaN, or,
+    when ``what`` names a quantity the evaluation cannot do without, an error."""
     v = sympy.N(expr.xreplace(subs), digits)
     if v.free_symbols:
         raise ParameterError(f"no value for {', '.join(sorted(map(str, v.free_symbols)))}")
+    if v.has(sympy.zoo, sympy.nan, sympy.oo, -sympy.oo):
+        if what is not None:
+            raise ParameterError(f"the {what} is undefined at this parameter point (division by "
+                                 "zero); the point lies outside the admissible set")
+        return mpmath.nan
     re, im = v.as_real_imag()
     if im != 0 and abs(im) > abs(re) * sympy.Float(10) ** (-digits + 3):
         return mpmath.mpc(mpmath.mpf(str(re)), mpmath.mpf(str(im)))
@@ -151,11 +159,11 @@ def evaluate_result(result, values: Mapping, *, digits: int = 30) -> NumericHopf
         if str(s) in exact:
             subs[s] = exact[str(s)]
     with mpmath.workdps(digits + 5):
-        mu_c = _num(result.critical_value, subs, digits + 5)
+        mu_c = _num(result.critical_value, subs, digits + 5, "critical value")
         at_c = dict(subs)
         at_c[result.parameter_symbol] = sympy.Float(str(mu_c), digits + 5) if isinstance(
             mu_c, mpmath.mpf) else mu_c
-        omega = _num(result.omega, subs, digits + 5)
+        omega = _num(result.omega, subs, digits + 5, "frequency omega")
         l1 = _num(result.l1, subs, digits + 5)
         lyap = tuple(_num(e, subs, digits + 5) for e in result.lyapunov_coefficients)
         eq = {k: _num(v, at_c, digits + 5) for k, v in result.equilibrium.items()}

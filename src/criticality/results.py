@@ -91,7 +91,9 @@ class ReducedSystemView:
     system reads ``x' = -omega y + f(x, y)``, ``y' = omega x + g(x, y)``, with
     ``state = x0 + x Re(q) - y Im(q) + h`` for the (non-normalised) eigenvector
     ``q`` in ``eigenvector``.  ``manifold`` gives the graph ``h`` to the
-    computed order as expressions in ``(x, y)``.
+    computed order as expressions in ``(x, y)``.  ``x``, ``y`` and ``omega``
+    are symbols chosen not to clash with the model's names (``omega`` stands
+    for the result's ``omega``).
     """
 
     x: sympy.Symbol
@@ -101,15 +103,17 @@ class ReducedSystemView:
     order: int
     eigenvector: tuple
     manifold: tuple
+    omega: sympy.Symbol = sympy.Symbol("omega", positive=True)
 
     def equations(self):
-        omega = sympy.Symbol("omega", positive=True)
-        return (sympy.Eq(sympy.Symbol("x'"), -omega * self.y + self.f),
-                sympy.Eq(sympy.Symbol("y'"), omega * self.x + self.g))
+        """``(x' = -omega y + f, y' = omega x + g)`` as sympy equations."""
+        return (sympy.Eq(sympy.Symbol(f"{self.x}'"), -self.omega * self.y + self.f),
+                sympy.Eq(sympy.Symbol(f"{self.y}'"), self.omega * self.x + self.g))
 
     def __str__(self):
-        return (f"x' = -omega*y + {sympy.sstr(self.f)}\n"
-                f"y' = omega*x + {sympy.sstr(self.g)}")
+        w, x, y = self.omega, self.x, self.y
+        return (f"{x}' = -{w}*{y} + {sympy.sstr(self.f)}\n"
+                f"{y}' = {w}*{x} + {sympy.sstr(self.g)}")
 
 
 @dataclass(frozen=True)

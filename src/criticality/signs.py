@@ -114,6 +114,7 @@ class SignContext:
         self.ctx = flint.fmpq_mpoly_ctx.get(names, "degrevlex")
         self._kinds = [self.assumptions[s] for s in self._symbols] + ["positive"] * _SLACK
         self._subs = None
+        self._sides = None
 
     def with_conditions(self, conditions) -> "SignContext":
         return SignContext(self.assumptions, self.side_conditions + tuple(conditions))
@@ -163,75 +164,92 @@ class SignContext:
             if poly is None:
                 return UNKNOWN
         s = self._plain_sign(poly)
+        if s != UNKNOWN:
+            return s
+        s = self._side_condition_multiple(poly)
         return s if s != UNKNOWN else self._sign_with_conditions(poly)
 
     def _plain_sign(self, p) -> str:
         if p.is_zero():
             return ZERO
-        used = [i for i, d in enumerate(p.degrees()) if d > 0]
+        degrees = p.degrees()
+        used = [i for i, d in enumerate(degrees) if d > 0]
         if not used:
             c = p.coeffs()[0]
             return POSITIVE if c > 0 else NEGATIVE
         gens = list(self.ctx.gens())
-        flip = False
+        flip, strict_vars = False, True
         for i in used:
             kind = self._kinds[i]
             if kind in ("negative", "nonpositive"):
                 gens[i] = -gens[i]
                 flip = True
             elif kind not in ("positive", "nonnegative"):
-                return _square_sign(p)
+                # a real symbol that occurs only to even powers acts as a nonnegative one
+                if any(m[i] % 2 for m in p.monoms()):
+                    return _square_sign(p)
+                strict_vars = strict_vars and kind == "nonzero"
+                continue
+            strict_vars = strict_vars and kind in ("positive", "negative")
         if flip:
             p = p.compose(*gens)
         coeffs = p.coeffs()
         positive = coeffs[0] > 0
         if any((c > 0) != positive for c in coeffs):
             return UNKNOWN
-        strict = all(self._kinds[i] in ("positive", "negative") for i in used) or _has_constant(p)
-        if strict:
+        if strict_vars or _has_constant(p):
             return POSITIVE if positive else NEGATIVE
         return NONNEGATIVE if positive else NONPOSITIVE
 
+    def _side_polys(self):
+        if self._sides is None:
+            polys = (self._poly_from_sympy(sympy.expand(c)) for c in self.side_conditions)
+            self._sides = [p for p in polys if p is not None and not p.is_zero()]
+        return self._sides
+
+    def _side_condition_multiple(self, p) -> str:
+        """``p`` is a constant multiple of a polynomial known to be positive."""
+        for g in self._side_polys():
+            lp, lg = p.coeffs()[0], g.coeffs()[0]
+            if p * lg == g * lp:
+                return POSITIVE if lp / lg > 0 else NEGATIVE
+        return UNKNOWN
+
     def _substitutions(self):
-        """``(var index, replacement)`` from side conditions linear in a
-        positive symbol with a positive constant coefficient."""
+        """``(var index, rest, c)`` for side conditions ``c v + rest > 0`` linear
+        in ``v``, with ``c`` of proven strict sign and free of ``v``."""
         if self._subs is None:
             subs = []
-            n = len(self._symbols)
-            for cond in self.side_conditions:
-                p = self._poly_from_sympy(sympy.expand(cond))
-                if p is None:
-                    continue
-                for i in range(n):
-                    if p.degrees()[i] != 1 or self._kinds[i] not in ("positive", "nonnegative"):
+            for p in self._side_polys():
+                for i in range(len(self._symbols)):
+                    if p.degrees()[i] != 1:
                         continue
-                    lin = _linear_part(self.ctx, p, i)
-                    if lin is None:
+                    c, rest = _linear_split(self.ctx, p, i)
+                    if c is None or self._plain_sign(c) not in (POSITIVE, NEGATIVE):
                         continue
-                    c, rest = lin
-                    subs.append((i, rest, c))
+                    subs.append((i, rest, c, p))
             self._subs = subs
         return self._subs
 
     def _sign_with_conditions(self, p) -> str:
+        """Substitute ``v = (t - rest)/c`` (``t > 0``) from one or two side
+        conditions and try the plain test again on ``c^d p``."""
         subs = self._substitutions()
         gens = self.ctx.gens()
         n = len(self._symbols)
         for r in (1, 2):
             for combo in combinations(subs, r):
-                if len({i for i, _, _ in combo}) < r:
+                if r == 2 and (combo[0][0] == combo[1][0] or combo[1][3].degrees()[combo[0][0]]
+                               or combo[0][3].degrees()[combo[1][0]]):
                     continue
-                images = list(gens)
-                for k, (i, rest, c) in enumerate(combo):
-                    images[i] = (gens[n + k] - rest) / c
-                q = p
-                for _ in range(r):  # resolve replacements that mention replaced symbols
-                    q = q.compose(*images)
-                if any(q.degrees()[i] for i, _, _ in combo):
-                    continue
+                q, sign = p, 1
+                for k, (i, rest, c, _) in enumerate(combo):
+                    q, d = _substitute_linear(q, i, gens[n + k] - rest, c)
+                    if d % 2 and self._plain_sign(c) == NEGATIVE:
+                        sign = -sign
                 s = self._plain_sign(q)
                 if s != UNKNOWN:
-                    return s
+                    return s if sign == 1 else _NEG[s]
         return UNKNOWN
 
     # -- rational functions ----------------------------------------------------------------
@@ -268,13 +286,13 @@ class SignContext:
         out = []
         total = POSITIVE if constant > 0 else NEGATIVE if constant < 0 else ZERO
         for f, m, in_den, s in decided:
-            if s == UNKNOWN and m % 2 == 0:
-                s = NONNEGATIVE
             if m % 2:
                 total = mul_sign(total, s)
             else:
                 total = mul_sign(total, ZERO if s == ZERO else
                                  POSITIVE if s in (POSITIVE, NEGATIVE) else NONNEGATIVE)
+                # an even power of a factor of unknown sign stays marked unknown
+                # (its square root is not the factor itself)
             if s in (NEGATIVE, NONPOSITIVE):
                 f, constant, s = sympy.expand(-f), constant * (-1) ** m, _NEG[s]
             out.append(FactorSign(f, m, in_den, s))
@@ -302,19 +320,33 @@ def _has_constant(p) -> bool:
     return zero in p.to_dict()
 
 
-def _linear_part(ctx, p, i):
-    """``(c, rest)`` with ``p = c * v_i + rest``, c a positive constant, else None."""
-    c, rest = None, {}
+def _linear_split(ctx, p, i):
+    """``(c, rest)`` with ``p = c * v_i + rest`` and neither containing ``v_i``."""
+    c, rest = {}, {}
     for monom, coeff in p.to_dict().items():
         if monom[i] == 1:
-            if any(monom[j] for j in range(len(monom)) if j != i):
-                return None
-            c = coeff
-        else:
+            c[monom[:i] + (0,) + monom[i + 1:]] = coeff
+        elif monom[i] == 0:
             rest[monom] = coeff
-    if c is None or c <= 0:
-        return None
-    return c, ctx.from_dict(rest) if rest else ctx.from_dict({})
+        else:
+            return None, None
+    return ctx.from_dict(c), ctx.from_dict(rest)
+
+
+def _substitute_linear(p, i, numerator, c):
+    """``(c^d p(v_i = numerator / c), d)`` with d the degree of p in ``v_i``."""
+    ctx = p.context()
+    d = p.degrees()[i]
+    if d == 0:
+        return p, 0
+    buckets: dict = {}
+    for monom, coeff in p.to_dict().items():
+        k = monom[i]
+        buckets.setdefault(k, {})[monom[:i] + (0,) + monom[i + 1:]] = coeff
+    out = ctx.from_dict({})
+    for k, data in buckets.items():
+        out += ctx.from_dict(data) * numerator ** k * c ** (d - k)
+    return out, d
 
 
 def _square_sign(p) -> str:
