@@ -8,6 +8,7 @@ turns the field elements of each branch into a :class:`HopfResult`
 
 from __future__ import annotations
 
+from dataclasses import replace
 from typing import Mapping
 
 from .assemble import build_result
@@ -104,8 +105,10 @@ def _analyse(model, parameter, equilibrium, eliminate, order, values, assume, ba
     if order < 3 or order % 2 == 0:
         raise ParameterError(f"order must be an odd integer >= 3 (3 gives l1, 5 gives l2); "
                              f"got {order}")
+    full, fixed = model, {}
     if values:
-        model = model.with_values(**{k: v for k, v in values.items()})
+        fixed = model.value_substitution(values)
+        model = model.with_values(dict(values))
     name = parameter or getattr(model, "bifurcation_parameter", None)
     if not name:
         raise ParameterError("name the bifurcation parameter (the model file does not choose one)")
@@ -113,7 +116,7 @@ def _analyse(model, parameter, equilibrium, eliminate, order, values, assume, ba
         raise ParameterError(f"'{name}' is a state variable, not a parameter")
     model.parameter(name)  # raises with a did-you-mean if unknown
     assumptions = _assumptions(model, assume)
-    choice = _equilibrium(model, equilibrium, eliminate, assumptions)
+    choice = _equilibrium(model, equilibrium, eliminate, assumptions, full, fixed)
     eqs = tuple(e.xreplace(choice.substitutions) for e in model.equations)
     mu = model.symbols[name]
     if any(s == mu for s in choice.substitutions):
@@ -151,13 +154,19 @@ def _assumptions(model, assume) -> dict:
     return out
 
 
-def _equilibrium(model, equilibrium, eliminate, assumptions):
+def _equilibrium(model, equilibrium, eliminate, assumptions, full=None, fixed=None):
+    """Choose the equilibrium.  A given mapping is read against the model as
+    written (``full``), so it may name parameters fixed by ``values``; their
+    values (``fixed``) are then substituted."""
     if eliminate is not None:
         if equilibrium is not None:
             raise ParameterError("give either an equilibrium or eliminate=..., not both")
         return parametrised_equilibrium(model, eliminate)
     if isinstance(equilibrium, Mapping):
-        return given_equilibrium(model, equilibrium)
+        choice = given_equilibrium(full if full is not None else model, equilibrium)
+        if fixed:
+            choice = replace(choice, point=tuple(p.xreplace(fixed) for p in choice.point))
+        return choice
     hint = getattr(model, "equilibrium_hint", None)
     if equilibrium is None and hint:
         return given_equilibrium(model, hint)

@@ -227,6 +227,10 @@ def find_critical_branches(tower_mu, mu, chi, *, describe=str):
         except DegenerateHopfError as exc:
             degenerate.append(exc)
             continue
+        except ZeroDivisionError:
+            notes.append(f"a candidate critical value ({tower_mu.to_sympy(value)}) makes the "
+                         "characteristic polynomial undefined (a denominator vanishes); skipped")
+            continue
         if branch is not None:
             branches.append(branch)
     if not branches:

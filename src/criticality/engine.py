@@ -18,6 +18,7 @@ from dataclasses import dataclass, field, replace
 import sympy
 
 from .algebra import Tower, collect_atoms
+from .algebra.domain import algebraic_atom_rules
 from .center_manifold import ReducedSystem, reduce_to_center_manifold
 from .critical import CriticalBranch, find_critical_branches
 from .eigenbasis import Eigenbasis, critical_eigenbasis
@@ -85,11 +86,16 @@ def run_engine(problem: Problem, select: int | None = None) -> EngineOutput:
     order = max(3, problem.order)
     raw = raw_taylor(problem.equations, problem.states, problem.equilibrium, order,
                      problem.state_names or None)
-    exprs = list(raw.coefficients()) + list(problem.equilibrium)
+    equilibrium = tuple(problem.equilibrium)
+    rules = algebraic_atom_rules(list(raw.coefficients()) + list(equilibrium))
+    if rules:
+        raw = raw.map(lambda c: c.xreplace(rules))
+        equilibrium = tuple(x.xreplace(rules) for x in equilibrium)
+    exprs = list(raw.coefficients()) + list(equilibrium)
     atoms = collect_atoms(exprs, problem.parameters)
     plain = context_for(problem.parameters, problem.assumptions)
     tower = Tower(problem.parameters, atoms, problem.backend, lambda e: truth(plain.sign(e)))
-    x0 = [tower.convert(e) for e in problem.equilibrium]
+    x0 = [tower.convert(e) for e in equilibrium]
     taylor_mu = TaylorForms.from_raw(raw, x0, tower.convert, tower.base)
     _check_equilibrium(tower, taylor_mu, problem)
     K = tower.top
@@ -120,7 +126,12 @@ def run_engine(problem: Problem, select: int | None = None) -> EngineOutput:
         todo = imaginary
     computed = []
     for b in todo:
-        bc = _compute_branch(tower, taylor_mu, b, problem, order)
+        try:
+            bc = _compute_branch(tower, taylor_mu, b, problem, order)
+        except ZeroDivisionError:
+            notes.append(f"at the critical value {b.tower.to_sympy(b.value)} a Taylor "
+                         "coefficient is undefined (a denominator vanishes); branch skipped")
+            continue
         if bc is None:
             notes.append("a branch of the critical set has <q, q> = 0, which means omega^2 <= 0 "
                          "there (a real pair +-kappa, not a Hopf pair); it was dropped")

@@ -302,18 +302,15 @@ class Model:
 
     # -- derived models and text --------------------------------------------------
 
-    def with_values(self, values: Mapping | None = None, /, **more) -> "Model":
-        """A copy with exact values substituted for some parameters.
+    def value_substitution(self, values: Mapping) -> dict:
+        """``{symbol: exact value}`` for a mapping of parameter values, checked
+        as in :meth:`with_values` (raises :class:`ParameterError`)."""
+        substitution, problems = self._substitution(dict(values))
+        if problems:
+            raise ParameterError("; ".join(problems))
+        return substitution
 
-        Values may be numbers (floats are read by their decimal digits), text
-        read exactly (``"1/3"``, ``"sqrt(2)"``) or sympy numbers.  The
-        parameters disappear from the copy; a value that breaks the parameter's
-        assumption, or makes an equation undefined or non-real, raises
-        :class:`~criticality.errors.ParameterError`.  Names that are not Python
-        identifiers (``lambda``) go in the mapping argument:
-        ``model.with_values({"lambda": 2})``.
-        """
-        given = {**dict(values or {}), **more}
+    def _substitution(self, given: dict):
         substitution, problems = {}, []
         for key, raw in given.items():
             try:
@@ -326,6 +323,20 @@ class Model:
             if problem is not None:
                 problems.append(problem)
             substitution[parameter.symbol] = value
+        return substitution, problems
+
+    def with_values(self, values: Mapping | None = None, /, **more) -> "Model":
+        """A copy with exact values substituted for some parameters.
+
+        Values may be numbers (floats are read by their decimal digits), text
+        read exactly (``"1/3"``, ``"sqrt(2)"``) or sympy numbers.  The
+        parameters disappear from the copy; a value that breaks the parameter's
+        assumption, or makes an equation undefined or non-real, raises
+        :class:`~criticality.errors.ParameterError`.  Names that are not Python
+        identifiers (``lambda``) go in the mapping argument:
+        ``model.with_values({"lambda": 2})``.
+        """
+        substitution, problems = self._substitution({**dict(values or {}), **more})
         equations = tuple(e.xreplace(substitution) for e in self.equations)
         hint = None if self.equilibrium_hint is None else {
             s: v.xreplace(substitution) for s, v in self.equilibrium_hint.items()}

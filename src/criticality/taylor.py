@@ -43,6 +43,12 @@ class RawTaylor:
     shifted: tuple
     order: int
 
+    def map(self, fn) -> "RawTaylor":
+        """Apply ``fn`` to every coefficient."""
+        def apply(part):
+            return tuple(None if d is None else {e: fn(c) for e, c in d.items()} for d in part)
+        return RawTaylor(apply(self.polynomial), apply(self.shifted), self.order)
+
     def coefficients(self):
         """Every sympy coefficient (for discovering the field's generators)."""
         for part in (self.polynomial, self.shifted):

@@ -24,7 +24,7 @@ from .flint_field import FlintRationalField, FlintRationalFunctionField
 from .quadratic import QuadraticElement, QuadraticExtension
 from .sympy_field import SympyRationalFunctionField
 
-__all__ = ["Tower", "Atom", "make_base_field", "collect_atoms"]
+__all__ = ["Tower", "Atom", "make_base_field", "collect_atoms", "algebraic_atom_rules"]
 
 _ANALYTIC = (sympy.exp, sympy.log, sympy.sin, sympy.cos, sympy.tan, sympy.sinh, sympy.cosh,
              sympy.tanh, sympy.asin, sympy.acos, sympy.atan, sympy.asinh, sympy.acosh,
@@ -128,6 +128,37 @@ def collect_atoms(exprs, parameter_symbols, state_symbols=()):
     for ex in exprs:
         walk(sympy.sympify(ex))
     return sorted(found, key=sympy.default_sort_key)
+
+
+def algebraic_atom_rules(exprs) -> dict:
+    """Rewrite rules for transcendental atoms that are algebraic in disguise.
+
+    A solved equilibrium can put a function of a logarithm into the field, e.g.
+    ``tanh(log(z)/2)``, which equals ``(z - 1)/(z + 1)``; taken as an
+    independent generator it would hide zeros (the residual at the equilibrium
+    would not vanish).  Atoms whose arguments contain other transcendental
+    functions are rewritten through ``exp`` and simplified; where that leaves
+    no transcendental function the atom is replaced.
+    """
+    rules = {}
+    seen = set()
+
+    def walk(e):
+        if not isinstance(e, sympy.Basic) or e.is_Atom or e in seen:
+            return
+        seen.add(e)
+        if isinstance(e, _ANALYTIC) and any(a.has(*_ANALYTIC) for a in e.args):
+            candidate = sympy.simplify(e.rewrite(sympy.exp))
+            if not candidate.has(*_ANALYTIC) and not any(
+                    p.exp.is_Rational and p.exp.q > 2 for p in candidate.atoms(sympy.Pow)):
+                rules[e] = candidate
+                return
+        for a in e.args:
+            walk(a)
+
+    for ex in exprs:
+        walk(ex)
+    return rules
 
 
 class Tower:
