@@ -18,6 +18,7 @@ from __future__ import annotations
 import argparse
 import json
 import math
+import os
 import queue
 import statistics
 import subprocess
@@ -373,9 +374,13 @@ def _size_target(results: list[CaseResult]) -> tuple[str, str, str]:
                       + (f"; larger or missing: {', '.join(larger)}" if larger else "")))
 
 
-def report(results: list[CaseResult], import_time: float | None, timeout: float) -> str:
+def report(results: list[CaseResult], import_time: float | None, timeout: float,
+           load: tuple = ()) -> str:
     rows = table_rows(results)
     lines = [format_text(rows), ""]
+    if load:
+        lines.append("load average (1 min) at start / end: "
+                     + " / ".join(f"{x:.2f}" for x in load) + f" on {os.cpu_count()} cores")
     for key, label in (("nosimp", "no-simplify"), ("simplified", "simplified")):
         ratios = [x for x in (_ratio(r, key) for r in results) if x is not None]
         lines.append(f"geometric mean {label}/engine: {_fmt(geometric_mean(ratios), '.1f')} "
@@ -472,10 +477,11 @@ def main(argv=None) -> int:
     args = parse_args(argv)
     if args.check_cases:
         return 1 if check_cases(args.cases) else 0
+    load_start = os.getloadavg()[0]
     results = [run_case(name, args.routes, args.repeat, args.timeout, args.points)
                for name in args.cases]
     import_time = import_seconds()
-    print(report(results, import_time, args.timeout))
+    print(report(results, import_time, args.timeout, (load_start, os.getloadavg()[0])))
     if args.markdown:
         args.markdown.write_text(format_markdown(table_rows(results)) + "\n")
     if args.json:
