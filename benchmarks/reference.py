@@ -27,7 +27,8 @@ import mpmath
 import numpy as np
 import sympy as sp
 
-__all__ = ["mp_eval", "PointCheck", "check_point", "numeric_l1", "relative_difference"]
+__all__ = ["mp_eval", "PointCheck", "check_point", "numeric_l1", "relative_difference",
+           "classical_planar_l1"]
 
 _FUNCTIONS = {
     sp.conjugate: mpmath.conj, sp.re: mpmath.re, sp.im: mpmath.im, sp.Abs: abs,
@@ -245,3 +246,26 @@ def _numpy_eig(J: np.ndarray):
     left_values, left = np.linalg.eig(J.T)
     order = [int(np.argmin(np.abs(left_values - v))) for v in values]
     return values, left[:, order], right
+
+
+def classical_planar_l1(case, point: dict):
+    """2 a / omega from the classical planar coefficient a, for a planar case whose
+    Jacobian at the critical value is [[0, -omega], [omega, 0]].
+
+    a = (f_xxx + f_xyy + g_xxy + g_yyy)/16
+        + (f_xy (f_xx + f_yy) - g_xy (g_xx + g_yy) - f_xx g_xx + f_yy g_yy)/(16 omega)
+    (Guckenheimer and Holmes, Nonlinear Oscillations, Dynamical Systems, and
+    Bifurcations of Vector Fields, 1983, section 3.4); the factor 2/omega is the
+    conversion to the unit-eigenvector normalisation stated in DESIGN.md.
+    """
+    (f, g), equilibrium = _at_point(case, point)
+    x, y = case.states
+    at = {x: equilibrium[x], y: equilibrium[y]}
+    d = lambda h, *v: sp.diff(h, *v).xreplace(at)  # noqa: E731
+    omega = d(g, x)
+    if d(f, x) != 0 or d(g, y) != 0 or d(f, y) != -omega:
+        raise ValueError("the linear part is not [[0, -omega], [omega, 0]]")
+    a = (d(f, x, x, x) + d(f, x, y, y) + d(g, x, x, y) + d(g, y, y, y)) / 16 + (
+        d(f, x, y) * (d(f, x, x) + d(f, y, y)) - d(g, x, y) * (d(g, x, x) + d(g, y, y))
+        - d(f, x, x) * d(g, x, x) + d(f, y, y) * d(g, y, y)) / (16 * omega)
+    return 2 * a / omega
