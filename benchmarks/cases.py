@@ -185,8 +185,10 @@ def foodchain() -> Case:
     Interior equilibrium (rational): C* = d/(2 - d), R* = K (1 - C*),
     P* = (R* - m)(1 + C*)/2.  The predator's time scale epsilon does not move
     the equilibrium and enters the Jacobian only in the entry dP'/dC (since
-    dP'/dP = 0 there), so a1 a2 - a3 is linear in epsilon; solving gives the
-    closed form below.  For epsilon below the critical value the equilibrium is
+    dP'/dP = 0 there), so a1 a2 - a3 is linear in epsilon; solving it gives
+    epsilon_c = 2 (1 - d) u (4 (1 - d) + d m (2 - d) - 2 K d (1 - d)) / (d (2 - d)^2 s^2)
+    and omega^2 = 4 (1 - d)^2 u / ((2 - d)^2 s), with s = 2 K (1 - d) - m (2 - d)
+    and u = 2 K d + m (2 - d).  For epsilon below the critical value the equilibrium is
     stable, above it a pair crosses (a fast predator destabilises the chain).
     omega^2 = a2 at the critical value (n = 3).
     """
@@ -195,11 +197,12 @@ def foodchain() -> Case:
     c_star = d / (2 - d)
     r_star = K * (1 - c_star)
     p_star = (r_star - m) * (1 + c_star) / 2
-    critical = (-2 * (d - 1) * (d * m - 2 * K * d - 2 * m)
-                * (-2 * K * d**2 + 2 * K * d + d**2 * m - 2 * d * m + 4 * d - 4)
-                / (d * (d - 2) ** 2 * (-2 * K * d + 2 * K + d * m - 2 * m) ** 2))
-    omega2 = (-4 * (d - 1) ** 2 * (d * m - 2 * K * d - 2 * m)
-              / ((d - 2) ** 2 * (-2 * K * d + 2 * K + d * m - 2 * m)))
+    # s = (2 - d)(R* - m) > 0 at an admissible point; u > 0 always
+    s = 2 * K * (1 - d) - m * (2 - d)
+    u = 2 * K * d + m * (2 - d)
+    critical = (2 * (1 - d) * u * (4 * (1 - d) + d * m * (2 - d) - 2 * K * d * (1 - d))
+                / (d * (2 - d) ** 2 * s**2))
+    omega2 = 4 * (1 - d) ** 2 * u / ((2 - d) ** 2 * s)
     return Case(
         name="foodchain",
         description="Three-species food chain (resource, consumer, predator with a "
