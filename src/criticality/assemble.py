@@ -162,6 +162,15 @@ class _Details:
         return tuple(_conj_expr(self.B, x, self.omega) for x in self.bc.eigenbasis.pbar)
 
 
+def _sqrt(expr):
+    """``sqrt(expr)`` without sympy's attempt to split a large product into
+    factors of known sign (which queries assumptions on every factor and took
+    seconds on results of a few thousand terms)."""
+    if expr.is_Number or expr.is_Symbol or expr.is_Pow:
+        return sympy.sqrt(expr)
+    return sympy.Pow(expr, sympy.S.Half, evaluate=False)
+
+
 def _omega(B, W):
     """``sqrt(W)`` without absolute values: the root of a square is taken in
     the field when its sign is known (``W = A**2``, ``A > 0`` gives ``A``), and
@@ -172,10 +181,15 @@ def _omega(B, W):
         root = None
     if root is not None:
         return B.expr(root)
-    fs = B.fs(W)
+    return _factored_sqrt(B.fs(W), B.expr(W))
+
+
+def _factored_sqrt(fs, expr):
+    """``sqrt`` of a factored expression: factors of known sign and even
+    multiplicity come out, the rest stays under the root."""
     if fs.sign == UNKNOWN and not fs.factors:
-        return sympy.sqrt(B.expr(W))
-    outside, inside = [], [fs.constant]
+        return _sqrt(expr)
+    outside, inside, below = [], [fs.constant.p], [fs.constant.q]
     for f in fs.factors:
         known = f.sign in (POSITIVE, NONNEGATIVE)
         half, odd = divmod(f.multiplicity, 2) if known else (0, f.multiplicity)
@@ -183,8 +197,8 @@ def _omega(B, W):
         if half:
             outside.append(f.expr ** (half * power))
         if odd:
-            inside.append(f.expr ** (odd * power))
-    return sympy.Mul(*outside) * sympy.sqrt(sympy.Mul(*inside))
+            (below if f.in_denominator else inside).append(f.expr ** odd)
+    return sympy.Mul(*outside) * _sqrt(sympy.Mul(*inside)) / _sqrt(sympy.Mul(*below))
 
 
 def _conj_expr(B, x, omega):
@@ -209,8 +223,10 @@ def _cycle(B, model, bc, omega, verdict, stab, mu):
     if k is not None:
         for name, a, v in zip(model.states, eb.Av, eb.v):
             kj = 4 * k * (a * a + eb.W * v * v) / eb.qq
-            coeffs[name] = B.expr(kj)
-            amps[name] = sympy.sqrt(coeffs[name] * offset)
+            fs = B.fs(kj)
+            coeffs[name] = fs.as_expr()
+            amps[name] = _factored_sqrt(fs, coeffs[name]) * _sqrt(offset) if kj else \
+                sympy.Integer(0)
         fs_k = _raw(B.tower, k, B.ctx)
         side = {POSITIVE: "above", NEGATIVE: "below"}.get(fs_k.sign, "undecided")
         rho2 = B.expr(k) * offset

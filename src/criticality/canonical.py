@@ -27,7 +27,9 @@ def factored(tower, x, ctx: SignContext, *, restore: bool = True) -> FactoredSig
     the field's placeholder symbols (as the sign context knows them)."""
     x = lower(x)
     if isinstance(x, QuadraticElement):
-        expr = tower.to_sympy(x)
+        expr = canonical_expr(tower, x, ctx)
+        if not restore and tower.atoms:
+            expr = expr.xreplace({a.expr: a.symbol for a in tower.atoms})
         return FactoredSign(sympy.Integer(1), (FactorSign(expr, 1, False, UNKNOWN),), UNKNOWN)
     K = tower.base
     x = K(x)

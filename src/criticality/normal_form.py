@@ -63,24 +63,32 @@ def complexify(reduced, N, order: int) -> dict:
     return {m: c for m, c in G.items() if c}
 
 
-def _compose(G, H, Hb, order):
+def _compose(G, H, Hb, order, keep=None):
+    """The terms of total degree ``order`` of ``G(H, Hb)`` (only the monomials
+    in ``keep``, if given).  ``H`` starts at degree one, so ``H^j`` is only
+    needed up to degree ``order - l`` when it is to be multiplied by
+    ``Hb^l``."""
     out: dict = {}
     cache: dict = {}
 
-    def power(which, k):
-        key = (which, k)
+    def power(which, k, top):
+        key = (which, k, top)
         if key not in cache:
             base = H if which == 0 else Hb
-            cache[key] = base if k == 1 else poly_mul(power(which, k - 1), base, order)
+            cache[key] = {m: c for m, c in base.items() if sum(m) <= top} if k == 1 else \
+                poly_mul(power(which, k - 1, top - 1), base, top)
         return cache[key]
 
     for (j, l), c in G.items():
-        term = {(0, 0): c}
-        if j:
-            term = poly_mul(term, power(0, j), order)
-        if l:
-            term = poly_mul(term, power(1, l), order)
-        _add_into(out, term)
+        if j + l > order:
+            continue
+        if j and l:
+            term = poly_mul(power(0, j, order - l), power(1, l, order - j), order, True, keep)
+        else:
+            term = power(0, j, order) if j else power(1, l, order)
+            term = {m: v for m, v in term.items() if sum(m) == order
+                    and (keep is None or m in keep)}
+        _add_into(out, {m: c * v for m, v in term.items()})
     return out
 
 
@@ -101,14 +109,16 @@ def planar_normal_form(G, N, order: int):
     Nf: dict = {}
     for d in range(2, order + 1):
         Hb = _conj_poly(H)
-        rhs = {m: c for m, c in _compose(G, H, Hb, d).items() if sum(m) == d}
+        # at the last degree only the resonant coefficient is wanted
+        keep = {((d + 1) // 2, (d - 1) // 2)} if d == order else None
+        rhs = _compose(G, H, Hb, d, keep)
         if Nf:
             Hw = _derivative(H, 0)
             Hw.pop((0, 0), None)
             Hwb = _derivative(H, 1)
             corr: dict = {}
-            _add_into(corr, poly_mul(Hw, Nf, d))
-            _add_into(corr, poly_mul(Hwb, _conj_poly(Nf), d))
+            _add_into(corr, poly_mul(Hw, Nf, d, True, keep))
+            _add_into(corr, poly_mul(Hwb, _conj_poly(Nf), d, True, keep))
             for m, c in corr.items():
                 if sum(m) == d:
                     rhs[m] = rhs[m] - c if m in rhs else -c

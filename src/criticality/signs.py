@@ -115,6 +115,7 @@ class SignContext:
         self._kinds = [self.assumptions[s] for s in self._symbols] + ["positive"] * _SLACK
         self._subs = None
         self._sides = None
+        self._flint_signs: dict = {}
 
     def with_conditions(self, conditions) -> "SignContext":
         return SignContext(self.assumptions, self.side_conditions + tuple(conditions))
@@ -276,8 +277,12 @@ class SignContext:
         items = [(f, int(m), False) for f, m in fn] + [(f, int(m), True) for f, m in fd]
         decided = []
         for f, m, in_den in items:
-            emb = self.poly_from_flint(f, K.symbols)
-            s = self.polynomial_sign(emb) if emb is not None else UNKNOWN
+            key = (K.symbols, str(f))
+            s = self._flint_signs.get(key)
+            if s is None:
+                emb = self.poly_from_flint(f, K.symbols)
+                s = self._flint_signs[key] = self.polynomial_sign(emb) if emb is not None \
+                    else UNKNOWN
             decided.append((K.poly_to_sympy(f), m, in_den, s))
         return self.assemble(sympy.Rational(int(cn), int(cd)), decided)
 
@@ -294,7 +299,9 @@ class SignContext:
                 # an even power of a factor of unknown sign stays marked unknown
                 # (its square root is not the factor itself)
             if s in (NEGATIVE, NONPOSITIVE):
-                f, constant, s = sympy.expand(-f), constant * (-1) ** m, _NEG[s]
+                f, constant, s = -f, constant * (-1) ** m, _NEG[s]
+            elif s == UNKNOWN and f.could_extract_minus_sign():
+                f, constant = -f, constant * (-1) ** m  # print with a leading +
             out.append(FactorSign(f, m, in_den, s))
         out.sort(key=lambda f: (f.sign == UNKNOWN, f.in_denominator, len(f.expr.args)))
         return FactoredSign(sympy.Rational(constant), tuple(out), total)

@@ -289,14 +289,22 @@ def _poly_power(polys, j, k, order, cache):
     return cache[key]
 
 
-def poly_mul(p: dict, q: dict, order: int) -> dict:
-    """Product of two bivariate dicts truncated at total degree ``order``."""
+def poly_mul(p: dict, q: dict, order: int, exact: bool = False, keep=None) -> dict:
+    """Product of two bivariate dicts truncated at total degree ``order``.
+
+    With ``exact`` only the terms of total degree ``order`` are formed, and
+    ``keep`` (a set of exponent pairs) restricts them further: the wanted
+    coefficients are computed without the rest of the product.
+    """
     out: dict = {}
     for (a, b), c in p.items():
         for (d, e), f in q.items():
-            if a + b + d + e > order:
+            deg = a + b + d + e
+            if deg > order or (exact and deg < order):
                 continue
             m = (a + d, b + e)
+            if keep is not None and deg == order and m not in keep:
+                continue
             v = c * f
             out[m] = out[m] + v if m in out else v
     return out

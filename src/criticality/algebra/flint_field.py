@@ -185,6 +185,7 @@ class FlintRationalFunctionField(Field):
         self.zero = RationalFunction(self._zero_poly, self._one_poly, self)
         self.one = RationalFunction(self._one_poly, self._one_poly, self)
         self.gens = tuple(RationalFunction(g, self._one_poly, self) for g in self.ctx.gens())
+        self._sympy_cache: dict = {}
 
     # -- element construction ----------------------------------------------------
     def _normalised(self, num, den, reduced: bool = False) -> RationalFunction:
@@ -230,7 +231,16 @@ class FlintRationalFunctionField(Field):
 
     # -- conversion back --------------------------------------------------------------
     def poly_to_sympy(self, poly) -> sympy.Expr:
-        """A ``fmpz_mpoly`` of this context as a sympy expression (one Add)."""
+        """A ``fmpz_mpoly`` of this context as a sympy expression (one Add).
+
+        Conversions are cached: the same factor occurs in many results."""
+        key = str(poly)
+        hit = self._sympy_cache.get(key)
+        if hit is None:
+            hit = self._sympy_cache[key] = self._poly_to_sympy(poly)
+        return hit
+
+    def _poly_to_sympy(self, poly) -> sympy.Expr:
         syms = self.symbols
         terms = []
         for monom, coeff in poly.to_dict().items():
