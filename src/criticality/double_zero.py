@@ -36,7 +36,7 @@ import sympy
 
 from ._analysis_setup import expr, prepare, sign_word, solve_for
 from ._renderers import render_json, render_latex, render_text
-from .algebra.linalg import kernel, matvec, solve_consistent, transpose
+from .algebra.linalg import dot, kernel, matvec, solve_consistent, transpose
 from .errors import DegenerateBifurcationError, NoHopfPointError
 from .linear import characteristic_polynomial
 
@@ -90,14 +90,6 @@ class BogdanovTakensResult:
         return self.summary()
 
 
-def _dot(K, a, b):
-    acc = K.zero
-    for x, y in zip(a, b):
-        if x and y:
-            acc = acc + x * y
-    return acc
-
-
 def _chain(K, M, top):
     """``x`` with ``M x = top`` and ``top . x = 0`` (unique for a Jordan chain)."""
     rows = [list(r) for r in M] + [list(top)]
@@ -119,13 +111,13 @@ def generalised_eigenvectors(K, A):
     except Exception as exc:  # noqa: BLE001 - no chain: the zero eigenvalue is simple
         raise DegenerateBifurcationError("the zero eigenvalue is simple (no Jordan chain): a fold, not a "
                                   "Bogdanov-Takens point", reason="zero_eigenvalue") from exc
-    s = _dot(K, p1, q1)
+    s = dot(K, p1, q1)
     if not s:
         raise DegenerateBifurcationError("the zero eigenvalue has multiplicity above two (a triple zero)",
                                   reason="double_zero")
     p1 = [x / s for x in p1]
     p0 = [x / s for x in p0]
-    tau = -_dot(K, p0, q1)
+    tau = -dot(K, p0, q1)
     q1 = [a + tau * b for a, b in zip(q1, q0)]
     return q0, q1, p0, p1
 
@@ -172,8 +164,8 @@ def _point(prep, sp1, sp2, names):
         raise DegenerateBifurcationError("a third eigenvalue is zero", reason="double_zero")
     q0, q1, p0, p1 = generalised_eigenvectors(K, A)
     Bq0q0 = taylor.form(2, q0, q0)
-    a = _dot(K, p1, Bq0q0) / 2
-    b = _dot(K, p0, Bq0q0) + _dot(K, p1, taylor.form(2, q0, q1))
+    a = dot(K, p1, Bq0q0) / 2
+    b = dot(K, p0, Bq0q0) + dot(K, p1, taylor.form(2, q0, q1))
     target = sp2.target
     ctx = prep.context(target)
     E = lambda x: expr(target, x, ctx)  # noqa: E731

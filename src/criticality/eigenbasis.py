@@ -24,7 +24,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from .algebra.linalg import kernel, matmul, matvec, transpose
+from .algebra.linalg import dot, kernel, matmul, matvec, transpose
 from .errors import DegenerateHopfError
 
 __all__ = ["Eigenbasis", "critical_eigenbasis"]
@@ -72,18 +72,10 @@ class Eigenbasis:
         """Coordinates ``(xi1, xi2)`` of the center part of a real vector ``y``
         in the basis ``(e1, e2) = (A v, -v)``."""
         K = self.field
-        r1 = _dot(K, self.w, y)
-        r2 = _dot(K, self.wA, y)
+        r1 = dot(K, self.w, y)
+        r2 = dot(K, self.wA, y)
         (a11, a12), (a21, a22), det = self.gram
         return (a22 * r1 - a12 * r2) / det, (a11 * r2 - a21 * r1) / det
-
-
-def _dot(K, a, b):
-    acc = K.zero
-    for x, y in zip(a, b):
-        if x and y:
-            acc = acc + x * y
-    return acc
 
 
 def _smallest(K, vectors):
@@ -125,9 +117,9 @@ def critical_eigenbasis(K, A, W, nu_field) -> Eigenbasis:
                                   "+-i omega is not simple", reason="two_critical_pairs")
     inv = 1 / norm
     pbar = [x * inv for x in pbar]
-    qq = _dot(K, Av, Av) + W * _dot(K, v, v)
+    qq = dot(K, Av, Av) + W * dot(K, v, v)
     e2 = [-x for x in v]
-    a11, a12 = _dot(K, w, Av), _dot(K, w, e2)
-    a21, a22 = _dot(K, wA, Av), _dot(K, wA, e2)
+    a11, a12 = dot(K, w, Av), dot(K, w, e2)
+    a21, a22 = dot(K, wA, Av), dot(K, wA, e2)
     gram = ((a11, a12), (a21, a22), a11 * a22 - a12 * a21)
     return Eigenbasis(A, A2, W, v, Av, q, pbar, w, wA, qq, K, nu_field, gram)

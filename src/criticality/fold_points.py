@@ -41,7 +41,7 @@ import sympy
 
 from ._analysis_setup import expr, prepare, sign_word, solve_for
 from ._renderers import render_json, render_latex, render_text
-from .algebra.linalg import determinant, kernel, matvec, solve, transpose
+from .algebra.linalg import determinant, dot, kernel, matvec, solve, transpose
 from .errors import DegenerateBifurcationError, NoHopfPointError
 
 __all__ = ["FoldResult", "fold", "fold_all", "FOLD_CONVENTIONS"]
@@ -111,14 +111,6 @@ def _f_mu(model, choice, mu):
     return out
 
 
-def _dot(K, a, b):
-    acc = K.zero
-    for x, y in zip(a, b):
-        if x and y:
-            acc = acc + x * y
-    return acc
-
-
 def _null_vectors(K, A):
     right, left = kernel(K, A), kernel(K, transpose(A))
     if len(right) != 1:
@@ -126,7 +118,7 @@ def _null_vectors(K, A):
             f"the Jacobian has a {len(right)}-dimensional kernel at this point; a simple zero "
             "eigenvalue was expected", reason="double_zero")
     q, p = right[0], left[0]
-    s = _dot(K, p, q)
+    s = dot(K, p, q)
     if not s:
         raise DegenerateBifurcationError(
             "the zero eigenvalue is not simple (<p, q> = 0: a Jordan block, as at a "
@@ -143,7 +135,7 @@ def _cubic(K, A, taylor, q, p, a):
     h2 = [row[0] for row in solve(K, M, rhs)[:n]]
     Cqqq = taylor.form(3, q, q, q)
     Bqh = taylor.form(2, q, h2)
-    return _dot(K, p, [c + 3 * b for c, b in zip(Cqqq, Bqh)]) / 6
+    return dot(K, p, [c + 3 * b for c, b in zip(Cqqq, Bqh)]) / 6
 
 
 def _is_odd(taylor) -> bool:
@@ -188,13 +180,13 @@ def _analyse(prep, sp, unknown, mu):
     taylor = prep.taylor.map(sp.substitute, K)
     A = taylor.jacobian()
     q, p = _null_vectors(K, A)
-    a = _dot(K, p, taylor.form(2, q, q)) / 2
-    t = _dot(K, p, [sp.substitute(x) for x in prep.extra])
+    a = dot(K, p, taylor.form(2, q, q)) / 2
+    t = dot(K, p, [sp.substitute(x) for x in prep.extra])
     speed = None
     if unknown == mu:
         dA = [[sp.substitute(prep.tower.derivative(x, mu)) if x else K.zero for x in row]
               for row in prep.taylor.jacobian()]
-        speed = _dot(K, p, matvec(K, dA, q))
+        speed = dot(K, p, matvec(K, dA, q))
     d = _cubic(K, A, taylor, q, p, a) if taylor.order >= 3 else K.zero
     signs = {"a": sign_word(target, a, ctx), "t": sign_word(target, t, ctx),
              "d": sign_word(target, d, ctx), "at": sign_word(target, a * t, ctx)}

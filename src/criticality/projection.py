@@ -19,7 +19,7 @@ vector), and ``(2 nu I - A) h = r`` as
 
 from __future__ import annotations
 
-from .algebra.linalg import SingularMatrixError, matvec, solve, solve_vector
+from .algebra.linalg import SingularMatrixError, dot, matvec, solve, solve_vector
 from .errors import DegenerateHopfError
 
 __all__ = ["projection_c1", "solve_shifted"]
@@ -60,14 +60,6 @@ def solve_shifted(eb, m: int, r):
     return [N.element(-(ax - mW * y), -(m * x + ay)) for ax, y, x, ay in zip(AX, Y, X, AY)]
 
 
-def _inner(N, pbar, vec):
-    acc = N.zero
-    for a, b in zip(pbar, vec):
-        if a and b:
-            acc = acc + a * b
-    return acc
-
-
 def projection_c1(taylor, eb):
     """``c1`` for the eigenvector ``q`` of ``eb`` (not normalised): divide by
     ``<q, q>`` for the unit-eigenvector convention."""
@@ -79,7 +71,7 @@ def projection_c1(taylor, eb):
     Cqqqb = taylor.form(3, q, q, qbar)
     h11 = solve_shifted(eb, 0, [N(x) for x in Bqqb])  # = -A^{-1} B(q, conj q)
     h20 = solve_shifted(eb, 2, [N(x) for x in Bqq])   # = (2 nu - A)^{-1} B(q, q)
-    t1 = _inner(N, eb.pbar, Cqqqb)
-    t2 = _inner(N, eb.pbar, taylor.form(2, q, h11))
-    t3 = _inner(N, eb.pbar, taylor.form(2, qbar, h20))
+    t1 = dot(N, eb.pbar, Cqqqb)
+    t2 = dot(N, eb.pbar, taylor.form(2, q, h11))
+    t3 = dot(N, eb.pbar, taylor.form(2, qbar, h20))
     return (t1 + t3) / 2 + t2

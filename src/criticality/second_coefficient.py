@@ -38,7 +38,7 @@ re-derived (the coefficient of ``z^j conj(z)^k / (j! k!)`` in
 
 from __future__ import annotations
 
-from .algebra.linalg import SingularMatrixError, solve
+from .algebra.linalg import SingularMatrixError, dot, solve
 from .errors import DegenerateHopfError
 
 __all__ = ["formula_c1_c2"]
@@ -51,13 +51,6 @@ def _lin(*terms):
         v = [coeff * x for x in vec]
         out = v if out is None else [a + b for a, b in zip(out, v)]
     return out
-
-
-def _inner(N, pbar, v):
-    acc = N.zero
-    for a, b in zip(pbar, v):
-        acc = acc + a * b
-    return acc
 
 
 def _shifted_solve(eb, m, r):
@@ -102,7 +95,7 @@ def formula_c1_c2(taylor, eb):
     h11 = _shifted_solve(eb, 0, B(q, qb))
     h02 = conj(h20)
     r21 = _lin((1, C(q, q, qb)), (1, B(qb, h20)), (2, B(q, h11)))
-    G21 = _inner(N, pbar, r21)
+    G21 = dot(N, pbar, r21)
     h30 = _shifted_solve(eb, 3, _lin((1, C(q, q, q)), (3, B(q, h20))))
     h21 = _bordered(eb, _lin((1, r21), (-G21, q)))
     h12 = conj(h21)
@@ -113,7 +106,7 @@ def formula_c1_c2(taylor, eb):
         (1, D(q, q, qb, qb)), (4, C(q, qb, h11)), (1, C(qb, qb, h20)), (1, C(q, q, h02)),
         (2, B(h11, h11)), (2, B(q, h12)), (2, B(qb, h21)), (1, B(h20, h02)),
         (-2 * (G21 + G21.conjugate()), h11)))
-    G32 = _inner(N, pbar, _lin(
+    G32 = dot(N, pbar, _lin(
         (1, E(q, q, q, qb, qb)), (1, D(q, q, q, h02)), (6, D(q, q, qb, h11)),
         (3, D(q, qb, qb, h20)), (1, C(qb, qb, h30)), (3, C(q, q, h12)), (6, C(q, qb, h21)),
         (3, C(q, h20, h02)), (6, C(q, h11, h11)), (6, C(qb, h20, h11)), (2, B(qb, h31)),

@@ -19,6 +19,7 @@ __all__ = [
     "identity",
     "matmul",
     "matvec",
+    "dot",
     "transpose",
     "solve",
     "kernel",
@@ -58,6 +59,15 @@ def matmul(K, A, B):
                     acc[j] = acc[j] + a * b
         out.append(acc)
     return out
+
+
+def dot(K, a, b):
+    """``sum a_i b_i`` (no conjugation), skipping zero entries."""
+    acc = K.zero
+    for x, y in zip(a, b):
+        if x and y:
+            acc = acc + x * y
+    return acc
 
 
 def matvec(K, A, v):
