@@ -117,6 +117,25 @@ def _solutions(tower_mu, mu, d):
     return [o for o in out if o is not None]
 
 
+def linear_alternatives(tower_mu, mu, d) -> list:
+    """Names of other parameters in which every factor of ``d`` that is not
+    linear in ``mu`` is linear: analysing the Hopf set with respect to one of
+    them gives it in closed form without square roots."""
+    K = tower_mu.base
+    d = lower(d)
+    if isinstance(d, QuadraticElement) or not isinstance(K, FlintRationalFunctionField):
+        return []
+    candidates = None
+    atoms = {a.symbol for a in tower_mu.atoms}
+    for poly, _m in K(d).num.factor()[1]:
+        degrees = dict(zip(K.symbols, poly.degrees()))
+        if degrees.get(mu, 0) <= 1:
+            continue
+        linear = {s for s, k in degrees.items() if k == 1 and s != mu and s not in atoms}
+        candidates = linear if candidates is None else candidates & linear
+    return sorted(str(s) for s in candidates or ())
+
+
 def _classify(c, expr):
     deg = len(c) - 1
     if deg == 0:
@@ -215,7 +234,15 @@ def find_critical_branches(tower_mu, mu, chi, *, describe=str):
                          "eigenvalues for every parameter value (a conservative part); it is "
                          "not a crossing")
             continue
-        for sol in _solutions(tower_mu, mu, d):
+        solutions = _solutions(tower_mu, mu, d)
+        if any(kind != "linear" for kind, _ in solutions):
+            others = linear_alternatives(tower_mu, mu, d)
+            if others:
+                notes.append(f"the critical set is not linear in {describe(mu)} (its critical "
+                             "value needs a square root or has no closed form) but it is linear "
+                             f"in {', '.join(map(repr, others))}: an analysis with respect to "
+                             "one of those gives the Hopf set without radicals")
+        for sol in solutions:
             if sol[0] == "unsolved":
                 notes.append(f"critical values where {sol[1]} = 0 have no closed form in "
                              f"{describe(mu)} (degree > 2); they were not analysed")
