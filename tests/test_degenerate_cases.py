@@ -57,11 +57,22 @@ def test_two_critical_pairs():
 
 
 def test_l1_identically_zero():
-    """A linear rotation has l1 = 0: the result says degenerate."""
+    """A linear rotation has l1 = l2 = 0: the result says degenerate."""
     m = _model({"x": "mu*x - y", "y": "x + mu*y"})
     r = hopf(m, "mu", equilibrium=ORIGIN2)
-    assert r.classification == "degenerate" and r.l1 == 0
-    assert "next Lyapunov coefficient" in r.verdict
+    assert r.classification == "degenerate" and r.l1 == 0 and r.l2 == 0
+    assert "l1 = l2 = 0 identically" in r.verdict
+
+
+def test_l2_decides_where_l1_vanishes_identically():
+    """With only a quintic term, l1 = 0 and the engine goes on to l2 by itself
+    (l2 = 4a for this planar normal form: see test_higher_order)."""
+    m = Model(states=["x", "y"], equations={"x": "mu*x - y + a*x*(x^2 + y^2)^2",
+                                            "y": "x + mu*y + a*y*(x^2 + y^2)^2"},
+              parameters={"mu": "real", "a": "real"})
+    r = hopf(m, "mu", equilibrium=ORIGIN2)
+    assert r.l1 == 0 and r.l2 == 4 * m.symbols["a"]
+    assert r.verdict.startswith("l1 = 0 identically; by l2: supercritical exactly where a < 0")
 
 
 def test_parameter_absent():

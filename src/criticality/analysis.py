@@ -133,6 +133,12 @@ def _analyse(model, parameter, equilibrium, eliminate, order, values, assume, ba
     out = run_engine(problem, select=select)
     results = [build_result(model, name, mu, choice, out, bc, assumptions, params)
                for bc in out.branches]
+    if order == 3 and any(r is not None and r.l1 == 0 for r in results):
+        # l1 vanishes identically: the second coefficient decides
+        problem = replace(problem, order=5)
+        out = run_engine(problem, select=select)
+        results = [build_result(model, name, mu, choice, out, bc, assumptions, params)
+                   for bc in out.branches]
     if any(r is None for r in results):
         raise NoHopfPointError(
             "omega^2 <= 0 on this branch under the declared assumptions: the two eigenvalues "

@@ -11,6 +11,8 @@ canonical factored form (:mod:`criticality.canonical`).
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 import sympy
 
 from .algebra.quadratic import lower
@@ -113,6 +115,8 @@ def build_result(model, name, mu, choice, out, bc, assumptions, params):
     re_c1, im_c1_nu = lower(c1.a), lower(c1.b)
     fs_l1 = factored(tower, re_c1, ctx)
     verdict = classify(fs_l1)
+    if verdict.classification == "degenerate":
+        verdict = _higher_verdict(tower, ctx, bc.c_center, verdict)
     re_c1_expr = fs_l1.as_expr()
     im_c1_expr = B.expr(im_c1_nu) * omega
     lyap = tuple(B.expr(lower(c.a)) / omega for c in bc.c_center)
@@ -199,6 +203,24 @@ def _factored_sqrt(fs, expr):
         if odd:
             (below if f.in_denominator else inside).append(f.expr ** odd)
     return sympy.Mul(*outside) * _sqrt(sympy.Mul(*inside)) / _sqrt(sympy.Mul(*below))
+
+
+def _higher_verdict(tower, ctx, coefficients, verdict):
+    """Where l1 vanishes identically, the first Lyapunov coefficient that does
+    not vanish decides (it is invariant there)."""
+    for k, c in enumerate(coefficients[1:], start=2):
+        fs = factored(tower, lower(c.a), ctx)
+        if fs.sign == ZERO or fs.constant == 0:
+            continue
+        higher = classify(fs, coefficient=f"l{k}")
+        vanish = "l1" if k == 2 else f"l1 = ... = l{k - 1}"
+        text = f"{vanish} = 0 identically; by l{k}: {higher.text}"
+        return replace(higher, text=text)
+    if len(coefficients) < 2:
+        return verdict
+    vanish = "l1 = l2" if len(coefficients) == 2 else f"l1 = ... = l{len(coefficients)}"
+    return replace(verdict, text=f"degenerate: {vanish} = 0 identically; a higher order "
+                   "(order=...) decides, if any does")
 
 
 def _conj_expr(B, x, omega):
