@@ -105,12 +105,16 @@ def build_result(model, name, mu, choice, out, bc, assumptions, params):
                            "d lambda / d mu != 0", B.expr(beta1), "!=",
                            _status(_raw(tower, beta1, ctx), "!=")))
     stab = []
-    for k, d in enumerate(cofactor_hurwitz(br), start=1):
+    for label, d in cofactor_hurwitz(br):
         st = _status(_raw(tower, d, ctx))
         stab.append(st)
-        conds.append(Condition(f"others_stable_{k}", f"Hurwitz determinant {k} of the remaining "
-                               "eigenvalues is positive (all of them together: the other "
-                               "eigenvalues lie in the left half-plane)", B.expr(d), ">", st))
+        which = label.split("_")
+        what = (f"Hurwitz determinant {which[-1]} of factor {which[0]} of the remaining "
+                "characteristic polynomial" if len(which) == 2 else
+                f"Hurwitz determinant {label} of the remaining characteristic polynomial")
+        conds.append(Condition(f"others_stable_{label}", f"{what} is positive (all of them "
+                               "together: the other eigenvalues lie in the left half-plane)",
+                               B.expr(d), ">", st))
     c1 = bc.c_center[0]
     re_c1, im_c1_nu = lower(c1.a), lower(c1.b)
     fs_l1 = factored(tower, re_c1, ctx)

@@ -17,14 +17,14 @@ transversality is ``d lambda / d mu = -phi_mu / phi_lambda`` at
 
 from __future__ import annotations
 
+import random
 from dataclasses import dataclass
 
+import flint
 import sympy
 
-import flint
-
 from .algebra import upoly
-from .algebra.flint_field import FlintRationalFunctionField
+from .algebra.flint_field import FlintRationalField, FlintRationalFunctionField
 from .algebra.quadratic import QuadraticElement, QuadraticExtension, lower
 from .errors import DegenerateHopfError, NoHopfPointError
 from .linear import factor_univariate, hurwitz_determinant, hurwitz_determinants
@@ -83,6 +83,7 @@ class CriticalBranch:
     transversality: tuple  # (Re d lambda/d mu, coefficient b of nu in d lambda/d mu)
     nu_field: object
     images: dict
+    cofactor_factors: tuple = ()
 
 
 def nu_extension(tower, W):
@@ -150,15 +151,16 @@ def _classify(c, expr):
 def _branch_values(tower_mu, mu, solution):
     """``[(value, target tower)]`` for one solution."""
     kind, data = solution
-    target = tower_mu.fresh()
+    target = tower_mu.fresh(drop=mu)
     if kind == "linear":
-        return [(data, target)]
-    c2, c1, c0 = data
-    s = target.sqrt(c1 * c1 - 4 * c2 * c0)
-    out = [((-c1 + s) / (2 * c2), target)]
-    other = tower_mu.fresh()
-    s2 = other.sqrt(c1 * c1 - 4 * c2 * c0)
-    out.append(((-c1 - s2) / (2 * c2), other))
+        return [(target.project(data), target)]
+    out = []
+    for sign in (1, -1):
+        if sign == -1:
+            target = tower_mu.fresh(drop=mu)
+        c2, c1, c0 = (target.project(c) for c in data)
+        s = target.sqrt(c1 * c1 - 4 * c2 * c0)
+        out.append(((-c1 + sign * s) / (2 * c2), target))
     return out
 
 
@@ -217,17 +219,91 @@ def pair_sum_condition(tower, f):
     return K.from_polynomials(K.ctx.from_dict(data), K._one_poly) if data else K.zero
 
 
-def find_critical_branches(tower_mu, mu, chi, *, describe=str):
-    """All closed-form branches of the critical set.
+def _pair_sums_vanish(tower, coeffs) -> bool:
+    """Whether two roots of the polynomial sum to zero for every parameter
+    value.  A non-zero Hurwitz determinant at a random integer point settles it
+    in milliseconds; only when that is zero is the exact condition computed."""
+    K = tower.base
+    low = [lower(c) for c in coeffs]
+    if isinstance(K, FlintRationalFunctionField) and not any(
+            isinstance(c, QuadraticElement) for c in low):
+        rng = random.Random(len(coeffs))
+        Q = FlintRationalField()
+        for _ in range(2):
+            point = [rng.randint(-10 ** 6, 10 ** 6) for _ in K.symbols]
+            try:
+                values = [Q(flint.fmpq(c.num(*point)) / flint.fmpq(c.den(*point)))
+                          for c in (K(x) for x in low)]
+            except ZeroDivisionError:
+                continue
+            if hurwitz_determinant(Q, values, len(values) - 2):
+                return False
+    return not pair_sum_condition(tower, coeffs)
 
-    Returns ``(branches, notes)``; raises :class:`NoHopfPointError` when no
-    branch exists and :class:`DegenerateHopfError` when the only branches are
-    degenerate.
+
+def find_critical_branches(tower_mu, mu, chi, *, describe=str, accept=None, want=None):
+    """The closed-form branches of the critical set.
+
+    Candidates are examined in a fixed order: critical values that need no
+    new square root first, then by the degree of the factor that carries the
+    pair.  ``accept(branch)`` may reject a branch (e.g. omega^2 provably <= 0);
+    with ``want`` the search stops after that many accepted branches (the
+    others can be expensive: square roots make every later element a pair).
+
+    Returns ``(branches, notes, degenerate, unexamined)``; raises
+    :class:`NoHopfPointError` when no branch exists and
+    :class:`DegenerateHopfError` when the only branches are degenerate.
     """
     notes, branches, degenerate = [], [], []
-    K = tower_mu.top
-    candidates = []
-    for f in _pair_carriers(factor_univariate(tower_mu, chi)):
+    factors = factor_univariate(tower_mu, chi)
+    candidates = _candidates(tower_mu, mu, factors, describe, notes)
+    examined = rejected = 0
+    for f, value, target in candidates:
+        if want is not None and len(branches) >= want:
+            break
+        examined += 1
+        try:
+            branch = _make_branch(tower_mu, mu, chi, f, value, target, len(branches), factors)
+        except DegenerateHopfError as exc:
+            degenerate.append(exc)
+            continue
+        except ZeroDivisionError:
+            notes.append(f"a candidate critical value ({tower_mu.to_sympy(value)}) makes the "
+                         "characteristic polynomial undefined (a denominator vanishes); skipped")
+            continue
+        if branch is None:
+            continue
+        if accept is not None and not accept(branch):
+            rejected += 1
+            continue
+        branches.append(branch)
+    if rejected:
+        notes.append(f"{rejected} branch(es) of the critical set have omega^2 <= 0 (neutral "
+                     "saddles) and were dropped")
+    unexamined = len(candidates) - examined
+    if unexamined:
+        notes.append(f"{unexamined} further candidate critical value(s) were not examined "
+                     "(hopf_all examines every branch)")
+    if branches:
+        return branches, notes, degenerate, unexamined
+    if degenerate:
+        raise degenerate[0]
+    if not candidates:
+        raise NoHopfPointError(
+            f"no pair of eigenvalues can cross the imaginary axis as {describe(mu)} varies: "
+            "the Hurwitz determinant of the characteristic polynomial has no zero that "
+            f"depends on {describe(mu)}" + (f" ({'; '.join(notes)})" if notes else ""),
+            reason="empty_critical_set")
+    raise NoHopfPointError(
+        "on every branch of the critical set omega^2 <= 0 under the declared assumptions: "
+        "where two eigenvalues sum to zero they are a real pair +-kappa (a neutral saddle), "
+        "not a pair crossing the imaginary axis", reason="omega_squared_nonpositive")
+
+
+def _candidates(tower_mu, mu, factors, describe, notes):
+    """``(factor, critical value, target tower)`` in the order of examination."""
+    found = []
+    for f in _pair_carriers(factors):
         d = pair_sum_condition(tower_mu, f)
         if not d:
             notes.append("a factor of the characteristic polynomial has a pair of opposite "
@@ -247,35 +323,32 @@ def find_critical_branches(tower_mu, mu, chi, *, describe=str):
                 notes.append(f"critical values where {sol[1]} = 0 have no closed form in "
                              f"{describe(mu)} (degree > 2); they were not analysed")
                 continue
-            candidates.extend((f, v, t) for v, t in _branch_values(tower_mu, mu, sol))
-    for f, value, target in candidates:
-        try:
-            branch = _make_branch(tower_mu, mu, chi, f, value, target, len(branches))
-        except DegenerateHopfError as exc:
-            degenerate.append(exc)
-            continue
-        except ZeroDivisionError:
-            notes.append(f"a candidate critical value ({tower_mu.to_sympy(value)}) makes the "
-                         "characteristic polynomial undefined (a denominator vanishes); skipped")
-            continue
-        if branch is not None:
-            branches.append(branch)
-    if not branches:
-        if degenerate:
-            raise degenerate[0]
-        if not candidates:
-            raise NoHopfPointError(
-                f"no pair of eigenvalues can cross the imaginary axis as {describe(mu)} varies: "
-                "the Hurwitz determinant of the characteristic polynomial has no zero that "
-                f"depends on {describe(mu)}" + (f" ({'; '.join(notes)})" if notes else ""),
-                reason="empty_critical_set")
-        raise NoHopfPointError(
-            "the critical set is empty: where two eigenvalues sum to zero, omega^2 = 0 "
-            "identically", reason="omega_squared_nonpositive")
-    return branches, notes, degenerate
+            found.extend((sol[0] != "linear", len(f), len(found) + k, f, v, t)
+                         for k, (v, t) in enumerate(_branch_values(tower_mu, mu, sol)))
+    found.sort(key=lambda c: c[:3])
+    return [c[3:] for c in found]
 
 
-def _make_branch(tower_mu, mu, chi, f, value, target, index):
+def _cofactor_factors(factors, sub, lam2, cofactor):
+    """The cofactor ``chi / (l^2 + W)`` as a product of the factors of chi at
+    the critical value (smaller Hurwitz determinants than the whole)."""
+    if len(factors) < 2:
+        return [cofactor]
+    out, divided = [], False
+    for g, mult in factors:
+        g_at = upoly.trim([sub(c) for c in g])
+        if not divided:
+            q, r = upoly.divmod_(g_at, lam2)
+            if not r:
+                divided = True
+                if len(q) > 1:
+                    out.append(q)
+                mult -= 1
+        out.extend([g_at] * mult)
+    return out if divided else [cofactor]
+
+
+def _make_branch(tower_mu, mu, chi, f, value, target, index, factors=()):
     images = tower_mu.radical_images(mu, value, target)
     sub = lambda c: tower_mu.substitute(c, mu, value, target, images)  # noqa: E731
     f_at = [sub(c) for c in f]
@@ -307,23 +380,28 @@ def _make_branch(tower_mu, mu, chi, f, value, target, index):
         raise DegenerateHopfError(
             "at this critical value the pair +-i omega is a double eigenvalue (1:1 resonance)",
             reason="two_critical_pairs")
-    if len(cofactor) > 2 and not hurwitz_determinant(target.top, cofactor, len(cofactor) - 2):
+    if len(cofactor) > 2 and _pair_sums_vanish(target, cofactor):
         raise DegenerateHopfError(
             "at this critical value a second pair of eigenvalues sums to zero; it may lie on "
             "the imaginary axis too (double Hopf) or be a real pair +-kappa",
             reason="two_critical_pairs")
+    parts = _cofactor_factors(factors, sub, lam2, cofactor)
     nu_field = nu_extension(target, W)
     f_mu = [sub(tower_mu.derivative(c, mu)) for c in f]
     num = upoly.evaluate(f_mu, nu_field.gen, nu_field.zero)
     den = upoly.evaluate(upoly.derivative(f_at), nu_field.gen, nu_field.zero)
     dlam = -(nu_field(num) / nu_field(den))
     return CriticalBranch(index, value, target, W, chi_at, cofactor,
-                          (dlam.a, dlam.b), nu_field, images)
+                          (dlam.a, dlam.b), nu_field, images, tuple(parts))
 
 
 def cofactor_hurwitz(branch):
-    """Hurwitz determinants of the cofactor (all positive iff the other
-    eigenvalues lie in the open left half-plane)."""
-    if len(branch.cofactor) < 2:
-        return []
-    return hurwitz_determinants(branch.tower.top, branch.cofactor)
+    """``[(label, Delta)]``: the Hurwitz determinants of each factor of the
+    cofactor; all positive iff the other eigenvalues lie in the open left
+    half-plane.  Labels are ``"k"`` (one factor) or ``"i_k"`` (factor i)."""
+    parts = [p for p in (branch.cofactor_factors or (branch.cofactor,)) if len(p) > 1]
+    out = []
+    for i, part in enumerate(parts, start=1):
+        for k, d in enumerate(hurwitz_determinants(branch.tower.top, part), start=1):
+            out.append((f"{i}_{k}" if len(parts) > 1 else f"{k}", d))
+    return out

@@ -23,7 +23,8 @@ from .center_manifold import ReducedSystem, reduce_to_center_manifold
 from .critical import CriticalBranch, find_critical_branches
 from .eigenbasis import Eigenbasis, critical_eigenbasis
 from .canonical import factored
-from .errors import NoHopfPointError, NotAnEquilibriumError, ParameterError
+from .errors import (ClosedFormUnavailableError, NoHopfPointError, NotAnEquilibriumError,
+                     ParameterError)
 from .linear import characteristic_polynomial
 from .lyapunov import complex_normal_form
 from .normal_form import complexify, planar_normal_form, unit_coefficients
@@ -93,6 +94,13 @@ def run_engine(problem: Problem, select: int | None = None) -> EngineOutput:
         equilibrium = tuple(x.xreplace(rules) for x in equilibrium)
     exprs = list(raw.coefficients()) + list(equilibrium)
     atoms = collect_atoms(exprs, problem.parameters)
+    inside = [a for a in atoms if a.has(problem.parameter)]
+    if inside:
+        raise ClosedFormUnavailableError(
+            f"the bifurcation parameter '{problem.parameter}' occurs inside {inside[0]} at the "
+            "equilibrium, so its critical value is not algebraic in closed form. Parametrise "
+            "the family by the equilibrium (eliminate=[...]) so that it occurs polynomially, "
+            "choose another bifurcation parameter, or use the numeric mode (guess={...}).")
     plain = context_for(problem.parameters, problem.assumptions)
     tower = Tower(problem.parameters, atoms, problem.backend, lambda e: truth(plain.sign(e)))
     x0 = [tower.convert(e) for e in equilibrium]
@@ -102,28 +110,19 @@ def run_engine(problem: Problem, select: int | None = None) -> EngineOutput:
     taylor_mu = TaylorForms(K, taylor_mu.n, taylor_mu.order, taylor_mu.components)
     A_mu = taylor_mu.jacobian()
     chi = characteristic_polynomial(K, A_mu)
-    branches, notes, degenerate = find_critical_branches(
-        tower, problem.parameter, chi, describe=lambda s: f"'{s}'")
     ctx = context_for(problem.parameters, problem.assumptions, tower.atoms)
-    imaginary = [b for b in branches if _may_be_positive(b, ctx)]
-    if not imaginary:
-        raise NoHopfPointError(
-            "on every branch of the critical set omega^2 <= 0 under the declared assumptions: "
-            "where two eigenvalues sum to zero they are a real pair +-kappa (a neutral saddle), "
-            "not a pair crossing the imaginary axis", reason="omega_squared_nonpositive")
-    if len(imaginary) < len(branches):
-        notes.append(f"{len(branches) - len(imaginary)} branch(es) of the critical set have "
-                     "omega^2 <= 0 (neutral saddles) and were dropped")
-    imaginary.sort(key=lambda b: (len(b.tower.levels), b.index))
-    imaginary = [replace(b, index=i) for i, b in enumerate(imaginary)]
+    branches, notes, degenerate, unexamined = find_critical_branches(
+        tower, problem.parameter, chi, describe=lambda s: f"'{s}'",
+        accept=lambda b: _may_be_positive(b, ctx),
+        want=None if select is None else select + 1)
     if select is not None:
-        if not 0 <= select < len(imaginary):
+        if not 0 <= select < len(branches):
             raise ParameterError(f"branch {select} does not exist: the critical set has "
-                                 f"{len(imaginary)} closed-form branch(es) (0 to "
-                                 f"{len(imaginary) - 1})")
-        todo = [imaginary[select]]
+                                 f"{len(branches)} closed-form branch(es) (0 to "
+                                 f"{len(branches) - 1})")
+        todo = [branches[select]]
     else:
-        todo = imaginary
+        todo = branches
     computed = []
     for b in todo:
         try:
@@ -143,7 +142,7 @@ def run_engine(problem: Problem, select: int | None = None) -> EngineOutput:
             "zero they are a real pair +-kappa (a neutral saddle), not a pair crossing the "
             "imaginary axis", reason="omega_squared_nonpositive")
     return EngineOutput(tower, chi, A_mu, tuple(computed), tuple(notes), tuple(degenerate),
-                        len(imaginary))
+                        len(branches) + unexamined)
 
 
 def _may_be_positive(branch, ctx) -> bool:

@@ -16,6 +16,7 @@ by an element of another tower (:meth:`Tower.substitute`).
 from __future__ import annotations
 
 from dataclasses import dataclass
+from fractions import Fraction
 
 import sympy
 
@@ -189,17 +190,49 @@ class Tower:
         self._atom_index = {a.expr: a for a in self.atoms}
         self._gen_index = {s: g for s, g in zip(self.base.symbols, getattr(self.base, "gens", ()))}
         self._memo: dict = {}
+        self._parent = None
 
-    def fresh(self) -> "Tower":
-        """A tower over the same base field and atoms, without extensions."""
+    def fresh(self, drop=None) -> "Tower":
+        """A tower over the same atoms, without extensions.  With ``drop`` (a
+        parameter about to be substituted) the new base field has one
+        generator fewer, so that, e.g., a numeric model becomes QQ itself and
+        its linear algebra runs in flint's ``fmpq_mat``; elements move down
+        with :meth:`project`."""
         other = object.__new__(Tower)
-        other.parameters, other.atoms, other.backend = self.parameters, self.atoms, self.backend
-        other.positivity, other.base = self.positivity, self.base
+        other.atoms, other.backend, other.positivity = self.atoms, self.backend, self.positivity
         other.levels, other._radicals, other._memo = [], [], {}
-        other._atom_index, other._gen_index = self._atom_index, self._gen_index
+        other._atom_index = self._atom_index
+        other._parent = self
+        if drop is None or drop not in self.parameters or any(
+                a.expr.has(drop) for a in self.atoms):
+            other.parameters, other.base = self.parameters, self.base
+            other._gen_index = self._gen_index
+            return other
+        other.parameters = tuple(p for p in self.parameters if p != drop)
+        other.base = make_base_field(other.parameters + tuple(a.symbol for a in self.atoms),
+                                     self.backend)
+        other._gen_index = dict(zip(other.base.symbols, getattr(other.base, "gens", ())))
         return other
 
-    # -- structure ---------------------------------------------------------------------
+    def project(self, x):
+        """An element of the parent tower's base field that does not involve
+        the dropped generator, as an element of this tower's base field."""
+        parent = getattr(self, "_parent", None)
+        if parent is None or parent.base is self.base:
+            return x
+        K, target = parent.base, self.base
+        if isinstance(K, FlintRationalFunctionField):
+            x = K(x)
+            if isinstance(target, FlintRationalField):
+                return target(Fraction(int(_constant(x.num)), int(_constant(x.den))))
+            keep = [K.symbols.index(s) for s in target.symbols]
+            num, den = (target.ctx.from_dict({tuple(m[i] for i in keep): c
+                                              for m, c in p.to_dict().items()})
+                        for p in (x.num, x.den))
+            return target.from_polynomials(num, den)
+        return target.from_sympy(K.to_sympy(K(x)))
+
+        # -- structure ---------------------------------------------------------------------
     @property
     def top(self):
         return self.levels[-1] if self.levels else self.base
@@ -378,7 +411,18 @@ def _substitute_base(K, x, symbol, value, target: Tower):
 def _reembed(K, x, target):
     if target.base is K:
         return x
+    if getattr(target, "_parent", None) is not None and target._parent.base is K:
+        return target.project(x)
     return target.convert(K.to_sympy(x))
+
+
+def _constant(poly):
+    """The value of a constant ``fmpz_mpoly``."""
+    if poly.is_zero():
+        return 0
+    if not poly.is_constant():
+        raise CriticalityError("internal: a dropped generator is still present")
+    return int(poly.coeffs()[0])
 
 
 def _horner(K, coeffs: dict, value, target: Tower):
