@@ -260,3 +260,33 @@ def test_installed_script_demo():
                           timeout=180)
     assert done.returncode == 0, done.stderr
     assert "Greenhouse heating loop" in done.stdout and done.stderr == ""
+
+
+def test_other_analyses_have_subcommands(tmp_path, capsys):
+    """fold, bautin and bogdanov-takens run from the command line through the
+    registry; the double-zero normal form x' = y, y' = b1 + b2 y + x^2 + x y
+    has a = b = 1 (Kuznetsov, Elements of Applied Bifurcation Theory, 3rd ed.,
+    2004, Section 8.4: the normal form read off)."""
+    model = tmp_path / "bt.toml"
+    model.write_text('name = "double zero"\nstates = ["x", "y"]\n[parameters]\nb1 = "real"\n'
+                     'b2 = "real"\n[equations]\nx = "y"\ny = "b1 + b2*y + x^2 + x*y"\n')
+    assert main(["bogdanov-takens", str(model), "-p", "b2", "--second", "x_eq",
+                 "--eliminate", "b1,y", "-q"]) == 0
+    out = capsys.readouterr().out
+    assert "Bogdanov-Takens point" in out and "sign of a b        positive" in out
+    assert main(["fold", str(model), "-p", "b1", "--eliminate", "b1,y", "--set", "b2=-1",
+                 "-q"]) == 0
+    assert "fold" in capsys.readouterr().out.lower()
+
+
+def test_numeric_mode_from_the_command_line(tmp_path, capsys):
+    """--guess runs the numeric mode on a model whose equilibrium has no closed
+    form (x' = y, y' = -x + mu y - x^2 y + e (exp(x) - 1 - x), solved from a
+    guess); the critical value mu = 0 is exact (common practice, no source)."""
+    model = tmp_path / "num.toml"
+    model.write_text('name = "numeric"\nstates = ["x", "y"]\n[parameters]\nmu = "real"\n'
+                     'e = { assume = "real", value = "1/10" }\n[equations]\nx = "y"\n'
+                     'y = "-x + mu*y - x^2*y + e*(exp(x) - 1 - x)"\n')
+    assert main(["analyse", str(model), "-p", "mu", "--guess", "x=0.01,y=0,mu=0.1", "-q"]) == 0
+    out = capsys.readouterr().out
+    assert "numeric" in out.lower()

@@ -20,8 +20,9 @@ Subcommands
 ``demo``
     analyse a bundled invented model and show every output
 
-plus the subcommands registered by :mod:`criticality.cli_checks` (the
-simulation check and the diagrams), when that module is present.
+plus the subcommands registered by :mod:`criticality.cli_analyses` (``fold``,
+``bautin``, ``bogdanov-takens``) and by :mod:`criticality.cli_checks` (the
+simulation check ``confirm`` and the diagrams ``plane`` and ``survey``).
 
 Exit status
 -----------
@@ -30,7 +31,9 @@ Exit status
 4 a parameter is unknown or lacks a value; 5 equilibrium problem or a vector
 field that is not analytic there; 6 no Hopf point or a degenerate one; 7 no
 closed form or a size limit; 8 a missing optional extra; 9 an output file
-exists (use ``--force``); 10 a numerical validation could not run; 70 an
+exists (use ``--force``); 10 a numerical validation could not run; 11 the
+simulation contradicts the prediction and 12 it is inconclusive (``confirm``,
+``survey``); 70 an
 internal error (a bug: rerun with ``--debug`` and report it); 130
 interrupted.  The codes 3 to 10 are the ``exit_code`` of the error classes in
 :mod:`criticality.errors`.
@@ -44,7 +47,7 @@ import traceback
 from importlib import import_module
 
 from ._cli_support import (Stage, equilibrium_choice, name_list, pairs, read_model,
-                           write_output)
+                           split_top_level, write_output)
 from .errors import CriticalityError
 
 __all__ = ["main", "build_parser", "add_analysis_options", "analyse_from_args",
@@ -94,6 +97,11 @@ def add_analysis_options(parser) -> None:
                         help="branch of the critical set (default 0)")
     parser.add_argument("--backend", choices=("flint", "sympy"), default="flint",
                         help="exact arithmetic of the parameter field (default flint)")
+    parser.add_argument("--guess", type=lambda s: pairs(split_top_level(s), "--guess"),
+                        metavar="NAME=VALUE,...",
+                        help="numeric mode for equilibria without closed form: starting values "
+                        "for every state and the parameter, e.g. --guess V=-60,m=0.05,I=10; "
+                        "the other parameters need values (--set or the model file)")
 
 
 def _point_options(parser, digits: int) -> None:
@@ -137,6 +145,11 @@ def analyse_from_args(args):
     assume = _merge(args.assume, "--assume") or None
     run = get("hopf").function
     name = args.parameter or model.bifurcation_parameter or "?"
+    guess = getattr(args, "guess", None)
+    if guess:
+        with Stage(f"numeric Hopf analysis in {name}", quiet=_quiet(args)):
+            return run(model, args.parameter, guess=guess, order=args.order, values=values,
+                       digits=max(getattr(args, "digits", 30), 15))
     with Stage(f"Hopf analysis in {name}", quiet=_quiet(args)):
         return run(model, args.parameter, equilibrium=args.equilibrium,
                    eliminate=args.eliminate, branch=args.branch, order=args.order,
@@ -205,8 +218,8 @@ def _list(args) -> int:
         needs = ", ".join(getattr(a, "needs", ()) or ())
         lines.append(f"  {a.name.ljust(width)}  {a.description}"
                      + (f" [needs: {needs}]" if needs else ""))
-    lines.append("The command line runs the Hopf analysis (analyse, report, json, evaluate); "
-                 "the others are available from Python through criticality.analyses().")
+    lines.append("The Hopf analysis runs with analyse, report, json and evaluate; the others "
+                 "with the subcommand of their name (fold, bautin, bogdanov-takens).")
     print("\n".join(lines))
     return EXIT_OK
 
@@ -228,14 +241,16 @@ def _subcommand(sub, name, handler, help_text, description, aliases=()):
 
 
 def _register_extensions(sub) -> None:
-    """Subcommands of other modules (the simulation check and the diagrams)."""
-    try:
-        cli_checks = import_module("criticality.cli_checks")
-    except ModuleNotFoundError as exc:
-        if exc.name != "criticality.cli_checks":
-            raise
-        return
-    cli_checks.register(sub)
+    """Subcommands of other modules: the analyses beyond Hopf, the simulation
+    check and the diagrams."""
+    for name in ("criticality.cli_analyses", "criticality.cli_checks"):
+        try:
+            module = import_module(name)
+        except ModuleNotFoundError as exc:
+            if exc.name != name:
+                raise
+            continue
+        module.register(sub)
 
 
 def build_parser() -> argparse.ArgumentParser:
