@@ -110,10 +110,20 @@ class ReducedSystemView:
         return (sympy.Eq(sympy.Symbol(f"{self.x}'"), -self.omega * self.y + self.f),
                 sympy.Eq(sympy.Symbol(f"{self.y}'"), self.omega * self.x + self.g))
 
+    def to_latex(self) -> str:
+        """The reduced system as a LaTeX ``aligned`` block."""
+        lx, ly = sympy.latex(self.x), sympy.latex(self.y)
+        fx = sympy.latex(-self.omega * self.y + self.f)
+        fy = sympy.latex(self.omega * self.x + self.g)
+        return (f"\\begin{{aligned}} \\dot{{{lx}}} &= {fx} \\\\ "
+                f"\\dot{{{ly}}} &= {fy} \\end{{aligned}}")
+
+    def _repr_latex_(self):
+        return f"$${self.to_latex()}$$"
+
     def __str__(self):
-        w, x, y = self.omega, self.x, self.y
-        return (f"{x}' = -{w}*{y} + {sympy.sstr(self.f)}\n"
-                f"{y}' = {w}*{x} + {sympy.sstr(self.g)}")
+        return (f"{self.x}' = {sympy.sstr(-self.omega * self.y + self.f)}\n"
+                f"{self.y}' = {sympy.sstr(self.omega * self.x + self.g)}")
 
 
 @dataclass(frozen=True)
