@@ -93,21 +93,27 @@ def _from_fmpq_mat(M):
     return [[M[i, j] for j in range(M.ncols())] for i in range(M.nrows())]
 
 
+def _pivot_row(K, M, c, start):
+    """The row (from ``start``) whose entry in column ``c`` is the non-zero
+    element with the fewest terms, or None."""
+    best, best_size = None, None
+    for i in range(start, len(M)):
+        x = M[i][c]
+        if x:
+            s = K.size(x)
+            if best is None or s < best_size:
+                best, best_size = i, s
+    return best
+
+
 def _eliminate(K, M, ncols_pivot: int):
     """Row-reduce ``M`` (modified in place) to reduced row echelon form in its
     first ``ncols_pivot`` columns.  Returns the pivot columns."""
     rows = len(M)
     pivots = []
     r = 0
-    size = K.size
     for c in range(ncols_pivot):
-        best, best_size = None, None
-        for i in range(r, rows):
-            x = M[i][c]
-            if x:
-                s = size(x)
-                if best is None or s < best_size:
-                    best, best_size = i, s
+        best = _pivot_row(K, M, c, r)
         if best is None:
             continue
         M[r], M[best] = M[best], M[r]
@@ -207,13 +213,7 @@ def determinant(K, A):
     M = [list(r) for r in A]
     det = K.one
     for c in range(n):
-        best, best_size = None, None
-        for i in range(c, n):
-            x = M[i][c]
-            if x:
-                s = K.size(x)
-                if best is None or s < best_size:
-                    best, best_size = i, s
+        best = _pivot_row(K, M, c, c)
         if best is None:
             return K.zero
         if best != c:
