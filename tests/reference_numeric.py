@@ -9,7 +9,7 @@ linear solves with ``mpmath.lu_solve``.  It shares no code with the engine.
 
 from __future__ import annotations
 
-from itertools import product
+from itertools import permutations, product
 
 import mpmath
 import sympy
@@ -35,8 +35,6 @@ def _tensor(exprs, states, at, order):
 
 def _apply(T, n, vectors):
     res = [mpmath.mpc(0)] * n
-    order = len(vectors)
-    from itertools import permutations
     for key, v in T.items():
         i, idx = key[0], key[1:]
         seen = set()

@@ -184,3 +184,24 @@ def test_complex_normal_form_rejects_even_order():
     bc = _branch(model, 5)
     with pytest.raises(ValueError, match="odd"):
         complex_normal_form(bc.taylor, bc.eigenbasis, 4)
+
+
+def test_planar_normal_form_matches_the_closed_formula():
+    """The order-by-order planar normal form gives the same c1 as the closed
+    formula c1 = i/(2 omega)(g20 g11 - 2|g11|^2 - |g02|^2/3) + g21/2 (Hassard,
+    Kazarinoff and Wan, Theory and Applications of Hopf Bifurcation, 1981;
+    Guckenheimer and Holmes, 1983, Section 3.4) on random complex quadratic and
+    cubic terms, exactly."""
+    import random as _random
+
+    from criticality.algebra.flint_field import FlintRationalField
+    from criticality.algebra.quadratic import QuadraticExtension
+    from criticality.normal_form import hassard_c1, planar_normal_form
+
+    Q = FlintRationalField()
+    rng = _random.Random(5)
+    for W in (1, 3, 7):
+        N = QuadraticExtension(Q, Q(-W), "nu")
+        G = {(j, l): N.element(Q(rng.randint(-5, 5)), Q(rng.randint(-5, 5)))
+             for j in range(4) for l in range(4) if 2 <= j + l <= 3}
+        assert planar_normal_form(G, N, 3)[0] == hassard_c1(G, N, Q(W))

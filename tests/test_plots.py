@@ -6,7 +6,6 @@ independent numeric Lyapunov coefficient.  Each check names its source;
 "from memory" marks a value recalled rather than looked up.
 """
 
-import builtins
 import csv
 import struct
 import xml.etree.ElementTree as ET
@@ -194,14 +193,7 @@ def test_amplitude_plot_with_simulated_points(tmp_path):
     assert _png_size(tmp_path / "amp.png") == (200, 150)
 
 
-def test_missing_matplotlib_names_the_extra(lorenz, monkeypatch):
-    real = builtins.__import__
-
-    def fake(name, *args, **kwargs):
-        if name.startswith("matplotlib"):
-            raise ImportError("no matplotlib", name="matplotlib")
-        return real(name, *args, **kwargs)
-
-    monkeypatch.setattr(builtins, "__import__", fake)
+def test_missing_matplotlib_names_the_extra(lorenz, hide_package):
+    hide_package("matplotlib")
     with pytest.raises(MissingExtraError, match=r"criticality\[plot\]"):
         plot_parameter_plane(lorenz, "sigma", "r", values={"b": 1})

@@ -8,7 +8,6 @@ looked up, "common practice, no source" a fact of the trade.  Simulation tests
 are marked ``slow``.
 """
 
-import builtins
 import math
 import shutil
 import subprocess
@@ -282,15 +281,8 @@ def test_degenerate_point_is_refused():
         validate(r, a=-8)
 
 
-def test_missing_scipy_names_the_extra(monkeypatch):
-    real = builtins.__import__
-
-    def fake(name, *args, **kwargs):
-        if name.startswith("scipy"):
-            raise ImportError("no scipy", name="scipy")
-        return real(name, *args, **kwargs)
-
-    monkeypatch.setattr(builtins, "__import__", fake)
+def test_missing_scipy_names_the_extra(hide_package):
+    hide_package("scipy")
     with pytest.raises(MissingExtraError, match=r"pip install 'criticality\[validate\]'"):
         validate(_van_der_pol_type())
 

@@ -68,12 +68,6 @@ class ReducedSystem:
         g = sympy.Add(*[term(c, a, b, -1) for (a, b), c in sorted(self.g2.items())])
         return f, g
 
-    def sympy_form(self, to_sympy, xi1, xi2):
-        """``(xi1', xi2')`` as sympy expressions in the field's own coordinates."""
-        f = -xi2 + sympy.Add(*[to_sympy(c) * xi1 ** a * xi2 ** b for (a, b), c in self.g1.items()])
-        g = to_sympy(self.W) * xi1 + sympy.Add(
-            *[to_sympy(c) * xi1 ** a * xi2 ** b for (a, b), c in self.g2.items()])
-        return f, g
 
 
 def reduce_to_center_manifold(taylor, eb, order: int) -> ReducedSystem:

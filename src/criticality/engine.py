@@ -13,7 +13,7 @@ objects and returns :class:`BranchComputation` records of field elements, which
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, field
 
 import sympy
 

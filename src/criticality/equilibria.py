@@ -23,7 +23,7 @@ from dataclasses import dataclass
 import sympy
 
 from .errors import EquilibriumNotFoundError, ParameterError
-from .signs import NEGATIVE, NONNEGATIVE, NONPOSITIVE, POSITIVE, ZERO, SignContext
+from .signs import NEGATIVE, NONNEGATIVE, POSITIVE, ZERO, SignContext
 
 __all__ = ["EquilibriumChoice", "given_equilibrium", "solve_equilibria", "select_equilibrium",
            "parametrised_equilibrium"]

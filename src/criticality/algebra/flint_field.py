@@ -259,14 +259,6 @@ class FlintRationalFunctionField(Field):
     def size(self, x: RationalFunction) -> int:
         return len(x.num) + len(x.den)
 
-    def numerator_denominator(self, x):
-        return x.num, x.den
-
-    def factor_polynomial(self, poly):
-        """``(content, [(sympy_factor, multiplicity), ...])`` of an ``fmpz_mpoly``."""
-        content, factors = poly.factor()
-        return sympy.Integer(int(content)), [(self.poly_to_sympy(f), int(m)) for f, m in factors]
-
     def derivative(self, x: RationalFunction, symbol) -> RationalFunction:
         i = self.symbols.index(symbol)
         dn = x.num.derivative(i)
@@ -274,10 +266,6 @@ class FlintRationalFunctionField(Field):
             return RationalFunction(dn, x.den, self)
         dd = x.den.derivative(i)
         return self._normalised(dn * x.den - x.num * dd, x.den * x.den)
-
-    def degree_in(self, x: RationalFunction, symbol) -> tuple[int, int]:
-        i = self.symbols.index(symbol)
-        return x.num.degrees()[i], x.den.degrees()[i]
 
     def coefficients_in(self, poly, symbol) -> dict[int, object]:
         """Split an ``fmpz_mpoly`` as ``{k: coefficient of symbol**k}`` (polys)."""
@@ -288,15 +276,6 @@ class FlintRationalFunctionField(Field):
             rest = monom[:i] + (0,) + monom[i + 1:]
             buckets.setdefault(k, {})[rest] = coeff
         return {k: self.ctx.from_dict(d) for k, d in buckets.items()}
-
-    def is_rational_number(self, x: RationalFunction) -> bool:
-        return x.num.is_constant() and x.den.is_constant()
-
-    def to_fraction(self, x: RationalFunction) -> Fraction:
-        if not self.is_rational_number(x):
-            raise ValueError("not a constant")
-        n = int(x.num.coefficient(0)) if len(x.num) else 0
-        return Fraction(n, int(x.den.coefficient(0)))
 
     def __repr__(self):
         return f"QQ({', '.join(map(str, self.symbols))})[flint]"
@@ -332,12 +311,6 @@ class FlintRationalField(Field):
 
     def size(self, x) -> int:
         return int(x.p).bit_length() + int(x.q).bit_length()
-
-    def is_rational_number(self, x) -> bool:
-        return True
-
-    def to_fraction(self, x) -> Fraction:
-        return Fraction(int(x.p), int(x.q))
 
     def derivative(self, x, symbol):
         raise ValueError(f"{symbol} is not a generator of QQ")

@@ -231,15 +231,5 @@ class QuadraticExtension(Field):
         a, b = self.components(x)
         return self.base.size(a) + self.base.size(b)
 
-    def is_rational_number(self, x) -> bool:
-        a, b = self.components(x)
-        return not b and self.base.is_rational_number(a)
-
-    def to_fraction(self, x) -> Fraction:
-        a, b = self.components(x)
-        if b:
-            raise ValueError("not a rational number")
-        return self.base.to_fraction(a)
-
     def __repr__(self):
         return f"{self.base!r}({self.name}: {self.name}^2 = {self.base.to_sympy(self.radicand)})"

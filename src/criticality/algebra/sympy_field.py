@@ -81,14 +81,5 @@ class SympyRationalFunctionField(Field):
         i = self.symbols.index(symbol)
         return x.diff(self.gens[i])
 
-    def is_rational_number(self, x) -> bool:
-        if not self.symbols:
-            return True
-        return x.numer.is_ground and x.denom.is_ground
-
-    def to_fraction(self, x) -> Fraction:
-        e = sympy.Rational(self.to_sympy(x))
-        return Fraction(int(e.p), int(e.q))
-
     def __repr__(self):
         return f"QQ({', '.join(map(str, self.symbols))})[sympy]"
