@@ -179,3 +179,57 @@ def test_renderers_of_zero_eigenvalue_results():
     doc = json.loads(r.to_json())
     assert doc["quantities"]["a"] == "2" and doc["quantities"]["b"] == "-3"
     assert doc["schema"] == "criticality.bogdanov_takens"
+
+
+def _fitzhugh_nagumo():
+    return Model(["v", "w"], {"v": "v - v^3/3 - w + I", "w": "eps*(v + a - b*w)"},
+                 parameters={"I": "real", "a": "real", "b": "positive", "eps": "positive"})
+
+
+def test_bogdanov_takens_of_the_fitzhugh_nagumo_model_matches_a_hand_derivation():
+    """The FitzHugh-Nagumo model (FitzHugh, "Impulses and physiological states
+    in theoretical models of nerve membrane", Biophys. J. 1, 1961;
+    Nagumo, Arimoto and Yoshizawa, Proc. IRE 50, 1962)
+        v' = v - v^3/3 - w + I,   w' = eps (v + a - b w).
+    Derived by hand with the projection formulas of Kuznetsov (Elements of
+    Applied Bifurcation Theory, 3rd ed., 2004, Section 8.7, from memory),
+    at an equilibrium v0 (parametrised: I and w eliminated):
+      A = [[1 - v0^2, -1], [eps, -eps b]]; trace = det = 0 give
+      b = 1/(1 - v0^2) and eps = (1 - v0^2)^2, so A = [[1/b, -1], [1/b^2, -1/b]];
+      q0 = (b, 1), q1 = (0, -b) + t q0, p1 = (1/b^2, -1/b), p0 = (1/b, 0);
+      the only quadratic term is -v0 x^2 in v', so B(x, y) = (-2 v0 x1 y1, 0),
+      B(q0, q0) = (-2 v0 b^2, 0), <p1, B(q0, q1)> = 0 for every t, hence
+      a = <p1, B(q0, q0)>/2 = -v0 and b_BT = <p0, B(q0, q0)> = -2 v0 b,
+    so a/b_BT = (1 - v0^2)/2 and a b_BT = 2 v0^2 b > 0: next to every such
+    point the Hopf bifurcation is subcritical."""
+    r = bogdanov_takens(_fitzhugh_nagumo(), "b", "eps", eliminate=["I", "w"])
+    v0 = sympy.Symbol("v0")
+
+    def plain(e):  # the package's v_eq carries assumptions; compare with a plain symbol
+        e = sympy.sympify(e)
+        return e.xreplace({s: v0 for s in e.free_symbols if s.name == "v_eq"})
+
+    beta = 1 / (1 - v0 ** 2)
+    assert sympy.simplify(plain(r.values["b"]) - beta) == 0
+    assert sympy.simplify(plain(r.values["eps"]) - (1 - v0 ** 2) ** 2) == 0
+    a, b = plain(r.a), plain(r.b)
+    # The package scales q0 as the derivation does (second component 1) ...
+    assert sympy.simplify(plain(r.q0[0]) - beta) == 0 and r.q0[1] == 1
+    assert sympy.simplify(a + v0) == 0
+    assert sympy.simplify(b + 2 * v0 * beta) == 0
+    # ... and the invariant a/b needs no normalisation at all.
+    assert sympy.simplify(a / b - (1 - v0 ** 2) / 2) == 0
+
+
+def test_fitzhugh_nagumo_scenario_at_a_numeric_point_and_its_hopf_neighbours():
+    """At v0 = 1/2 the hand derivation above gives b = 4/3, eps = 9/16,
+    a = -1/2, b_BT = -4/3: a b_BT > 0, so the Hopf points next to the double
+    zero (same b, 1/2 < v0 < 1) are subcritical; the package's own Hopf
+    analysis of the same family agrees there."""
+    m = _fitzhugh_nagumo()
+    r = bogdanov_takens(m, "b", "eps", eliminate=["I", "w"])
+    half = {s: sympy.Rational(1, 2) for s in r.a.free_symbols}
+    assert (r.a.xreplace(half), r.b.xreplace(half)) == (sympy.Rational(-1, 2), sympy.Rational(-4, 3))
+    h = hopf(m, "eps", eliminate=["I", "w"], values={"b": sympy.Rational(4, 3)})
+    for v in ("0.55", "0.7", "0.9"):
+        assert float(h.l1.xreplace({s: sympy.Rational(v) for s in h.l1.free_symbols})) > 0
