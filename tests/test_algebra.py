@@ -48,6 +48,24 @@ def test_flint_field_matches_sympy_stand_in(x, y):
     assert F.derivative(fx, a) == F.from_sympy(sympy.diff(x, a))
 
 
+@settings(max_examples=80, deadline=None)
+@given(x=rational_functions())
+def test_flint_to_sympy_builds_sympys_own_canonical_form(x):
+    """The conversion assembles sympy's Add and Mul from pre-sorted arguments
+    without flattening; the result must be structurally identical (same
+    args, hash and printed form) to what sympy's constructors build from the
+    same terms."""
+    F = FlintRationalFunctionField(SYMS)
+    f = F.from_sympy(x)
+    for poly in (f.num, f.den):
+        mine = F._poly_to_sympy(poly)
+        terms = [sympy.Integer(int(c)) * sympy.Mul(*(s ** e for s, e in zip(SYMS, m)))
+                 for m, c in poly.to_dict().items()]
+        ref = sympy.Add(*terms)
+        assert mine == ref and hash(mine) == hash(ref) and str(mine) == str(ref)
+        assert mine.args == ref.args
+
+
 def test_quadratic_extension_arithmetic():
     """(1 + s)(1 - s) = 1 - G and inverses in Q(a)(sqrt(G)) and its nu-extension."""
     K = FlintRationalFunctionField((a,))

@@ -275,6 +275,7 @@ class SignContext:
         cn, fn = num.factor()
         cd, fd = den.factor()
         items = [(f, int(m), False) for f, m in fn] + [(f, int(m), True) for f, m in fd]
+        constant = sympy.Rational(int(cn), int(cd))
         decided = []
         for f, m, in_den in items:
             key = (K.symbols, str(f))
@@ -283,11 +284,18 @@ class SignContext:
                 emb = self.poly_from_flint(f, K.symbols)
                 s = self._flint_signs[key] = self.polynomial_sign(emb) if emb is not None \
                     else UNKNOWN
+            # Orient the factor here, on the flint polynomial: negating a large
+            # sympy Add (as assemble would) costs a full re-flattening.
+            if s in (NEGATIVE, NONPOSITIVE) or (s == UNKNOWN and _leading_negative(K, f)):
+                f, constant, s = -f, constant * (-1) ** m, _NEG.get(s, s)
             decided.append((K.poly_to_sympy(f), m, in_den, s))
-        return self.assemble(sympy.Rational(int(cn), int(cd)), decided)
+        return self.assemble(constant, decided, oriented=True)
 
-    def assemble(self, constant, decided) -> FactoredSign:
-        """Combine ``(expr, multiplicity, in_denominator, sign)`` factors."""
+    def assemble(self, constant, decided, *, oriented: bool = False) -> FactoredSign:
+        """Combine ``(expr, multiplicity, in_denominator, sign)`` factors.
+
+        With ``oriented=True`` the factors are already non-negative where
+        their sign is known (and printed with a leading + otherwise)."""
         out = []
         total = POSITIVE if constant > 0 else NEGATIVE if constant < 0 else ZERO
         for f, m, in_den, s in decided:
@@ -298,7 +306,9 @@ class SignContext:
                                  POSITIVE if s in (POSITIVE, NEGATIVE) else NONNEGATIVE)
                 # an even power of a factor of unknown sign stays marked unknown
                 # (its square root is not the factor itself)
-            if s in (NEGATIVE, NONPOSITIVE):
+            if oriented:
+                pass
+            elif s in (NEGATIVE, NONPOSITIVE):
                 f, constant, s = -f, constant * (-1) ** m, _NEG[s]
             elif s == UNKNOWN and f.could_extract_minus_sign():
                 f, constant = -f, constant * (-1) ** m  # print with a leading +
@@ -320,6 +330,16 @@ def truth(sign: str):
     """``True`` for a proven positive sign, ``False`` for a proven negative one,
     else None."""
     return {POSITIVE: True, NEGATIVE: False}.get(sign)
+
+
+def _leading_negative(K, p) -> bool:
+    """Whether the polynomial's first term in sympy's printing order (highest
+    total degree, then lexicographic in the sorted symbols) is negative."""
+    terms = p.to_dict()
+    if not terms:
+        return False
+    lead = max(terms, key=lambda mon: (sum(mon), mon))
+    return int(terms[lead]) < 0
 
 
 def _has_constant(p) -> bool:

@@ -18,6 +18,8 @@ from fractions import Fraction
 
 import flint
 import sympy
+from sympy.core.add import _addsort
+from sympy.core.mul import _mulsort
 
 from .field import Field
 
@@ -241,13 +243,30 @@ class FlintRationalFunctionField(Field):
         return hit
 
     def _poly_to_sympy(self, poly) -> sympy.Expr:
+        """Build the Add of monomials directly from canonically sorted
+        arguments.  An expanded polynomial with integer coefficients is
+        already in sympy's canonical form, so the general constructors'
+        flattening (and its assumption queries, which dominate for large
+        results) is skipped; the outcome is identical to
+        ``sympy.Add(*(c * x**e ...))``."""
         syms = self.symbols
         terms = []
         for monom, coeff in poly.to_dict().items():
-            factors = [sympy.Integer(int(coeff))]
-            factors.extend(s ** e if e != 1 else s for s, e in zip(syms, monom) if e)
-            terms.append(sympy.Mul(*factors))
-        return sympy.Add(*terms)
+            c = sympy.Integer(int(coeff))
+            factors = [sympy.Pow(s, e) if e != 1 else s for s, e in zip(syms, monom) if e]
+            if c != 1 or not factors:
+                factors.insert(0, c)
+            if len(factors) == 1:
+                terms.append(factors[0])
+                continue
+            _mulsort(factors)
+            terms.append(sympy.Mul._from_args(factors))
+        if not terms:
+            return sympy.Integer(0)
+        if len(terms) == 1:
+            return terms[0]
+        _addsort(terms)
+        return sympy.Add._from_args(terms)
 
     def to_sympy(self, x: RationalFunction) -> sympy.Expr:
         num = self.poly_to_sympy(x.num)
