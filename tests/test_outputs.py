@@ -235,3 +235,21 @@ def test_planar_conversion_factor_with_a_symbolic_frequency():
     a_gh = sympy.Rational(1, 16) * sympy.diff(-R("x")**3, R("x"), 3)
     assert result.planar_coefficient == a_gh == sympy.Rational(-3, 8)
     assert sympy.simplify(result.l1 - 2 * a_gh / w) == 0
+
+
+def test_verdict_words_do_not_spell_out_huge_factors():
+    """Printing a factor of thousands of terms can take longer than computing
+    it: the verdict's words then name the factor, and the relation itself is
+    still kept whole in supercritical_where and zero_set."""
+    from criticality.classify import classify
+    from criticality.signs import UNKNOWN, FactoredSign, FactorSign
+
+    x, y = sympy.symbols("x y", real=True)
+    big = sympy.Add(*(x ** i * y ** (i % 7) for i in range(300)))
+    fs = FactoredSign(sympy.Integer(-1), (FactorSign(big, 1, False, UNKNOWN),), UNKNOWN)
+    v = classify(fs)
+    assert v.classification == "depends"
+    assert "not spelled out" in v.text and "supercritical_where" in v.text
+    assert v.supercritical_where.lhs == big and v.zero_set.lhs == big
+    small = FactoredSign(sympy.Integer(-1), (FactorSign(x - y, 1, False, UNKNOWN),), UNKNOWN)
+    assert "x - y > 0" in classify(small).text

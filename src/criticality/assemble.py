@@ -170,13 +170,14 @@ class _Details:
         return tuple(_conj_expr(self.B, x, self.omega) for x in self.bc.eigenbasis.pbar)
 
 
-def _sqrt(expr):
-    """``sqrt(expr)`` without sympy's attempt to split a large product into
-    factors of known sign (which queries assumptions on every factor and took
-    seconds on results of a few thousand terms)."""
+def _sqrt(expr, sign: int = 1):
+    """``sqrt(expr)`` (``1/sqrt(expr)`` with ``sign=-1``) without sympy's
+    attempt to split a large product into factors of known sign (which
+    queries assumptions on every factor and took seconds on results of a few
+    thousand terms; dividing by an unevaluated root costs the same)."""
     if expr.is_Number or expr.is_Symbol or expr.is_Pow:
-        return sympy.sqrt(expr)
-    return sympy.Pow(expr, sympy.S.Half, evaluate=False)
+        return sympy.sqrt(expr) ** sign
+    return sympy.Pow(expr, sign * sympy.S.Half, evaluate=False)
 
 
 def _omega(B, W):
@@ -206,7 +207,27 @@ def _factored_sqrt(fs, expr):
             outside.append(f.expr ** (half * power))
         if odd:
             (below if f.in_denominator else inside).append(f.expr ** odd)
-    return sympy.Mul(*outside) * _sqrt(sympy.Mul(*inside)) / _sqrt(sympy.Mul(*below))
+    return _product(*outside, _sqrt(sympy.Mul(*inside)), _sqrt(sympy.Mul(*below), -1))
+
+
+#: Above this many expression nodes a product involving roots is left as
+#: built: sympy's flattening would re-evaluate every root of a product and ask
+#: for the sign of each large factor (seconds per amplitude on results of a
+#: few thousand terms).
+_FLATTEN_NODES = 2000
+
+
+def _product(*parts):
+    parts = [p for p in parts if p != 1]
+    if len(parts) < 2:
+        return sympy.Mul(*parts)
+    nodes = 0
+    for p in parts:
+        for _ in sympy.preorder_traversal(p):
+            nodes += 1
+            if nodes > _FLATTEN_NODES:
+                return sympy.Mul(*parts, evaluate=False)
+    return sympy.Mul(*parts)
 
 
 def _higher_verdict(tower, ctx, coefficients, verdict):
@@ -251,7 +272,7 @@ def _cycle(B, model, bc, omega, verdict, stab, mu):
             kj = 4 * k * (a * a + eb.W * v * v) / eb.qq
             fs = B.fs(kj)
             coeffs[name] = fs.as_expr()
-            amps[name] = _factored_sqrt(fs, coeffs[name]) * _sqrt(offset) if kj else \
+            amps[name] = _product(_factored_sqrt(fs, coeffs[name]), _sqrt(offset)) if kj else \
                 sympy.Integer(0)
         fs_k = _raw(B.tower, k, B.ctx)
         side = {POSITIVE: "above", NEGATIVE: "below"}.get(fs_k.sign, "undecided")

@@ -67,7 +67,7 @@ def classify(fs: FactoredSign, *, coefficient: str = "l1") -> Verdict:
     zero_exprs = [f.expr for f in undecided if not f.in_denominator] + \
                  [f.expr for f in even_unknown if not f.in_denominator]
     zero_set = sympy.Eq(sympy.Mul(*zero_exprs), 0, evaluate=False) if zero_exprs else None
-    where = f" except where {zero_set.lhs} = 0" if zero_set is not None else ""
+    where = f" except where {_show(zero_set.lhs, 'Z, the product in zero_set')} = 0" if zero_set is not None else ""
     if fs.sign in (NEGATIVE, NONPOSITIVE) and not undecided:
         return Verdict(SUPERCRITICAL, "supercritical for all admissible parameters" + where,
                        None, zero_set, sympy.Integer(-1))
@@ -81,10 +81,31 @@ def classify(fs: FactoredSign, *, coefficient: str = "l1") -> Verdict:
     text = f"supercritical exactly where {_pretty(ineq)}; subcritical where the inequality is " \
            "reversed"
     if zero_set is not None:
-        text += f"; {coefficient} vanishes where {zero_set.lhs} = 0"
+        text += f"; {coefficient} vanishes where {_show(zero_set.lhs, 'Z, the product in zero_set')} = 0"
     return Verdict(MIXED, text, ineq, zero_set, sign_factor)
+
+
+#: Expressions with more nodes than this are not spelled out in the verdict's
+#: words (printing them can take longer than computing them); the relation
+#: itself is always kept in ``supercritical_where`` / ``zero_set``.
+_TEXT_NODES = 400
+
+
+def _nodes(expr, cap: int) -> int:
+    count = 0
+    for _ in sympy.preorder_traversal(expr):
+        count += 1
+        if count > cap:
+            break
+    return count
+
+
+def _show(expr, name: str) -> str:
+    if _nodes(expr, _TEXT_NODES) > _TEXT_NODES:
+        return f"{name} (more than {_TEXT_NODES} nodes, not spelled out here)"
+    return sympy.sstr(expr)
 
 
 def _pretty(rel) -> str:
     op = ">" if isinstance(rel, sympy.StrictGreaterThan) else "<"
-    return f"{sympy.sstr(rel.lhs)} {op} 0"
+    return f"{_show(rel.lhs, 'F, the factor in supercritical_where')} {op} 0"
