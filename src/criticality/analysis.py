@@ -12,6 +12,8 @@ from dataclasses import replace
 from typing import Mapping
 
 from .assemble import build_result
+from .budget import hint, stage
+from .budget import time_limit as time_limit_
 from .signs import context_for
 from .engine import Problem, run_engine
 from .equilibria import (given_equilibrium, parametrised_equilibrium, select_equilibrium,
@@ -27,7 +29,7 @@ _ASSUMPTIONS = ("real", "positive", "nonnegative", "negative", "nonzero")
 def hopf(model, parameter: str | None = None, *, equilibrium=None, eliminate=None,
          branch: int | None = None, order: int = 3, values: Mapping | None = None,
          assume: Mapping | None = None, backend: str = "flint", guess: Mapping | None = None,
-         digits: int = 30) -> HopfResult:
+         digits: int = 30, time_limit: float | None = None) -> HopfResult:
     """Hopf analysis of ``model`` with respect to ``parameter``.
 
     Parameters
@@ -63,6 +65,11 @@ def hopf(model, parameter: str | None = None, *, equilibrium=None, eliminate=Non
         mpmath and every quantity evaluated to ``digits`` digits.
     digits : int
         Significant digits of the numeric mode.
+    time_limit : float, optional
+        Wall-clock budget in seconds for the exact analysis; when it is spent
+        the analysis stops with :class:`~criticality.errors.ComputationLimitError`
+        naming the stage it reached and ways to make the problem smaller
+        (:mod:`criticality.budget`).  Default: no limit.
 
     Returns
     -------
@@ -83,13 +90,14 @@ def hopf(model, parameter: str | None = None, *, equilibrium=None, eliminate=Non
         from .numeric_mode import hopf_numeric
         return hopf_numeric(model, parameter or model.bifurcation_parameter, guess,
                             digits=digits, order=order, values=values)
-    return _analyse(model, parameter, equilibrium, eliminate, order, values, assume, backend,
-                    select=0 if branch is None else branch)[0]
+    with time_limit_(time_limit, "the Hopf analysis"):
+        return _analyse(model, parameter, equilibrium, eliminate, order, values, assume,
+                        backend, select=0 if branch is None else branch)[0]
 
 
 def hopf_all(model, parameter: str | None = None, *, equilibrium=None, eliminate=None,
              order: int = 3, values: Mapping | None = None, assume: Mapping | None = None,
-             backend: str = "flint") -> tuple:
+             backend: str = "flint", time_limit: float | None = None) -> tuple:
     """Like :func:`hopf`, returning one :class:`HopfResult` per branch of the
     critical set.
 
@@ -97,8 +105,9 @@ def hopf_all(model, parameter: str | None = None, *, equilibrium=None, eliminate
     first, then in the order of the factors of the pair condition; ``hopf``
     returns branch 0 unless asked for another.
     """
-    return _analyse(model, parameter, equilibrium, eliminate, order, values, assume, backend,
-                    select=None)
+    with time_limit_(time_limit, "the Hopf analysis"):
+        return _analyse(model, parameter, equilibrium, eliminate, order, values, assume,
+                        backend, select=None)
 
 
 def _analyse(model, parameter, equilibrium, eliminate, order, values, assume, backend, select):
@@ -128,15 +137,19 @@ def _analyse(model, parameter, equilibrium, eliminate, order, values, assume, ba
     if not any(e.has(mu) for e in eqs) and not any(x.has(mu) for x in choice.point):
         raise NoHopfPointError(f"the bifurcation parameter '{name}' does not occur in the model",
                                reason="parameter_absent")
+    if order > 3:
+        hint(f"ask for a lower order (order={order} was asked; order=3 gives l1)")
     problem = Problem(eqs, tuple(model.state_symbols), params, mu, choice.point, order, backend,
                       tuple(model.states), assumptions)
     out = run_engine(problem, select=select)
+    stage("assembling the result (factoring and deciding signs)")
     results = [build_result(model, name, mu, choice, out, bc, assumptions, params)
                for bc in out.branches]
     if order == 3 and any(r is not None and r.l1 == 0 for r in results):
         # l1 vanishes identically: the second coefficient decides
         problem = replace(problem, order=5)
         out = run_engine(problem, select=select)
+        stage("assembling the result (factoring and deciding signs)")
         results = [build_result(model, name, mu, choice, out, bc, assumptions, params)
                    for bc in out.branches]
     if any(r is None for r in results):

@@ -27,6 +27,7 @@ import sympy
 
 from .algebra.linalg import SingularMatrixError, matvec, solve_consistent
 from .algebra.quadratic import QuadraticElement
+from .budget import checkpoint
 from .errors import CriticalityError, DegenerateHopfError
 from .projection import solve_shifted
 from .taylor import compose, poly_mul
@@ -83,6 +84,7 @@ def reduce_to_center_manifold(taylor, eb, order: int) -> ReducedSystem:
         R = [_degree_part(taylor, i, u, k, cache) for i in range(n)]
         stable = []
         for b in range(k + 1):
+            checkpoint()
             y = [R[i].get((k - b, b), K.zero) for i in range(n)]
             alpha, beta = eb.center_coordinates(y)
             if alpha:
@@ -105,6 +107,7 @@ def reduce_to_center_manifold(taylor, eb, order: int) -> ReducedSystem:
 def _degree_part(taylor, i, u, k, cache):
     out: dict = {}
     for d in range(2, k + 1):
+        checkpoint()
         part = taylor.degree_part(i, d)
         if not part:
             continue

@@ -97,6 +97,10 @@ def add_analysis_options(parser) -> None:
                         help="branch of the critical set (default 0)")
     parser.add_argument("--backend", choices=("flint", "sympy"), default="flint",
                         help="exact arithmetic of the parameter field (default flint)")
+    parser.add_argument("--time-limit", type=float, default=None, metavar="SECONDS",
+                        help="stop the exact analysis after this many seconds with a message "
+                        "naming the stage reached and ways to make the problem smaller "
+                        "(exit code 7; default: no limit)")
     parser.add_argument("--guess", type=lambda s: pairs(split_top_level(s), "--guess"),
                         metavar="NAME=VALUE,...",
                         help="numeric mode for equilibria without closed form: starting values "
@@ -153,7 +157,8 @@ def analyse_from_args(args):
     with Stage(f"Hopf analysis in {name}", quiet=_quiet(args)):
         return run(model, args.parameter, equilibrium=args.equilibrium,
                    eliminate=args.eliminate, branch=args.branch, order=args.order,
-                   values=values, assume=assume, backend=args.backend)
+                   values=values, assume=assume, backend=args.backend,
+                   time_limit=getattr(args, "time_limit", None))
 
 
 # -- handlers --------------------------------------------------------------------------------

@@ -19,6 +19,7 @@ import sympy
 
 from .algebra import Tower, collect_atoms
 from .algebra.domain import algebraic_atom_rules
+from .budget import hint, stage
 from .center_manifold import ReducedSystem, reduce_to_center_manifold
 from .critical import CriticalBranch, find_critical_branches
 from .eigenbasis import Eigenbasis, critical_eigenbasis
@@ -85,6 +86,7 @@ def run_engine(problem: Problem, select: int | None = None) -> EngineOutput:
     only on branch ``select`` of the ordered list (branches that need no new
     square root come first)."""
     order = max(3, problem.order)
+    stage("expanding the model in Taylor series at the equilibrium")
     raw = raw_taylor(problem.equations, problem.states, problem.equilibrium, order,
                      problem.state_names or None)
     equilibrium = tuple(problem.equilibrium)
@@ -109,8 +111,10 @@ def run_engine(problem: Problem, select: int | None = None) -> EngineOutput:
     K = tower.top
     taylor_mu = TaylorForms(K, taylor_mu.n, taylor_mu.order, taylor_mu.components)
     A_mu = taylor_mu.jacobian()
+    stage("computing the characteristic polynomial")
     chi = characteristic_polynomial(K, A_mu)
     ctx = context_for(problem.parameters, problem.assumptions, tower.atoms)
+    stage(f"solving for the critical set in '{problem.parameter}'")
     branches, notes, degenerate, unexamined = find_critical_branches(
         tower, problem.parameter, chi, describe=lambda s: f"'{s}'",
         accept=lambda b: _may_be_positive(b, ctx),
@@ -125,6 +129,9 @@ def run_engine(problem: Problem, select: int | None = None) -> EngineOutput:
         todo = branches
     computed = []
     for b in todo:
+        if len(b.tower.levels) > len(tower.levels):
+            hint(f"the critical value of '{problem.parameter}' needs a square root, which makes "
+                 "every later step work with pairs over a larger field" + _linear_hint(notes))
         try:
             bc = _compute_branch(tower, taylor_mu, b, problem, order)
         except ZeroDivisionError:
@@ -143,6 +150,16 @@ def run_engine(problem: Problem, select: int | None = None) -> EngineOutput:
             "imaginary axis", reason="omega_squared_nonpositive")
     return EngineOutput(tower, chi, A_mu, tuple(computed), tuple(notes), tuple(degenerate),
                         len(branches) + unexamined)
+
+
+def _linear_hint(notes) -> str:
+    """The parameters in which the critical set is linear, from the notes of
+    :func:`find_critical_branches`, as a clause for the budget's message."""
+    for note in notes:
+        if "but it is linear in " in note:
+            names = note.split("but it is linear in ", 1)[1].split(":", 1)[0]
+            return f"; it is linear in {names}, which would avoid the root"
+    return ""
 
 
 def _may_be_positive(branch, ctx) -> bool:
@@ -164,14 +181,20 @@ def _compute_branch(tower, taylor_mu, branch, problem, order) -> BranchComputati
     target = branch.tower
     mu, value, images = problem.parameter, branch.value, branch.images
     K = target.top
+    stage("substituting the critical value into the Taylor coefficients")
     taylor = taylor_mu.map(lambda c: tower.substitute(c, mu, value, target, images), K)
     N = branch.nu_field
+    stage("computing the critical eigenvectors")
     eb = critical_eigenbasis(K, taylor.jacobian(), branch.W, N)
     if not eb.qq:  # |Av|^2 + W |v|^2 = 0 forces W <= 0: not an imaginary pair
         return None
+    stage("evaluating the projection formula for c1")
     c1_proj = projection_c1(taylor, eb) / eb.qq
+    stage(f"reducing to the center manifold (order {order})")
     reduced = reduce_to_center_manifold(taylor, eb, order)
+    stage(f"computing the planar normal form (order {order})")
     G = complexify(reduced, N, order)
     c_center = tuple(unit_coefficients(planar_normal_form(G, N, order), eb.qq))
+    stage(f"computing the n-dimensional normal form (order {order})")
     c_complex = complex_normal_form(taylor, eb, order) if order >= 5 else ()
     return BranchComputation(branch, taylor, eb, reduced, c_center, c1_proj, c_complex)

@@ -18,6 +18,7 @@ from .algebra import upoly
 from .algebra.flint_field import FlintRationalFunctionField
 from .algebra.linalg import determinant
 from .algebra.quadratic import QuadraticElement, lower
+from .budget import checkpoint
 
 __all__ = ["characteristic_polynomial", "hurwitz_matrix", "hurwitz_determinants",
            "hurwitz_determinant", "factor_univariate"]
@@ -66,6 +67,7 @@ def _berkowitz(M, zero, one):
     n = len(M)
     C = [one, -M[0][0]]
     for r in range(1, n):
+        checkpoint()
         row = M[r][:r]
         v = [M[i][r] for i in range(r)]
         toeplitz = [one, -M[r][r]]

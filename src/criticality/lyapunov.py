@@ -84,6 +84,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from .algebra.linalg import SingularMatrixError, solve
+from .budget import checkpoint
 from .errors import DegenerateHopfError
 from .projection import solve_shifted
 from .taylor import compose
@@ -137,6 +138,7 @@ def _nonlinear_part(taylor, polys, d):
     out: dict = {}
     for i in range(n):
         for k in range(2, min(d, taylor.order) + 1):
+            checkpoint()
             part = taylor.degree_part(i, k)
             if not part:
                 continue

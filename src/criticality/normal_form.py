@@ -24,6 +24,7 @@ from __future__ import annotations
 
 from math import factorial
 
+from .budget import checkpoint
 from .taylor import poly_mul
 
 __all__ = ["complexify", "planar_normal_form", "hassard_c1", "unit_coefficients"]
@@ -82,6 +83,7 @@ def _compose(G, H, Hb, order, keep=None):
     for (j, l), c in G.items():
         if j + l > order:
             continue
+        checkpoint()
         if j and l:
             term = poly_mul(power(0, j, order - l), power(1, l, order - j), order, True, keep)
         else:

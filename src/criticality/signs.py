@@ -25,6 +25,8 @@ from itertools import combinations
 import flint
 import sympy
 
+from .budget import checkpoint
+
 __all__ = ["POSITIVE", "NEGATIVE", "NONNEGATIVE", "NONPOSITIVE", "ZERO", "UNKNOWN",
            "SignContext", "FactorSign", "FactoredSign", "context_for", "truth"]
 
@@ -278,6 +280,7 @@ class SignContext:
         constant = sympy.Rational(int(cn), int(cd))
         decided = []
         for f, m, in_den in items:
+            checkpoint()
             key = (K.symbols, str(f))
             s = self._flint_signs.get(key)
             if s is None:

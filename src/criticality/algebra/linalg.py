@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import flint
 
+from ..budget import checkpoint
 from ..errors import CriticalityError
 from .flint_field import FlintRationalField
 
@@ -113,6 +114,7 @@ def _eliminate(K, M, ncols_pivot: int):
     pivots = []
     r = 0
     for c in range(ncols_pivot):
+        checkpoint()
         best = _pivot_row(K, M, c, r)
         if best is None:
             continue
@@ -213,6 +215,7 @@ def determinant(K, A):
     M = [list(r) for r in A]
     det = K.one
     for c in range(n):
+        checkpoint()
         best = _pivot_row(K, M, c, c)
         if best is None:
             return K.zero

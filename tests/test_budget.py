@@ -1,0 +1,112 @@
+"""The wall-clock budget (criticality.budget): hopf(..., time_limit=...)."""
+
+import time
+
+import pytest
+import sympy
+
+from criticality import Model, budget, engine, hopf
+from criticality.cli import main
+from criticality.errors import ComputationLimitError, ParameterError
+
+
+def _food_chain():
+    """Three species with four symbolic parameters; with K as the bifurcation
+    parameter the critical value needs a square root, and the critical set is
+    linear in eps (invented test model)."""
+    m = Model(["R", "C", "P"], {"R": "R*(1 - R/K) - R*C",
+                                "C": "C*(R - mm) - 2*C*P/(1 + C)",
+                                "P": "eps*P*(2*C/(1 + C) - d)"},
+              parameters={"K": "positive", "mm": "positive", "d": "positive", "eps": "positive"})
+    eq = {"R": "K*(1 - d/(2 - d))", "C": "d/(2 - d)",
+          "P": "(K*(1 - d/(2 - d)) - mm)*(1 + d/(2 - d))/2"}
+    return m, eq
+
+
+class _Clock:
+    """A clock that stands still until told to jump past any budget."""
+
+    def __init__(self):
+        self.now = 0.0
+
+    def __call__(self):
+        return self.now
+
+
+def _jump_at(monkeypatch, clock, prefix):
+    """Spend the budget the moment the engine enters the stage ``prefix``."""
+    original = engine.stage
+
+    def stage(name):
+        if name.startswith(prefix):
+            clock.now = 1e6
+        original(name)
+
+    monkeypatch.setattr(engine, "stage", stage)
+
+
+def test_a_spent_budget_names_the_stage_the_root_and_the_linear_parameter(monkeypatch):
+    clock = _Clock()
+    monkeypatch.setattr(budget, "_clock", clock)
+    _jump_at(monkeypatch, clock, "reducing to the center manifold")
+    m, eq = _food_chain()
+    with pytest.raises(ComputationLimitError) as info:
+        hopf(m, "K", equilibrium=eq, time_limit=60)
+    text = str(info.value)
+    assert "time limit 60 s" in text and "reducing to the center manifold" in text
+    assert "needs a square root" in text and "linear in 'eps'" in text
+    assert "values={...}" in text and "guess={...}" in text
+    assert info.value.exit_code == 7
+
+
+def test_the_budget_is_released_after_a_stop(monkeypatch):
+    """A stopped analysis leaves no budget behind: the next call (no limit)
+    runs to the end, and a generous limit changes nothing."""
+    clock = _Clock()
+    monkeypatch.setattr(budget, "_clock", clock)
+    _jump_at(monkeypatch, clock, "computing the characteristic polynomial")
+    m = Model(["x", "y"], {"x": "y", "y": "-x + mu*y - x^2*y"}, parameters={"mu": "real"})
+    with pytest.raises(ComputationLimitError, match="characteristic polynomial"):
+        hopf(m, "mu", equilibrium={"x": 0, "y": 0}, time_limit=5)
+    assert budget._current.get() is None
+    monkeypatch.undo()
+    assert hopf(m, "mu", equilibrium={"x": 0, "y": 0}).l1 == sympy.Rational(-1, 4)
+    assert hopf(m, "mu", equilibrium={"x": 0, "y": 0}, time_limit=600).classification == \
+        "supercritical"
+
+
+def test_a_real_clock_stops_a_long_analysis_early():
+    """With the real clock and a budget far below the run time the analysis
+    stops within a few seconds (a check runs between steps)."""
+    m, eq = _food_chain()
+    start = time.monotonic()
+    with pytest.raises(ComputationLimitError, match="stopped after"):
+        hopf(m, "K", equilibrium=eq, time_limit=0.05)
+    assert time.monotonic() - start < 30
+
+
+@pytest.mark.parametrize("bad", [0, -1, "soon"])
+def test_time_limit_must_be_a_positive_number(bad):
+    m = Model(["x", "y"], {"x": "y", "y": "-x + mu*y - x^2*y"}, parameters={"mu": "real"})
+    with pytest.raises(ParameterError, match="time_limit"):
+        hopf(m, "mu", equilibrium={"x": 0, "y": 0}, time_limit=bad)
+
+
+def test_order_hint_only_when_a_higher_order_was_asked(monkeypatch):
+    clock = _Clock()
+    monkeypatch.setattr(budget, "_clock", clock)
+    _jump_at(monkeypatch, clock, "computing the n-dimensional normal form")
+    m = Model(["x", "y"], {"x": "y", "y": "-x + mu*y - x^2*y + x^5"}, parameters={"mu": "real"})
+    with pytest.raises(ComputationLimitError, match="order=5 was asked"):
+        hopf(m, "mu", equilibrium={"x": 0, "y": 0}, order=5, time_limit=5)
+
+
+def test_cli_time_limit_exits_with_code_7(tmp_path, capsys):
+    m, eq = _food_chain()
+    path = tmp_path / "chain.toml"
+    path.write_text(m.to_toml())
+    code = main(["analyse", str(path), "-p", "K", "-e",
+                 ", ".join(f"{k}={v}" for k, v in eq.items()), "--time-limit", "0.05", "-q"])
+    err = capsys.readouterr().err
+    assert code == ComputationLimitError.exit_code == 7
+    assert "stopped after" in err and "Traceback" not in err
