@@ -110,3 +110,40 @@ def test_cli_time_limit_exits_with_code_7(tmp_path, capsys):
     err = capsys.readouterr().err
     assert code == ComputationLimitError.exit_code == 7
     assert "stopped after" in err and "Traceback" not in err
+
+
+class _Spent:
+    """A clock whose every reading after the first lies past any budget."""
+
+    def __init__(self):
+        self.calls = 0
+
+    def __call__(self):
+        self.calls += 1
+        return 0.0 if self.calls == 1 else 1e6
+
+
+_BAUTIN = {"x": "mu*x - y + k*x*(x^2 + y^2) - x*(x^2 + y^2)^2",
+           "y": "x + mu*y + k*y*(x^2 + y^2) - y*(x^2 + y^2)^2"}
+
+
+def test_the_other_analyses_stop_under_the_context_manager(monkeypatch):
+    """criticality.time_limit bounds any analysis: the checkpoints are shared."""
+    import criticality
+
+    monkeypatch.setattr(budget, "_clock", _Spent())
+    m = Model(["x", "y"], _BAUTIN, parameters={"mu": "real", "k": "real"})
+    with pytest.raises(ComputationLimitError, match="the Bautin search stopped"):
+        with criticality.time_limit(5, "the Bautin search"):
+            criticality.bautin_points(m, "mu", "k", equilibrium={"x": 0, "y": 0})
+    assert budget._current.get() is None
+    assert criticality.bautin_points(m, "mu", "k", equilibrium={"x": 0, "y": 0})
+
+
+def test_cli_subcommands_of_other_analyses_take_a_time_limit(tmp_path, capsys, monkeypatch):
+    monkeypatch.setattr(budget, "_clock", _Spent())
+    path = tmp_path / "bautin.toml"
+    path.write_text(Model(["x", "y"], _BAUTIN, parameters={"mu": "real", "k": "real"}).to_toml())
+    code = main(["bautin", str(path), "-p", "mu", "--second", "k", "-e", "x=0, y=0",
+                 "--time-limit", "5", "-q"])
+    assert code == 7 and "the bautin analysis stopped" in capsys.readouterr().err

@@ -40,6 +40,7 @@ _LAZY = {
     "fold": "fold_points",
     "bautin_points": "bautin",
     "bogdanov_takens": "double_zero",
+    "time_limit": "budget",
 }
 
 __all__ = sorted(["__version__", *_LAZY, *_error_names])

@@ -12,6 +12,12 @@ which names the stage it was in and the ways to make the problem smaller
 (fixing parameters, another bifurcation parameter, a lower order, the
 numeric mode).  Nothing is lost: the model and the inputs are untouched.
 
+The other analyses (``fold``, ``bautin_points``, ``bogdanov_takens``) share
+the checkpoints; bound them with the context manager::
+
+    with criticality.time_limit(60):
+        points = criticality.bautin_points(model, "a", "b")
+
 Without a budget the checkpoints cost one context-variable lookup each.
 """
 

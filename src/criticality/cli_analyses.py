@@ -25,6 +25,7 @@ from __future__ import annotations
 import argparse
 
 from ._cli_support import Stage, equilibrium_choice, name_list, pairs, read_model, write_output
+from .budget import time_limit
 
 __all__ = ["register"]
 
@@ -60,6 +61,9 @@ def _options(parser, analysis) -> None:
                             help="the symbol solved from det A = 0 (default: the parameter)")
     parser.add_argument("--backend", choices=("flint", "sympy"), default="flint",
                         help="exact arithmetic of the parameter field (default flint)")
+    parser.add_argument("--time-limit", type=float, default=None, metavar="SECONDS",
+                        help="stop after this many seconds with a message naming the stage "
+                        "reached (exit code 7; default: no limit)")
     parser.add_argument("--format", choices=("text", "latex", "json"), default="text",
                         help="output format (default text)")
     parser.add_argument("-o", "--output", metavar="FILE",
@@ -99,7 +103,8 @@ def _handler(analysis):
                        backend=args.backend)
         if getattr(args, "solve_for", None):
             options["solve_for"] = args.solve_for
-        with Stage(f"{analysis.name.replace('_', '-')} analysis", quiet=quiet):
+        label = f"{analysis.name.replace('_', '-')} analysis"
+        with Stage(label, quiet=quiet), time_limit(args.time_limit, f"the {label}"):
             result = analysis(model, *symbols, **options)
         write_output(_render(result, args.format), args.output, force=args.force)
         return 0
