@@ -99,3 +99,15 @@ def test_demo_report_compiles(tmp_path):
     result = hopf(Model.from_text(demo_text()))
     log = compile_report(latex_report(result), tmp_path, "demo")
     assert "Overfull \\hbox" not in log
+
+
+def test_report_where_l2_decides_compiles(tmp_path):
+    """l1 vanishes identically: the report states the fourth-root law, gives
+    the amplitudes and names l2 as the deciding coefficient, and compiles."""
+    model = Model(["x", "y"], {"x": "mu*x - y - x*(x^2 + y^2)^2",
+                               "y": "x + mu*y - y*(x^2 + y^2)^2"}, {"mu": "real"},
+                  name="Quintic oscillator")
+    result = hopf(model, "mu", equilibrium={"x": 0, "y": 0})
+    tex = latex_report(result)
+    assert "A_{x} &= \\sqrt[4]{\\mu}" in tex and "\\ell_{2} < 0" in tex
+    compile_report(tex, tmp_path)

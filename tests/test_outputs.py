@@ -167,7 +167,7 @@ def test_json_golden(pair):
         "cycle": {"side": "above", "side_condition": None, "stable": True,
                   "radius_squared": "4*mu", "amplitude_squared_slopes": {"x": "8", "y": "8"},
                   "amplitudes": {"x": "2*sqrt(2)*sqrt(mu)", "y": "2*sqrt(2)*sqrt(mu)"},
-                  "period": "2*pi", "frequency_slope": "-a**2/3"},
+                  "amplitude_power": 2, "period": "2*pi", "frequency_slope": "-a**2/3"},
     }
     assert {k: doc[k] for k in expected} == expected
     assert doc["conditions"][0] == {

@@ -317,7 +317,7 @@ def _section_normal_form(doc: Document) -> str:
 
 def _section_verdict(doc: Document) -> str:
     r = doc.result
-    parts = [doc.text(classification_sentence(r.classification)),
+    parts = [doc.text(classification_sentence(r.classification, r.cycle.amplitude_power)),
              "In the engine's words: " + doc.text(r.verdict) + "."]
     if r.supercritical_where is not None:
         parts.append("Supercritical exactly where")
@@ -340,8 +340,9 @@ def _side_words(doc: Document) -> str:
                  f"\nand for ${mu} < {muc}$ where the inequality is reversed. ")
     else:
         words = "The side on which the cycle exists is not decided. "
-    stable = {True: "It is orbitally stable ($\\ell_{1} < 0$ and the other eigenvalues are "
-                    "stable).", False: "It is unstable.",
+    deciding = cycle.amplitude_power // 2
+    stable = {True: f"It is orbitally stable ($\\ell_{{{deciding}}} < 0$ and the other "
+                    "eigenvalues are stable).", False: "It is unstable.",
               None: "Its stability is not decided for all parameters (see the criticality "
                     "condition and the conditions)."}
     return words + stable[cycle.stable]
@@ -375,11 +376,19 @@ def _section_cycle(doc: Document) -> str:
     for state, coefficient in r.cycle.amplitude_coefficients.items():
         rows += w.align_rows(f"\\frac{{A_{{{latex_name(state)}}}^{{2}}}}{{{doc.mu} - {doc.mu_c}}}",
                              coefficient)
-    rows += w.align_rows(f"\\frac{{d{doc.omega_tex}_{{\\mathrm{{cycle}}}}}}{{d{doc.mu}}}",
-                         doc.with_omega(r.cycle.frequency_slope))
+    power = r.cycle.amplitude_power
+    if power != 2:
+        for state, amplitude in r.cycle.amplitudes.items():
+            rows += w.align_rows(f"A_{{{latex_name(state)}}}", amplitude)
+    if r.cycle.frequency_slope.is_finite is not False and r.cycle.frequency_slope != sympy.nan:
+        rows += w.align_rows(f"\\frac{{d{doc.omega_tex}_{{\\mathrm{{cycle}}}}}}{{d{doc.mu}}}",
+                             doc.with_omega(r.cycle.frequency_slope))
+    amplitude_words = ("the squared amplitude $A_{j}^{2}$ of each state per unit of the distance "
+                       "from the critical value" if power == 2 else
+                       f"the amplitude $A_{{j}}$ of each state (a $1/{power}$ power law: "
+                       f"$\\ell_{{1}}$ vanishes identically and $\\ell_{{{power // 2}}}$ decides)")
     return _section("Predicted cycle", _side_words(doc),
-                    "Squared radius (unit normalisation), the squared amplitude $A_{j}^{2}$ of "
-                    "each state per unit of the distance from the critical value (half "
+                    f"Squared radius (unit normalisation), {amplitude_words} (half "
                     "peak-to-peak, to leading order), and the slope of the cycle's angular "
                     f"frequency $\\omega_{{\\mathrm{{cycle}}}} = {doc.omega_tex} + "
                     f"\\frac{{d{doc.omega_tex}_{{\\mathrm{{cycle}}}}}}{{d{doc.mu}}}({doc.mu} - "

@@ -49,13 +49,28 @@ _CLASSIFICATION = {
 }
 
 
-def classification_sentence(classification: str) -> str:
+_ROOT = {2: "square", 4: "fourth", 6: "sixth", 8: "eighth"}
+
+
+def classification_sentence(classification: str, power: int = 2) -> str:
     """The verdict in words for a classification string of a result.
+
+    ``power`` is the cycle's ``amplitude_power``: above 2 the first Lyapunov
+    coefficient vanishes identically and ``l_(power/2)`` decides.
 
     >>> classification_sentence("supercritical").split(":")[0]
     'Supercritical (l1 < 0)'
+    >>> classification_sentence("subcritical", 4).split(":")[0]
+    'Subcritical (l1 = 0 identically, l2 > 0)'
     """
-    return _CLASSIFICATION.get(classification, f"Classification: {classification}.")
+    text = _CLASSIFICATION.get(classification, f"Classification: {classification}.")
+    if power > 2 and classification in ("supercritical", "subcritical"):
+        j = power // 2
+        vanish = "l1" if j == 2 else f"l1 = ... = l{j - 1}"
+        text = text.replace("(l1 <", f"({vanish} = 0 identically, l{j} <")
+        text = text.replace("(l1 >", f"({vanish} = 0 identically, l{j} >")
+        text = text.replace("the square root", f"the {_ROOT.get(power, f'{power}-th')} root")
+    return text
 
 
 def split_complex(expr) -> tuple:
@@ -183,15 +198,23 @@ def cycle_sentences(result) -> list:
                     "the parameters" + (f": it exists for {name} > {name}_c exactly where "
                                         f"{model_text(cycle.side_condition.lhs)} > 0."
                                         if cycle.side_condition is not None else "."))]
+    power = getattr(cycle, "amplitude_power", 2)
+    deciding = "l1" if power == 2 else f"l{power // 2}"
     if cycle.stable is True:
-        out.append("It is orbitally stable (l1 < 0 and the other eigenvalues are stable).")
+        out.append(f"It is orbitally stable ({deciding} < 0 and the other eigenvalues are "
+                   "stable).")
     elif cycle.stable is False:
         out.append("It is unstable.")
     else:
         out.append("Its stability is not decided for all parameters (see the verdict and the "
                    "conditions).")
-    out.append("Amplitudes (half peak-to-peak) follow amplitude_j^2 = slope_j*"
-               f"({name} - {name}_c) to leading order; the period is 2*pi/omega at onset.")
+    if power == 2:
+        out.append("Amplitudes (half peak-to-peak) follow amplitude_j^2 = slope_j*"
+                   f"({name} - {name}_c) to leading order; the period is 2*pi/omega at onset.")
+    else:
+        out.append(f"Since l1 vanishes identically, {deciding} decides: amplitudes (half "
+                   f"peak-to-peak) scale like |{name} - {name}_c|^(1/{power}) to leading order "
+                   "(see the amplitudes); the period is 2*pi/omega at onset.")
     return out
 
 

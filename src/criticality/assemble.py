@@ -260,25 +260,47 @@ def _charpoly(B, br):
 
 
 def _cycle(B, model, bc, omega, verdict, stab, mu):
+    """The cycle near onset from the first ``c_j`` with ``Re c_j != 0``.
+
+    With ``z' = (beta + i omega) z + c_j z|z|^(2j)`` (the lower ``Re c_i``
+    vanishing identically) the cycle has ``rho^(2j) = -beta / Re c_j``, so
+    ``rho^2 = (k (mu - mu_c))^(1/j)`` with ``k = -beta'(mu_c) / Re c_j`` and
+    the amplitudes follow ``amplitude^(2j) ~ (mu - mu_c)``."""
     br, eb = bc.branch, bc.eigenbasis
     beta1, beta_nu = br.transversality
-    c1 = bc.c_center[0]
-    R, S = lower(c1.a), lower(c1.b)
-    k = -beta1 / R if R else None
     offset = mu - B.expr(br.value)
+    j, R, S = 0, None, None
+    for index, c in enumerate(bc.c_center, start=1):
+        if lower(c.a):
+            j, R, S = index, lower(c.a), lower(c.b)
+            break
     amps, coeffs = {}, {}
-    if k is not None:
-        for name, a, v in zip(model.states, eb.Av, eb.v):
-            kj = 4 * k * (a * a + eb.W * v * v) / eb.qq
-            fs = B.fs(kj)
-            coeffs[name] = fs.as_expr()
-            amps[name] = _product(_factored_sqrt(fs, coeffs[name]), _sqrt(offset)) if kj else \
-                sympy.Integer(0)
+    if j:
+        k = -beta1 / R
         fs_k = _raw(B.tower, k, B.ctx)
         side = {POSITIVE: "above", NEGATIVE: "below"}.get(fs_k.sign, "undecided")
-        rho2 = B.expr(k) * offset
         side_cond = None if side != "undecided" else sympy.StrictGreaterThan(B.expr(k), 0)
-        slope = omega * B.expr(beta_nu - beta1 * S / R)
+        lower_exact_zero = all(not c for c in bc.c_center[:j - 1])
+        slope = omega * B.expr(beta_nu - beta1 * S / R) if lower_exact_zero else sympy.nan
+        if j == 1:
+            rho2 = B.expr(k) * offset
+        else:
+            rho2 = sympy.Pow(B.expr(k) * offset, sympy.Rational(1, j))
+        for name, a, v in zip(model.states, eb.Av, eb.v):
+            sj = 4 * (a * a + eb.W * v * v) / eb.qq  # amplitude_j^2 = sj rho^2
+            if not sj:
+                amps[name] = sympy.Integer(0)
+                if j == 1:
+                    coeffs[name] = sympy.Integer(0)
+                continue
+            if j == 1:
+                fs = B.fs(k * sj)
+                coeffs[name] = fs.as_expr()
+                amps[name] = _product(_factored_sqrt(fs, coeffs[name]), _sqrt(offset))
+            else:
+                fs = B.fs(sj)
+                amps[name] = _product(_factored_sqrt(fs, fs.as_expr()),
+                                      sympy.Pow(B.expr(k) * offset, sympy.Rational(1, 2 * j)))
     else:
         side, side_cond, rho2, slope = "undecided", None, sympy.nan, sympy.nan
     if verdict.classification == "supercritical":
@@ -287,7 +309,8 @@ def _cycle(B, model, bc, omega, verdict, stab, mu):
         stable = False
     else:
         stable = None
-    return CyclePrediction(side, side_cond, stable, rho2, amps, coeffs, 2 * sympy.pi / omega, slope)
+    return CyclePrediction(side, side_cond, stable, rho2, amps, coeffs, 2 * sympy.pi / omega, slope,
+                           2 * j if j else 2)
 
 
 def _reduced_view(B, bc, omega, model):

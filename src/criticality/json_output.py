@@ -84,6 +84,7 @@ def _cycle(cycle) -> dict:
         "radius_squared": _expr(cycle.radius_squared),
         "amplitude_squared_slopes": {k: _expr(v) for k, v in cycle.amplitude_coefficients.items()},
         "amplitudes": {k: _expr(v) for k, v in cycle.amplitudes.items()},
+        "amplitude_power": cycle.amplitude_power,
         "period": _expr(cycle.period),
         "frequency_slope": _expr(cycle.frequency_slope),
     }

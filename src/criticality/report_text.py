@@ -86,7 +86,7 @@ def _header(result, width: int) -> list:
 
 def _verdict(result, width: int) -> list:
     out = ["Verdict"]
-    out += _paragraph(classification_sentence(result.classification), width)
+    out += _paragraph(classification_sentence(result.classification, result.cycle.amplitude_power), width)
     out += _paragraph(f"In the engine's words: {result.verdict}.", width)
     if result.supercritical_where is not None:
         rel = result.supercritical_where
@@ -125,6 +125,10 @@ def _cycle(result, width: int) -> list:
         out.append(f"  slope_{state}: (amplitude of {state})^2 per unit of "
                    f"{result.parameter} - {result.parameter}_c:")
         out += _expr_lines("", k, width)
+    if result.cycle.amplitude_power != 2:
+        for state, amplitude in result.cycle.amplitudes.items():
+            out.append(f"  amplitude of {state} (half peak-to-peak):")
+            out += _expr_lines("", amplitude, width)
     out.append(f"  frequency slope d omega_cycle / d {result.parameter}:")
     out += _expr_lines("", result.cycle.frequency_slope, width)
     return out

@@ -60,17 +60,26 @@ class CyclePrediction:
         Whether the cycle is orbitally stable (l1 < 0 and the other
         eigenvalues stable); None when not decided.
     radius_squared : sympy.Expr
-        ``rho^2`` as a function of the parameter symbol (unit normalisation).
+        ``rho^2`` as a function of the parameter symbol (unit normalisation):
+        ``k (mu - mu_c)``, or ``(k (mu - mu_c))^(1/j)`` where ``l1 = ... =
+        l_(j-1) = 0`` identically and ``l_j`` decides.
     amplitudes : Mapping[str, sympy.Expr]
         Half peak-to-peak amplitude of each state variable, a function of the
-        bifurcation parameter symbol: ``sqrt(k_j (mu - mu_c))``.
+        bifurcation parameter symbol: ``sqrt(k_j (mu - mu_c))`` (a
+        ``(2j)``-th root law where ``l_j`` decides, see ``amplitude_power``).
     amplitude_coefficients : Mapping[str, sympy.Expr]
-        ``k_j`` in ``amplitude_j**2 = k_j (mu - mu_c)``.
+        ``k_j`` in ``amplitude_j**2 = k_j (mu - mu_c)``; empty where the
+        amplitudes follow another law (``amplitude_power != 2``).
     period : sympy.Expr
         ``2 pi / omega``.
     frequency_slope : sympy.Expr
         ``d omega_cycle / d mu`` at onset: the cycle's angular frequency is
-        ``omega + frequency_slope (mu - mu_c) + O((mu - mu_c)^2)``.
+        ``omega + frequency_slope (mu - mu_c) + O((mu - mu_c)^2)``.  NaN when
+        the frequency is not linear in ``mu - mu_c`` to leading order (a
+        lower ``c_i`` with ``Re c_i = 0`` but ``Im c_i != 0``).
+    amplitude_power : int
+        ``p`` in ``amplitude_j^p ~ (mu - mu_c)``: 2 when l1 decides, ``2j``
+        when ``l_j`` decides because ``l1 = ... = l_(j-1) = 0`` identically.
     """
 
     side: str
@@ -81,6 +90,7 @@ class CyclePrediction:
     amplitude_coefficients: Mapping[str, sympy.Expr]
     period: sympy.Expr
     frequency_slope: sympy.Expr
+    amplitude_power: int = 2
 
 
 @dataclass(frozen=True)

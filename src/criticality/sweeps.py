@@ -102,6 +102,11 @@ def quantity_expression(result, quantity) -> sympy.Expr:
         "frequency_slope": cycle.frequency_slope,
         "radius_coefficient": sympy.Add(*cycle.amplitude_coefficients.values()) / 4,
     }
+    if quantity == "radius_coefficient" and cycle.amplitude_power != 2:
+        raise ParameterError(
+            f"'radius_coefficient' assumes the square-root law; here l1 vanishes identically "
+            f"and the amplitudes follow the 1/{cycle.amplitude_power} power law: sweep "
+            "'amplitude:<state>' instead")
     if quantity in named:
         if named[quantity] is None:
             raise ParameterError(f"'{quantity}' was not computed; run hopf(..., order=5)")
