@@ -16,7 +16,7 @@ from dataclasses import replace
 import sympy
 
 from .algebra.quadratic import lower
-from .canonical import canonical_expr, factored
+from .canonical import canonical_expr, factored, larger_than
 from .classify import classify
 from .critical import Condition, cofactor_hurwitz
 from .errors import CriticalityError
@@ -219,14 +219,8 @@ _FLATTEN_NODES = 2000
 
 def _product(*parts):
     parts = [p for p in parts if p != 1]
-    if len(parts) < 2:
-        return sympy.Mul(*parts)
-    nodes = 0
-    for p in parts:
-        for _ in sympy.preorder_traversal(p):
-            nodes += 1
-            if nodes > _FLATTEN_NODES:
-                return sympy.Mul(*parts, evaluate=False)
+    if len(parts) >= 2 and larger_than(parts, _FLATTEN_NODES):
+        return sympy.Mul(*parts, evaluate=False)
     return sympy.Mul(*parts)
 
 

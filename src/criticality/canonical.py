@@ -18,7 +18,7 @@ from .algebra.flint_field import FlintRationalFunctionField
 from .algebra.quadratic import QuadraticElement, lower
 from .signs import UNKNOWN, FactoredSign, FactorSign, SignContext
 
-__all__ = ["factored", "canonical_expr"]
+__all__ = ["factored", "canonical_expr", "larger_than"]
 
 
 def factored(tower, x, ctx: SignContext, *, restore: bool = True) -> FactoredSign:
@@ -57,3 +57,16 @@ def canonical_expr(tower, x, ctx: SignContext) -> sympy.Expr:
     if isinstance(x, QuadraticElement):
         return canonical_expr(tower, x.a, ctx) + canonical_expr(tower, x.b, ctx) * x.ext.root
     return factored(tower, x, ctx).as_expr()
+
+
+def larger_than(exprs, nodes: int) -> bool:
+    """Whether the expressions together have more than ``nodes`` nodes
+    (counting stops there, so the test is cheap on huge expressions).  Used
+    to keep large results away from sympy's printing and flattening."""
+    count = 0
+    for expr in exprs:
+        for _ in sympy.preorder_traversal(expr):
+            count += 1
+            if count > nodes:
+                return True
+    return False

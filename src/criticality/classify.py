@@ -21,6 +21,7 @@ from dataclasses import dataclass
 
 import sympy
 
+from .canonical import larger_than
 from .signs import NEGATIVE, NONNEGATIVE, NONPOSITIVE, POSITIVE, UNKNOWN, ZERO, FactoredSign
 
 __all__ = ["Verdict", "classify"]
@@ -91,17 +92,8 @@ def classify(fs: FactoredSign, *, coefficient: str = "l1") -> Verdict:
 _TEXT_NODES = 400
 
 
-def _nodes(expr, cap: int) -> int:
-    count = 0
-    for _ in sympy.preorder_traversal(expr):
-        count += 1
-        if count > cap:
-            break
-    return count
-
-
 def _show(expr, name: str) -> str:
-    if _nodes(expr, _TEXT_NODES) > _TEXT_NODES:
+    if larger_than((expr,), _TEXT_NODES):
         return f"{name} (more than {_TEXT_NODES} nodes, not spelled out here)"
     return sympy.sstr(expr)
 
