@@ -178,3 +178,11 @@ def test_square_root_quantities_refuse_the_fourth_root_law():
     with pytest.raises(ParameterError, match="1/4 power law"):
         quantity_expression(r, "radius_coefficient")
     assert quantity_expression(r, "amplitude:x") == r.cycle.amplitudes["x"]
+
+
+def test_validation_says_it_does_not_simulate_the_fourth_root_law():
+    from criticality import ValidationRunError, validate
+
+    r = hopf(_quintic(-1), "mu", equilibrium=ORIGIN2)
+    with pytest.raises(ValidationRunError, match="1/4 power law from l2"):
+        validate(r)

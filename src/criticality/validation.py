@@ -180,6 +180,12 @@ def validate(result, values: Mapping | None = None, *, offsets: Sequence[float] 
         The integration cannot be carried out (e.g. no definite side, l1 = 0).
     """
     started = time.perf_counter()
+    power = getattr(result.cycle, "amplitude_power", 2)
+    if power != 2:
+        raise ValidationRunError(
+            f"l1 vanishes identically here and the result predicts a 1/{power} power law from "
+            f"l{power // 2}; this check simulates the square-root law of l1 only. Compare "
+            "result.cycle.amplitudes with a simulation of the model directly.")
     np, ivp = _extras()
     _check_options(tolerance, rtol, window_periods, max_periods, bracket_factors)
     setup = prepare(result, {**dict(values or {}), **kwargs}, np)
