@@ -380,7 +380,7 @@ def _section_cycle(doc: Document) -> str:
     if power != 2:
         for state, amplitude in r.cycle.amplitudes.items():
             rows += w.align_rows(f"A_{{{latex_name(state)}}}", amplitude)
-    if r.cycle.frequency_slope.is_finite is not False and r.cycle.frequency_slope != sympy.nan:
+    if r.cycle.frequency_slope != sympy.nan:  # NaN: no linear frequency law (see CyclePrediction)
         rows += w.align_rows(f"\\frac{{d{doc.omega_tex}_{{\\mathrm{{cycle}}}}}}{{d{doc.mu}}}",
                              doc.with_omega(r.cycle.frequency_slope))
     amplitude_words = ("the squared amplitude $A_{j}^{2}$ of each state per unit of the distance "

@@ -68,7 +68,8 @@ def classify(fs: FactoredSign, *, coefficient: str = "l1") -> Verdict:
     zero_exprs = [f.expr for f in undecided if not f.in_denominator] + \
                  [f.expr for f in even_unknown if not f.in_denominator]
     zero_set = sympy.Eq(sympy.Mul(*zero_exprs), 0, evaluate=False) if zero_exprs else None
-    where = f" except where {_show(zero_set.lhs, 'Z, the product in zero_set')} = 0" if zero_set is not None else ""
+    zero_words = _show(zero_set.lhs, "Z, the product in zero_set") if zero_exprs else ""
+    where = f" except where {zero_words} = 0" if zero_exprs else ""
     if fs.sign in (NEGATIVE, NONPOSITIVE) and not undecided:
         return Verdict(SUPERCRITICAL, "supercritical for all admissible parameters" + where,
                        None, zero_set, sympy.Integer(-1))
@@ -82,7 +83,7 @@ def classify(fs: FactoredSign, *, coefficient: str = "l1") -> Verdict:
     text = f"supercritical exactly where {_pretty(ineq)}; subcritical where the inequality is " \
            "reversed"
     if zero_set is not None:
-        text += f"; {coefficient} vanishes where {_show(zero_set.lhs, 'Z, the product in zero_set')} = 0"
+        text += f"; {coefficient} vanishes where {zero_words} = 0"
     return Verdict(MIXED, text, ineq, zero_set, sign_factor)
 
 
