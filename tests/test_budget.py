@@ -147,3 +147,15 @@ def test_cli_subcommands_of_other_analyses_take_a_time_limit(tmp_path, capsys, m
     code = main(["bautin", str(path), "-p", "mu", "--second", "k", "-e", "x=0, y=0",
                  "--time-limit", "5", "-q"])
     assert code == 7 and "the bautin analysis stopped" in capsys.readouterr().err
+
+
+def test_the_numeric_mode_honours_the_budget(monkeypatch):
+    """time_limit also bounds hopf(..., guess=...): Newton's iterations and the
+    numeric normal form share the checkpoints."""
+    monkeypatch.setattr(budget, "_clock", _Spent())
+    m = Model(["x", "y"], {"x": "y", "y": "-x + mu*y - x^2*y + (exp(x) - 1 - x)"},
+              parameters={"mu": "real"})
+    with pytest.raises(ComputationLimitError, match="the numeric Hopf analysis stopped"):
+        hopf(m, "mu", guess={"x": 0.01, "y": 0.0, "mu": 0.05}, time_limit=5)
+    monkeypatch.undo()
+    assert hopf(m, "mu", guess={"x": 0.01, "y": 0.0, "mu": 0.05}, time_limit=600).l1 < 0

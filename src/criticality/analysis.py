@@ -66,7 +66,7 @@ def hopf(model, parameter: str | None = None, *, equilibrium=None, eliminate=Non
     digits : int
         Significant digits of the numeric mode.
     time_limit : float, optional
-        Wall-clock budget in seconds for the exact analysis; when it is spent
+        Wall-clock budget in seconds for the analysis (exact or numeric); when it is spent
         the analysis stops with :class:`~criticality.errors.ComputationLimitError`
         naming the stage it reached and ways to make the problem smaller
         (:mod:`criticality.budget`).  Default: no limit.
@@ -88,8 +88,9 @@ def hopf(model, parameter: str | None = None, *, equilibrium=None, eliminate=Non
     """
     if guess is not None:
         from .numeric_mode import hopf_numeric
-        return hopf_numeric(model, parameter or model.bifurcation_parameter, guess,
-                            digits=digits, order=order, values=values)
+        with time_limit_(time_limit, "the numeric Hopf analysis"):
+            return hopf_numeric(model, parameter or model.bifurcation_parameter, guess,
+                                digits=digits, order=order, values=values)
     with time_limit_(time_limit, "the Hopf analysis"):
         return _analyse(model, parameter, equilibrium, eliminate, order, values, assume,
                         backend, select=0 if branch is None else branch)[0]

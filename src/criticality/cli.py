@@ -98,7 +98,7 @@ def add_analysis_options(parser) -> None:
     parser.add_argument("--backend", choices=("flint", "sympy"), default="flint",
                         help="exact arithmetic of the parameter field (default flint)")
     parser.add_argument("--time-limit", type=float, default=None, metavar="SECONDS",
-                        help="stop the exact analysis after this many seconds with a message "
+                        help="stop the analysis after this many seconds with a message "
                         "naming the stage reached and ways to make the problem smaller "
                         "(exit code 7; default: no limit)")
     parser.add_argument("--guess", type=lambda s: pairs(split_top_level(s), "--guess"),
@@ -153,7 +153,8 @@ def analyse_from_args(args):
     if guess:
         with Stage(f"numeric Hopf analysis in {name}", quiet=_quiet(args)):
             return run(model, args.parameter, guess=guess, order=args.order, values=values,
-                       digits=max(getattr(args, "digits", 30), 15))
+                       digits=max(getattr(args, "digits", 30), 15),
+                       time_limit=getattr(args, "time_limit", None))
     with Stage(f"Hopf analysis in {name}", quiet=_quiet(args)):
         return run(model, args.parameter, equilibrium=args.equilibrium,
                    eliminate=args.eliminate, branch=args.branch, order=args.order,

@@ -36,6 +36,7 @@ import mpmath
 import sympy
 
 from .algebra.quadratic import QuadraticElement, QuadraticExtension
+from .budget import checkpoint
 from .eigenbasis import Eigenbasis
 from .errors import DegenerateHopfError, EquilibriumNotFoundError, NoHopfPointError, ParameterError
 from .lyapunov import complex_normal_form
@@ -125,6 +126,7 @@ def _newton(system, y, tol):
     h = mpmath.mpf(10) ** (-(mpmath.mp.dps // 3))
     res = system.residual(y)
     for _ in range(200):
+        checkpoint()
         norm = max(abs(r) for r in res)
         if norm < tol:
             return y
