@@ -4,6 +4,8 @@ import builtins
 
 import pytest
 
+from criticality import Model, hopf
+
 
 @pytest.fixture
 def hide_package(monkeypatch):
@@ -19,3 +21,14 @@ def hide_package(monkeypatch):
         monkeypatch.setattr(builtins, "__import__", fake)
 
     return hide
+
+
+@pytest.fixture(scope="session")
+def lorenz():
+    """The Hopf analysis of the Lorenz system in r at its positive equilibrium
+    (a frozen result, computed once and shared)."""
+    m = Model(states=["x", "y", "z"],
+              equations={"x": "sigma*(y - x)", "y": "r*x - y - x*z", "z": "x*y - b*z"},
+              parameters={"sigma": "positive", "b": "positive", "r": "positive"})
+    return hopf(m, "r", equilibrium={"x": "sqrt(b*(r - 1))", "y": "sqrt(b*(r - 1))",
+                                     "z": "r - 1"})

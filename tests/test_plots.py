@@ -23,25 +23,12 @@ from criticality.validation import validate
 from reference_numeric import numeric_first_lyapunov
 
 
-def _lorenz():
-    m = Model(states=["x", "y", "z"],
-              equations={"x": "sigma*(y - x)", "y": "r*x - y - x*z", "z": "x*y - b*z"},
-              parameters={"sigma": "positive", "b": "positive", "r": "positive"})
-    return hopf(m, "r", equilibrium={"x": "sqrt(b*(r - 1))", "y": "sqrt(b*(r - 1))",
-                                     "z": "r - 1"})
-
-
 def _bautin_model():
     """Invented: a van der Pol-type pair whose damping shifts with a^2 and whose
     coupling a u w to a damped third state makes l1 change sign."""
     return Model(states=["u", "v", "w"],
                  equations={"u": "v - u*w", "v": "-u + (mu - a^2)*v - u^2*v + a*u*w",
                             "w": "-w + u^2"})
-
-
-@pytest.fixture(scope="module")
-def lorenz():
-    return _lorenz()
 
 
 @pytest.fixture(scope="module")

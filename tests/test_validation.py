@@ -47,14 +47,6 @@ def _three_dimensional():
     return hopf(m, "mu", equilibrium={"u": 0, "v": 0, "w": 0})
 
 
-def _lorenz():
-    m = Model(states=["x", "y", "z"],
-              equations={"x": "sigma*(y - x)", "y": "r*x - y - x*z", "z": "x*y - b*z"},
-              parameters={"sigma": "positive", "b": "positive", "r": "positive"})
-    return hopf(m, "r", equilibrium={"x": "sqrt(b*(r - 1))", "y": "sqrt(b*(r - 1))",
-                                     "z": "r - 1"})
-
-
 @pytest.fixture(scope="module")
 def planar_report():
     return validate(_van_der_pol_type())
@@ -108,12 +100,12 @@ def test_three_dimensional_supercritical_model():
 
 
 @pytest.mark.slow
-def test_lorenz_subcritical_bracketing():
+def test_lorenz_subcritical_bracketing(lorenz):
     """Lorenz system at sigma = 10, b = 8/3: the Hopf point r = 470/19 is
     subcritical (Strogatz, Nonlinear Dynamics and Chaos, 1994, Section 9.2;
     from memory); before onset a start at 0.7 of the predicted unstable cycle
     falls back onto the equilibrium and a start at 1.3 of it leaves."""
-    r = _lorenz()
+    r = lorenz
     num = r.evaluate(sigma=10, b="8/3")
     assert sympy.nsimplify(float(num.critical_value), rational=True, tolerance=1e-12) == \
         sympy.Rational(470, 19)
@@ -127,11 +119,11 @@ def test_lorenz_subcritical_bracketing():
 
 
 @pytest.mark.slow
-def test_lorenz_unstable_cycle_by_shooting():
+def test_lorenz_unstable_cycle_by_shooting(lorenz):
     """The unstable cycle of the Lorenz system below r = 470/19 (sigma = 10,
     b = 8/3), found by Newton's method on the periodic orbit, has the predicted
     amplitudes within 1 % and the error falls like the offset."""
-    rep = validate(_lorenz(), sigma=10, b="8/3", offsets=[0.2, 0.08, 0.032],
+    rep = validate(lorenz, sigma=10, b="8/3", offsets=[0.2, 0.08, 0.032],
                    bracket_factors=(0.5, 1.5))
     assert [m.approach for m in rep.measurements] == ["shooting"] * 3
     for m in rep.measurements:
@@ -257,9 +249,9 @@ def test_default_offsets_follow_the_natural_scale():
     assert default_offsets(r) == pytest.approx((0.02, 0.008, 0.0032))
 
 
-def test_missing_parameter_value_is_reported():
+def test_missing_parameter_value_is_reported(lorenz):
     with pytest.raises(ParameterError, match="sigma"):
-        validate(_lorenz(), b=2)
+        validate(lorenz, b=2)
 
 
 @pytest.mark.parametrize("kwargs, match", [
@@ -290,11 +282,11 @@ def test_missing_scipy_names_the_extra(hide_package):
 # -- sweeps -------------------------------------------------------------------------------
 
 
-def test_sweep_matches_the_closed_form_at_sampled_points():
+def test_sweep_matches_the_closed_form_at_sampled_points(lorenz):
     """l1 of the Lorenz result over a (sigma, b) grid equals the closed form
     evaluated by sympy at sampled points, and the Hopf point is admissible
     exactly where sigma > b + 1 (omega^2 > 0; common practice, no source)."""
-    r = _lorenz()
+    r = lorenz
     S, B = np.meshgrid(np.linspace(0.5, 30, 40), np.linspace(0.2, 5, 30))
     sw = sweep(r, "l1", {"sigma": S, "b": B}, progress=False)
     assert sw.shape == (30, 40)
@@ -323,12 +315,12 @@ def test_sweep_of_a_named_amplitude_and_errors():
         sweep(r, "l1", {})
 
 
-def test_sweep_reports_progress(monkeypatch, capsys):
+def test_sweep_reports_progress(lorenz, monkeypatch, capsys):
     """A sweep past the delay writes a progress line on stderr; a callable
     receives (done, total)."""
     import criticality.sweeps as sweeps
 
-    r = _lorenz()
+    r = lorenz
     grid = {"sigma": np.linspace(5, 30, 70000), "b": 1.0}
     calls = []
     sweep(r, "critical_value", grid, progress=lambda d, t: calls.append((d, t)))
