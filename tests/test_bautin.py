@@ -1,4 +1,4 @@
-"""Bautin points (criticality.bautin): l1 = 0 on the Hopf set, l2 there, and
+"""Bautin points (criticality.bifurcations.bautin): l1 = 0 on the Hopf set, l2 there, and
 the side on which the fold of cycles and the hysteresis live."""
 
 import json
@@ -9,7 +9,7 @@ import pytest
 import sympy
 
 from criticality import Model, ParameterError, hopf
-from criticality.bautin import bautin_points
+from criticality.bifurcations.bautin import bautin_points
 
 # the Bautin normal form z' = (mu + i) z + k z|z|^2 + s z|z|^4 in z = x + i y
 BAUTIN = {"x": "mu*x - y + k*x*(x^2 + y^2) + s*x*(x^2 + y^2)^2",
@@ -24,7 +24,7 @@ def _normal_form(s):
 @pytest.mark.parametrize("s,sign,side", [(-1, "negative", "k >"), (1, "positive", "k <")])
 def test_bautin_normal_form(s, sign, side):
     """The Bautin point of the normal form is k = 0 with l2 = 4 s (the 2^k
-    convention factor, see criticality.lyapunov), and the fold of cycles lies
+    convention factor, see criticality.local.lyapunov), and the fold of cycles lies
     where l1 l2 < 0 (common practice, no source: the radial equation)."""
     p = bautin_points(_normal_form(s), "mu", "k", equilibrium={"x": 0, "y": 0})[0]
     assert p.second_value == 0 and p.critical_value == 0

@@ -5,8 +5,9 @@ import time
 import pytest
 import sympy
 
-from criticality import Model, budget, engine, hopf
-from criticality.cli import main
+from criticality import Model, budget, hopf
+from criticality.hopf_analysis import engine
+from criticality.cli.main import main
 from criticality.errors import ComputationLimitError, ParameterError
 
 

@@ -12,8 +12,8 @@ import sys
 
 import pytest
 
-from criticality.cli import EXIT_USAGE, main
-from criticality._cli_support import Stage
+from criticality.cli.main import EXIT_USAGE, main
+from criticality.cli.support import Stage
 from criticality.errors import (InvalidModelFileError, ModelFileError, NoHopfPointError,
                                 OutputExistsError, ParameterError)
 
@@ -225,8 +225,8 @@ def test_progress_is_reported_for_slow_stages_only():
 
 
 def test_extension_subcommands_are_registered(capsys):
-    """The simulation-check subcommands of criticality.cli_checks appear."""
-    pytest.importorskip("criticality.cli_checks")
+    """The simulation-check subcommands of criticality.cli.checks appear."""
+    pytest.importorskip("criticality.cli.checks")
     code, out, _ = run(["--help"], capsys)
     assert code == 0 and "confirm" in out
 
@@ -238,7 +238,7 @@ def _script():
     found = shutil.which("criticality")
     if found:
         return [found]
-    return [sys.executable, "-c", "import sys; from criticality.cli import main; "
+    return [sys.executable, "-c", "import sys; from criticality.cli.main import main; "
                                   "sys.exit(main())"]
 
 

@@ -1,6 +1,6 @@
 """The command-line subcommands for the simulation check and the diagrams.
 
-They run in-process through the main command, :func:`criticality.cli.main`,
+They run in-process through the main command, :func:`criticality.cli.main.main`,
 which registers them.
 """
 
@@ -10,8 +10,8 @@ import struct
 
 import pytest
 
-from criticality.cli import main
-from criticality.cli_checks import EXIT_INCONCLUSIVE, EXIT_NOT_CONFIRMED, register
+from criticality.cli.main import main
+from criticality.cli.checks import EXIT_INCONCLUSIVE, EXIT_NOT_CONFIRMED, register
 from criticality.errors import OutputExistsError, ParameterError
 
 MODEL = """

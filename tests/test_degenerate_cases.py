@@ -172,7 +172,7 @@ def test_fourth_root_amplitude_against_scipy():
 def test_square_root_quantities_refuse_the_fourth_root_law():
     """The sweep's radius coefficient assumes amplitude^2 ~ (mu - mu_c); where
     l2 decides it says so instead of returning 0."""
-    from criticality.sweeps import quantity_expression
+    from criticality.checks.sweeps import quantity_expression
 
     r = hopf(_quintic(-1), "mu", equilibrium=ORIGIN2)
     with pytest.raises(ParameterError, match="1/4 power law"):

@@ -9,7 +9,7 @@ from hypothesis import assume, example, given, settings, strategies as st
 from criticality.errors import (CriticalityError, ExpressionError, ExpressionLimitError,
                                 ExpressionSyntaxError, ForbiddenExpressionError,
                                 UnknownSymbolError)
-from criticality.expressions import (FUNCTIONS, MAX_EXPONENT, MAX_NESTING, MAX_TRANSCENDENTAL,
+from criticality.model.expressions import (FUNCTIONS, MAX_EXPONENT, MAX_NESTING, MAX_TRANSCENDENTAL,
                                      convert_sympy, format_expression, name_problem,
                                      parse_expression)
 

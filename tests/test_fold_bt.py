@@ -6,8 +6,8 @@ import pytest
 import sympy
 
 from criticality import Model, hopf
-from criticality.double_zero import bogdanov_takens, bogdanov_takens_all
-from criticality.fold_points import fold
+from criticality.bifurcations.bogdanov_takens import bogdanov_takens, bogdanov_takens_all
+from criticality.bifurcations.fold import fold
 from criticality.registry import analyses, get
 
 

@@ -1,5 +1,5 @@
 """Lyapunov coefficients beyond the first: the normalization method
-(criticality.lyapunov), its exact agreement with the center-manifold route and
+(criticality.local.lyapunov), its exact agreement with the center-manifold route and
 with the published closed formula for c2, and which coefficients are invariant
 under the choices left open at the resonant orders."""
 
@@ -9,9 +9,9 @@ import pytest
 import sympy
 
 from criticality import Model, hopf
-from criticality.engine import Problem, run_engine
-from criticality.lyapunov import complex_normal_form, normalization_series
-from criticality.second_coefficient import formula_c1_c2
+from criticality.hopf_analysis.engine import Problem, run_engine
+from criticality.local.lyapunov import complex_normal_form, normalization_series
+from criticality.local.second_coefficient import formula_c1_c2
 
 from test_routes_agree import random_hopf_model
 
@@ -120,7 +120,7 @@ def _shift(series, other, k):
 def test_choices_at_resonant_orders_what_is_invariant():
     """alpha_1 changes c2 by conj(alpha_1) c1 - alpha_1 conj(c1) (purely
     imaginary: Re c2 invariant even where Re c1 != 0); alpha_2 changes Re c3 by
-    -2 Re(c1) Re(alpha_2) (derivation in criticality.lyapunov; common
+    -2 Re(c1) Re(alpha_2) (derivation in criticality.local.lyapunov; common
     practice, no source)."""
     model, _ = random_hopf_model(3, 2)
     bc = _branch(model, 7)
@@ -196,7 +196,7 @@ def test_planar_normal_form_matches_the_closed_formula():
 
     from criticality.algebra.flint_field import FlintRationalField
     from criticality.algebra.quadratic import QuadraticExtension
-    from criticality.normal_form import hassard_c1, planar_normal_form
+    from criticality.local.normal_form import hassard_c1, planar_normal_form
 
     Q = FlintRationalField()
     rng = _random.Random(5)

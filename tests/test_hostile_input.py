@@ -16,7 +16,7 @@ from hypothesis import HealthCheck, given, settings, strategies as st
 
 from criticality import Model
 from criticality.errors import CriticalityError
-from criticality.expressions import parse_expression
+from criticality.model.expressions import parse_expression
 
 HANG_GUARD = 2.0  # seconds; generous, a hang would take far longer
 

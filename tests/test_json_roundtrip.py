@@ -12,7 +12,7 @@ import sympy
 
 from criticality import Model, hopf
 from criticality.errors import ModelFileError
-from criticality.json_output import (SCHEMA, SCHEMA_VERSION, read_expressions,
+from criticality.outputs.json_io import (SCHEMA, SCHEMA_VERSION, read_expressions,
                                      result_expressions, result_to_json)
 
 TOP_KEYS = {"schema", "schema_version", "generator", "analysis", "status", "conventions",
@@ -91,7 +91,7 @@ def test_schema_keys_and_version(case):
 def test_unrepresentable_expressions_are_marked():
     """An expression the model syntax cannot write is an object with the
     sympy text, never a silently wrong string."""
-    from criticality.json_output import _expr
+    from criticality.outputs.json_io import _expr
 
     q = sympy.Symbol("q", real=True)
     assert _expr(sympy.Abs(q) + 1) == {"unrepresentable": "Abs(q) + 1"}

@@ -94,7 +94,7 @@ def test_example_reports_compile(name, options, tmp_path):
 
 
 def test_demo_report_compiles(tmp_path):
-    from criticality._cli_demo import demo_text
+    from criticality.cli.demo import demo_text
 
     result = hopf(Model.from_text(demo_text()))
     log = compile_report(latex_report(result), tmp_path, "demo")

@@ -14,10 +14,10 @@ import pytest
 import sympy
 
 from criticality import Model, hopf
-from criticality._latex_expr import Notation, TexWriter, latex_name
-from criticality._render import split_complex, wrap_expression
-from criticality.latex import result_to_latex, result_to_notebook_latex
-from criticality.report_text import numeric_summary, result_summary
+from criticality.outputs.latex_expr import Notation, TexWriter, latex_name
+from criticality.outputs.render import split_complex, wrap_expression
+from criticality.outputs.latex import result_to_latex, result_to_notebook_latex
+from criticality.outputs.text import numeric_summary, result_summary
 
 R = lambda name: sympy.Symbol(name, real=True)  # noqa: E731
 
@@ -241,8 +241,8 @@ def test_verdict_words_do_not_spell_out_huge_factors():
     """Printing a factor of thousands of terms can take longer than computing
     it: the verdict's words then name the factor, and the relation itself is
     still kept whole in supercritical_where and zero_set."""
-    from criticality.classify import classify
-    from criticality.signs import UNKNOWN, FactoredSign, FactorSign
+    from criticality.hopf_analysis.classify import classify
+    from criticality.algebra.signs import UNKNOWN, FactoredSign, FactorSign
 
     x, y = sympy.symbols("x y", real=True)
     big = sympy.Add(*(x ** i * y ** (i % 7) for i in range(300)))

@@ -16,9 +16,9 @@ import sympy
 
 from criticality import Model, hopf
 from criticality.errors import MissingExtraError, OutputExistsError, ParameterError
-from criticality.plane import curve_data, stability_grid, write_curve_csv
-from criticality.plots import plot_amplitude, plot_parameter_plane, save_figure
-from criticality.validation import validate
+from criticality.checks.plane import curve_data, stability_grid, write_curve_csv
+from criticality.outputs.plots import plot_amplitude, plot_parameter_plane, save_figure
+from criticality.checks.validation import validate
 
 from reference_numeric import numeric_first_lyapunov
 

@@ -18,8 +18,8 @@ import sympy
 
 from criticality import Model, hopf
 from criticality.errors import MissingExtraError, ParameterError, ValidationRunError
-from criticality.sweeps import sweep
-from criticality.validation import default_offsets, natural_scale, validate
+from criticality.checks.sweeps import sweep
+from criticality.checks.validation import default_offsets, natural_scale, validate
 
 
 def _van_der_pol_type():
@@ -318,7 +318,7 @@ def test_sweep_of_a_named_amplitude_and_errors():
 def test_sweep_reports_progress(lorenz, monkeypatch, capsys):
     """A sweep past the delay writes a progress line on stderr; a callable
     receives (done, total)."""
-    import criticality.sweeps as sweeps
+    import criticality.checks.sweeps as sweeps
 
     r = lorenz
     grid = {"sigma": np.linspace(5, 30, 70000), "b": 1.0}

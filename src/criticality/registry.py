@@ -88,13 +88,13 @@ def get(name: str) -> Analysis:
 
 
 register(Analysis("hopf", "Hopf bifurcation: critical value, frequency, Lyapunov coefficients "
-                  "and the criticality verdict", "analysis:hopf", ("parameter",), "HopfResult"))
+                  "and the criticality verdict", "hopf_analysis.analysis:hopf", ("parameter",), "HopfResult"))
 register(Analysis("fold", "a simple zero eigenvalue: fold (saddle-node), transcritical or "
-                  "pitchfork point and its normal form", "fold_points:fold", ("parameter",),
+                  "pitchfork point and its normal form", "bifurcations.fold:fold", ("parameter",),
                   "FoldResult"))
 register(Analysis("bautin", "points of the Hopf set where l1 = 0, with l2 and the scenario "
-                  "(fold of cycles, hysteresis)", "bautin:bautin_points",
+                  "(fold of cycles, hysteresis)", "bifurcations.bautin:bautin_points",
                   ("parameter", "second"), "BautinPoint"))
 register(Analysis("bogdanov_takens", "double zero eigenvalue in two parameters: the normal-form "
-                  "coefficients a and b and the sign of a b", "double_zero:bogdanov_takens",
+                  "coefficients a and b and the sign of a b", "bifurcations.bogdanov_takens:bogdanov_takens",
                   ("parameter", "second"), "BogdanovTakensResult"))

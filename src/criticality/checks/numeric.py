@@ -1,0 +1,187 @@
+"""Numeric evaluation of a result at a parameter point, to any precision.
+
+Pipeline place: result -> **numeric evaluation** (mpmath).
+
+Every closed form of a :class:`HopfResult` is evaluated at the given
+parameter values with ``digits`` significant digits; as an independent check,
+the eigenvalues of the Jacobian at the critical point are computed numerically
+(``mpmath.eig``): the critical pair must sit at ``+-i omega`` and the report
+says where the other eigenvalues lie.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from fractions import Fraction
+from typing import Mapping
+
+import mpmath
+import sympy
+
+from ..errors import ParameterError
+
+__all__ = ["NumericHopfResult", "evaluate_result", "parameter_values"]
+
+
+@dataclass(frozen=True)
+class NumericHopfResult:
+    """A :class:`HopfResult` evaluated at one parameter point.
+
+    Numbers are ``mpmath.mpf`` (``mpc`` for complex ones) computed with
+    ``digits`` significant digits (plus guard digits); do arithmetic on them
+    inside ``mpmath.workdps(digits)`` to keep that precision.  ``eigenvalues`` are the numeric eigenvalues of the
+    Jacobian at the critical point; ``pair_error`` is the distance of the
+    nearest one to ``i omega`` (a check of the closed forms), and
+    ``others_stable`` says whether all other eigenvalues have negative real
+    parts.
+    """
+
+    values: Mapping[str, object]
+    digits: int
+    critical_value: object
+    omega_squared: object
+    omega: object
+    period: object
+    transversality: object
+    c1: object
+    l1: object
+    lyapunov_coefficients: tuple
+    classification: str
+    equilibrium: Mapping[str, object]
+    amplitude_coefficients: Mapping[str, object]
+    eigenvalues: tuple
+    pair_error: object
+    others_stable: bool
+    conditions: tuple
+
+    def amplitude(self, offset) -> dict:
+        """Predicted amplitude of each state at ``mu = mu_c + offset`` (on the
+        side where the cycle exists, else NaN)."""
+        with mpmath.workdps(self.digits):
+            out = {}
+            for name, k in self.amplitude_coefficients.items():
+                v = k * mpmath.mpf(offset)
+                out[name] = mpmath.sqrt(v) if v >= 0 else mpmath.nan
+            return out
+
+    def __str__(self):
+        rows = [("critical value", self.critical_value), ("omega", self.omega),
+                ("period", self.period), ("transversality", self.transversality),
+                ("l1", self.l1), ("classification", self.classification),
+                ("|lambda - i omega| (numeric check)", self.pair_error),
+                ("other eigenvalues stable", self.others_stable)]
+        width = max(len(r[0]) for r in rows)
+        d = min(self.digits, 15)
+        fmt = lambda v: mpmath.nstr(v, d) if isinstance(v, (mpmath.mpf, mpmath.mpc)) else str(v)  # noqa: E731
+        return "\n".join(f"{k.ljust(width)}  {fmt(v)}" for k, v in rows)
+
+
+def parameter_values(result, values: Mapping) -> dict:
+    """Exact sympy values for the parameters of ``result`` (defaults filled in).
+
+    Raises
+    ------
+    ParameterError
+        If a name is unknown or a parameter has no value.
+    """
+    model = result.model
+    known = {str(s) for s in _free_parameters(result)}
+    out = {}
+    for key, raw in values.items():
+        if key not in known and key not in model.symbols:
+            raise ParameterError(f"'{key}' is not a parameter of this result (parameters: "
+                                 f"{', '.join(sorted(known))})")
+        out[key] = _exact(model, key, raw)
+    defaults = model.defaults() if hasattr(model, "defaults") else {}
+    for name in known:
+        if name not in out and name in defaults:
+            out[name] = defaults[name]
+    missing = sorted(k for k in known if k not in out and k != result.parameter)
+    if missing:
+        raise ParameterError(f"no value for {', '.join(map(repr, missing))}; give "
+                             f"{'it' if len(missing) == 1 else 'them'} as keyword arguments")
+    return out
+
+
+def _exact(model, key, raw):
+    if isinstance(raw, sympy.Basic):
+        return raw
+    if isinstance(raw, bool):
+        raise ParameterError(f"the value of '{key}' must be a number, not {raw!r}")
+    if isinstance(raw, int):
+        return sympy.Integer(raw)
+    if isinstance(raw, Fraction):
+        return sympy.Rational(raw.numerator, raw.denominator)
+    if isinstance(raw, float):
+        return sympy.Rational(repr(raw))
+    if isinstance(raw, (mpmath.mpf,)):
+        return sympy.Float(raw, mpmath.mp.dps)
+    if isinstance(raw, str):
+        return model.parse(raw, context=f"value of '{key}'")
+    raise ParameterError(f"the value of '{key}' must be a number, got {type(raw).__name__}")
+
+
+def _free_parameters(result):
+    syms = set()
+    for e in (result.critical_value, result.omega_squared, result.l1, result.transversality):
+        syms |= e.free_symbols
+    for v in result.equilibrium.values():
+        syms |= v.free_symbols
+    syms.discard(result.parameter_symbol)
+    return syms
+
+
+def _num(expr, subs, digits, what=None):
+    """``expr`` at the point as an mpmath number.  Where it is undefined (a
+    pole, e.g. an amplitude coefficient where l1 = 0) the result is NaN, or,
+    when ``what`` names a quantity the evaluation cannot do without, an error."""
+    v = sympy.N(expr.xreplace(subs), digits)
+    if v.free_symbols:
+        raise ParameterError(f"no value for {', '.join(sorted(map(str, v.free_symbols)))}")
+    if v.has(sympy.zoo, sympy.nan, sympy.oo, -sympy.oo):
+        if what is not None:
+            raise ParameterError(f"the {what} is undefined at this parameter point (division by "
+                                 "zero); the point lies outside the admissible set")
+        return mpmath.nan
+    re, im = v.as_real_imag()
+    if im != 0 and abs(im) > abs(re) * sympy.Float(10) ** (-digits + 3):
+        return mpmath.mpc(mpmath.mpf(str(re)), mpmath.mpf(str(im)))
+    return mpmath.mpf(str(re))
+
+
+def evaluate_result(result, values: Mapping, *, digits: int = 30) -> NumericHopfResult:
+    """Evaluate every quantity of ``result`` at ``values``."""
+    if digits < 5 or digits > 10000:
+        raise ParameterError(f"digits must be between 5 and 10000, got {digits}")
+    exact = parameter_values(result, values)
+    subs = {result.model.symbols.get(k, sympy.Symbol(k, real=True)): v for k, v in exact.items()}
+    for s in _free_parameters(result):
+        if str(s) in exact:
+            subs[s] = exact[str(s)]
+    with mpmath.workdps(digits + 5):
+        mu_c = _num(result.critical_value, subs, digits + 5, "critical value")
+        at_c = dict(subs)
+        at_c[result.parameter_symbol] = sympy.Float(str(mu_c), digits + 5) if isinstance(
+            mu_c, mpmath.mpf) else mu_c
+        omega = _num(result.omega, subs, digits + 5, "frequency omega")
+        l1 = _num(result.l1, subs, digits + 5)
+        lyap = tuple(_num(e, subs, digits + 5) for e in result.lyapunov_coefficients)
+        eq = {k: _num(v, at_c, digits + 5) for k, v in result.equilibrium.items()}
+        amps = {k: _num(v, subs, digits + 5) for k, v in result.cycle.amplitude_coefficients.items()}
+        J = mpmath.matrix([[_num(x, subs, digits + 5) for x in row]
+                           for row in result.jacobian.tolist()])
+        eigs = mpmath.eig(J, left=False, right=False)
+        target = mpmath.mpc(0, omega)
+        pair_error = min(abs(e - target) for e in eigs)
+        tol = mpmath.mpf(10) ** (-(digits // 2))
+        others = [e for e in eigs if abs(e - target) > tol and abs(e + target) > tol]
+        conds = tuple((c.key, _num(c.expr, subs, digits + 5), c.relation) for c in result.conditions)
+        cls = "supercritical" if l1 < 0 else "subcritical" if l1 > 0 else "degenerate"
+        return NumericHopfResult(
+            values=exact, digits=digits, critical_value=mu_c, omega_squared=omega ** 2,
+            omega=omega, period=2 * mpmath.pi / omega,
+            transversality=_num(result.transversality, subs, digits + 5),
+            c1=_num(result.c1, subs, digits + 5), l1=l1, lyapunov_coefficients=lyap,
+            classification=cls, equilibrium=eq, amplitude_coefficients=amps,
+            eigenvalues=tuple(eigs), pair_error=pair_error,
+            others_stable=all(mpmath.re(e) < 0 for e in others), conditions=conds)

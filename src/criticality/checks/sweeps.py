@@ -1,0 +1,254 @@
+"""Vectorised evaluation of a result's closed forms over parameter grids.
+
+Pipeline place: result -> **sweeps** (numpy) -> plots, tables, users' own
+figures.
+
+:func:`sweep` turns one quantity of a :class:`~criticality.hopf_analysis.results.HopfResult`
+(``"l1"``, ``"critical_value"``, ``"amplitude_coefficient:x"``, ... or any
+sympy expression in its parameters) into a numpy function with
+``sympy.lambdify`` and evaluates it over a grid of parameter values, in
+chunks.  Points where the Hopf point does not exist (``omega^2 <= 0``, or the
+critical value outside the parameter's declared range) are marked in
+:attr:`Sweep.admissible`.  A sweep that runs longer than a couple of seconds
+reports its progress on standard error (or to a callback); pass
+``progress=False`` to keep it silent.
+"""
+
+from __future__ import annotations
+
+import sys
+import time
+from dataclasses import dataclass
+from typing import Callable, Mapping
+
+import sympy
+
+from ..errors import MissingExtraError, ParameterError
+
+__all__ = ["Sweep", "sweep", "quantity_expression", "QUANTITIES", "grid_function"]
+
+#: the named quantities a sweep accepts (plus ``amplitude_coefficient:<state>``
+#: and ``amplitude:<state>``)
+QUANTITIES = ("critical_value", "omega", "omega_squared", "period", "transversality", "l1",
+              "l2", "re_c1", "planar_coefficient", "frequency_slope", "radius_coefficient")
+
+#: seconds after which a sweep starts to report progress
+PROGRESS_AFTER = 2.0
+_CHUNK = 1 << 15
+
+
+def _numpy():
+    try:
+        import numpy
+    except ImportError as exc:
+        raise MissingExtraError("sweeps need numpy; install it with: "
+                                "pip install 'criticality[validate]'") from exc
+    return numpy
+
+
+@dataclass(frozen=True)
+class Sweep:
+    """A quantity evaluated over a parameter grid.
+
+    Attributes
+    ----------
+    quantity : str
+        The name asked for (or the printed expression).
+    expression : sympy.Expr
+        The closed form that was evaluated (fixed values substituted).
+    grid : mapping of str to numpy.ndarray
+        The grid coordinates, broadcast to a common shape.
+    values : numpy.ndarray
+        The quantity at every grid point (NaN where it is undefined).
+    admissible : numpy.ndarray of bool
+        Where the Hopf point exists (omega^2 > 0 and the critical value in
+        the declared range of the bifurcation parameter).
+    fixed : mapping of str to sympy.Expr
+        The values of the parameters not on the grid.
+    """
+
+    quantity: str
+    expression: sympy.Expr
+    grid: Mapping[str, object]
+    values: object
+    admissible: object
+    fixed: Mapping[str, sympy.Expr]
+
+    @property
+    def shape(self) -> tuple:
+        return tuple(self.values.shape)
+
+    def masked(self):
+        """``values`` with NaN where the Hopf point does not exist."""
+        np = _numpy()
+        out = np.array(self.values, dtype=float if not np.iscomplexobj(self.values) else complex)
+        out[~self.admissible] = np.nan
+        return out
+
+
+def quantity_expression(result, quantity) -> sympy.Expr:
+    """The closed form of ``result`` called ``quantity`` (see :data:`QUANTITIES`)."""
+    if isinstance(quantity, sympy.Expr):
+        return quantity
+    if not isinstance(quantity, str):
+        raise ParameterError(f"a quantity is a name or a sympy expression, got "
+                             f"{type(quantity).__name__}")
+    cycle = result.cycle
+    named = {
+        "critical_value": result.critical_value, "omega": result.omega,
+        "omega_squared": result.omega_squared, "period": cycle.period,
+        "transversality": result.transversality, "l1": result.l1, "l2": result.l2,
+        "re_c1": sympy.re(result.c1), "planar_coefficient": result.planar_coefficient,
+        "frequency_slope": cycle.frequency_slope,
+        "radius_coefficient": sympy.Add(*cycle.amplitude_coefficients.values()) / 4,
+    }
+    if quantity == "radius_coefficient" and cycle.amplitude_power != 2:
+        raise ParameterError(
+            f"'radius_coefficient' assumes the square-root law; here l1 vanishes identically "
+            f"and the amplitudes follow the 1/{cycle.amplitude_power} power law: sweep "
+            "'amplitude:<state>' instead")
+    if quantity in named:
+        if named[quantity] is None:
+            raise ParameterError(f"'{quantity}' was not computed; run hopf(..., order=5)")
+        return named[quantity]
+    kind, _, state = quantity.partition(":")
+    table = {"amplitude_coefficient": cycle.amplitude_coefficients,
+             "amplitude": cycle.amplitudes}.get(kind)
+    if table is not None and state in table:
+        return table[state]
+    choices = ", ".join(QUANTITIES) + ", amplitude_coefficient:<state>, amplitude:<state>"
+    if table is not None:
+        raise ParameterError(f"'{state}' is not a state of the model (states: "
+                             f"{', '.join(result.model.states)})")
+    raise ParameterError(f"unknown quantity {quantity!r}; expected one of {choices}")
+
+
+def _fixed_values(result, names, values) -> dict:
+    """Exact values of the parameters not on the grid (model defaults filled in)."""
+    from .numeric import parameter_values
+
+    given = dict(values or {})
+    clash = sorted(set(given) & set(names))
+    if clash:
+        raise ParameterError(f"{', '.join(clash)} is both on the grid and given a fixed value")
+    placeholder = {n: 0 for n in names}
+    exact = parameter_values(result, {**given, **placeholder})
+    return {k: v for k, v in exact.items() if k not in names}
+
+
+def grid_function(result, expr, names, values=None) -> tuple:
+    """A numpy function of the grid parameters ``names`` and the fixed values.
+
+    Returns ``(function, substituted expression, fixed values)``; every other
+    free symbol of ``expr`` must have a value.
+    """
+    fixed = _fixed_values(result, names, values)
+    repl = {s: fixed[s.name] for s in expr.free_symbols if s.name in fixed}
+    sub = expr.xreplace(repl)
+    symbols = {s.name: s for s in sub.free_symbols}
+    left = sorted(set(symbols) - set(names))
+    if left:
+        raise ParameterError(f"no value for {', '.join(left)}: put it on the grid or give it a "
+                             "fixed value")
+    args = [symbols.get(n, sympy.Symbol(n, real=True)) for n in names]
+    return sympy.lambdify(args, sub, modules="numpy"), sub, fixed
+
+
+def _admissible_expressions(result) -> list:
+    return [(c.expr, c.relation) for c in result.conditions
+            if c.key in ("omega_squared_positive", "critical_value_admissible")]
+
+
+class _Progress:
+    """Reports a fraction done on stderr (or to a callback) after a delay."""
+
+    def __init__(self, label: str, progress):
+        self.label, self.progress = label, progress
+        self.started = time.perf_counter()
+        self.shown = False
+
+    def __call__(self, done: int, total: int) -> None:
+        if self.progress is False or self.progress is None:
+            return
+        if callable(self.progress) and self.progress is not True:
+            self.progress(done, total)
+            return
+        if time.perf_counter() - self.started < PROGRESS_AFTER and not self.shown:
+            return
+        self.shown = True
+        sys.stderr.write(f"\r{self.label}: {100 * done // max(total, 1):3d}% of {total} points")
+        if done >= total:
+            sys.stderr.write("\n")
+        sys.stderr.flush()
+
+
+def _evaluate(np, fn, arrays, report) -> object:
+    flat = [a.ravel() for a in arrays]
+    total = flat[0].size
+    out = None
+    with np.errstate(all="ignore"):
+        for start in range(0, total, _CHUNK):
+            part = fn(*(a[start:start + _CHUNK] for a in flat))
+            part = np.broadcast_to(np.asarray(part), (min(_CHUNK, total - start),))
+            if out is None:
+                out = np.empty(total, dtype=complex if np.iscomplexobj(part) else float)
+            out[start:start + part.size] = part
+            report(min(start + _CHUNK, total), total)
+    if np.iscomplexobj(out):
+        small = np.abs(out.imag) <= 1e-12 * (1 + np.abs(out.real))
+        if np.all(small | ~np.isfinite(out)):
+            out = out.real.copy()
+    return out.reshape(arrays[0].shape)
+
+
+def sweep(result, quantity, grid: Mapping, *, values: Mapping | None = None,
+          progress: bool | str | Callable = "auto") -> Sweep:
+    """Evaluate a closed form of ``result`` over a grid of parameter values.
+
+    Parameters
+    ----------
+    result : HopfResult
+    quantity : str or sympy.Expr
+        A name from :data:`QUANTITIES`, ``"amplitude_coefficient:<state>"``,
+        ``"amplitude:<state>"`` (needs the bifurcation parameter on the grid),
+        or an expression in the result's parameters.
+    grid : mapping of str to array_like
+        Parameter name -> values; the arrays are broadcast together (use
+        ``numpy.meshgrid`` for a plane).
+    values : mapping, optional
+        Fixed values of the other parameters (model defaults fill gaps).
+    progress : "auto", bool or callable
+        ``"auto"``/True: a line on stderr once the sweep has run for
+        :data:`PROGRESS_AFTER` seconds; False: silent; a callable receives
+        ``(done, total)`` after every chunk.
+
+    Returns
+    -------
+    Sweep
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> from criticality import Model, hopf
+    >>> m = Model(["x", "y"], {"x": "y", "y": "-x + (mu - a)*y - x^2*y"}, {"mu": "real"})
+    >>> r = hopf(m, "mu", equilibrium={"x": 0, "y": 0})
+    >>> sweep(r, "critical_value", {"a": np.array([0.0, 1.5])}).values
+    array([0. , 1.5])
+    """
+    np = _numpy()
+    expr = quantity_expression(result, quantity)
+    names = list(grid)
+    if not names:
+        raise ParameterError("the grid is empty: give at least one parameter and its values")
+    fn, sub, fixed = grid_function(result, expr, names, values)
+    arrays = np.broadcast_arrays(*(np.asarray(grid[n], dtype=float) for n in names))
+    report = _Progress(f"sweep {quantity}", progress)
+    out = _evaluate(np, fn, arrays, report)
+    ok = np.ones(out.shape, dtype=bool)
+    for cond, relation in _admissible_expressions(result):
+        cfn = grid_function(result, cond, names, values)[0]
+        c = np.real(_evaluate(np, cfn, arrays, lambda *a: None))
+        ok &= (c > 0) if relation == ">" else (c != 0)
+    return Sweep(quantity=str(quantity), expression=sub,
+                 grid={n: a for n, a in zip(names, arrays)}, values=out, admissible=ok,
+                 fixed=fixed)

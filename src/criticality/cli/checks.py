@@ -1,0 +1,253 @@
+"""Command-line subcommands for the simulation check and the diagrams.
+
+Pipeline place: **command line** -> model file -> ``hopf`` -> validation,
+plots -> files.  A shell only: it parses arguments, calls the library and
+writes what it returns; there is no mathematics here.
+
+:func:`register` adds three subcommands to the ``criticality`` command:
+
+``confirm``
+    simulate the model near onset and print (or write) the check report;
+    exit status 0 when the prediction is confirmed, 11 when it is not, 12
+    when the check is inconclusive.
+``plane``
+    draw the Hopf curve in a plane of two parameters (PNG, SVG or PDF) and
+    optionally write its points as CSV.
+``survey``
+    both at once into a folder: ``report.txt``, ``report.tex``,
+    ``plane.png``, ``plane.svg``, ``curve.csv`` and ``amplitude.png``.
+
+Every subcommand takes the analysis options of the main command
+(:func:`criticality.cli.main.add_analysis_options`: the model file, ``-p``,
+``--equilibrium``, ``--eliminate``, ``--set`` to fix parameters before the
+analysis, ...) and ``--at NAME=VALUE`` (repeatable) for the parameter point
+of the check and the fixed parameters of the diagram; model defaults fill the
+rest.  Files are written atomically and never overwritten without
+``--force``.  Errors of the package are reported by the main command's
+:func:`criticality.cli.main.main` with their exit status.
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import sys
+
+__all__ = ["register", "EXIT_NOT_CONFIRMED", "EXIT_INCONCLUSIVE"]
+
+#: exit status of ``confirm`` and ``survey`` when the simulation contradicts the prediction
+EXIT_NOT_CONFIRMED = 11
+#: exit status when the simulation can neither confirm nor contradict it
+EXIT_INCONCLUSIVE = 12
+
+_SURVEY_FILES = ("report.txt", "report.tex", "plane.png", "plane.svg", "curve.csv",
+                 "amplitude.png")
+
+
+# -- options ---------------------------------------------------------------------------------
+
+
+def _flags(parser) -> None:
+    parser.add_argument("-q", "--quiet", action="store_true", default=argparse.SUPPRESS,
+                        help="no progress messages on standard error")
+    parser.add_argument("--debug", action="store_true", default=argparse.SUPPRESS,
+                        help="show the traceback of an error")
+
+
+def _common(parser) -> None:
+    from .support import pairs
+    from .main import add_analysis_options
+
+    _flags(parser)
+    add_analysis_options(parser)
+    parser.add_argument("--at", dest="point", action="append", default=[], metavar="NAME=VALUE",
+                        type=lambda s: pairs([s], "--at"),
+                        help="the parameter point of the check, and the fixed parameters of "
+                        "the diagram (repeatable, exact text such as 8/3); model defaults "
+                        "fill the rest")
+    parser.add_argument("-f", "--force", action="store_true", help="overwrite existing files")
+
+
+def _plane_options(parser) -> None:
+    parser.add_argument("--x", required=True, help="parameter on the horizontal axis")
+    parser.add_argument("--y", help="parameter on the vertical axis (default: the bifurcation "
+                        "parameter)")
+    parser.add_argument("--x-range", nargs=2, type=float, metavar=("LOW", "HIGH"), required=True)
+    parser.add_argument("--y-range", nargs=2, type=float, metavar=("LOW", "HIGH"), required=True)
+    parser.add_argument("--stability", choices=("closed-form", "eigenvalues"),
+                        default="closed-form", help="how the stable region is decided")
+    parser.add_argument("--size", nargs=2, type=float, default=(6.4, 4.8),
+                        metavar=("WIDTH", "HEIGHT"), help="figure size in inches")
+    parser.add_argument("--dpi", type=int, default=100, help="pixels per inch of PNG output")
+    parser.add_argument("--points", type=int, default=400, help="samples along the curve")
+
+
+def _check_options(parser) -> None:
+    parser.add_argument("--offsets", type=float, nargs="+", metavar="DELTA",
+                        help="distances |mu - mu_c| to check (default: from the problem's scale)")
+    parser.add_argument("--tolerance", type=float, default=0.05,
+                        help="largest relative error accepted at the smallest offset")
+    parser.add_argument("--method", choices=("DOP853", "RK45", "Radau", "BDF", "LSODA"),
+                        help="scipy integrator (default: DOP853, LSODA when stiff)")
+    parser.add_argument("--max-periods", type=int, default=4000,
+                        help="cap on the length of one run, in periods")
+
+
+def register(subparsers) -> None:
+    """Add the ``confirm``, ``plane`` and ``survey`` subcommands.
+
+    ``subparsers`` is what ``ArgumentParser.add_subparsers()`` returned; each
+    subcommand sets ``handler`` to a function ``handler(args) -> int``.
+    """
+    p = subparsers.add_parser(
+        "confirm", help="check the predicted cycle by simulating the model",
+        description="Simulate the model near onset and compare the cycle with the prediction. "
+                    f"Exit status 0: confirmed; {EXIT_NOT_CONFIRMED}: not confirmed; "
+                    f"{EXIT_INCONCLUSIVE}: inconclusive.")
+    _common(p)
+    _check_options(p)
+    p.add_argument("--format", choices=("text", "latex"), default="text")
+    p.add_argument("-o", "--output", metavar="FILE",
+                   help="write the report to FILE instead of standard output")
+    p.add_argument("--amplitude-plot", metavar="FILE",
+                   help="also draw the predicted and simulated amplitudes (PNG, SVG or PDF)")
+    p.set_defaults(handler=_confirm)
+
+    p = subparsers.add_parser(
+        "plane", help="draw the Hopf curve in a plane of two parameters",
+        description="Draw the Hopf curve, its super- and subcritical pieces, the points where "
+                    "l1 vanishes and the region where the equilibrium is stable.")
+    _common(p)
+    _plane_options(p)
+    p.add_argument("-o", "--output", required=True, metavar="FILE",
+                   help="image file (.png, .svg or .pdf)")
+    p.add_argument("--csv", metavar="FILE", help="also write the curve's points as CSV")
+    p.set_defaults(handler=_plane)
+
+    p = subparsers.add_parser(
+        "survey", help="the check report and the diagrams, into one folder",
+        description="Write " + ", ".join(_SURVEY_FILES) + " into a folder.")
+    _common(p)
+    _check_options(p)
+    _plane_options(p)
+    p.add_argument("--out-dir", required=True, metavar="DIR",
+                   help="folder for the files (created if needed)")
+    p.set_defaults(handler=_survey)
+
+
+# -- turning arguments into library calls -------------------------------------------------------
+
+
+def _quiet(args) -> bool:
+    return bool(getattr(args, "quiet", False))
+
+
+def _point(args) -> dict:
+    from ..errors import ParameterError
+
+    out = {}
+    for d in args.point:
+        for key, value in d.items():
+            if key in out:
+                raise ParameterError(f"--at: {key!r} is given twice")
+            out[key] = value
+    return out
+
+
+def _analyse(args):
+    from .main import analyse_from_args
+
+    return analyse_from_args(args), _point(args)
+
+
+def _validate(args, result, values):
+    from .support import Stage
+    from ..checks.validation import validate
+
+    with Stage("simulating the model near onset", quiet=_quiet(args)):
+        return validate(result, values, offsets=args.offsets, tolerance=args.tolerance,
+                        method=args.method, max_periods=args.max_periods)
+
+
+def _status(report) -> int:
+    return {"confirmed": 0, "not confirmed": EXIT_NOT_CONFIRMED}.get(report.verdict,
+                                                                    EXIT_INCONCLUSIVE)
+
+
+def _confirm(args) -> int:
+    """``confirm``: the simulation check report."""
+    from .support import write_output
+
+    result, values = _analyse(args)
+    if args.amplitude_plot:
+        _refuse_existing(args.amplitude_plot, args.force)
+    report = _validate(args, result, values)
+    text = report.to_latex() if args.format == "latex" else str(report)
+    write_output(text + "\n", args.output, force=args.force)
+    if args.amplitude_plot:
+        from ..outputs.plots import plot_amplitude, save_figure
+
+        drawn = plot_amplitude(result, values, simulated=report)
+        save_figure(drawn.figure, args.amplitude_plot, force=args.force)
+    return _status(report)
+
+
+def _diagram(args, result, values):
+    from .support import Stage
+    from ..outputs.plots import plot_parameter_plane
+
+    y = args.y or result.parameter
+    with Stage("drawing the parameter plane", quiet=_quiet(args)):
+        return plot_parameter_plane(
+            result, args.x, y, values=values, x_range=tuple(args.x_range),
+            y_range=tuple(args.y_range), stability=args.stability.replace("-", " "),
+            figsize=tuple(args.size), dpi=args.dpi, points=args.points)
+
+
+def _refuse_existing(path, force):
+    from ..files import check_writable
+
+    check_writable(path, force)
+
+
+def _plane(args) -> int:
+    """``plane``: the parameter-plane diagram (and its CSV)."""
+    from ..outputs.plots import save_figure, write_curve_csv
+
+    result, values = _analyse(args)
+    for path in filter(None, (args.output, args.csv)):
+        _refuse_existing(path, args.force)
+    drawn = _diagram(args, result, values)
+    save_figure(drawn.figure, args.output, force=args.force)
+    if args.csv:
+        write_curve_csv(drawn.curve, args.csv, force=args.force)
+    if not _quiet(args):
+        print(f"criticality: wrote {args.output}" + (f" and {args.csv}" if args.csv else ""),
+              file=sys.stderr)
+    return 0
+
+
+def _survey(args) -> int:
+    """``survey``: report and diagrams into one folder."""
+    from .support import write_output
+    from ..outputs.plots import plot_amplitude, save_figure, write_curve_csv
+
+    result, values = _analyse(args)
+    os.makedirs(args.out_dir, exist_ok=True)
+    paths = {name: os.path.join(args.out_dir, name) for name in _SURVEY_FILES}
+    for path in paths.values():
+        _refuse_existing(path, args.force)
+    drawn = _diagram(args, result, values)
+    save_figure(drawn.figure, paths["plane.png"], force=args.force)
+    save_figure(drawn.figure, paths["plane.svg"], force=args.force)
+    write_curve_csv(drawn.curve, paths["curve.csv"], force=args.force)
+    report = _validate(args, result, values)
+    write_output(str(report) + "\n", paths["report.txt"], force=args.force)
+    write_output(report.to_latex() + "\n", paths["report.tex"], force=args.force)
+    amp = plot_amplitude(result, values, simulated=report)
+    save_figure(amp.figure, paths["amplitude.png"], force=args.force)
+    print(str(report))
+    if not _quiet(args):
+        print(f"criticality: wrote {', '.join(_SURVEY_FILES)} into {args.out_dir}",
+              file=sys.stderr)
+    return _status(report)

@@ -1,0 +1,358 @@
+"""The ``criticality`` command line.
+
+Pipeline place: **command line** -> model file -> analysis -> outputs.  A
+shell only: it parses arguments, calls the library and renders or writes what
+the library returns; there is no mathematics here.
+
+Subcommands
+-----------
+``analyse`` (also ``analyze``)
+    the terminal summary of the Hopf analysis of a model file
+``report``
+    the LaTeX derivation report (a standalone document; ``--fragment`` for the
+    equations only)
+``json``
+    the result as JSON (schema ``criticality/hopf-result``)
+``evaluate``
+    every quantity at a parameter point, ``--digits`` significant digits
+``list``
+    the analyses the package offers (from :mod:`criticality.registry`)
+``demo``
+    analyse a bundled invented model and show every output
+
+plus the subcommands registered by :mod:`criticality.cli.main.analyses` (``fold``,
+``bautin``, ``bogdanov-takens``) and by :mod:`criticality.cli.main.checks` (the
+simulation check ``confirm`` and the diagrams ``plane`` and ``survey``).
+
+Exit status
+-----------
+0 success; 1 another error of the package (e.g. a file cannot be written);
+2 bad command line; 3 the model cannot be used (file, syntax, content);
+4 a parameter is unknown or lacks a value; 5 equilibrium problem or a vector
+field that is not analytic there; 6 no Hopf point or a degenerate one; 7 no
+closed form or a size limit; 8 a missing optional extra; 9 an output file
+exists (use ``--force``); 10 a numerical validation could not run; 11 the
+simulation contradicts the prediction and 12 it is inconclusive (``confirm``,
+``survey``); 70 an
+internal error (a bug: rerun with ``--debug`` and report it); 130
+interrupted.  The codes 3 to 10 are the ``exit_code`` of the error classes in
+:mod:`criticality.errors`.
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+import traceback
+
+from .support import (Stage, equilibrium_choice, name_list, pairs, read_model,
+                           split_top_level, write_output)
+from ..errors import CriticalityError
+
+__all__ = ["main", "build_parser", "add_analysis_options", "analyse_from_args",
+           "EXIT_OK", "EXIT_USAGE", "EXIT_INTERNAL", "EXIT_INTERRUPTED"]
+
+EXIT_OK, EXIT_USAGE, EXIT_INTERNAL, EXIT_INTERRUPTED = 0, 2, 70, 130
+_DEMO = "demo.toml"
+
+
+class _UsageError(Exception):
+    """A command line that parses but does not make sense."""
+
+
+# -- options ---------------------------------------------------------------------------------
+
+
+def _flags(parser) -> None:
+    parser.add_argument("-q", "--quiet", action="store_true", default=argparse.SUPPRESS,
+                        help="no progress messages on standard error")
+    parser.add_argument("--debug", action="store_true", default=argparse.SUPPRESS,
+                        help="show the traceback of an error")
+
+
+def add_analysis_options(parser) -> None:
+    """The options that choose what to analyse (shared by the subcommands)."""
+    parser.add_argument("model", help="TOML model file, or - to read standard input")
+    parser.add_argument("-p", "--parameter", help="the bifurcation parameter (default: the "
+                        "model file's bifurcation_parameter)")
+    parser.add_argument("-e", "--equilibrium", type=equilibrium_choice, metavar="CHOICE",
+                        help='the equilibrium: "x=0, y=sqrt(b*(r-1))", an index (0, 1, ...) of '
+                        "the solved equilibria, or positive / nonnegative / nonzero (default: "
+                        "the model file's, else the only one)")
+    parser.add_argument("--eliminate", type=name_list, metavar="NAMES",
+                        help="parametrise the family by the equilibrium: solve f(x0) = 0 for "
+                        "these names (comma-separated, one per state); the other states "
+                        "become free symbols <state>_eq")
+    parser.add_argument("--set", dest="values", action="append", default=[], metavar="NAME=VALUE",
+                        type=lambda s: pairs([s], "--set"),
+                        help="fix a parameter to an exact value before the analysis, e.g. "
+                        "--set a=1/2 (repeatable)")
+    parser.add_argument("--assume", action="append", default=[], metavar="NAME=SIGN",
+                        type=lambda s: pairs([s], "--assume"),
+                        help="a sign assumption, e.g. --assume x_eq=positive (repeatable)")
+    parser.add_argument("--order", type=int, default=3, help="order of the normal form: 3 "
+                        "gives l1, 5 also l2 (default 3)")
+    parser.add_argument("--branch", type=int, default=None,
+                        help="branch of the critical set (default 0)")
+    parser.add_argument("--backend", choices=("flint", "sympy"), default="flint",
+                        help="exact arithmetic of the parameter field (default flint)")
+    parser.add_argument("--time-limit", type=float, default=None, metavar="SECONDS",
+                        help="stop the analysis after this many seconds with a message "
+                        "naming the stage reached and ways to make the problem smaller "
+                        "(exit code 7; default: no limit)")
+    parser.add_argument("--guess", type=lambda s: pairs(split_top_level(s), "--guess"),
+                        metavar="NAME=VALUE,...",
+                        help="numeric mode for equilibria without closed form: starting values "
+                        "for every state and the parameter, e.g. --guess V=-60,m=0.05,I=10; "
+                        "the other parameters need values (--set or the model file)")
+
+
+def _point_options(parser, digits: int) -> None:
+    parser.add_argument("--at", dest="point", action="append", default=[], metavar="NAME=VALUE",
+                        type=lambda s: pairs([s], "--at"),
+                        help="evaluate at this parameter value (repeatable, exact text such as "
+                        "8/3); model defaults fill the rest")
+    parser.add_argument("--digits", type=int, default=digits,
+                        help=f"significant digits of numeric values (default {digits})")
+
+
+def _output_options(parser) -> None:
+    parser.add_argument("-o", "--output", metavar="FILE",
+                        help="write to FILE (written atomically) instead of standard output")
+    parser.add_argument("-f", "--force", action="store_true",
+                        help="overwrite FILE if it exists")
+
+
+def _merge(dicts, option: str) -> dict:
+    out = {}
+    for d in dicts:
+        for key, value in d.items():
+            if key in out:
+                raise _UsageError(f"{option}: {key!r} is given twice")
+            out[key] = value
+    return out
+
+
+def _quiet(args) -> bool:
+    return bool(getattr(args, "quiet", False))
+
+
+def analyse_from_args(args):
+    """Read the model named by ``args`` and run the Hopf analysis the options
+    ask for; returns the :class:`~criticality.HopfResult`."""
+    from ..registry import get
+
+    with Stage("reading the model", quiet=_quiet(args)):
+        model = read_model(args.model)
+    values = _merge(args.values, "--set") or None
+    assume = _merge(args.assume, "--assume") or None
+    run = get("hopf").function
+    name = args.parameter or model.bifurcation_parameter or "?"
+    guess = getattr(args, "guess", None)
+    if guess:
+        with Stage(f"numeric Hopf analysis in {name}", quiet=_quiet(args)):
+            return run(model, args.parameter, guess=guess, order=args.order, values=values,
+                       digits=max(getattr(args, "digits", 30), 15),
+                       time_limit=getattr(args, "time_limit", None))
+    with Stage(f"Hopf analysis in {name}", quiet=_quiet(args)):
+        return run(model, args.parameter, equilibrium=args.equilibrium,
+                   eliminate=args.eliminate, branch=args.branch, order=args.order,
+                   values=values, assume=assume, backend=args.backend,
+                   time_limit=getattr(args, "time_limit", None))
+
+
+# -- handlers --------------------------------------------------------------------------------
+
+
+def _analyse(args) -> int:
+    from ..outputs.text import numeric_summary, result_summary
+
+    result = analyse_from_args(args)
+    text = result_summary(result, width=args.width)
+    point = _merge(args.point, "--at")
+    if point:
+        with Stage("numeric evaluation", quiet=_quiet(args)):
+            text += "\n" + numeric_summary(result.evaluate(point, digits=args.digits))
+    write_output(text, args.output, force=args.force)
+    return EXIT_OK
+
+
+def _report(args) -> int:
+    from ..outputs.latex import latex_report, result_to_latex
+
+    result = analyse_from_args(args)
+    with Stage("writing the LaTeX", quiet=_quiet(args)):
+        text = result_to_latex(result) + "\n" if args.fragment else latex_report(result)
+    written = write_output(text, args.output, force=args.force)
+    if written and not _quiet(args):
+        print(f"criticality: wrote {written}; compile it with: pdflatex {written}",
+              file=sys.stderr)
+    return EXIT_OK
+
+
+def _json(args) -> int:
+    from ..outputs.json_io import result_to_json
+
+    result = analyse_from_args(args)
+    point = _merge(args.point, "--at") or None
+    with Stage("writing the JSON", quiet=_quiet(args)):
+        text = result_to_json(result, point=point, digits=args.digits,
+                              indent=None if args.compact else 2) + "\n"
+    write_output(text, args.output, force=args.force)
+    return EXIT_OK
+
+
+def _evaluate(args) -> int:
+    from ..outputs.text import numeric_summary
+
+    result = analyse_from_args(args)
+    point = _merge(args.point, "--at")
+    with Stage("numeric evaluation", quiet=_quiet(args)):
+        numeric = result.evaluate(point, digits=args.digits)
+    write_output(numeric_summary(numeric), args.output, force=args.force)
+    return EXIT_OK
+
+
+def _list(args) -> int:
+    from ..registry import analyses
+
+    rows = analyses()
+    width = max(len(a.name) for a in rows)
+    lines = ["Analyses offered by criticality:"]
+    for a in rows:
+        needs = ", ".join(getattr(a, "needs", ()) or ())
+        lines.append(f"  {a.name.ljust(width)}  {a.description}"
+                     + (f" [needs: {needs}]" if needs else ""))
+    lines.append("The Hopf analysis runs with analyse, report, json and evaluate; the others "
+                 "with the subcommand of their name (fold, bautin, bogdanov-takens).")
+    print("\n".join(lines))
+    return EXIT_OK
+
+
+def _demo(args) -> int:
+    from .demo import run_demo
+
+    return run_demo(args, quiet=_quiet(args))
+
+
+# -- parser ----------------------------------------------------------------------------------
+
+
+def _subcommand(sub, name, handler, help_text, description, aliases=()):
+    p = sub.add_parser(name, help=help_text, description=description, aliases=list(aliases))
+    _flags(p)
+    p.set_defaults(handler=handler)
+    return p
+
+
+def _register_extensions(sub) -> None:
+    """Subcommands of other modules: the analyses beyond Hopf, the simulation
+    check and the diagrams."""
+    from . import analyses, checks
+
+    for module in (analyses, checks):
+        module.register(sub)
+
+
+def build_parser() -> argparse.ArgumentParser:
+    """The argument parser of the ``criticality`` command."""
+    from .. import __version__
+
+    parser = argparse.ArgumentParser(
+        prog="criticality",
+        description="Exact symbolic Hopf bifurcation analysis of a model file: where the "
+                    "steady state starts to oscillate, with the frequency, the first Lyapunov "
+                    "coefficient and the super/subcritical condition in closed form.",
+        epilog="Start with: criticality demo.  Exit status: 0 ok, 2 bad command line, 3-10 "
+               "errors of the package (see docs/cli.md).")
+    parser.add_argument("--version", action="version", version=f"criticality {__version__}")
+    _flags(parser)
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND")
+    _add_subcommands(sub)
+    _register_extensions(sub)
+    return parser
+
+
+def _add_subcommands(sub) -> None:
+    """The subcommands of this module."""
+    p = _subcommand(sub, "analyse", _analyse, "terminal summary of the Hopf analysis",
+                    "Analyse a model file and print a summary: a table of quantities, the "
+                    "verdict in words, the conditions, the cycle, conventions and cautions.",
+                    aliases=("analyze",))
+    add_analysis_options(p)
+    _point_options(p, 20)
+    _output_options(p)
+    p.add_argument("--width", type=int, default=100, help="line width (default 100)")
+    p = _subcommand(sub, "report", _report, "LaTeX derivation report",
+                    "Write the derivation as a standalone LaTeX document (pdflatex).")
+    add_analysis_options(p)
+    _output_options(p)
+    p.add_argument("--fragment", action="store_true",
+                   help="only the equations (an align* block), not a whole document")
+    p = _subcommand(sub, "json", _json, "the result as JSON",
+                    "Write the result in the JSON schema criticality/hopf-result (version 1).")
+    add_analysis_options(p)
+    _point_options(p, 30)
+    _output_options(p)
+    p.add_argument("--compact", action="store_true", help="one line instead of indented JSON")
+    p = _subcommand(sub, "evaluate", _evaluate, "numeric values at a parameter point",
+                    "Evaluate every quantity at a parameter point to --digits digits.")
+    add_analysis_options(p)
+    _point_options(p, 30)
+    _output_options(p)
+    _subcommand(sub, "list", _list, "list the analyses offered", "List the analyses offered.")
+    p = _subcommand(sub, "demo", _demo, "analyse a bundled example and show every output",
+                    "Analyse a bundled invented model and show the summary, the LaTeX, the "
+                    "JSON and a numeric evaluation.")
+    p.add_argument("--output-dir", metavar="DIR",
+                   help="also write the model, the LaTeX report and the JSON into DIR")
+    p.add_argument("-f", "--force", action="store_true", help="overwrite files in DIR")
+    p.add_argument("--digits", type=int, default=20, help="digits of the numeric evaluation")
+
+
+# -- entry point -----------------------------------------------------------------------------
+
+
+def _report_error(exc: BaseException, debug: bool) -> None:
+    if debug:
+        traceback.print_exception(type(exc), exc, exc.__traceback__, file=sys.stderr)
+    message = str(exc).strip() or type(exc).__name__
+    print(f"criticality: error: {message}", file=sys.stderr)
+
+
+def main(argv=None) -> int:
+    """Run the command line with ``argv`` (default: ``sys.argv[1:]``); returns
+    the exit status (see the module docstring)."""
+    parser = build_parser()
+    try:
+        args = parser.parse_args(argv)
+    except SystemExit as exc:  # --help, --version, or a usage error (already printed)
+        return exc.code if isinstance(exc.code, int) else EXIT_USAGE
+    handler = getattr(args, "handler", None)
+    if handler is None:
+        parser.print_help(sys.stderr)
+        return EXIT_USAGE
+    debug = bool(getattr(args, "debug", False))
+    try:
+        return int(handler(args))
+    except _UsageError as exc:
+        parser.print_usage(sys.stderr)
+        print(f"criticality: error: {exc}", file=sys.stderr)
+        return EXIT_USAGE
+    except CriticalityError as exc:
+        _report_error(exc, debug)
+        return exc.exit_code
+    except KeyboardInterrupt:
+        print("criticality: interrupted", file=sys.stderr)
+        return EXIT_INTERRUPTED
+    except Exception as exc:  # a bug: say so in one paragraph
+        if debug:
+            traceback.print_exc()
+        print(f"criticality: internal error ({type(exc).__name__}: {exc}); this is a bug -- "
+              "rerun with --debug for the traceback and please report it with the model file",
+              file=sys.stderr)
+        return EXIT_INTERNAL
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

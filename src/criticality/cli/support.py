@@ -1,0 +1,160 @@
+"""Helpers of the command line: argument types, progress, input and output.
+
+Pipeline place: **command line** (with :mod:`criticality.cli.main`).  No
+mathematics: these functions turn text from the command line into the
+arguments of library calls, read the model, report slow stages on standard
+error and write files atomically.
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import sys
+import threading
+import time
+from contextlib import contextmanager
+
+from ..errors import CriticalityError
+
+__all__ = ["pairs", "split_top_level", "equilibrium_choice", "name_list", "Stage",
+           "read_model", "write_output", "EQUILIBRIUM_WORDS"]
+
+#: equilibrium choices that ask the engine to solve and select
+EQUILIBRIUM_WORDS = ("positive", "nonnegative", "nonzero")
+
+
+def split_top_level(text: str) -> list:
+    """Split at commas outside parentheses.
+
+    >>> split_top_level("x=0, y=sqrt(b*(r-1)), z=f(1,2)")
+    ['x=0', 'y=sqrt(b*(r-1))', 'z=f(1,2)']
+    """
+    parts, depth, current = [], 0, []
+    for ch in text:
+        if ch == "," and depth == 0:
+            parts.append("".join(current))
+            current = []
+            continue
+        depth += (ch == "(") - (ch == ")")
+        current.append(ch)
+    parts.append("".join(current))
+    return [p for p in (x.strip() for x in parts) if p]
+
+
+def pairs(items, what: str) -> dict:
+    """``NAME=VALUE`` items (each may hold several, comma-separated) as a dict.
+
+    Raises
+    ------
+    argparse.ArgumentTypeError
+        For an item without ``=``, an empty name or value, or a repeated name.
+    """
+    out = {}
+    for item in items:
+        for piece in split_top_level(item):
+            name, sep, value = piece.partition("=")
+            name, value = name.strip(), value.strip()
+            if not sep or not name or not value:
+                raise argparse.ArgumentTypeError(
+                    f"{what}: expected NAME=VALUE, got {piece!r}")
+            if name in out:
+                raise argparse.ArgumentTypeError(f"{what}: {name!r} is given twice")
+            out[name] = value
+    return out
+
+
+def equilibrium_choice(text: str):
+    """The ``--equilibrium`` value: a mapping, an index or a sign word.
+
+    >>> equilibrium_choice("x=0, y=1/2"), equilibrium_choice("2"), equilibrium_choice("positive")
+    ({'x': '0', 'y': '1/2'}, 2, 'positive')
+    """
+    text = text.strip()
+    if text.isdigit():
+        return int(text)
+    if text in EQUILIBRIUM_WORDS:
+        return text
+    if "=" in text:
+        return pairs([text], "--equilibrium")
+    raise argparse.ArgumentTypeError(
+        f"--equilibrium: expected STATE=EXPR pairs (\"x=0, y=0\"), an index (0, 1, ...) or one "
+        f"of {', '.join(EQUILIBRIUM_WORDS)}; got {text!r}")
+
+
+def name_list(text: str) -> list:
+    """A comma-separated list of names (``--eliminate k,T0``)."""
+    names = [n.strip() for n in text.split(",") if n.strip()]
+    if not names:
+        raise argparse.ArgumentTypeError("expected one or more names separated by commas")
+    return names
+
+
+class Stage:
+    """Report a stage on standard error when it takes more than ``after``
+    seconds: its name when the time passes, then the elapsed time at its end.
+
+    Use as ``with Stage("analysing", quiet=False): ...``.
+    """
+
+    def __init__(self, name: str, *, quiet: bool = False, after: float = 1.0, stream=None):
+        self.name, self.quiet, self.after = name, quiet, after
+        self.stream = stream
+        self._timer = None
+        self._announced = False
+        self._start = 0.0
+
+    def _announce(self):
+        self._announced = True
+        print(f"criticality: {self.name} ...", file=self.stream or sys.stderr, flush=True)
+
+    def __enter__(self):
+        self._start = time.perf_counter()
+        if not self.quiet:
+            self._timer = threading.Timer(self.after, self._announce)
+            self._timer.daemon = True
+            self._timer.start()
+        return self
+
+    def __exit__(self, *exc):
+        if self._timer is not None:
+            self._timer.cancel()
+        elapsed = time.perf_counter() - self._start
+        if not self.quiet and (self._announced or elapsed > self.after):
+            state = "done" if exc[0] is None else "stopped"
+            print(f"criticality: {self.name} {state} in {elapsed:.1f} s",
+                  file=self.stream or sys.stderr, flush=True)
+        return False
+
+
+def read_model(path: str, *, stdin=None):
+    """The model in ``path`` (``"-"``: standard input)."""
+    from ..model.core import Model
+
+    if path == "-":
+        stream = stdin if stdin is not None else sys.stdin
+        return Model.from_text(stream.read(), source="<stdin>")
+    return Model.from_file(path)
+
+
+@contextmanager
+def _os_errors(path: str):
+    try:
+        yield
+    except OSError as exc:
+        raise CriticalityError(f"cannot write {path}: {exc.strerror or exc}") from None
+
+
+def write_output(text: str, path: str | None, *, force: bool = False, stdout=None) -> str | None:
+    """Write ``text`` to ``path`` atomically (temporary file in the same
+    folder, then :func:`os.replace`), or to standard output for None or
+    ``"-"``.  An existing file is kept unless ``force``
+    (:class:`~criticality.errors.OutputExistsError`)."""
+    if path is None or path == "-":
+        (stdout or sys.stdout).write(text)
+        return None
+    from ..files import write_text_atomic
+
+    with _os_errors(path):
+        write_text_atomic(os.fspath(path), text, force=force)
+    return path

@@ -1,0 +1,200 @@
+"""The computational core of the Hopf analysis, on plain sympy inputs.
+
+Pipeline: Taylor data (sympy) -> tower of fields -> Jacobian and characteristic
+polynomial with the bifurcation parameter symbolic -> critical branches -> for
+each branch, substitution of the critical value, eigenbasis, the two routes to
+the normal-form coefficients (projection formula; center manifold series +
+planar normal form), and their exact comparison.
+
+This module knows nothing about model files, names or outputs: it takes sympy
+objects and returns :class:`BranchComputation` records of field elements, which
+:mod:`criticality.hopf` turns into results.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import sympy
+
+from ..algebra import Tower, collect_atoms
+from ..algebra.domain import algebraic_atom_rules
+from ..budget import hint, stage
+from ..local.center_manifold import ReducedSystem, reduce_to_center_manifold
+from ..local.critical import CriticalBranch, find_critical_branches
+from ..local.eigenbasis import Eigenbasis, critical_eigenbasis
+from ..algebra.canonical import factored
+from ..errors import (ClosedFormUnavailableError, NoHopfPointError, NotAnEquilibriumError,
+                     ParameterError)
+from ..local.linear import characteristic_polynomial
+from ..local.lyapunov import complex_normal_form
+from ..local.normal_form import complexify, planar_normal_form, unit_coefficients
+from ..local.projection import projection_c1
+from ..algebra.signs import NEGATIVE, NONPOSITIVE, ZERO, context_for, truth
+from ..local.taylor import TaylorForms, raw_taylor
+
+__all__ = ["Problem", "BranchComputation", "EngineOutput", "run_engine"]
+
+
+@dataclass(frozen=True)
+class Problem:
+    """A shifted-and-ready Hopf problem in sympy terms."""
+
+    equations: tuple
+    states: tuple
+    parameters: tuple
+    parameter: sympy.Symbol
+    equilibrium: tuple
+    order: int = 3
+    backend: str = "flint"
+    state_names: tuple = ()
+    assumptions: dict = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
+class BranchComputation:
+    """Everything computed on one branch (field elements)."""
+
+    branch: CriticalBranch
+    taylor: TaylorForms
+    eigenbasis: Eigenbasis
+    reduced: ReducedSystem
+    c_center: tuple      # c_k, unit normalisation, center-manifold route
+    c1_projection: object  # c_1, unit normalisation, projection route
+    c_complex: tuple = ()  # c_k, unit normalisation, normalization method (order >= 5)
+
+    @property
+    def routes_agree(self) -> bool:
+        # every c_k is the same exact element on both series routes (criticality.local.lyapunov)
+        return self.c_center[0] == self.c1_projection and all(
+            a == b for a, b in zip(self.c_center, self.c_complex))
+
+
+@dataclass(frozen=True)
+class EngineOutput:
+    tower_mu: Tower
+    chi: list
+    jacobian_mu: list
+    branches: tuple
+    notes: tuple
+    degenerate: tuple
+    branch_count: int = 1
+
+
+def run_engine(problem: Problem, select: int | None = None) -> EngineOutput:
+    """Run the pipeline on every closed-form branch of the critical set, or
+    only on branch ``select`` of the ordered list (branches that need no new
+    square root come first)."""
+    order = max(3, problem.order)
+    stage("expanding the model in Taylor series at the equilibrium")
+    raw = raw_taylor(problem.equations, problem.states, problem.equilibrium, order,
+                     problem.state_names or None)
+    equilibrium = tuple(problem.equilibrium)
+    rules = algebraic_atom_rules(list(raw.coefficients()) + list(equilibrium))
+    if rules:
+        raw = raw.map(lambda c: c.xreplace(rules))
+        equilibrium = tuple(x.xreplace(rules) for x in equilibrium)
+    exprs = list(raw.coefficients()) + list(equilibrium)
+    atoms = collect_atoms(exprs, problem.parameters)
+    inside = [a for a in atoms if a.has(problem.parameter)]
+    if inside:
+        raise ClosedFormUnavailableError(
+            f"the bifurcation parameter '{problem.parameter}' occurs inside {inside[0]} at the "
+            "equilibrium, so its critical value is not algebraic in closed form. Parametrise "
+            "the family by the equilibrium (eliminate=[...]) so that it occurs polynomially, "
+            "choose another bifurcation parameter, or use the numeric mode (guess={...}).")
+    plain = context_for(problem.parameters, problem.assumptions)
+    tower = Tower(problem.parameters, atoms, problem.backend, lambda e: truth(plain.sign(e)))
+    x0 = [tower.convert(e) for e in equilibrium]
+    taylor_mu = TaylorForms.from_raw(raw, x0, tower.convert, tower.base)
+    _check_equilibrium(tower, taylor_mu, problem)
+    K = tower.top
+    taylor_mu = TaylorForms(K, taylor_mu.n, taylor_mu.order, taylor_mu.components)
+    A_mu = taylor_mu.jacobian()
+    stage("computing the characteristic polynomial")
+    chi = characteristic_polynomial(K, A_mu)
+    ctx = context_for(problem.parameters, problem.assumptions, tower.atoms)
+    stage(f"solving for the critical set in '{problem.parameter}'")
+    branches, notes, degenerate, unexamined = find_critical_branches(
+        tower, problem.parameter, chi, describe=lambda s: f"'{s}'",
+        accept=lambda b: _may_be_positive(b, ctx),
+        want=None if select is None else select + 1)
+    if select is not None:
+        if not 0 <= select < len(branches):
+            raise ParameterError(f"branch {select} does not exist: the critical set has "
+                                 f"{len(branches)} closed-form branch(es) (0 to "
+                                 f"{len(branches) - 1})")
+        todo = [branches[select]]
+    else:
+        todo = branches
+    computed = []
+    for b in todo:
+        if len(b.tower.levels) > len(tower.levels):
+            hint(f"the critical value of '{problem.parameter}' needs a square root, which makes "
+                 "every later step work with pairs over a larger field" + _linear_hint(notes))
+        try:
+            bc = _compute_branch(tower, taylor_mu, b, problem, order)
+        except ZeroDivisionError:
+            notes.append(f"at the critical value {b.tower.to_sympy(b.value)} a Taylor "
+                         "coefficient is undefined (a denominator vanishes); branch skipped")
+            continue
+        if bc is None:
+            notes.append("a branch of the critical set has <q, q> = 0, which means omega^2 <= 0 "
+                         "there (a real pair +-kappa, not a Hopf pair); it was dropped")
+        else:
+            computed.append(bc)
+    if not computed:
+        raise NoHopfPointError(
+            "on every branch of the critical set omega^2 <= 0: where two eigenvalues sum to "
+            "zero they are a real pair +-kappa (a neutral saddle), not a pair crossing the "
+            "imaginary axis", reason="omega_squared_nonpositive")
+    return EngineOutput(tower, chi, A_mu, tuple(computed), tuple(notes), tuple(degenerate),
+                        len(branches) + unexamined)
+
+
+def _linear_hint(notes) -> str:
+    """The parameters in which the critical set is linear, from the notes of
+    :func:`find_critical_branches`, as a clause for the budget's message."""
+    for note in notes:
+        if "but it is linear in " in note:
+            names = note.split("but it is linear in ", 1)[1].split(":", 1)[0]
+            return f"; it is linear in {names}, which would avoid the root"
+    return ""
+
+
+def _may_be_positive(branch, ctx) -> bool:
+    sign = factored(branch.tower, branch.W, ctx, restore=False).sign
+    return sign not in (NEGATIVE, NONPOSITIVE, ZERO)
+
+
+def _check_equilibrium(tower, taylor, problem):
+    names = problem.state_names or [str(s) for s in problem.states]
+    bad = [(names[i], r) for i, r in enumerate(taylor.residual()) if r]
+    if bad:
+        parts = "; ".join(f"the right-hand side for '{n}' equals {tower.to_sympy(r)}" for n, r in bad)
+        raise NotAnEquilibriumError(
+            f"the given point is not an equilibrium: {parts} there instead of 0. Check the "
+            "equilibrium coordinates, or let the engine solve for the equilibrium.")
+
+
+def _compute_branch(tower, taylor_mu, branch, problem, order) -> BranchComputation:
+    target = branch.tower
+    mu, value, images = problem.parameter, branch.value, branch.images
+    K = target.top
+    stage("substituting the critical value into the Taylor coefficients")
+    taylor = taylor_mu.map(lambda c: tower.substitute(c, mu, value, target, images), K)
+    N = branch.nu_field
+    stage("computing the critical eigenvectors")
+    eb = critical_eigenbasis(K, taylor.jacobian(), branch.W, N)
+    if not eb.qq:  # |Av|^2 + W |v|^2 = 0 forces W <= 0: not an imaginary pair
+        return None
+    stage("evaluating the projection formula for c1")
+    c1_proj = projection_c1(taylor, eb) / eb.qq
+    stage(f"reducing to the center manifold (order {order})")
+    reduced = reduce_to_center_manifold(taylor, eb, order)
+    stage(f"computing the planar normal form (order {order})")
+    G = complexify(reduced, N, order)
+    c_center = tuple(unit_coefficients(planar_normal_form(G, N, order), eb.qq))
+    stage(f"computing the n-dimensional normal form (order {order})")
+    c_complex = complex_normal_form(taylor, eb, order) if order >= 5 else ()
+    return BranchComputation(branch, taylor, eb, reduced, c_center, c1_proj, c_complex)

@@ -1,0 +1,120 @@
+"""A :class:`HopfResult` from the numbers of the numeric mode.
+
+Pipeline place: numeric mode -> **result**.  Every quantity is a sympy Float
+with the requested number of digits; the status and a note say that the
+result is numeric and how many of its digits are correct.
+"""
+
+from __future__ import annotations
+
+import mpmath
+import sympy
+
+from ..local.critical import Condition
+from ..errors import ClosedFormUnavailableError
+from .results import CyclePrediction, HopfResult
+
+__all__ = ["numeric_result"]
+
+
+def _f(x, digits):
+    return sympy.Float(mpmath.nstr(x, digits + 2, strip_zeros=False), digits)
+
+
+def _c(x, digits):
+    x = mpmath.mpc(x)
+    return _f(x.real, digits) + sympy.I * _f(x.imag, digits)
+
+
+class _NumericDetails:
+    """The display-oriented parts of a numeric result."""
+
+    def __init__(self, data, digits, model):
+        self.data, self.digits, self.model = data, digits, model
+
+    def reduced_system(self):
+        raise ClosedFormUnavailableError(
+            "the reduced system is not shown in the numeric mode; the normal-form coefficients "
+            "were computed directly by the normalization method")
+
+    def jacobian(self):
+        return sympy.Matrix([[_f(a, self.digits) for a in row] for row in self.data["A"]])
+
+    def characteristic_polynomial(self):
+        lam = sympy.Symbol("lambda")
+        return self.jacobian().charpoly(lam).as_expr()
+
+    def eigenvector_q(self):
+        return tuple(_c(x, self.digits) for x in self.data["q"])
+
+    def eigenvector_p(self):
+        return tuple(_c(x, self.digits) for x in self.data["p"])
+
+
+def _conditions(d, digits):
+    beta = mpmath.re(d["dlam"])
+    tol = mpmath.mpf(10) ** (-digits)
+    others = d["others_max_re"]
+    return (
+        Condition("omega_squared_positive", "omega^2 > 0: the pair is imaginary, not a real "
+                  "pair +-kappa", _f(d["W"], digits), ">", "holds" if d["W"] > 0 else "fails"),
+        Condition("transversal", "the pair crosses with non-zero speed: Re d lambda / d mu != 0",
+                  _f(beta, digits), "!=", "holds" if abs(beta) > tol else "fails"),
+        Condition("others_stable", "the largest real part of the other eigenvalues is negative",
+                  _f(-others, digits), ">", "holds" if others < 0 else "fails"),
+    )
+
+
+def _cycle(d, digits, mu, mu_c, states, stable_others):
+    beta = mpmath.re(d["dlam"])
+    c1 = d["c"][0]
+    R = mpmath.re(c1)
+    k = -beta / R
+    offset = mu - mu_c
+    coeffs = {s: _f(4 * k * abs(x) ** 2, digits) for s, x in zip(states, d["q"])}
+    amps = {s: sympy.sqrt(c * offset) for s, c in coeffs.items()}
+    side = "above" if k > 0 else "below"
+    slope = mpmath.im(d["dlam"]) - beta * mpmath.im(c1) / R
+    stable = bool(R < 0 and stable_others)
+    return CyclePrediction(side, None, stable, _f(k, digits) * offset, amps, coeffs,
+                           2 * sympy.pi / _f(d["omega"], digits), _f(slope, digits))
+
+
+def numeric_result(model, original, parameter, d, digits, correct, agreement, routes, order):
+    """Build the result; ``correct`` digits are reported, ``agreement`` is the
+    raw number of digits on which the two runs agreed."""
+    with mpmath.workdps(digits + 10):
+        mu = original.symbols[parameter]
+        mu_c = _f(d["mu_c"], digits)
+        omega = d["omega"]
+        c1 = d["c"][0]
+        l1 = mpmath.re(c1) / omega
+        lyap = tuple(_f(mpmath.re(c) / omega, digits) for c in d["c"])
+        conds = _conditions(d, digits)
+        cls = "supercritical" if l1 < 0 else "subcritical"
+        if abs(l1) < mpmath.mpf(10) ** (-correct) * max(1, abs(c1) / omega):
+            cls = "degenerate"
+        status = f"numeric ({correct} correct digits)"
+        note = (f"numeric mode: the Hopf point was located by Newton's method from the guess; "
+                f"runs at {digits + 15} and {2 * digits + 15} significant digits agree to "
+                f"{agreement} digits, so {correct} digits are reported as correct")
+        verdict = {"supercritical": "supercritical (numeric): l1 < 0",
+                   "subcritical": "subcritical (numeric): l1 > 0",
+                   "degenerate": "l1 is zero to the computed accuracy: the next Lyapunov "
+                                 "coefficient decides"}[cls]
+        dlam = d["dlam"]
+        return HopfResult(
+            model=original, parameter=parameter, parameter_symbol=mu,
+            equilibrium={s: _f(x, digits) for s, x in zip(model.states, d["x0"])},
+            equilibrium_how="located numerically", critical_value=mu_c,
+            omega_squared=_f(d["W"], digits), omega=_f(omega, digits),
+            transversality=_f(mpmath.re(dlam), digits), eigenvalue_derivative=_c(dlam, digits),
+            c1=_c(c1, digits), l1=_f(l1, digits), planar_coefficient=_f(mpmath.re(c1) / 2, digits),
+            lyapunov_coefficients=lyap, classification=cls, verdict=verdict,
+            supercritical_where=None, l1_zero_set=None, conditions=conds,
+            cycle=_cycle(d, digits, mu, mu_c, model.states, conds[2].status == "holds"),
+            q_norm_squared=sympy.Integer(1), routes_agree=bool(routes), branch_index=0,
+            branch_count=1, substitutions={},
+            notes=tuple(getattr(original, "notes", ())) + (note,),
+            assumptions={p.name: p.assumption for p in original.parameters},
+            status=status, _details=_NumericDetails(d, digits, model))

@@ -1,0 +1,271 @@
+"""Frozen result objects of the Hopf analysis.
+
+Pipeline place: engine -> **result** -> outputs (text, LaTeX, JSON, numeric
+checks, plots).
+
+Every quantity is an exact sympy expression in the remaining parameters; every
+result carries the conventions it was computed in (:class:`Conventions`), so
+that a number copied into a paper can be traced to its normalisation and sign.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from functools import cached_property
+from typing import Mapping
+
+import sympy
+
+__all__ = ["Conventions", "CONVENTIONS", "CyclePrediction", "ReducedSystemView", "HopfResult"]
+
+
+@dataclass(frozen=True)
+class Conventions:
+    """The mathematical conventions of a result (stated on every output)."""
+
+    inner_product: str = "<a, b> = conj(a)^T b"
+    eigenvectors: str = ("A q = i omega q with omega > 0, A^T p = -i omega p, <p, q> = 1, and the "
+                         "unit normalisation <q, q> = 1")
+    normal_form: str = ("on the center manifold, x - x0 = z q + conj(z q) + O(|z|^2) and "
+                        "z' = (beta + i omega) z + c1 z|z|^2 + c2 z|z|^4 + ...")
+    lyapunov: str = ("l1 = Re(c1) / omega (unit-eigenvector normalisation); l_k = Re(c_k) / omega, "
+                     "meaningful where l_1 = ... = l_(k-1) = 0")
+    classical: str = ("for a planar system x' = -omega y + f, y' = omega x + g, the coefficient a "
+                      "of Guckenheimer and Holmes (1983, Section 3.4) equals omega * l1 / 2; "
+                      "other normalisations of q scale l1 by |q|^2 but never change its sign")
+    sign: str = "l1 < 0: supercritical (stable cycle); l1 > 0: subcritical (unstable cycle)"
+    cycle: str = ("radius rho^2 = -beta'(mu_c) (mu - mu_c) / Re(c1); amplitude of x_j is "
+                  "2 rho |q_j|; period 2 pi / omega to leading order")
+
+    def lines(self) -> tuple:
+        return (self.inner_product, self.eigenvectors, self.normal_form, self.lyapunov,
+                self.classical, self.sign, self.cycle)
+
+
+CONVENTIONS = Conventions()
+
+
+@dataclass(frozen=True)
+class CyclePrediction:
+    """The periodic orbit born at the Hopf point, to leading order.
+
+    Attributes
+    ----------
+    side : str
+        ``"above"`` (mu > mu_c), ``"below"`` (mu < mu_c) or ``"undecided"``.
+    side_condition : sympy relational or None
+        For ``"undecided"``: the cycle exists for mu > mu_c exactly where this
+        holds.
+    stable : bool or None
+        Whether the cycle is orbitally stable (l1 < 0 and the other
+        eigenvalues stable); None when not decided.
+    radius_squared : sympy.Expr
+        ``rho^2`` as a function of the parameter symbol (unit normalisation):
+        ``k (mu - mu_c)``, or ``(k (mu - mu_c))^(1/j)`` where ``l1 = ... =
+        l_(j-1) = 0`` identically and ``l_j`` decides.
+    amplitudes : Mapping[str, sympy.Expr]
+        Half peak-to-peak amplitude of each state variable, a function of the
+        bifurcation parameter symbol: ``sqrt(k_j (mu - mu_c))`` (a
+        ``(2j)``-th root law where ``l_j`` decides, see ``amplitude_power``).
+    amplitude_coefficients : Mapping[str, sympy.Expr]
+        ``k_j`` in ``amplitude_j**2 = k_j (mu - mu_c)``; empty where the
+        amplitudes follow another law (``amplitude_power != 2``).
+    period : sympy.Expr
+        ``2 pi / omega``.
+    frequency_slope : sympy.Expr
+        ``d omega_cycle / d mu`` at onset: the cycle's angular frequency is
+        ``omega + frequency_slope (mu - mu_c) + O((mu - mu_c)^2)``.  NaN when
+        the frequency is not linear in ``mu - mu_c`` to leading order (a
+        lower ``c_i`` with ``Re c_i = 0`` but ``Im c_i != 0``).
+    amplitude_power : int
+        ``p`` in ``amplitude_j^p ~ (mu - mu_c)``: 2 when l1 decides, ``2j``
+        when ``l_j`` decides because ``l1 = ... = l_(j-1) = 0`` identically.
+    """
+
+    side: str
+    side_condition: object
+    stable: object
+    radius_squared: sympy.Expr
+    amplitudes: Mapping[str, sympy.Expr]
+    amplitude_coefficients: Mapping[str, sympy.Expr]
+    period: sympy.Expr
+    frequency_slope: sympy.Expr
+    amplitude_power: int = 2
+
+
+@dataclass(frozen=True)
+class ReducedSystemView:
+    """The vector field on the center manifold, as sympy expressions.
+
+    In the rotation coordinates ``(x, y)`` of the center plane the reduced
+    system reads ``x' = -omega y + f(x, y)``, ``y' = omega x + g(x, y)``, with
+    ``state = x0 + x Re(q) - y Im(q) + h`` for the (non-normalised) eigenvector
+    ``q`` in ``eigenvector``.  ``manifold`` gives the graph ``h`` to the
+    computed order as expressions in ``(x, y)``.  ``x``, ``y`` and ``omega``
+    are symbols chosen not to clash with the model's names (``omega`` stands
+    for the result's ``omega``).
+    """
+
+    x: sympy.Symbol
+    y: sympy.Symbol
+    f: sympy.Expr
+    g: sympy.Expr
+    order: int
+    eigenvector: tuple
+    manifold: tuple
+    omega: sympy.Symbol = sympy.Symbol("omega", positive=True)
+
+    def equations(self):
+        """``(x' = -omega y + f, y' = omega x + g)`` as sympy equations."""
+        return (sympy.Eq(sympy.Symbol(f"{self.x}'"), -self.omega * self.y + self.f),
+                sympy.Eq(sympy.Symbol(f"{self.y}'"), self.omega * self.x + self.g))
+
+    def to_latex(self) -> str:
+        """The reduced system as a LaTeX ``aligned`` block."""
+        lx, ly = sympy.latex(self.x), sympy.latex(self.y)
+        fx = sympy.latex(-self.omega * self.y + self.f)
+        fy = sympy.latex(self.omega * self.x + self.g)
+        return (f"\\begin{{aligned}} \\dot{{{lx}}} &= {fx} \\\\ "
+                f"\\dot{{{ly}}} &= {fy} \\end{{aligned}}")
+
+    def _repr_latex_(self):
+        return f"$${self.to_latex()}$$"
+
+    def __str__(self):
+        return (f"{self.x}' = {sympy.sstr(-self.omega * self.y + self.f)}\n"
+                f"{self.y}' = {sympy.sstr(self.omega * self.x + self.g)}")
+
+
+@dataclass(frozen=True)
+class HopfResult:
+    """The Hopf analysis of one branch of the critical set.
+
+    All expressions are exact sympy objects in the model's remaining
+    parameters; see :attr:`conventions` for the normalisation.
+    """
+
+    model: object
+    parameter: str
+    parameter_symbol: sympy.Symbol
+    equilibrium: Mapping[str, sympy.Expr]
+    equilibrium_how: str
+    critical_value: sympy.Expr
+    omega_squared: sympy.Expr
+    omega: sympy.Expr
+    transversality: sympy.Expr
+    eigenvalue_derivative: sympy.Expr
+    c1: sympy.Expr
+    l1: sympy.Expr
+    planar_coefficient: sympy.Expr
+    lyapunov_coefficients: tuple
+    classification: str
+    verdict: str
+    supercritical_where: object
+    l1_zero_set: object
+    conditions: tuple
+    cycle: CyclePrediction
+    q_norm_squared: sympy.Expr
+    routes_agree: bool
+    branch_index: int
+    branch_count: int
+    substitutions: Mapping[str, sympy.Expr]
+    notes: tuple
+    assumptions: Mapping[str, str]
+    conventions: Conventions = CONVENTIONS
+    status: str = "closed form"
+    _details: object = field(default=None, repr=False, compare=False)
+
+    # -- computed on first access (display-oriented, not needed for the verdict) ----------
+    @cached_property
+    def reduced_system(self) -> ReducedSystemView:
+        """The vector field on the center manifold (see :class:`ReducedSystemView`)."""
+        return self._details.reduced_system()
+
+    @cached_property
+    def jacobian(self) -> sympy.Matrix:
+        """The Jacobian at the equilibrium at the critical point."""
+        return self._details.jacobian()
+
+    @cached_property
+    def characteristic_polynomial(self) -> sympy.Expr:
+        """``det(lambda I - A)`` at the critical point, as
+        ``(lambda^2 + omega^2) * (rest)``."""
+        return self._details.characteristic_polynomial()
+
+    @cached_property
+    def eigenvector_q(self) -> tuple:
+        """``q`` with ``A q = i omega q`` (not normalised; ``<q, q>`` is
+        ``q_norm_squared``), as expressions in ``omega``."""
+        return self._details.eigenvector_q()
+
+    @cached_property
+    def eigenvector_p(self) -> tuple:
+        """``p`` with ``A^T p = -i omega p`` and ``<p, q> = 1``."""
+        return self._details.eigenvector_p()
+
+    # -- derived -------------------------------------------------------------------------
+    @property
+    def l2(self):
+        """The second Lyapunov coefficient, or None if not computed (use order=5)."""
+        return self.lyapunov_coefficients[1] if len(self.lyapunov_coefficients) > 1 else None
+
+    @property
+    def period(self) -> sympy.Expr:
+        return self.cycle.period
+
+    def condition(self, key: str):
+        """The condition with the given key (e.g. ``"omega_squared_positive"``)."""
+        for c in self.conditions:
+            if c.key == key:
+                return c
+        raise KeyError(key)
+
+    # -- numeric ---------------------------------------------------------------------------
+    def evaluate(self, values: Mapping | None = None, *, digits: int = 30, **kwargs):
+        """Every quantity at a parameter point, to ``digits`` significant digits.
+
+        Parameters are given as a mapping or as keywords (``r.evaluate(a=1)``);
+        returns a :class:`criticality.checks.numeric.NumericHopfResult`.
+        """
+        from ..checks.numeric import evaluate_result
+
+        merged = dict(values or {})
+        merged.update(kwargs)
+        return evaluate_result(self, merged, digits=digits)
+
+    # -- outputs -----------------------------------------------------------------------------
+    def summary(self) -> str:
+        """A readable plain-text summary (table of quantities, verdict, conventions)."""
+        from ..outputs.text import result_summary
+
+        return result_summary(self)
+
+    def to_latex(self) -> str:
+        """Every quantity as a LaTeX equation (an ``align``-ready block)."""
+        from ..outputs.latex import result_to_latex
+
+        return result_to_latex(self)
+
+    def to_json(self, **kwargs) -> str:
+        """The result as JSON in the documented, versioned schema."""
+        from ..outputs.json_io import result_to_json
+
+        return result_to_json(self, **kwargs)
+
+    def _repr_latex_(self):
+        from ..outputs.latex import result_to_notebook_latex
+
+        return result_to_notebook_latex(self)
+
+    def _latex(self, printer=None):
+        return self.to_latex()
+
+    def _sympystr(self, printer=None):
+        return self.summary()
+
+    def __str__(self):
+        return self.summary()
+
+    def __repr__(self):
+        return (f"HopfResult(parameter={self.parameter!r}, critical_value={self.critical_value}, "
+                f"classification={self.classification!r})")

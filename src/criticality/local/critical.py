@@ -1,0 +1,407 @@
+"""The critical set: where a pair of eigenvalues crosses the imaginary axis.
+
+Pipeline place: linear part -> **critical set** -> eigenbasis.
+
+For the factor ``phi(lambda)`` of the characteristic polynomial that carries
+the pair, the Hurwitz determinant ``Delta_(m-1)`` vanishes exactly where two
+eigenvalues sum to zero.  Its numerator is factored; every factor of degree one
+or two in the bifurcation parameter gives closed-form critical values (degree
+two adjoins the square root of its discriminant).  On each branch
+``omega^2`` is the common root ``s = -omega^2`` of the even and odd parts of
+``phi`` (``phi(l) = E(l^2) + l O(l^2)``), never an explicit eigenvalue; the
+remaining eigenvalues are described by the cofactor ``chi / (l^2 + omega^2)``,
+whose Hurwitz determinants become the stability conditions; the
+transversality is ``d lambda / d mu = -phi_mu / phi_lambda`` at
+``lambda = i omega``.
+"""
+
+from __future__ import annotations
+
+import random
+from dataclasses import dataclass
+
+import flint
+import sympy
+
+from ..algebra import upoly
+from ..algebra.flint_field import FlintRationalField, FlintRationalFunctionField
+from ..algebra.quadratic import QuadraticElement, QuadraticExtension, lower
+from ..errors import DegenerateHopfError, NoHopfPointError
+from .linear import factor_univariate, hurwitz_determinant, hurwitz_determinants
+
+__all__ = ["Condition", "CriticalBranch", "find_critical_branches", "nu_extension"]
+
+
+@dataclass(frozen=True)
+class Condition:
+    """A condition of the analysis and what is known about it.
+
+    Attributes
+    ----------
+    key : str
+        ``"omega_squared_positive"``, ``"critical_value_admissible"``,
+        ``"others_stable"``, ``"transversal"``, ...
+    description : str
+        One sentence in words.
+    expr : sympy.Expr
+        The quantity that must be positive (or non-zero, see ``relation``).
+    relation : str
+        ``">"`` or ``"!="``.
+    status : str
+        ``"holds"`` (proved under the assumptions), ``"fails"`` (proved false)
+        or ``"open"`` (stated, not proved: the result is valid where it holds).
+    """
+
+    key: str
+    description: str
+    expr: sympy.Expr
+    relation: str
+    status: str
+
+    @property
+    def inequality(self):
+        if self.relation == ">":
+            return sympy.StrictGreaterThan(self.expr, 0, evaluate=False)
+        return sympy.Ne(self.expr, 0, evaluate=False)
+
+
+@dataclass(frozen=True)
+class CriticalBranch:
+    """One closed-form branch of the critical set.
+
+    ``value`` and every other element live in ``tower`` (the field after the
+    substitution of the critical value); ``chi`` is the characteristic
+    polynomial there, ``cofactor`` its part without the critical pair.
+    """
+
+    index: int
+    value: object
+    tower: object
+    W: object
+    chi: list
+    cofactor: list
+    transversality: tuple  # (Re d lambda/d mu, coefficient b of nu in d lambda/d mu)
+    nu_field: object
+    images: dict
+    cofactor_factors: tuple = ()
+
+
+def nu_extension(tower, W):
+    """The field ``top(nu)`` with ``nu**2 = -W`` (``nu = i omega``)."""
+    W_expr = tower.to_sympy(W)
+    return QuadraticExtension(tower.top, -W, "nu", root=sympy.I * sympy.sqrt(W_expr))
+
+
+def _solutions(tower_mu, mu, d):
+    """Critical values from ``d = 0``: list of ``(kind, data)`` with kind
+    ``"linear"`` (value), ``"quadratic"`` ((c2, c1, c0)) or ``"unsolved"`` (expr)."""
+    K = tower_mu.base
+    d = lower(d)
+    if isinstance(d, QuadraticElement):
+        return [("unsolved", tower_mu.to_sympy(d))]
+    d = K(d)
+    out = []
+    if isinstance(K, FlintRationalFunctionField):
+        _, factors = d.num.factor()
+        for poly, _m in factors:
+            coeffs = K.coefficients_in(poly, mu)
+            deg = max(coeffs)
+            c = [K.from_polynomials(coeffs[k], K._one_poly) if k in coeffs else K.zero
+                 for k in range(deg + 1)]
+            out.append(_classify(c, lambda: K.poly_to_sympy(poly)))
+    else:
+        num, _ = sympy.fraction(sympy.together(K.to_sympy(d)))
+        for f, _m in sympy.factor_list(num)[1]:
+            p = sympy.Poly(f, mu)
+            c = [K.from_sympy(x) for x in reversed(p.all_coeffs())]
+            out.append(_classify(c, lambda f=f: f))
+    return [o for o in out if o is not None]
+
+
+def linear_alternatives(tower_mu, mu, d) -> list:
+    """Names of other parameters in which every factor of ``d`` that is not
+    linear in ``mu`` is linear: analysing the Hopf set with respect to one of
+    them gives it in closed form without square roots."""
+    K = tower_mu.base
+    d = lower(d)
+    if isinstance(d, QuadraticElement) or not isinstance(K, FlintRationalFunctionField):
+        return []
+    candidates = None
+    atoms = {a.symbol for a in tower_mu.atoms}
+    for poly, _m in K(d).num.factor()[1]:
+        degrees = dict(zip(K.symbols, poly.degrees()))
+        if degrees.get(mu, 0) <= 1:
+            continue
+        linear = {s for s, k in degrees.items() if k == 1 and s != mu and s not in atoms}
+        candidates = linear if candidates is None else candidates & linear
+    return sorted(str(s) for s in candidates or ())
+
+
+def _classify(c, expr):
+    deg = len(c) - 1
+    if deg == 0:
+        return None
+    if deg == 1:
+        return ("linear", -c[0] / c[1])
+    if deg == 2:
+        return ("quadratic", (c[2], c[1], c[0]))
+    return ("unsolved", expr())
+
+
+def _branch_values(tower_mu, mu, solution):
+    """``[(value, target tower)]`` for one solution."""
+    kind, data = solution
+    target = tower_mu.fresh(drop=mu)
+    if kind == "linear":
+        return [(target.project(data), target)]
+    out = []
+    for sign in (1, -1):
+        if sign == -1:
+            target = tower_mu.fresh(drop=mu)
+        c2, c1, c0 = (target.project(c) for c in data)
+        s = target.sqrt(c1 * c1 - 4 * c2 * c0)
+        out.append(((-c1 + sign * s) / (2 * c2), target))
+    return out
+
+
+def _pair_carriers(factors):
+    """Factors that can carry a pair summing to zero: every factor of degree
+    >= 2, and the product of two linear factors (two real eigenvalues, which
+    can meet at zero: a double zero eigenvalue)."""
+    linear = []
+    for f, mult in factors:
+        if len(f) - 1 >= 2:
+            yield f
+        else:
+            linear.extend([f] * min(mult, 2))
+    for i in range(len(linear)):
+        for j in range(i + 1, len(linear)):
+            yield upoly.mul(linear[i], linear[j])
+
+
+def pair_sum_condition(tower, f):
+    """An element vanishing exactly where two roots of ``f`` sum to zero.
+
+    For ``f(l) = E(l^2) + l O(l^2)`` this is the resultant ``Res_s(E, O)``,
+    which equals the Hurwitz determinant ``Delta_(m-1)`` up to a constant
+    factor and a power of the leading coefficient (Orlando's formula:
+    ``Delta_(m-1)`` is, up to sign, the product of ``l_i + l_j`` over the pairs
+    of roots).  With coefficients in the flint field it is computed by
+    python-flint's multivariate resultant, much faster than the determinant;
+    otherwise the Hurwitz determinant is used.
+    """
+    K = tower.base
+    coeffs = [lower(c) for c in f]
+    if not isinstance(K, FlintRationalFunctionField) or any(
+            isinstance(c, QuadraticElement) for c in coeffs):
+        return hurwitz_determinant(tower.top, f, len(f) - 2)
+    coeffs = [K(c) for c in coeffs]
+    den = K._one_poly
+    for c in coeffs:
+        den = den * (c.den / den.gcd(c.den))
+    polys = [c.num * (den / c.den) for c in coeffs]
+    names = tuple(str(x) for x in K.symbols) + ("s_",)
+    ctx = flint.fmpz_mpoly_ctx.get(names, "degrevlex")
+    nv = len(K.symbols)
+
+    def lift(part):
+        data = {}
+        for k, p in enumerate(part):
+            for monom, v in p.to_dict().items():
+                data[tuple(monom) + (k,)] = v
+        return ctx.from_dict(data)
+
+    E, O = lift(polys[0::2]), lift(polys[1::2])
+    if O.is_zero():
+        return K.zero
+    R = E.resultant(O, "s_")
+    data = {tuple(m[:nv]): v for m, v in R.to_dict().items()}
+    return K.from_polynomials(K.ctx.from_dict(data), K._one_poly) if data else K.zero
+
+
+def _pair_sums_vanish(tower, coeffs) -> bool:
+    """Whether two roots of the polynomial sum to zero for every parameter
+    value.  A non-zero Hurwitz determinant at a random integer point settles it
+    in milliseconds; only when that is zero is the exact condition computed."""
+    K = tower.base
+    low = [lower(c) for c in coeffs]
+    if isinstance(K, FlintRationalFunctionField) and not any(
+            isinstance(c, QuadraticElement) for c in low):
+        rng = random.Random(len(coeffs))
+        Q = FlintRationalField()
+        for _ in range(2):
+            point = [rng.randint(-10 ** 6, 10 ** 6) for _ in K.symbols]
+            try:
+                values = [Q(flint.fmpq(c.num(*point)) / flint.fmpq(c.den(*point)))
+                          for c in (K(x) for x in low)]
+            except ZeroDivisionError:
+                continue
+            if hurwitz_determinant(Q, values, len(values) - 2):
+                return False
+    return not pair_sum_condition(tower, coeffs)
+
+
+def find_critical_branches(tower_mu, mu, chi, *, describe=str, accept=None, want=None):
+    """The closed-form branches of the critical set.
+
+    Candidates are examined in a fixed order: critical values that need no
+    new square root first, then by the degree of the factor that carries the
+    pair.  ``accept(branch)`` may reject a branch (e.g. omega^2 provably <= 0);
+    with ``want`` the search stops after that many accepted branches (the
+    others can be expensive: square roots make every later element a pair).
+
+    Returns ``(branches, notes, degenerate, unexamined)``; raises
+    :class:`NoHopfPointError` when no branch exists and
+    :class:`DegenerateHopfError` when the only branches are degenerate.
+    """
+    notes, branches, degenerate = [], [], []
+    factors = factor_univariate(tower_mu, chi)
+    candidates = _candidates(tower_mu, mu, factors, describe, notes)
+    examined = rejected = 0
+    for f, value, target in candidates:
+        if want is not None and len(branches) >= want:
+            break
+        examined += 1
+        try:
+            branch = _make_branch(tower_mu, mu, chi, f, value, target, len(branches), factors)
+        except DegenerateHopfError as exc:
+            degenerate.append(exc)
+            continue
+        except ZeroDivisionError:
+            notes.append(f"a candidate critical value ({tower_mu.to_sympy(value)}) makes the "
+                         "characteristic polynomial undefined (a denominator vanishes); skipped")
+            continue
+        if branch is None:
+            continue
+        if accept is not None and not accept(branch):
+            rejected += 1
+            continue
+        branches.append(branch)
+    if rejected:
+        notes.append(f"{rejected} branch(es) of the critical set have omega^2 <= 0 (neutral "
+                     "saddles) and were dropped")
+    unexamined = len(candidates) - examined
+    if unexamined:
+        notes.append(f"{unexamined} further candidate critical value(s) were not examined "
+                     "(hopf_all examines every branch)")
+    if branches:
+        return branches, notes, degenerate, unexamined
+    if degenerate:
+        raise degenerate[0]
+    if not candidates:
+        raise NoHopfPointError(
+            f"no pair of eigenvalues can cross the imaginary axis as {describe(mu)} varies: "
+            "the Hurwitz determinant of the characteristic polynomial has no zero that "
+            f"depends on {describe(mu)}" + (f" ({'; '.join(notes)})" if notes else ""),
+            reason="empty_critical_set")
+    raise NoHopfPointError(
+        "on every branch of the critical set omega^2 <= 0 under the declared assumptions: "
+        "where two eigenvalues sum to zero they are a real pair +-kappa (a neutral saddle), "
+        "not a pair crossing the imaginary axis", reason="omega_squared_nonpositive")
+
+
+def _candidates(tower_mu, mu, factors, describe, notes):
+    """``(factor, critical value, target tower)`` in the order of examination."""
+    found = []
+    for f in _pair_carriers(factors):
+        d = pair_sum_condition(tower_mu, f)
+        if not d:
+            notes.append("a factor of the characteristic polynomial has a pair of opposite "
+                         "eigenvalues for every parameter value (a conservative part); it is "
+                         "not a crossing")
+            continue
+        solutions = _solutions(tower_mu, mu, d)
+        if any(kind != "linear" for kind, _ in solutions):
+            others = linear_alternatives(tower_mu, mu, d)
+            if others:
+                notes.append(f"the critical set is not linear in {describe(mu)} (its critical "
+                             "value needs a square root or has no closed form) but it is linear "
+                             f"in {', '.join(map(repr, others))}: an analysis with respect to "
+                             "one of those gives the Hopf set without radicals")
+        for sol in solutions:
+            if sol[0] == "unsolved":
+                notes.append(f"critical values where {sol[1]} = 0 have no closed form in "
+                             f"{describe(mu)} (degree > 2); they were not analysed")
+                continue
+            found.extend((sol[0] != "linear", len(f), len(found) + k, f, v, t)
+                         for k, (v, t) in enumerate(_branch_values(tower_mu, mu, sol)))
+    found.sort(key=lambda c: c[:3])
+    return [c[3:] for c in found]
+
+
+def _cofactor_factors(factors, sub, lam2, cofactor):
+    """The cofactor ``chi / (l^2 + W)`` as a product of the factors of chi at
+    the critical value (smaller Hurwitz determinants than the whole)."""
+    if len(factors) < 2:
+        return [cofactor]
+    out, divided = [], False
+    for g, mult in factors:
+        g_at = upoly.trim([sub(c) for c in g])
+        if not divided:
+            q, r = upoly.divmod_(g_at, lam2)
+            if not r:
+                divided = True
+                if len(q) > 1:
+                    out.append(q)
+                mult -= 1
+        out.extend([g_at] * mult)
+    return out if divided else [cofactor]
+
+
+def _make_branch(tower_mu, mu, chi, f, value, target, index, factors=()):
+    images = tower_mu.radical_images(mu, value, target)
+    sub = lambda c: tower_mu.substitute(c, mu, value, target, images)  # noqa: E731
+    f_at = [sub(c) for c in f]
+    chi_at = [sub(c) for c in chi]
+    E, O = upoly.even_odd_parts(f_at)
+    g = upoly.gcd(E, O)
+    if len(g) < 2:
+        return None
+    if len(g) > 2:
+        raise DegenerateHopfError(
+            "at this critical value two pairs of eigenvalues lie on the imaginary axis at once "
+            "(a double Hopf point); the single-pair analysis does not apply",
+            reason="two_critical_pairs")
+    W = g[0]
+    if not W:
+        raise DegenerateHopfError(
+            "at this critical value the pair of eigenvalues meets at zero (a double zero "
+            "eigenvalue: Bogdanov-Takens territory), not on the imaginary axis away from zero",
+            reason="zero_eigenvalue")
+    lam2 = [W, target.top.zero, target.top.one]
+    cofactor, rem = upoly.divmod_(chi_at, lam2)
+    if rem:
+        return None
+    if cofactor and not cofactor[0]:
+        raise DegenerateHopfError(
+            "at this critical value another eigenvalue is zero (a fold-Hopf point); the "
+            "single-pair analysis does not apply", reason="zero_eigenvalue")
+    if len(cofactor) > 2 and not upoly.divmod_(cofactor, lam2)[1]:
+        raise DegenerateHopfError(
+            "at this critical value the pair +-i omega is a double eigenvalue (1:1 resonance)",
+            reason="two_critical_pairs")
+    if len(cofactor) > 2 and _pair_sums_vanish(target, cofactor):
+        raise DegenerateHopfError(
+            "at this critical value a second pair of eigenvalues sums to zero; it may lie on "
+            "the imaginary axis too (double Hopf) or be a real pair +-kappa",
+            reason="two_critical_pairs")
+    parts = _cofactor_factors(factors, sub, lam2, cofactor)
+    nu_field = nu_extension(target, W)
+    f_mu = [sub(tower_mu.derivative(c, mu)) for c in f]
+    num = upoly.evaluate(f_mu, nu_field.gen, nu_field.zero)
+    den = upoly.evaluate(upoly.derivative(f_at), nu_field.gen, nu_field.zero)
+    dlam = -(nu_field(num) / nu_field(den))
+    return CriticalBranch(index, value, target, W, chi_at, cofactor,
+                          (dlam.a, dlam.b), nu_field, images, tuple(parts))
+
+
+def cofactor_hurwitz(branch):
+    """``[(label, Delta)]``: the Hurwitz determinants of each factor of the
+    cofactor; all positive iff the other eigenvalues lie in the open left
+    half-plane.  Labels are ``"k"`` (one factor) or ``"i_k"`` (factor i)."""
+    parts = [p for p in (branch.cofactor_factors or (branch.cofactor,)) if len(p) > 1]
+    out = []
+    for i, part in enumerate(parts, start=1):
+        for k, d in enumerate(hurwitz_determinants(branch.tower.top, part), start=1):
+            out.append((f"{i}_{k}" if len(parts) > 1 else f"{k}", d))
+    return out

@@ -1,0 +1,206 @@
+"""The equilibrium: given, solved, or used to parametrise the family.
+
+Pipeline place: model -> **equilibrium** -> Taylor forms.
+
+Three ways to fix the steady state ``x0`` the analysis shifts to:
+
+* given: a mapping from state names to expressions (strings go through the
+  model's own parser); the engine checks exactly that every right-hand side
+  vanishes there;
+* solved: ``sympy.solve`` on the right-hand sides, the branch chosen by index
+  or by a sign condition on the states (``"positive"``, ``"nonnegative"``,
+  ``"nonzero"``);
+* parametrised: the caller names as many unknowns (parameters or states) as
+  there are states; they are solved from ``f(x0) = 0`` while the remaining
+  states become free symbols ``<state>_eq`` of the family.  This is the usual
+  practice for models whose equilibrium has no closed form.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import sympy
+
+from ..errors import EquilibriumNotFoundError, ParameterError
+from ..algebra.signs import NEGATIVE, NONNEGATIVE, POSITIVE, ZERO, SignContext
+
+__all__ = ["EquilibriumChoice", "given_equilibrium", "solve_equilibria", "select_equilibrium",
+           "parametrised_equilibrium"]
+
+_CONDITIONS = ("positive", "nonnegative", "nonzero")
+
+
+@dataclass(frozen=True)
+class EquilibriumChoice:
+    """The chosen equilibrium and how it was obtained.
+
+    Attributes
+    ----------
+    point : tuple of sympy.Expr
+        ``x0`` aligned with the model's states.
+    how : str
+        ``"given"``, ``"solved"`` or ``"parametrised"``.
+    substitutions : dict
+        Parameters eliminated in favour of equilibrium coordinates
+        (parametrised mode): symbol -> expression.
+    new_symbols : tuple of sympy.Symbol
+        Free symbols introduced for equilibrium coordinates.
+    note : str
+    """
+
+    point: tuple
+    how: str
+    substitutions: dict
+    new_symbols: tuple
+    note: str = ""
+
+
+def given_equilibrium(model, mapping) -> EquilibriumChoice:
+    """Read a user mapping ``{state: expression}`` (every state must be given)."""
+    unknown = [k for k in mapping if k not in model.states]
+    if unknown:
+        raise EquilibriumNotFoundError(
+            f"the equilibrium names {', '.join(map(repr, unknown))}, which "
+            f"{'is not a state' if len(unknown) == 1 else 'are not states'} of the model "
+            f"(states: {', '.join(model.states)})")
+    missing = [s for s in model.states if s not in mapping]
+    if missing:
+        raise EquilibriumNotFoundError(
+            f"the equilibrium gives no value for {', '.join(map(repr, missing))}; give every "
+            "state a value, or leave the equilibrium out to let the engine solve for it")
+    point = []
+    for s in model.states:
+        value = mapping[s]
+        if isinstance(value, str):
+            value = model.parse(value, context=f"equilibrium value of '{s}'")
+        else:
+            value = _match_symbols(model, sympy.sympify(value, strict=True))
+        if value.has(*model.state_symbols):
+            raise EquilibriumNotFoundError(
+                f"the equilibrium value of '{s}' ({value}) contains a state variable; it must "
+                "be an expression in the parameters only")
+        point.append(value)
+    return EquilibriumChoice(tuple(point), "given", {}, ())
+
+
+def _match_symbols(model, expr):
+    """Replace sympy symbols handed in by the model's own symbols (by name)."""
+    repl = {}
+    for sym in expr.free_symbols:
+        own = model.symbols.get(sym.name)
+        if own is None:
+            raise ParameterError(f"the symbol '{sym.name}' is neither a state nor a parameter "
+                                 "of the model")
+        if own is not sym:
+            repl[sym] = own
+    return expr.xreplace(repl) if repl else expr
+
+
+def solve_equilibria(model, equations=None) -> list:
+    """All equilibria sympy finds, sorted deterministically.
+
+    Raises
+    ------
+    EquilibriumNotFoundError
+        When sympy cannot solve the system (non-polynomial, too hard).
+    """
+    eqs = list(equations if equations is not None else model.equations)
+    states = list(model.state_symbols)
+    try:
+        sols = sympy.solve(eqs, states, dict=True)
+    except (NotImplementedError, ValueError, TypeError) as exc:
+        raise EquilibriumNotFoundError(
+            "sympy could not solve f(x) = 0 for the equilibria of this model "
+            f"({type(exc).__name__}); give the equilibrium explicitly, or parametrise the family "
+            "by the equilibrium (eliminate=...)") from exc
+    out = []
+    for sol in sols:
+        if all(s in sol for s in states):
+            point = tuple(sympy.factor(sol[s]) for s in states)
+            if not any(p.has(*states) for p in point):
+                out.append(point)
+    if not out:
+        raise EquilibriumNotFoundError(
+            "no isolated equilibrium in closed form was found; give the equilibrium explicitly, "
+            "or parametrise the family by the equilibrium (eliminate=...)")
+    return sorted(set(out), key=lambda p: (sum(sympy.count_ops(x) for x in p),
+                                           sympy.default_sort_key(p)))
+
+
+def select_equilibrium(model, candidates, choice, sign_context: SignContext) -> EquilibriumChoice:
+    """Pick one of ``candidates`` by index or by a sign condition."""
+    listing = "; ".join(f"[{k}] " + ", ".join(f"{s} = {v}" for s, v in zip(model.states, p))
+                        for k, p in enumerate(candidates))
+    if choice is None:
+        if len(candidates) == 1:
+            return EquilibriumChoice(candidates[0], "solved", {}, ())
+        raise EquilibriumNotFoundError(
+            f"the model has {len(candidates)} equilibria: {listing}. Choose one with "
+            "equilibrium=<index> or equilibrium='positive' (or give it explicitly)")
+    if isinstance(choice, int) and not isinstance(choice, bool):
+        if not 0 <= choice < len(candidates):
+            raise EquilibriumNotFoundError(
+                f"equilibrium index {choice} is out of range; the equilibria are: {listing}")
+        return EquilibriumChoice(candidates[choice], "solved", {}, (),
+                                 f"equilibrium {choice} of {len(candidates)}")
+    if choice not in _CONDITIONS:
+        raise EquilibriumNotFoundError(
+            f"unknown equilibrium choice {choice!r}; expected an index, one of "
+            f"{', '.join(_CONDITIONS)}, or a mapping from states to values")
+    wanted = {"positive": (POSITIVE,), "nonnegative": (POSITIVE, NONNEGATIVE, ZERO),
+              "nonzero": (POSITIVE, NEGATIVE)}[choice]
+    hits = [p for p in candidates if all(sign_context.sign(x) in wanted for x in p)]
+    if len(hits) == 1:
+        return EquilibriumChoice(hits[0], "solved", {}, (), f"the {choice} equilibrium")
+    if not hits:
+        raise EquilibriumNotFoundError(
+            f"no equilibrium is provably {choice} under the declared assumptions; the equilibria "
+            f"are: {listing}. Choose one by index, or declare parameter signs")
+    raise EquilibriumNotFoundError(
+        f"{len(hits)} equilibria are {choice}: {listing}; choose one by index")
+
+
+def parametrised_equilibrium(model, eliminate) -> EquilibriumChoice:
+    """Solve ``f(x0) = 0`` for the names in ``eliminate`` (parameters and
+    states, as many as there are states); other states become free symbols."""
+    eliminate = list(eliminate)
+    n = len(model.states)
+    if len(eliminate) != n:
+        raise EquilibriumNotFoundError(
+            f"to parametrise the family by the equilibrium, name exactly {n} unknowns to solve "
+            f"for (parameters or states), one per equation; got {len(eliminate)}: {eliminate}")
+    for name in eliminate:
+        if name not in model.symbols:
+            model.parameter(name)  # raises a ParameterError with a suggestion
+    free_states = [s for s in model.states if s not in eliminate]
+    taken = set(model.symbols)
+    new = {}
+    for s in free_states:
+        name = f"{s}_eq"
+        while name in taken:
+            name += "_"
+        new[s] = sympy.Symbol(name, real=True)
+    repl = {model.symbols[s]: new[s] for s in free_states}
+    eqs = [e.xreplace(repl) for e in model.equations]
+    unknowns = [model.symbols[u] for u in eliminate]
+    try:
+        sols = sympy.solve(eqs, unknowns, dict=True)
+    except (NotImplementedError, ValueError, TypeError) as exc:
+        raise EquilibriumNotFoundError(
+            f"sympy could not solve the equilibrium equations for {', '.join(eliminate)}; choose "
+            "other unknowns (ones that enter linearly are best)") from exc
+    sols = [s for s in sols if all(u in s for u in unknowns)]
+    if not sols:
+        raise EquilibriumNotFoundError(
+            f"the equilibrium equations have no closed-form solution for {', '.join(eliminate)}; "
+            "choose other unknowns (ones that enter linearly are best)")
+    sols.sort(key=lambda s: sum(sympy.count_ops(v) for v in s.values()))
+    sol = sols[0]
+    point = tuple(new[s] if s in new else sympy.factor(sol[model.symbols[s]]) for s in model.states)
+    subs = {model.symbols[u]: sympy.factor(sol[model.symbols[u]])
+            for u in eliminate if u not in model.states}
+    note = ("family parametrised by the equilibrium: " +
+            ", ".join(f"{k} = {v}" for k, v in subs.items()) +
+            (f" (solution 1 of {len(sols)})" if len(sols) > 1 else ""))
+    return EquilibriumChoice(point, "parametrised", subs, tuple(new[s] for s in free_states), note)

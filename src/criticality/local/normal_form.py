@@ -1,0 +1,151 @@
+"""The Poincare normal form of the reduced planar system.
+
+Pipeline place: center manifold -> **normal form** -> result.
+
+The reduced system ``xi' = J xi + g(xi)`` is written in the complex coordinate
+``z = xi1 + i xi2 / omega`` (so that ``x = x0 + Re(z q) + ...``), where it reads
+``z' = i omega z + G(z, conj z)``.  A near-identity change
+``z = w + sum h_jl w^j conj(w)^l`` removes every non-resonant term degree by
+degree; the homological equation at ``w^j conj(w)^l`` is
+
+    i omega (j - l - 1) h_jl + N_jl = [G(H, conj H) - (H_w - 1) N - H_conj(w) conj(N)]_jl,
+
+solved with ``h_jl = 0`` at the resonant monomials ``j = l + 1``, which leaves
+``w' = i omega w + sum_k c_k w |w|^(2k)``.  The coefficients are then converted
+to the package's convention (``x - x0 = z q + conj(z q)`` with ``<q, q> = 1``):
+``c_k = 4^k N_(k+1,k) / <q, q>^k``.
+
+:func:`hassard_c1` is the classical closed formula for the first coefficient
+(Hassard, Kazarinoff and Wan, Theory and Applications of Hopf Bifurcation,
+1981; Guckenheimer and Holmes, 1983, Section 3.4), used as a cross-check.
+"""
+
+from __future__ import annotations
+
+from math import factorial
+
+from ..budget import checkpoint
+from .taylor import poly_mul
+
+__all__ = ["complexify", "planar_normal_form", "hassard_c1", "unit_coefficients"]
+
+
+def _conj_poly(P):
+    return {(l, j): c.conjugate() for (j, l), c in P.items()}
+
+
+def _add_into(out, P, sign=1):
+    for m, c in P.items():
+        v = c if sign == 1 else -c
+        out[m] = out[m] + v if m in out else v
+
+
+def complexify(reduced, N, order: int) -> dict:
+    """``G(z, conj z)`` with ``z' = nu z + G`` for the reduced system."""
+    W_inv = 1 / reduced.W
+    half = N(1) / 2
+    nu = N.gen
+    xi1 = {(1, 0): half, (0, 1): half}
+    xi2 = {(1, 0): -nu * half, (0, 1): nu * half}
+    powers = {}
+
+    def pw(var, poly, k):
+        key = (var, k)
+        if key not in powers:
+            powers[key] = {(0, 0): N.one} if k == 0 else poly_mul(pw(var, poly, k - 1), poly, order)
+        return powers[key]
+
+    G: dict = {}
+    for gdict, factor in ((reduced.g1, N.one), (reduced.g2, nu * W_inv)):
+        for (a, b), c in gdict.items():
+            term = poly_mul(pw(1, xi1, a), pw(2, xi2, b), order)
+            coeff = factor * c
+            _add_into(G, {m: coeff * v for m, v in term.items()})
+    return {m: c for m, c in G.items() if c}
+
+
+def _compose(G, H, Hb, order, keep=None):
+    """The terms of total degree ``order`` of ``G(H, Hb)`` (only the monomials
+    in ``keep``, if given).  ``H`` starts at degree one, so ``H^j`` is only
+    needed up to degree ``order - l`` when it is to be multiplied by
+    ``Hb^l``."""
+    out: dict = {}
+    cache: dict = {}
+
+    def power(which, k, top):
+        key = (which, k, top)
+        if key not in cache:
+            base = H if which == 0 else Hb
+            cache[key] = {m: c for m, c in base.items() if sum(m) <= top} if k == 1 else \
+                poly_mul(power(which, k - 1, top - 1), base, top)
+        return cache[key]
+
+    for (j, l), c in G.items():
+        if j + l > order:
+            continue
+        checkpoint()
+        if j and l:
+            term = poly_mul(power(0, j, order - l), power(1, l, order - j), order, True, keep)
+        else:
+            term = power(0, j, order) if j else power(1, l, order)
+            term = {m: v for m, v in term.items() if sum(m) == order
+                    and (keep is None or m in keep)}
+        _add_into(out, {m: c * v for m, v in term.items()})
+    return out
+
+
+def _derivative(P, var):
+    out = {}
+    for (j, l), c in P.items():
+        k = j if var == 0 else l
+        if k:
+            out[(j - 1, l) if var == 0 else (j, l - 1)] = c * k
+    return out
+
+
+def planar_normal_form(G, N, order: int):
+    """Normal-form coefficients ``[N_21, N_32, ...]`` up to degree ``order``
+    for ``z' = nu z + G(z, conj z)`` (``G`` starts at degree 2)."""
+    nu = N.gen
+    H = {(1, 0): N.one}
+    Nf: dict = {}
+    for d in range(2, order + 1):
+        Hb = _conj_poly(H)
+        # at the last degree only the resonant coefficient is wanted
+        keep = {((d + 1) // 2, (d - 1) // 2)} if d == order else None
+        rhs = _compose(G, H, Hb, d, keep)
+        if Nf:
+            Hw = _derivative(H, 0)
+            Hw.pop((0, 0), None)
+            Hwb = _derivative(H, 1)
+            corr: dict = {}
+            _add_into(corr, poly_mul(Hw, Nf, d, True, keep))
+            _add_into(corr, poly_mul(Hwb, _conj_poly(Nf), d, True, keep))
+            for m, c in corr.items():
+                if sum(m) == d:
+                    rhs[m] = rhs[m] - c if m in rhs else -c
+        for (j, l), c in rhs.items():
+            if not c:
+                continue
+            if j - l == 1:
+                Nf[(j, l)] = c
+            else:
+                H[(j, l)] = c / (nu * (j - l - 1))
+    return [Nf.get((k + 1, k), N.zero) for k in range(1, (order - 1) // 2 + 1)]
+
+
+def hassard_c1(G, N, W):
+    """``c1`` of ``z' = nu z + G`` by the closed formula
+    ``c1 = i/(2 omega) (g20 g11 - 2|g11|^2 - |g02|^2/3) + g21/2``,
+    ``g_jl = j! l! G_jl`` (same scaling as :func:`planar_normal_form`)."""
+    def g(j, l):
+        return G.get((j, l), N.zero) * (factorial(j) * factorial(l))
+    g20, g11, g02, g21 = g(2, 0), g(1, 1), g(0, 2), g(2, 1)
+    bracket = g20 * g11 - 2 * g11 * g11.conjugate() - g02 * g02.conjugate() / 3
+    return N.gen * bracket / (2 * W) + g21 / 2
+
+
+def unit_coefficients(raw, qq):
+    """``c_k`` in the unit-eigenvector convention from the coefficients of the
+    ``z = xi1 + i xi2/omega`` coordinate: ``4^k raw_k / <q,q>^k``."""
+    return [c * (4 ** k) / qq ** k for k, c in enumerate(raw, start=1)]

@@ -1,0 +1,420 @@
+"""The model a user states: states, parameters, right-hand sides.
+
+This is the first stage of the pipeline (model -> equilibrium -> linear part ->
+...).  A :class:`Model` is an immutable value object, validated and normalised
+once at construction, from Python (strings or sympy expressions) or from a TOML
+model file (:meth:`Model.from_text`, :meth:`Model.from_file`; the schema is in
+``docs/model-files.md``).  Validation collects every problem and raises one
+:class:`~criticality.errors.InvalidModelError` listing them all.
+
+Every state and parameter is the model's own ``Symbol(name, real=True)``.
+Signs (positive, nonnegative, ...) are kept as metadata in
+:attr:`Parameter.assumption`, not as sympy assumptions, so that sympy does not
+split radicals such as ``sqrt(b*(r - 1))`` behind the engine's back.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from fractions import Fraction
+from types import MappingProxyType
+from typing import Mapping
+
+import sympy
+
+from .syntax import _NOT_FINITE, _suggest
+from ..errors import ExpressionError, ParameterError
+from .expressions import convert_sympy, format_expression, name_problem, parse_expression
+
+__all__ = ["Model", "Parameter", "ASSUMPTIONS"]
+
+#: the sign assumptions a parameter may carry
+ASSUMPTIONS = ("real", "positive", "nonnegative", "nonzero", "negative")
+_SIGN_TEST = {"positive": ("is_positive", "> 0"), "nonnegative": ("is_nonnegative", ">= 0"),
+              "negative": ("is_negative", "< 0"), "nonzero": ("is_nonzero", "!= 0")}
+_PARAMETER_KEYS = ("assume", "value", "description")
+_NUMBER_TYPES = (int, float, Fraction, sympy.Expr)
+
+
+def _assumption_problem(assumption: object) -> str | None:
+    if isinstance(assumption, str) and assumption in ASSUMPTIONS:
+        return None
+    if not isinstance(assumption, str):
+        return f"the assumption must be a word, not {type(assumption).__name__}"
+    hint = _suggest(assumption, ASSUMPTIONS)
+    hint = f"did you mean {hint[0]!r}? " if hint else ""
+    return f"unknown assumption {assumption!r}; {hint}(one of {', '.join(ASSUMPTIONS)})"
+
+
+def _constant(raw: object, context: str, line: int | None = None) -> sympy.Expr:
+    """An exact real constant from text, a Python number or a sympy number."""
+    used: list[str] = []
+    collect = (lambda name, column: used.append(name))
+    if isinstance(raw, str):
+        value = parse_expression(raw, {}, context=context, line=line, on_unknown=collect)
+    else:
+        value = convert_sympy(raw, {}, context=context, on_unknown=collect)
+    if used or value.free_symbols:
+        names = ", ".join(dict.fromkeys(used or sorted(map(str, value.free_symbols))))
+        raise ExpressionError(f"a value must be a constant number; it uses {names}",
+                              context=context, line=line)
+    if value.is_extended_real is False:
+        raise ExpressionError(f"the value {value} is not real", context=context, line=line)
+    return value
+
+
+def _sign_problem(name: str, assumption: str, value: sympy.Expr) -> str | None:
+    """Say how ``value`` violates the assumption of parameter ``name``, if it does."""
+    if assumption not in _SIGN_TEST:
+        return None
+    attribute, relation = _SIGN_TEST[assumption]
+    verdict = getattr(value, attribute)
+    if verdict is None:
+        verdict = getattr(sympy.Float(value.evalf(60), 60), attribute)
+    if verdict:
+        return None
+    shown = format_expression(value)
+    if verdict is None:
+        return f"cannot decide whether the value {shown} of {name!r} is {assumption}"
+    return f"the value {shown} violates the assumption that {name!r} is {assumption} ({relation})"
+
+
+@dataclass(frozen=True)
+class Parameter:
+    """A symbolic parameter of a model.
+
+    Attributes
+    ----------
+    name : str
+        The parameter's name (its symbol is ``Symbol(name, real=True)``).
+    assumption : str
+        One of ``"real"``, ``"positive"``, ``"nonnegative"``, ``"nonzero"``,
+        ``"negative"``; kept as metadata, not as a sympy assumption.
+    default : sympy.Expr or None
+        An exact real constant (e.g. ``Rational(1, 2)``) or None.  Text, Python
+        numbers and sympy numbers are accepted and converted exactly.
+    declared : bool
+        False for a name the equations use but the model did not declare.
+    description : str or None
+        What the parameter means, for people reading the model.
+    """
+
+    name: str
+    assumption: str = "real"
+    default: sympy.Expr | None = None
+    declared: bool = True
+    description: str | None = None
+
+    def __post_init__(self):
+        problems = [p for p in (name_problem(self.name), _assumption_problem(self.assumption))
+                    if p is not None]
+        if self.description is not None and not isinstance(self.description, str):
+            problems.append("the description must be a string")
+        if self.default is not None and not problems:
+            try:
+                value = _constant(self.default, f"value of parameter {self.name!r}")
+            except ExpressionError as exc:
+                problems.append(str(exc))
+            else:
+                object.__setattr__(self, "default", value)
+                problems.append(_sign_problem(self.name, self.assumption, value))
+        problems = [p for p in problems if p]
+        if problems:
+            raise ParameterError(f"parameter {self.name!r}: " + "; ".join(problems))
+
+    @property
+    def symbol(self) -> sympy.Symbol:
+        """The model's symbol for this parameter, ``Symbol(name, real=True)``."""
+        return sympy.Symbol(self.name, real=True)
+
+
+def _name_of(key: object) -> object:
+    """A name given as a string or as a sympy symbol (matched by name)."""
+    return key.name if isinstance(key, sympy.Symbol) else key
+
+
+_FIELDS = ("name", "description", "states", "parameters", "equations", "equilibrium_hint",
+           "bifurcation_parameter", "notes", "lines", "source", "symbols")
+
+
+class Model:
+    """A dynamical model x' = f(x; p): ordered states, parameters, right-hand sides.
+
+    Parameters
+    ----------
+    states : list of str
+        State names in order (sympy symbols are accepted and matched by name).
+    equations : mapping or list
+        One right-hand side per state: ``{"x": "mu*x - y", ...}`` or a list in
+        state order.  Strings are read by :func:`~criticality.parse_expression`;
+        sympy expressions and Python numbers are checked against the same
+        whitelist, their symbols matched by name.
+    parameters : mapping or list, optional
+        ``{"a": "positive"}``, ``{"a": {"assume": "positive", "value": "1/2",
+        "description": "..."}}``, ``{"a": 2}`` (real, value 2), a list of names
+        or :class:`Parameter` objects.  Names the equations use without
+        declaring them become real parameters (``declared=False``), ordered
+        alphabetically after the declared ones, with a note.
+    name, description : str, optional
+    equilibrium : mapping, optional
+        A known equilibrium, every state mapped to an expression in the
+        parameters (exposed as :attr:`equilibrium_hint`).
+    bifurcation_parameter : str, optional
+        The parameter to vary by default.
+
+    Raises
+    ------
+    InvalidModelError
+        Listing every problem found.
+
+    Examples
+    --------
+    >>> m = Model(["x", "y"], {"x": "mu*x - y - x*(x^2 + y^2)",
+    ...                        "y": "x + mu*y - y*(x^2 + y^2)"})
+    >>> m.parameter_symbols, m.notes
+    ((mu,), ("parameter 'mu' was not declared; assumed real",))
+    """
+
+    __slots__ = _FIELDS
+
+    name: str | None
+    description: str | None
+    states: tuple[str, ...]
+    parameters: tuple[Parameter, ...]
+    equations: tuple[sympy.Expr, ...]
+    equilibrium_hint: Mapping[str, sympy.Expr] | None
+    bifurcation_parameter: str | None
+    notes: tuple[str, ...]
+    lines: Mapping[str, int]
+    source: str | None
+    symbols: Mapping[str, sympy.Symbol]
+
+    def __init__(self, states, equations, parameters=None, *, name: str | None = None,
+                 description: str | None = None, equilibrium: Mapping | None = None,
+                 bifurcation_parameter: str | None = None):
+        from .checks import _Assembler
+        fields = _Assembler().run(states, equations, parameters, name, description,
+                                  equilibrium, bifurcation_parameter)
+        self._fill(fields, {})
+
+    def _fill(self, fields: dict, lines: Mapping[str, int]) -> None:
+        fields = dict(fields, lines=MappingProxyType(dict(lines)))
+        for key in _FIELDS:
+            object.__setattr__(self, key, fields[key])
+
+    @classmethod
+    def _build(cls, fields: dict, lines: Mapping[str, int]) -> "Model":
+        model = object.__new__(cls)
+        model._fill(fields, lines)
+        return model
+
+    def __setattr__(self, key, value):
+        raise AttributeError("a Model is immutable; derive a changed copy with with_values() "
+                             "or build a new Model")
+
+    def __delattr__(self, key):
+        raise AttributeError("a Model is immutable")
+
+    def __reduce__(self):
+        fields = {k: getattr(self, k) for k in _FIELDS if k != "lines"}
+        fields["symbols"] = dict(self.symbols)
+        if self.equilibrium_hint is not None:
+            fields["equilibrium_hint"] = dict(self.equilibrium_hint)
+        return (_restore, (fields, dict(self.lines)))
+
+    # -- reading ----------------------------------------------------------------
+
+    @classmethod
+    def from_text(cls, text: str, source: str | None = None) -> "Model":
+        """Read a model from the text of a TOML model file (see docs/model-files.md).
+
+        Raises
+        ------
+        ModelFileSyntaxError
+            The text is not TOML (the message gives line and column).
+        InvalidModelFileError
+            Listing every problem of the content, with file lines.
+        """
+        from .toml_file import read_model_text
+        return read_model_text(cls, text, source)
+
+    @classmethod
+    def from_file(cls, path) -> "Model":
+        """Read a TOML model file; see :meth:`from_text`."""
+        from .toml_file import read_model_file
+        return read_model_file(cls, path)
+
+    @classmethod
+    def _from_pieces(cls, pieces: dict, *, source: str, locate, problems: list,
+                     lines: Mapping[str, int], error) -> "Model":
+        from .checks import _Assembler
+        assembler = _Assembler(source, locate, problems)
+        fields = assembler.run(error=error, **pieces)
+        return cls._build(fields, {s: n for s, n in lines.items() if s in fields["states"]})
+
+    # -- derived views ---------------------------------------------------------
+
+    @property
+    def state_symbols(self) -> tuple[sympy.Symbol, ...]:
+        """The symbols of the states, in state order."""
+        return tuple(self.symbols[s] for s in self.states)
+
+    @property
+    def parameter_symbols(self) -> tuple[sympy.Symbol, ...]:
+        """The symbols of the parameters, in parameter order."""
+        return tuple(self.symbols[p.name] for p in self.parameters)
+
+    def parameter(self, name: str) -> Parameter:
+        """The parameter called ``name``.
+
+        Raises
+        ------
+        ParameterError
+            For a state or an unknown name (with a suggestion).
+        """
+        name = _name_of(name)
+        for parameter in self.parameters:
+            if parameter.name == name:
+                return parameter
+        if name in self.states:
+            raise ParameterError(f"{name!r} is a state of the model, not a parameter")
+        names = [p.name for p in self.parameters]
+        hint = _suggest(str(name), names)
+        hint = f"; did you mean {' or '.join(map(repr, hint))}?" if hint else ""
+        listing = f" (parameters: {', '.join(names)})" if names else " (it has no parameters)"
+        raise ParameterError(f"the model has no parameter {str(name)[:40]!r}{hint}{listing}")
+
+    def defaults(self) -> dict[str, sympy.Expr]:
+        """The default values of the parameters that have one, by name."""
+        return {p.name: p.default for p in self.parameters if p.default is not None}
+
+    def parse(self, text, context: str = "expression") -> sympy.Expr:
+        """Read an expression in terms of this model's states and parameters.
+
+        Text goes through :func:`~criticality.parse_expression`; sympy
+        expressions are checked and moved onto the model's symbols by name.
+        Names that are neither states nor parameters raise
+        :class:`~criticality.errors.UnknownSymbolError` with a suggestion.
+        """
+        if isinstance(text, str):
+            return parse_expression(text, self.symbols, context=context)
+        return convert_sympy(text, self.symbols, context=context)
+
+    # -- derived models and text --------------------------------------------------
+
+    def value_substitution(self, values: Mapping) -> dict:
+        """``{symbol: exact value}`` for a mapping of parameter values, checked
+        as in :meth:`with_values` (raises :class:`ParameterError`)."""
+        substitution, problems = self._substitution(dict(values))
+        if problems:
+            raise ParameterError("; ".join(problems))
+        return substitution
+
+    def _substitution(self, given: dict):
+        substitution, problems = {}, []
+        for key, raw in given.items():
+            try:
+                parameter = self.parameter(key)
+                value = _constant(raw, f"value for parameter {parameter.name!r}")
+            except (ParameterError, ExpressionError) as exc:
+                problems.append(str(exc))
+                continue
+            problem = _sign_problem(parameter.name, parameter.assumption, value)
+            if problem is not None:
+                problems.append(problem)
+            substitution[parameter.symbol] = value
+        return substitution, problems
+
+    def with_values(self, values: Mapping | None = None, /, **more) -> "Model":
+        """A copy with exact values substituted for some parameters.
+
+        Values may be numbers (floats are read by their decimal digits), text
+        read exactly (``"1/3"``, ``"sqrt(2)"``) or sympy numbers.  The
+        parameters disappear from the copy; a value that breaks the parameter's
+        assumption, or makes an equation undefined or non-real, raises
+        :class:`~criticality.errors.ParameterError`.  Names that are not Python
+        identifiers (``lambda``) go in the mapping argument:
+        ``model.with_values({"lambda": 2})``.
+        """
+        substitution, problems = self._substitution({**dict(values or {}), **more})
+        equations = tuple(e.xreplace(substitution) for e in self.equations)
+        hint = None if self.equilibrium_hint is None else {
+            s: v.xreplace(substitution) for s, v in self.equilibrium_hint.items()}
+        problems += _broken(dict(zip(self.states, equations)), "equation for", substitution)
+        problems += _broken(hint or {}, "equilibrium value for", substitution)
+        if problems:
+            raise ParameterError("; ".join(problems))
+        return self._derived(substitution, equations, hint)
+
+    def _derived(self, substitution: dict, equations: tuple, hint: dict | None) -> "Model":
+        fixed = {s.name: v for s, v in substitution.items()}
+        notes = [f"parameter {n!r} was set to {format_expression(v)}" for n, v in fixed.items()]
+        bifurcation = self.bifurcation_parameter
+        if bifurcation in fixed:
+            notes.append(f"the bifurcation parameter {bifurcation!r} was given a value; "
+                         "the model no longer names one")
+            bifurcation = None
+        fields = {k: getattr(self, k) for k in _FIELDS if k != "lines"}
+        fields.update(
+            parameters=tuple(p for p in self.parameters if p.name not in fixed),
+            equations=equations, bifurcation_parameter=bifurcation,
+            equilibrium_hint=None if hint is None else MappingProxyType(hint),
+            notes=self.notes + tuple(notes),
+            symbols=MappingProxyType({k: v for k, v in self.symbols.items() if k not in fixed}))
+        return Model._build(fields, self.lines)
+
+    def to_toml(self) -> str:
+        """The model as the text of a TOML model file; :meth:`from_text` reads it
+        back to an equal model."""
+        from .toml_file import model_to_toml
+        return model_to_toml(self)
+
+    # -- value semantics ------------------------------------------------------------
+
+    def _key(self) -> tuple:
+        hint = None if self.equilibrium_hint is None else tuple(self.equilibrium_hint.items())
+        return (self.name, self.description, self.states, self.parameters, self.equations,
+                hint, self.bifurcation_parameter)
+
+    def __eq__(self, other: object) -> bool:
+        if not isinstance(other, Model):
+            return NotImplemented
+        return self._key() == other._key()
+
+    def __hash__(self) -> int:
+        return hash(self._key())
+
+    def __repr__(self) -> str:
+        head = f"{self.name!r}, " if self.name else ""
+        return (f"Model({head}states=({', '.join(self.states)}), "
+                f"parameters=({', '.join(p.name for p in self.parameters)}))")
+
+    def __str__(self) -> str:
+        lines = [self.name or "model"]
+        lines += [f"  {s}' = {format_expression(e)}" for s, e in zip(self.states, self.equations)]
+        for p in self.parameters:
+            value = "" if p.default is None else f" = {format_expression(p.default)}"
+            lines.append(f"  {p.name}: {p.assumption}{value}")
+        return "\n".join(lines)
+
+
+def _restore(fields: dict, lines: dict) -> Model:
+    """Rebuild a pickled model."""
+    fields = dict(fields, symbols=MappingProxyType(fields["symbols"]))
+    if fields["equilibrium_hint"] is not None:
+        fields["equilibrium_hint"] = MappingProxyType(fields["equilibrium_hint"])
+    return Model._build(fields, lines)
+
+
+def _broken(table: Mapping[str, sympy.Expr], label: str, substitution: dict) -> list[str]:
+    """Problems of expressions made undefined or non-real by a substitution."""
+    shown = ", ".join(f"{s} = {format_expression(v)}" for s, v in substitution.items())
+    problems = []
+    for name, expr in table.items():
+        if expr.has(*_NOT_FINITE):
+            problems.append(f"setting {shown} makes the {label} {name!r} undefined "
+                            "(a division by zero or a singular function value)")
+        elif expr.has(sympy.I) or any(part.is_number and part.is_extended_real is False
+                                      for part in expr.atoms(sympy.Pow, sympy.Function)):
+            problems.append(f"setting {shown} makes the {label} {name!r} non-real")
+    return problems

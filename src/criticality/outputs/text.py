@@ -1,0 +1,211 @@
+"""The plain-text summary of a Hopf result, for a terminal.
+
+Pipeline place: result -> **text summary** (``print(result)``,
+``result.summary()``, ``criticality analyse``).
+
+The summary is a table of quantities in the model syntax (so an expression
+can be pasted back into a model file), the verdict in words, the conditions
+with their status, the predicted cycle, notes, conventions and cautions.  Long
+expressions are wrapped at sums first, then at products.
+"""
+
+from __future__ import annotations
+
+import textwrap
+
+import mpmath
+
+from .render import (CAUTIONS, classification_sentence, cycle_sentences, model_text,
+                      per_offset, split_complex, transversality_sentence, wrap_expression)
+
+__all__ = ["result_summary", "numeric_summary", "DEFAULT_WIDTH"]
+
+#: default line width of the summary
+DEFAULT_WIDTH = 100
+_LABEL = 26
+_STATUS = {"holds": "holds", "fails": "FAILS", "open": "open "}
+
+
+def _rows(result) -> list:
+    name = result.parameter
+    re_c1, im_c1 = split_complex(result.c1)
+    rows = [(f"critical value {name}_c", result.critical_value),
+            ("omega^2", result.omega_squared), ("omega", result.omega),
+            ("period 2*pi/omega", result.period),
+            (f"transversality Re dl/d{name}", result.transversality),
+            ("l1 = Re(c1)/omega", result.l1)]
+    for k, coefficient in enumerate(result.lyapunov_coefficients[1:], start=2):
+        rows.append((f"l{k}", coefficient))
+    rows += [("Re c1", re_c1), ("Im c1", im_c1), ("<q, q>", result.q_norm_squared)]
+    return rows
+
+
+def _table(rows, width: int, heading: str = "closed form") -> list:
+    """Label column plus wrapped expression column."""
+    room = max(width - _LABEL - 2, 20)
+    out = [f"{'quantity'.ljust(_LABEL)}  {heading}", f"{'-' * _LABEL}  {'-' * min(room, 40)}"]
+    for label, value in rows:
+        text = value if isinstance(value, str) else model_text(value)
+        pieces = wrap_expression(text, room)
+        out.append(f"{label.ljust(_LABEL)}  {pieces[0]}")
+        out += [f"{'':{_LABEL}}    {p}" for p in pieces[1:]]
+    return out
+
+
+def _paragraph(text: str, width: int, indent: str = "  ") -> list:
+    return textwrap.wrap(text, width, initial_indent=indent, subsequent_indent=indent,
+                         break_on_hyphens=False) or [indent]
+
+
+def _expr_lines(prefix: str, expr, width: int, indent: str = "    ", suffix: str = "") -> list:
+    pieces = wrap_expression(model_text(expr), max(width - len(prefix) - len(indent), 20))
+    lines = [f"{indent}{prefix}{pieces[0]}"] + [f"{indent}{' ' * len(prefix)}  {p}"
+                                                for p in pieces[1:]]
+    if suffix and len(lines[-1]) + len(suffix) + 1 <= width:
+        lines[-1] += " " + suffix
+    elif suffix:
+        lines.append(f"{indent}{suffix}")
+    return lines
+
+
+def _header(result, width: int) -> list:
+    model = result.model
+    title = f"Hopf bifurcation of {model.name!r}" if getattr(model, "name", None) else \
+        "Hopf bifurcation"
+    title += f" in the parameter {result.parameter}"
+    branch = f"branch {result.branch_index + 1} of {result.branch_count}; {result.status}"
+    out = [title, "=" * min(len(title), width), f"({branch})", ""]
+    how = result.equilibrium_how
+    out.append(f"Equilibrium ({how})")
+    for state, value in result.equilibrium.items():
+        out += _expr_lines(f"{state} = ", value, width, "  ")
+    for name, value in result.substitutions.items():
+        out += _expr_lines(f"{name} = ", value, width, "  ")
+    return out
+
+
+def _verdict(result, width: int) -> list:
+    out = ["Verdict"]
+    out += _paragraph(classification_sentence(result.classification, result.cycle.amplitude_power), width)
+    out += _paragraph(f"In the engine's words: {result.verdict}.", width)
+    if result.supercritical_where is not None:
+        rel = result.supercritical_where
+        op = ">" if rel.rel_op == ">" else "<"
+        out.append("  supercritical exactly where")
+        out += _expr_lines("", rel.lhs, width, suffix=f"{op} 0")
+    if result.l1_zero_set is not None:
+        out.append("  l1 = 0 (a degenerate, Bautin point) where")
+        out += _expr_lines("", result.l1_zero_set.lhs, width, suffix="= 0")
+    out += _paragraph(transversality_sentence(result), width)
+    return out
+
+
+def _conditions(result, width: int) -> list:
+    out = _paragraph("Conditions (holds: proved under the assumptions; open: stated, not "
+                     "proved -- the result is valid where it holds)", width, "")
+    for c in result.conditions:
+        out += _paragraph(f"[{_STATUS.get(c.status, c.status)}] {c.description}", width)
+        out += _expr_lines("", c.expr, width, "          ", suffix=f"{c.relation} 0")
+    return out
+
+
+def _cycle(result, width: int) -> list:
+    out = ["Cycle near onset"]
+    for sentence in cycle_sentences(result):
+        out += _paragraph(sentence, width)
+    name = result.parameter
+    k = per_offset(result, result.cycle.radius_squared)
+    if k is None:
+        out.append("  squared radius rho^2 (unit normalisation):")
+        out += _expr_lines("", result.cycle.radius_squared, width)
+    else:
+        out.append(f"  squared radius rho^2 = K*({name} - {name}_c) (unit normalisation), K:")
+        out += _expr_lines("", k, width)
+    for state, k in result.cycle.amplitude_coefficients.items():
+        out.append(f"  slope_{state}: (amplitude of {state})^2 per unit of "
+                   f"{result.parameter} - {result.parameter}_c:")
+        out += _expr_lines("", k, width)
+    if result.cycle.amplitude_power != 2:
+        for state, amplitude in result.cycle.amplitudes.items():
+            out.append(f"  amplitude of {state} (half peak-to-peak):")
+            out += _expr_lines("", amplitude, width)
+    out.append(f"  frequency slope d omega_cycle / d {result.parameter}:")
+    out += _expr_lines("", result.cycle.frequency_slope, width)
+    return out
+
+
+def result_summary(result, width: int = DEFAULT_WIDTH) -> str:
+    """A readable plain-text summary of a :class:`~criticality.HopfResult`.
+
+    Parameters
+    ----------
+    result : HopfResult
+    width : int
+        Line width; long expressions wrap at sums, then at products.
+
+    Returns
+    -------
+    str
+
+    Examples
+    --------
+    >>> from criticality import Model, hopf
+    >>> m = Model(["x", "y"], {"x": "y", "y": "-x + mu*y - x^2*y"}, {"mu": "real"})
+    >>> text = result_summary(hopf(m, "mu", equilibrium={"x": 0, "y": 0}))
+    >>> print(text.splitlines()[0])
+    Hopf bifurcation in the parameter mu
+    >>> [line for line in text.splitlines() if line.startswith("l1")]
+    ['l1 = Re(c1)/omega           -1/4']
+    """
+    sections = [_header(result, width), _table(_rows(result), width,
+                                                   "closed form" if result.status == "closed form"
+                                                   else result.status),
+                ["Classification: " + result.classification], _verdict(result, width),
+                _conditions(result, width), _cycle(result, width)]
+    if result.notes:
+        notes = ["Notes"]
+        for note in result.notes:
+            notes += textwrap.wrap(note, width, initial_indent="  - ", subsequent_indent="    ",
+                                   break_on_hyphens=False)
+        sections.append(notes)
+    conventions = ["Conventions"]
+    for line in result.conventions.lines():
+        conventions += textwrap.wrap(line, width, initial_indent="  - ",
+                                     subsequent_indent="    ", break_on_hyphens=False)
+    sections.append(conventions)
+    cautions = ["Cautions"]
+    for line in CAUTIONS:
+        cautions += textwrap.wrap(line, width, initial_indent="  ! ", subsequent_indent="    ",
+                                  break_on_hyphens=False)
+    sections.append(cautions)
+    return "\n\n".join("\n".join(s) for s in sections) + "\n"
+
+
+def _number(value, digits: int) -> str:
+    if isinstance(value, (mpmath.mpf, mpmath.mpc)):
+        return mpmath.nstr(value, digits)
+    return str(value)
+
+
+def numeric_summary(numeric, digits: int | None = None) -> str:
+    """A numeric evaluation (:class:`~criticality.checks.numeric.NumericHopfResult`)
+    as text, every number with ``digits`` significant digits (default: the
+    evaluation's own)."""
+    d = digits or numeric.digits
+    point = ", ".join(f"{k} = {model_text(v)}" for k, v in numeric.values.items())
+    rows = [("critical value", numeric.critical_value), ("omega^2", numeric.omega_squared),
+            ("omega", numeric.omega), ("period", numeric.period),
+            ("transversality", numeric.transversality), ("c1", numeric.c1), ("l1", numeric.l1)]
+    rows += [(f"l{k}", v) for k, v in enumerate(numeric.lyapunov_coefficients[1:], start=2)]
+    rows += [("classification", numeric.classification)]
+    rows += [(f"equilibrium {k}", v) for k, v in numeric.equilibrium.items()]
+    rows += [(f"amplitude^2 slope of {k}", v)
+             for k, v in numeric.amplitude_coefficients.items()]
+    rows += [("|lambda - i*omega| (check)", numeric.pair_error),
+             ("other eigenvalues stable", numeric.others_stable)]
+    width = max(len(r[0]) for r in rows)
+    lines = [f"Numeric values at {point or 'the model defaults'} ({d} significant digits)"]
+    lines += [f"  {label.ljust(width)}  {_number(v, d)}" for label, v in rows]
+    lines.append("  eigenvalues of the Jacobian at the critical point:")
+    lines += [f"    {_number(e, min(d, 20))}" for e in numeric.eigenvalues]
+    return "\n".join(lines) + "\n"
