@@ -12,7 +12,7 @@ the linear solver uses to choose small pivots.
 
 from __future__ import annotations
 
-__all__ = ["Field"]
+__all__ = ["Field", "PolynomialRing", "clear_denominators"]
 
 
 class Field:
@@ -55,3 +55,74 @@ class Field:
 
     def is_zero(self, x) -> bool:
         return not x
+
+
+class PolynomialRing:
+    """The polynomial-ring view beside a field: ZZ[p1, ..., pk] for the field
+    QQ(p1, ..., pk) (documentation of the protocol; python-flint and the
+    pure-sympy stand-in implement it).
+
+    A field ``K`` with generators exposes ``K.ring`` and converts with
+    ``K.numerator(x)``, ``K.denominator(x)`` (integer polynomials with
+    ``x = numerator / denominator``) and ``K.from_ring(num, den=None)``.  Ring
+    elements support ``+ - *``, ``==`` and truth testing.
+
+    Attributes
+    ----------
+    symbols : tuple of sympy.Symbol
+    zero, one
+    base : PolynomialRing or None
+        For a ring made by :meth:`extend`, the ring it extends.
+    """
+
+    symbols: tuple = ()
+    backend = "abstract"
+
+    def factor(self, p):  # pragma: no cover - documented protocol
+        """``(content, [(irreducible factor, multiplicity)])``."""
+        raise NotImplementedError
+
+    def coefficients_in(self, p, symbol) -> dict:  # pragma: no cover - documented protocol
+        """``{k: coefficient of symbol**k}`` (ring elements free of ``symbol``)."""
+        raise NotImplementedError
+
+    def degrees(self, p) -> dict:  # pragma: no cover - documented protocol
+        """``{symbol: degree}``."""
+        raise NotImplementedError
+
+    def evaluate(self, p, point) -> int:  # pragma: no cover - documented protocol
+        """The integer value at integer values of all generators."""
+        raise NotImplementedError
+
+    def to_sympy(self, p):  # pragma: no cover - documented protocol
+        raise NotImplementedError
+
+    def extend(self, name: str) -> "PolynomialRing":  # pragma: no cover - documented protocol
+        """This ring with one more variable ``name``; :meth:`from_coefficients`,
+        :meth:`split` and :meth:`resultant` work in that variable."""
+        raise NotImplementedError
+
+    def from_coefficients(self, coeffs):  # pragma: no cover - documented protocol
+        """``sum coeffs[k] * t**k`` (``coeffs`` in :attr:`base`) in an extended ring."""
+        raise NotImplementedError
+
+    def split(self, p) -> dict:  # pragma: no cover - documented protocol
+        """``{k: coefficient of t**k in base}`` in an extended ring."""
+        raise NotImplementedError
+
+    def resultant(self, a, b):  # pragma: no cover - documented protocol
+        """The resultant in the extension variable, an element of :attr:`base`."""
+        raise NotImplementedError
+
+
+def clear_denominators(K, xs):
+    """``(D, [n_1, ...])`` in ``K.ring`` with ``x_i = n_i / D`` and ``D`` the
+    least common multiple of the denominators."""
+    R = K.ring
+    xs = [K(x) for x in xs]
+    D = R.one
+    for x in xs:
+        d = K.denominator(x)
+        if not R.is_one(d):
+            D = D * R.exquo(d, R.gcd(D, d))
+    return D, [K.numerator(x) * R.exquo(D, K.denominator(x)) for x in xs]

@@ -21,9 +21,10 @@ import sympy
 from sympy.core.add import _addsort
 from sympy.core.mul import _mulsort
 
-from .field import Field
+from .field import Field, PolynomialRing
 
-__all__ = ["FlintRationalFunctionField", "FlintRationalField", "RationalFunction"]
+__all__ = ["FlintRationalFunctionField", "FlintRationalField", "RationalFunction",
+           "FlintPolynomialRing"]
 
 _fmpz_mpoly = flint.fmpz_mpoly
 _fmpq = flint.fmpq
@@ -181,13 +182,13 @@ class FlintRationalFunctionField(Field):
         if not symbols:
             raise ValueError("use FlintRationalField for a field without generators")
         self.symbols = symbols
-        self.ctx = flint.fmpz_mpoly_ctx.get(tuple(str(s) for s in symbols), "degrevlex")
-        self._one_poly = self.ctx.from_dict({(0,) * len(symbols): 1})
-        self._zero_poly = self.ctx.from_dict({})
+        self.ring = FlintPolynomialRing(symbols)
+        self.ctx = self.ring.ctx
+        self._one_poly = self.ring.one
+        self._zero_poly = self.ring.zero
         self.zero = RationalFunction(self._zero_poly, self._one_poly, self)
         self.one = RationalFunction(self._one_poly, self._one_poly, self)
         self.gens = tuple(RationalFunction(g, self._one_poly, self) for g in self.ctx.gens())
-        self._sympy_cache: dict = {}
 
     # -- element construction ----------------------------------------------------
     def _normalised(self, num, den, reduced: bool = False) -> RationalFunction:
@@ -233,40 +234,20 @@ class FlintRationalFunctionField(Field):
 
     # -- conversion back --------------------------------------------------------------
     def poly_to_sympy(self, poly) -> sympy.Expr:
-        """A ``fmpz_mpoly`` of this context as a sympy expression (one Add).
+        """A ``fmpz_mpoly`` of this context as a sympy expression (one Add)."""
+        return self.ring.to_sympy(poly)
 
-        Conversions are cached: the same factor occurs in many results."""
-        key = str(poly)
-        hit = self._sympy_cache.get(key)
-        if hit is None:
-            hit = self._sympy_cache[key] = self._poly_to_sympy(poly)
-        return hit
+    # -- the polynomial-ring view --------------------------------------------------------
+    def numerator(self, x: RationalFunction):
+        return x.num
 
-    def _poly_to_sympy(self, poly) -> sympy.Expr:
-        """Build the Add of monomials directly from canonically sorted
-        arguments.  An expanded polynomial with integer coefficients is
-        already in sympy's canonical form, so the general constructors'
-        flattening (and its assumption queries, which dominate for large
-        results) is skipped; the outcome is identical to
-        ``sympy.Add(*(c * x**e ...))``."""
-        syms = self.symbols
-        terms = []
-        for monom, coeff in poly.to_dict().items():
-            c = sympy.Integer(int(coeff))
-            factors = [sympy.Pow(s, e) if e != 1 else s for s, e in zip(syms, monom) if e]
-            if c != 1 or not factors:
-                factors.insert(0, c)
-            if len(factors) == 1:
-                terms.append(factors[0])
-                continue
-            _mulsort(factors)
-            terms.append(sympy.Mul._from_args(factors))
-        if not terms:
-            return sympy.Integer(0)
-        if len(terms) == 1:
-            return terms[0]
-        _addsort(terms)
-        return sympy.Add._from_args(terms)
+    def denominator(self, x: RationalFunction):
+        return x.den
+
+    def from_ring(self, num, den=None) -> RationalFunction:
+        if den is None or den.is_one():
+            return RationalFunction(num, self._one_poly, self)
+        return self.from_polynomials(num, den)
 
     def to_sympy(self, x: RationalFunction) -> sympy.Expr:
         num = self.poly_to_sympy(x.num)
@@ -310,6 +291,17 @@ class FlintRationalField(Field):
     def __init__(self):
         self.zero = _fmpq(0)
         self.one = _fmpq(1)
+        self.ring = FlintPolynomialRing(())
+
+    def numerator(self, x):
+        return self.ring(int(x.p))
+
+    def denominator(self, x):
+        return self.ring(int(x.q))
+
+    def from_ring(self, num, den=None):
+        value = _fmpq(self.ring.constant(num))
+        return value if den is None else value / self.ring.constant(den)
 
     def __call__(self, value):
         if isinstance(value, _fmpq):
@@ -336,3 +328,148 @@ class FlintRationalField(Field):
 
     def __repr__(self):
         return "QQ[flint]"
+
+
+class FlintPolynomialRing(PolynomialRing):
+    """ZZ[p1, ..., pk] on ``flint.fmpz_mpoly``: the polynomial-ring view of the
+    flint fields (k = 0 gives the integers, as constant polynomials).
+
+    Examples
+    --------
+    >>> import sympy
+    >>> a, b = sympy.symbols("a b")
+    >>> R = FlintPolynomialRing([a, b])
+    >>> p = R.from_sympy(2*a**2*b - 2*b)
+    >>> [R.to_sympy(f) for f, _ in R.factor(p)[1]]
+    [b, a - 1, a + 1]
+    """
+
+    backend = "flint"
+
+    def __init__(self, symbols, base=None):
+        self.symbols = tuple(symbols)
+        self.base = base
+        self.ctx = flint.fmpz_mpoly_ctx.get(tuple(str(s) for s in self.symbols), "degrevlex")
+        self.zero = self.ctx.from_dict({})
+        self.one = self.ctx.from_dict({(0,) * len(self.symbols): 1})
+        self._sympy_cache: dict = {}
+        self._extensions: dict = {}
+
+    def __call__(self, n: int):
+        return self.one * int(n)
+
+    def from_dict(self, data: dict):
+        return self.ctx.from_dict(data) if data else self.zero
+
+    def to_dict(self, p) -> dict:
+        return {tuple(m): int(c) for m, c in p.to_dict().items()}
+
+    def from_sympy(self, expr):
+        poly = sympy.Poly(expr, *self.symbols, domain="ZZ") if self.symbols else None
+        if poly is None:
+            return self(int(expr))
+        return self.from_dict({m: int(c) for m, c in poly.terms()})
+
+    def exquo(self, a, b):
+        return a / b
+
+    def gcd(self, a, b):
+        return a.gcd(b)
+
+    def is_one(self, p) -> bool:
+        return p.is_one()
+
+    def factor(self, p):
+        content, factors = p.factor()
+        return int(content), [(f, int(m)) for f, m in factors]
+
+    def degrees(self, p) -> dict:
+        return dict(zip(self.symbols, p.degrees())) if not p.is_zero() else {}
+
+    def coefficients_in(self, p, symbol) -> dict:
+        if symbol not in self.symbols:
+            return {0: p} if not p.is_zero() else {}
+        i = self.symbols.index(symbol)
+        buckets: dict = {}
+        for monom, coeff in p.to_dict().items():
+            rest = monom[:i] + (0,) + monom[i + 1:]
+            buckets.setdefault(monom[i], {})[rest] = coeff
+        return {k: self.ctx.from_dict(d) for k, d in buckets.items()}
+
+    def evaluate(self, p, point) -> int:
+        return int(p(*point)) if self.symbols else self.constant(p)
+
+    def constant(self, p) -> int:
+        if p.is_zero():
+            return 0
+        if not p.is_constant():
+            raise ValueError(f"{p} is not a constant")
+        return int(p.coeffs()[0])
+
+    def to_sympy(self, p) -> sympy.Expr:
+        """As a sympy expression (one Add); conversions are cached, since the
+        same factor occurs in many results."""
+        key = str(p)
+        hit = self._sympy_cache.get(key)
+        if hit is None:
+            hit = self._sympy_cache[key] = _poly_to_sympy(self.symbols, p)
+        return hit
+
+    def project(self, p, ring: "FlintPolynomialRing"):
+        """``p`` (free of the generators ``ring`` lacks) as an element of ``ring``."""
+        keep = [self.symbols.index(s) for s in ring.symbols]
+        return ring.from_dict({tuple(m[i] for i in keep): c for m, c in p.to_dict().items()})
+
+    def extend(self, name: str) -> "FlintPolynomialRing":
+        hit = self._extensions.get(name)
+        if hit is None:
+            hit = self._extensions[name] = FlintPolynomialRing(
+                self.symbols + (sympy.Symbol(name),), base=self)
+        return hit
+
+    def from_coefficients(self, coeffs):
+        data = {}
+        for k, c in enumerate(coeffs):
+            for monom, v in c.to_dict().items():
+                data[tuple(monom) + (k,)] = v
+        return self.from_dict(data)
+
+    def split(self, p) -> dict:
+        n = len(self.symbols) - 1
+        out: dict = {}
+        for monom, v in p.to_dict().items():
+            out.setdefault(monom[n], {})[tuple(monom[:n])] = v
+        return {k: self.base.from_dict(d) for k, d in out.items()}
+
+    def resultant(self, a, b):
+        r = a.resultant(b, str(self.symbols[-1]))
+        return self.split(r).get(0, self.base.zero)
+
+    def __repr__(self):
+        return f"ZZ[{', '.join(map(str, self.symbols))}][flint]"
+
+
+def _poly_to_sympy(syms, poly) -> sympy.Expr:
+    """Build the Add of monomials directly from canonically sorted
+    arguments.  An expanded polynomial with integer coefficients is
+    already in sympy's canonical form, so the general constructors'
+    flattening (and its assumption queries, which dominate for large
+    results) is skipped; the outcome is identical to
+    ``sympy.Add(*(c * x**e ...))``."""
+    terms = []
+    for monom, coeff in poly.to_dict().items():
+        c = sympy.Integer(int(coeff))
+        factors = [sympy.Pow(s, e) if e != 1 else s for s, e in zip(syms, monom) if e]
+        if c != 1 or not factors:
+            factors.insert(0, c)
+        if len(factors) == 1:
+            terms.append(factors[0])
+            continue
+        _mulsort(factors)
+        terms.append(sympy.Mul._from_args(factors))
+    if not terms:
+        return sympy.Integer(0)
+    if len(terms) == 1:
+        return terms[0]
+    _addsort(terms)
+    return sympy.Add._from_args(terms)

@@ -13,10 +13,11 @@ from fractions import Fraction
 import sympy
 from sympy.polys.domains import QQ
 from sympy.polys.fields import FracElement, field
+from sympy.polys.rings import PolyRing
 
-from .field import Field
+from .field import Field, PolynomialRing
 
-__all__ = ["SympyRationalFunctionField"]
+__all__ = ["SympyRationalFunctionField", "SympyPolynomialRing"]
 
 
 class SympyRationalFunctionField(Field):
@@ -43,6 +44,8 @@ class SympyRationalFunctionField(Field):
             self.gens = ()
         self.zero = self(0)
         self.one = self(1)
+        self.ring = SympyPolynomialRing(self.symbols,
+                                        self._field.ring if self.symbols else None)
 
     def __call__(self, value):
         if self.symbols and isinstance(value, FracElement):
@@ -75,6 +78,31 @@ class SympyRationalFunctionField(Field):
             return int(x.numerator).bit_length() + int(x.denominator).bit_length()
         return len(x.numer) + len(x.denom)
 
+    # -- the polynomial-ring view ---------------------------------------------------------
+    def numerator(self, x):
+        if not self.symbols:
+            return int(x.numerator)
+        return self._integral(x)[0]
+
+    def denominator(self, x):
+        if not self.symbols:
+            return int(x.denominator)
+        return self._integral(x)[1]
+
+    def _integral(self, x):
+        """``(n, d)`` with integer coefficients and ``x = n / d``."""
+        cn, n = self.ring.primitive(x.numer)
+        cd, d = self.ring.primitive(x.denom)
+        r = cn / cd
+        return n * int(r.numerator), d * int(r.denominator)
+
+    def from_ring(self, num, den=None):
+        if not self.symbols:
+            value = QQ(int(num))
+            return value if den is None else value / QQ(int(den))
+        value = self._field.new(num)
+        return value if den is None else value / self._field.new(den)
+
     def derivative(self, x, symbol):
         if not self.symbols:
             raise ValueError(f"{symbol} is not a generator of QQ")
@@ -83,3 +111,146 @@ class SympyRationalFunctionField(Field):
 
     def __repr__(self):
         return f"QQ({', '.join(map(str, self.symbols))})[sympy]"
+
+
+class SympyPolynomialRing(PolynomialRing):
+    """The polynomial-ring view of the stand-in: sympy's ``PolyRing`` over QQ
+    (elements with integer coefficients), or Python integers when there are
+    no generators.  A ring extended by one variable puts it first, where
+    sympy's resultant eliminates."""
+
+    backend = "sympy"
+
+    def __init__(self, symbols, ring=None, base=None):
+        self.symbols = tuple(symbols)
+        self.base = base
+        self._ring = ring if ring is not None or not self.symbols else \
+            PolyRing(self.symbols, QQ)
+        self.zero = self(0)
+        self.one = self(1)
+        self._extensions: dict = {}
+
+    def __call__(self, n: int):
+        return self._ring(int(n)) if self._ring is not None else int(n)
+
+    def from_dict(self, data: dict):
+        if self._ring is None:
+            return int(data.get((), 0))
+        return self._ring.from_dict({m: QQ(int(c)) for m, c in data.items()}) if data \
+            else self._ring.zero
+
+    def to_dict(self, p) -> dict:
+        if self._ring is None:
+            return {(): int(p)} if p else {}
+        return {tuple(m): int(c) for m, c in p.terms()}
+
+    def from_sympy(self, expr):
+        if self._ring is None:
+            return int(expr)
+        return self._ring.from_expr(expr)
+
+    def primitive(self, p):
+        """``(c, p / c)`` with integer coefficients of content one (sign
+        kept), for a polynomial with rational coefficients."""
+        if self._ring is None:
+            return 1, int(p)
+        if not p:
+            return 1, p
+        from math import gcd, lcm
+        coeffs = p.coeffs()
+        den = lcm(*(int(c.denominator) for c in coeffs))
+        num = gcd(*(int(c.numerator * (den // c.denominator)) for c in coeffs))
+        c = QQ(num, den)
+        return c, p.quo_ground(c)
+
+    def exquo(self, a, b):
+        return a.exquo(b) if self._ring is not None else a // b
+
+    def gcd(self, a, b):
+        if self._ring is None:
+            from math import gcd
+            return gcd(a, b)
+        return self.primitive(a.gcd(b))[1]
+
+    def is_one(self, p) -> bool:
+        return p == 1
+
+    def factor(self, p):
+        if self._ring is None:
+            return int(p), []
+        content, factors = p.factor_list()
+        out = []
+        for f, m in factors:
+            c, f = self.primitive(f)
+            content = content * c ** m
+            out.append((f, int(m)))
+        return content, out
+
+    def degrees(self, p) -> dict:
+        if self._ring is None or not p:
+            return {}
+        return dict(zip(self.symbols, p.degrees()))
+
+    def coefficients_in(self, p, symbol) -> dict:
+        if symbol not in self.symbols:
+            return {0: p} if p else {}
+        i = self.symbols.index(symbol)
+        buckets: dict = {}
+        for monom, coeff in p.terms():
+            rest = monom[:i] + (0,) + monom[i + 1:]
+            buckets.setdefault(monom[i], {})[rest] = coeff
+        return {k: self._ring.from_dict(d) for k, d in buckets.items()}
+
+    def evaluate(self, p, point) -> int:
+        if self._ring is None:
+            return int(p)
+        v = p(*point) if len(self.symbols) > 1 else p(point[0])
+        return int(v)
+
+    def constant(self, p) -> int:
+        if self._ring is None:
+            return int(p)
+        if not p.is_ground:
+            raise ValueError(f"{p} is not a constant")
+        return int(p.LC) if p else 0
+
+    def to_sympy(self, p) -> sympy.Expr:
+        if self._ring is None:
+            return sympy.Integer(int(p))
+        return p.as_expr()
+
+    def project(self, p, ring: "SympyPolynomialRing"):
+        keep = [self.symbols.index(s) for s in ring.symbols]
+        return ring.from_dict({tuple(m[i] for i in keep): c for m, c in self.to_dict(p).items()})
+
+    def extend(self, name: str) -> "SympyPolynomialRing":
+        hit = self._extensions.get(name)
+        if hit is None:
+            hit = self._extensions[name] = SympyPolynomialRing(
+                (sympy.Symbol(name),) + self.symbols, base=self)
+        return hit
+
+    def from_coefficients(self, coeffs):
+        data = {}
+        for k, c in enumerate(coeffs):
+            for monom, v in self.base.to_dict(c).items():
+                data[(k,) + tuple(monom)] = v
+        return self.from_dict(data)
+
+    def split(self, p) -> dict:
+        out: dict = {}
+        for monom, v in p.terms():
+            out.setdefault(monom[0], {})[tuple(monom[1:])] = int(v)
+        return {k: self.base.from_dict(d) for k, d in out.items()}
+
+    def resultant(self, a, b):
+        r = a.resultant(b)
+        if self.base._ring is None:
+            return int(r.LC) if hasattr(r, "LC") else int(r)
+        if getattr(r, "ring", None) is not self.base._ring:
+            r = self.base._ring.from_dict(dict(r.terms())) if r else self.base._ring.zero
+        return r
+
+    def __repr__(self):
+        return f"ZZ[{', '.join(map(str, self.symbols))}][sympy]"
+
