@@ -9,7 +9,8 @@ import pytest
 import sympy
 
 from criticality import Model, hopf
-from criticality.hopf_analysis.engine import Problem, run_engine
+from criticality.hopf_analysis.engine import run_engine
+from criticality.local.prepare import prepare_system
 from criticality.local.lyapunov import complex_normal_form, normalization_series
 from criticality.local.second_coefficient import formula_c1_c2
 
@@ -29,7 +30,7 @@ def _normal_form_model():
 
 def _branch(model, order, parameter="mu"):
     mu = model.symbols[parameter]
-    problem = Problem(tuple(model.equations), tuple(model.state_symbols),
+    problem = prepare_system(tuple(model.equations), tuple(model.state_symbols),
                       tuple(model.parameter_symbols), mu, tuple(0 for _ in model.states), order)
     return run_engine(problem).branches[0]
 

@@ -22,6 +22,7 @@ __all__ = [
     "ModelFileSyntaxError",
     "InvalidModelFileError",
     "ParameterError",
+    "OrderError",
     "EquilibriumError",
     "NotAnEquilibriumError",
     "EquilibriumNotFoundError",
@@ -168,6 +169,11 @@ class ParameterError(CriticalityError):
     """A parameter named in a call is unknown, not usable, or lacks a value."""
 
     exit_code = 4
+
+
+class OrderError(ParameterError, ValueError):
+    """The order of a normal form is not an odd integer >= 3 (the one check
+    is :func:`criticality.local.prepare.check_order`)."""
 
 
 class EquilibriumError(CriticalityError):

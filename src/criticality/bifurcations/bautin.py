@@ -39,7 +39,7 @@ import sympy
 from ..local.prepare import expr, prepare, sign_word, solve_for
 from ..outputs.simple import render_json, render_latex, render_text
 from ..algebra.quadratic import lower
-from ..hopf_analysis.engine import Problem, run_engine
+from ..hopf_analysis.engine import run_engine
 from ..errors import NoHopfPointError
 
 __all__ = ["BautinPoint", "bautin_points", "BAUTIN_CONVENTIONS"]
@@ -188,12 +188,9 @@ def bautin_points(model, parameter: str, second: str, *, equilibrium=None, elimi
     (0, -4, 'negative')
     """
     prep = prepare(model, parameter, equilibrium=equilibrium, eliminate=eliminate,
-                   values=values, assume=assume, order=2, backend=backend)
+                   values=values, assume=assume, order=5, backend=backend, vary=True)
     sec = prep.symbol(second)
-    m = prep.model
-    problem = Problem(prep.equations, tuple(m.state_symbols), prep.params, prep.mu,
-                      tuple(prep.choice.point), 5, backend, tuple(m.states), prep.assumptions)
-    out = run_engine(problem)
+    out = run_engine(prep)
     found, unsolved = [], []
     for index, bc in enumerate(out.branches):
         pts, uns = _points_on_branch(prep, bc, sec, index)

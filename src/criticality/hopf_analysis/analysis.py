@@ -1,29 +1,24 @@
 """The public Hopf analysis: ``hopf(model, parameter, ...)``.
 
-Pipeline place: model -> equilibrium -> **engine** -> result.  This module
-chooses the equilibrium, hands sympy objects to :mod:`criticality.hopf_analysis.engine`, and
-turns the field elements of each branch into a :class:`HopfResult`
-(:mod:`criticality.hopf_analysis.assemble`).
+Pipeline place: model -> prepared problem -> **engine** -> result.  This
+module prepares the problem (:func:`criticality.local.prepare.prepare`), hands
+it to :mod:`criticality.hopf_analysis.engine`, and turns the field elements of
+each branch into a :class:`HopfResult` (:mod:`criticality.hopf_analysis.assemble`).
 """
 
 from __future__ import annotations
 
-from dataclasses import replace
 from typing import Mapping
 
 from .assemble import build_result
 from ..budget import hint, stage
 from ..budget import time_limit as time_limit_
-from ..algebra.signs import context_for
-from .engine import Problem, run_engine
-from ..local.equilibria import (given_equilibrium, parametrised_equilibrium, select_equilibrium,
-                         solve_equilibria)
-from ..errors import NoHopfPointError, ParameterError
+from .engine import run_engine
+from ..errors import NoHopfPointError
+from ..local.prepare import check_order, prepare
 from .results import HopfResult
 
 __all__ = ["hopf", "hopf_all"]
-
-_ASSUMPTIONS = ("real", "positive", "nonnegative", "negative", "nonzero")
 
 
 def hopf(model, parameter: str | None = None, *, equilibrium=None, eliminate=None,
@@ -112,47 +107,15 @@ def hopf_all(model, parameter: str | None = None, *, equilibrium=None, eliminate
 
 
 def _analyse(model, parameter, equilibrium, eliminate, order, values, assume, backend, select):
-    if order < 3 or order % 2 == 0:
-        raise ParameterError(f"order must be an odd integer >= 3 (3 gives l1, 5 gives l2); "
-                             f"got {order}")
-    full, fixed = model, {}
-    if values:
-        fixed = model.value_substitution(values)
-        model = model.with_values(dict(values))
-    name = parameter or getattr(model, "bifurcation_parameter", None)
-    if not name:
-        raise ParameterError("name the bifurcation parameter (the model file does not choose one)")
-    if name in model.states:
-        raise ParameterError(f"'{name}' is a state variable, not a parameter")
-    model.parameter(name)  # raises with a did-you-mean if unknown
-    assumptions = _assumptions(model, assume)
-    choice = _equilibrium(model, equilibrium, eliminate, assumptions, full, fixed)
-    eqs = tuple(e.xreplace(choice.substitutions) for e in model.equations)
-    mu = model.symbols[name]
-    if any(s == mu for s in choice.substitutions):
-        raise ParameterError(f"the bifurcation parameter '{name}' cannot be eliminated")
-    for s in choice.new_symbols:
-        assumptions.setdefault(s, (assume or {}).get(s.name, "real"))
-    params = tuple(s for s in model.parameter_symbols if s not in choice.substitutions)
-    params += tuple(choice.new_symbols)
-    if not any(e.has(mu) for e in eqs) and not any(x.has(mu) for x in choice.point):
-        raise NoHopfPointError(f"the bifurcation parameter '{name}' does not occur in the model",
-                               reason="parameter_absent")
+    check_order(order)
     if order > 3:
         hint(f"ask for a lower order (order={order} was asked; order=3 gives l1)")
-    problem = Problem(eqs, tuple(model.state_symbols), params, mu, choice.point, order, backend,
-                      tuple(model.states), assumptions)
-    out = run_engine(problem, select=select)
-    stage("assembling the result (factoring and deciding signs)")
-    results = [build_result(model, name, mu, choice, out, bc, assumptions, params)
-               for bc in out.branches]
+    prep = prepare(model, parameter, equilibrium=equilibrium, eliminate=eliminate,
+                   values=values, assume=assume, order=order, backend=backend, vary=True)
+    results = _results(prep, select)
     if order == 3 and any(r is not None and r.l1 == 0 for r in results):
         # l1 vanishes identically: the second coefficient decides
-        problem = replace(problem, order=5)
-        out = run_engine(problem, select=select)
-        stage("assembling the result (factoring and deciding signs)")
-        results = [build_result(model, name, mu, choice, out, bc, assumptions, params)
-                   for bc in out.branches]
+        results = _results(prep.at_order(5), select)
     if any(r is None for r in results):
         raise NoHopfPointError(
             "omega^2 <= 0 on this branch under the declared assumptions: the two eigenvalues "
@@ -161,35 +124,8 @@ def _analyse(model, parameter, equilibrium, eliminate, order, values, assume, ba
     return tuple(results)
 
 
-def _assumptions(model, assume) -> dict:
-    out = {}
-    for p in model.parameters:
-        out[model.symbols[p.name]] = p.assumption
-    for key, value in (assume or {}).items():
-        if value not in _ASSUMPTIONS:
-            raise ParameterError(f"unknown assumption {value!r} for '{key}'; expected one of "
-                                 f"{', '.join(_ASSUMPTIONS)}")
-        if key in model.symbols:
-            out[model.symbols[key]] = value
-    return out
-
-
-def _equilibrium(model, equilibrium, eliminate, assumptions, full=None, fixed=None):
-    """Choose the equilibrium.  A given mapping is read against the model as
-    written (``full``), so it may name parameters fixed by ``values``; their
-    values (``fixed``) are then substituted."""
-    if eliminate is not None:
-        if equilibrium is not None:
-            raise ParameterError("give either an equilibrium or eliminate=..., not both")
-        return parametrised_equilibrium(model, eliminate)
-    if isinstance(equilibrium, Mapping):
-        choice = given_equilibrium(full if full is not None else model, equilibrium)
-        if fixed:
-            choice = replace(choice, point=tuple(p.xreplace(fixed) for p in choice.point))
-        return choice
-    hint = getattr(model, "equilibrium_hint", None)
-    if equilibrium is None and hint:
-        return given_equilibrium(model, hint)
-    candidates = solve_equilibria(model)
-    ctx = context_for(model.parameter_symbols, assumptions)
-    return select_equilibrium(model, candidates, equilibrium, ctx)
+def _results(prep, select) -> list:
+    out = run_engine(prep, select=select)
+    stage("assembling the result (factoring and deciding signs)")
+    return [build_result(prep.model, prep.parameter, prep.mu, prep.choice, out, bc,
+                         dict(prep.assumptions), prep.params) for bc in out.branches]

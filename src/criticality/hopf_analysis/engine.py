@@ -1,54 +1,37 @@
-"""The computational core of the Hopf analysis, on plain sympy inputs.
+"""The computational core of the Hopf analysis, on a prepared problem.
 
-Pipeline: Taylor data (sympy) -> tower of fields -> Jacobian and characteristic
-polynomial with the bifurcation parameter symbolic -> critical branches -> for
+Pipeline: prepared problem (Taylor forms in the tower of fields) -> Jacobian
+and characteristic polynomial with the bifurcation parameter symbolic -> critical branches -> for
 each branch, substitution of the critical value, eigenbasis, the two routes to
 the normal-form coefficients (projection formula; center manifold series +
 planar normal form), and their exact comparison.
 
-This module knows nothing about model files, names or outputs: it takes sympy
-objects and returns :class:`BranchComputation` records of field elements, which
-:mod:`criticality.hopf` turns into results.
+This module knows nothing about model files, names or outputs: it takes a
+:class:`~criticality.local.prepare.PreparedProblem` (the Taylor forms already
+in the tower of fields) and returns :class:`BranchComputation` records of field
+elements, which :mod:`criticality.hopf_analysis.analysis` turns into results.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 
-import sympy
-
-from ..algebra import Tower, collect_atoms
-from ..algebra.domain import algebraic_atom_rules
+from ..algebra import Tower
 from ..budget import hint, stage
 from ..local.center_manifold import ReducedSystem, reduce_to_center_manifold
 from ..local.critical import CriticalBranch, find_critical_branches
 from ..local.eigenbasis import Eigenbasis, critical_eigenbasis
 from ..algebra.canonical import factored
-from ..errors import (ClosedFormUnavailableError, NoHopfPointError, NotAnEquilibriumError,
-                     ParameterError)
+from ..errors import NoHopfPointError, ParameterError
 from ..local.linear import characteristic_polynomial
 from ..local.lyapunov import complex_normal_form
 from ..local.normal_form import complexify, planar_normal_form, unit_coefficients
 from ..local.projection import projection_c1
-from ..algebra.signs import NEGATIVE, NONPOSITIVE, ZERO, context_for, truth
-from ..local.taylor import TaylorForms, raw_taylor
+from ..algebra.signs import NEGATIVE, NONPOSITIVE, ZERO
+from ..local.prepare import PreparedProblem
+from ..local.taylor import TaylorForms
 
-__all__ = ["Problem", "BranchComputation", "EngineOutput", "run_engine"]
-
-
-@dataclass(frozen=True)
-class Problem:
-    """A shifted-and-ready Hopf problem in sympy terms."""
-
-    equations: tuple
-    states: tuple
-    parameters: tuple
-    parameter: sympy.Symbol
-    equilibrium: tuple
-    order: int = 3
-    backend: str = "flint"
-    state_names: tuple = ()
-    assumptions: dict = field(default_factory=dict)
+__all__ = ["BranchComputation", "EngineOutput", "run_engine"]
 
 
 @dataclass(frozen=True)
@@ -81,42 +64,21 @@ class EngineOutput:
     branch_count: int = 1
 
 
-def run_engine(problem: Problem, select: int | None = None) -> EngineOutput:
+def run_engine(problem: PreparedProblem, select: int | None = None) -> EngineOutput:
     """Run the pipeline on every closed-form branch of the critical set, or
     only on branch ``select`` of the ordered list (branches that need no new
     square root come first)."""
     order = max(3, problem.order)
-    stage("expanding the model in Taylor series at the equilibrium")
-    raw = raw_taylor(problem.equations, problem.states, problem.equilibrium, order,
-                     problem.state_names or None)
-    equilibrium = tuple(problem.equilibrium)
-    rules = algebraic_atom_rules(list(raw.coefficients()) + list(equilibrium))
-    if rules:
-        raw = raw.map(lambda c: c.xreplace(rules))
-        equilibrium = tuple(x.xreplace(rules) for x in equilibrium)
-    exprs = list(raw.coefficients()) + list(equilibrium)
-    atoms = collect_atoms(exprs, problem.parameters)
-    inside = [a for a in atoms if a.has(problem.parameter)]
-    if inside:
-        raise ClosedFormUnavailableError(
-            f"the bifurcation parameter '{problem.parameter}' occurs inside {inside[0]} at the "
-            "equilibrium, so its critical value is not algebraic in closed form. Parametrise "
-            "the family by the equilibrium (eliminate=[...]) so that it occurs polynomially, "
-            "choose another bifurcation parameter, or use the numeric mode (guess={...}).")
-    plain = context_for(problem.parameters, problem.assumptions)
-    tower = Tower(problem.parameters, atoms, problem.backend, lambda e: truth(plain.sign(e)))
-    x0 = [tower.convert(e) for e in equilibrium]
-    taylor_mu = TaylorForms.from_raw(raw, x0, tower.convert, tower.base)
-    _check_equilibrium(tower, taylor_mu, problem)
+    tower = problem.tower
+    taylor_mu = problem.taylor
     K = tower.top
-    taylor_mu = TaylorForms(K, taylor_mu.n, taylor_mu.order, taylor_mu.components)
     A_mu = taylor_mu.jacobian()
     stage("computing the characteristic polynomial")
     chi = characteristic_polynomial(K, A_mu)
-    ctx = context_for(problem.parameters, problem.assumptions, tower.atoms)
-    stage(f"solving for the critical set in '{problem.parameter}'")
+    ctx = problem.context()
+    stage(f"solving for the critical set in '{problem.mu}'")
     branches, notes, degenerate, unexamined = find_critical_branches(
-        tower, problem.parameter, chi, describe=lambda s: f"'{s}'",
+        tower, problem.mu, chi, describe=lambda s: f"'{s}'",
         accept=lambda b: _may_be_positive(b, ctx),
         want=None if select is None else select + 1)
     if select is not None:
@@ -130,7 +92,7 @@ def run_engine(problem: Problem, select: int | None = None) -> EngineOutput:
     computed = []
     for b in todo:
         if len(b.tower.levels) > len(tower.levels):
-            hint(f"the critical value of '{problem.parameter}' needs a square root, which makes "
+            hint(f"the critical value of '{problem.mu}' needs a square root, which makes "
                  "every later step work with pairs over a larger field" + _linear_hint(notes))
         try:
             bc = _compute_branch(tower, taylor_mu, b, problem, order)
@@ -167,19 +129,9 @@ def _may_be_positive(branch, ctx) -> bool:
     return sign not in (NEGATIVE, NONPOSITIVE, ZERO)
 
 
-def _check_equilibrium(tower, taylor, problem):
-    names = problem.state_names or [str(s) for s in problem.states]
-    bad = [(names[i], r) for i, r in enumerate(taylor.residual()) if r]
-    if bad:
-        parts = "; ".join(f"the right-hand side for '{n}' equals {tower.to_sympy(r)}" for n, r in bad)
-        raise NotAnEquilibriumError(
-            f"the given point is not an equilibrium: {parts} there instead of 0. Check the "
-            "equilibrium coordinates, or let the engine solve for the equilibrium.")
-
-
 def _compute_branch(tower, taylor_mu, branch, problem, order) -> BranchComputation:
     target = branch.tower
-    mu, value, images = problem.parameter, branch.value, branch.images
+    mu, value, images = problem.mu, branch.value, branch.images
     K = target.top
     stage("substituting the critical value into the Taylor coefficients")
     taylor = taylor_mu.map(lambda c: tower.substitute(c, mu, value, target, images), K)

@@ -40,6 +40,7 @@ from ..budget import checkpoint
 from ..local.eigenbasis import Eigenbasis
 from ..errors import DegenerateHopfError, EquilibriumNotFoundError, NoHopfPointError, ParameterError
 from ..local.lyapunov import complex_normal_form
+from ..local.prepare import check_order
 from ..local.projection import projection_c1
 from ..local.taylor import TaylorForms, raw_taylor
 
@@ -333,8 +334,7 @@ def hopf_numeric(model, parameter: str, guess: Mapping, *, digits: int = 30, ord
 
     if not 5 <= digits <= 500:
         raise ParameterError(f"digits must be between 5 and 500, got {digits}")
-    if order < 3 or order % 2 == 0:
-        raise ParameterError(f"order must be an odd integer >= 3, got {order}")
+    check_order(order)
     fixed = _fixed_model(model, parameter, values or {})
     if len(fixed.states) < 2:
         raise NoHopfPointError("a Hopf bifurcation needs at least two state variables",

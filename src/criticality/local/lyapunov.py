@@ -86,6 +86,7 @@ from dataclasses import dataclass
 from ..algebra.linalg import SingularMatrixError, solve
 from ..budget import checkpoint
 from ..errors import DegenerateHopfError
+from .prepare import check_order
 from .projection import solve_shifted
 from .taylor import compose
 
@@ -228,8 +229,7 @@ def normalization_series(taylor, eb, order: int, *, choices=None) -> Normalizati
         At a strong resonance (``m i omega`` an eigenvalue, ``m = 0, 2, 3, ...``)
         or when ``i omega`` is not a simple eigenvalue.
     """
-    if order < 3 or order % 2 == 0:
-        raise ValueError(f"order must be odd and at least 3, got {order}")
+    check_order(order)
     N = eb.nu_field
     n = len(eb.A)
     q = [N(x) for x in eb.q]

@@ -1,44 +1,110 @@
-"""Shared preparation for the analyses beyond Hopf (fold, Bogdanov-Takens,
-Bautin): the model with its equilibrium shifted to the origin, as Taylor
-forms over the engine's tower of fields, and closed-form solving of one
-field element for one generator.
+"""One preparation stage for every analysis: the problem built once.
 
-Pipeline place: model -> equilibrium -> **prepared problem** -> fold,
-Bogdanov-Takens or Bautin analysis.
+Pipeline place: model -> **prepared problem** -> Hopf, fold, Bogdanov-Takens
+or Bautin analysis (and the checks of the numeric mode's entry).
+
+:func:`prepare` applies the fixed values, checks the parameter, chooses the
+equilibrium (given, solved or parametrised), substitutes it, expands the field
+in Taylor series there, rewrites transcendental atoms that are algebraic in
+disguise (``tanh(log(z)/2) = (z - 1)/(z + 1)``), merges the radicals into one
+tower of fields, converts the Taylor data into it, checks that the point is an
+equilibrium and reports each step to the budget (:mod:`criticality.budget`).
+The outcome is one frozen :class:`PreparedProblem`; every analysis reads it
+and none repeats the set-up.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
+from types import MappingProxyType
+from typing import Any, Callable, Iterable, Mapping
 
 import sympy
 
 from ..algebra import Tower, collect_atoms
-from ..algebra.quadratic import QuadraticElement, lower
-from ..hopf_analysis.analysis import _assumptions, _equilibrium
-from ..algebra.canonical import canonical_expr, factored
-from .critical import _branch_values, _solutions
-from ..errors import NotAnEquilibriumError, ParameterError
-from ..algebra.signs import NEGATIVE, NONNEGATIVE, NONPOSITIVE, POSITIVE, ZERO, context_for, truth
-from .taylor import TaylorForms, raw_taylor
+from ..algebra.domain import algebraic_atom_rules
+from ..algebra.signs import SignContext, context_for, truth
+from ..budget import hint, stage
+from ..errors import (ClosedFormUnavailableError, NoHopfPointError, NotAnEquilibriumError,
+                      OrderError, ParameterError)
+from .equilibria import (EquilibriumChoice, given_equilibrium, parametrised_equilibrium,
+                         select_equilibrium, solve_equilibria)
+from .sign_words import expr, sign_word
+from .solve import SolvedPoint, solve_for
+from .taylor import RawTaylor, TaylorForms, raw_taylor
 
-__all__ = ["Prepared", "prepare", "solve_for", "SolvedPoint", "sign_word"]
+__all__ = ["PreparedProblem", "prepare", "prepare_system", "check_order", "assumption_map",
+           "choose_equilibrium", "ASSUMPTIONS", "SolvedPoint", "solve_for", "sign_word", "expr"]
+
+#: The sign assumptions a parameter (or a free equilibrium coordinate) may carry.
+ASSUMPTIONS = ("real", "positive", "nonnegative", "negative", "nonzero")
+
+
+def check_order(order) -> int:
+    """The order of a normal form: an odd integer ``>= 3`` (3 gives ``l1``,
+    ``2k + 1`` gives ``l1 .. lk``).  Raises :class:`OrderError` otherwise."""
+    if isinstance(order, bool) or not isinstance(order, int) or order < 3 or order % 2 == 0:
+        raise OrderError(f"order must be an odd integer >= 3 (3 gives l1, 5 gives l2); "
+                         f"got {order!r}")
+    return order
 
 
 @dataclass(frozen=True)
-class Prepared:
-    """A model at a (symbolic) equilibrium, ready for the field computations."""
+class PreparedProblem:
+    """A model at a (symbolic) equilibrium, ready for the field computations.
 
-    model: object
+    Attributes
+    ----------
+    model
+        The model with the fixed values applied (None for a bare system,
+        :func:`prepare_system`).
+    parameter, mu
+        The name and symbol of the analysis' parameter.
+    choice : EquilibriumChoice
+        How the equilibrium was obtained (given, solved, parametrised).
+    equations : tuple of sympy.Expr
+        The right-hand sides with the eliminated symbols substituted.
+    states, state_names : tuple
+        The state symbols and their names.
+    params : tuple of sympy.Symbol
+        The free symbols: parameters not eliminated, then the free
+        equilibrium coordinates (``x_eq``).
+    assumptions : mapping
+        Sign assumption of every free symbol (read-only).
+    order : int
+        Degree of the Taylor expansion.
+    backend : str
+        ``"flint"`` or ``"sympy"``.
+    equilibrium : tuple of sympy.Expr
+        The point, with disguised algebraic atoms rewritten.
+    raw : RawTaylor
+        The Taylor data as sympy expressions.
+    tower : Tower
+        The parameter field with the transcendental atoms and the radicals
+        of the equilibrium.
+    taylor : TaylorForms
+        The shifted field over ``tower.top``.
+    extra : tuple
+        Field elements of the extra expressions asked for (e.g. ``d f / d mu``).
+    """
+
+    model: Any
     parameter: str
     mu: sympy.Symbol
-    choice: object
+    choice: EquilibriumChoice
     equations: tuple
+    states: tuple
+    state_names: tuple
     params: tuple
-    assumptions: dict
+    assumptions: Mapping
+    order: int
+    backend: str
+    equilibrium: tuple
+    raw: RawTaylor
     tower: Tower
     taylor: TaylorForms
-    extra: tuple  # field elements for the requested extra expressions
+    extra: tuple = ()
+    extra_exprs: tuple = ()
 
     def symbol(self, name: str) -> sympy.Symbol:
         """The generator called ``name`` (a parameter or a free equilibrium
@@ -50,165 +116,164 @@ class Prepared:
         raise ParameterError(f"'{name}' is not a free symbol of this analysis (free symbols: "
                              f"{listing}); eliminated parameters and states cannot be solved for")
 
-    def context(self, tower=None):
-        return context_for(self.params, self.assumptions, (tower or self.tower).atoms)
+    def context(self, tower: Tower | None = None) -> SignContext:
+        """The sign context of the free symbols (and of ``tower``'s atoms)."""
+        return context_for(self.params, dict(self.assumptions), (tower or self.tower).atoms)
+
+    def at_order(self, order: int) -> "PreparedProblem":
+        """The same problem expanded to another Taylor order (a fresh tower)."""
+        if order == self.order:
+            return self
+        return _fields(self.model, self.parameter, self.mu, self.choice, self.equations,
+                       self.params, dict(self.assumptions), order, self.backend,
+                       self.choice.point, self.extra_exprs, False, self.states,
+                       self.state_names)
 
 
-def prepare(model, parameter, *, equilibrium=None, eliminate=None, values=None, assume=None,
-            order=3, backend="flint", extra=lambda model, choice: ()) -> Prepared:
-    """Choose the equilibrium and build the Taylor forms in the field.
+def assumption_map(model, assume: Mapping | None) -> dict:
+    """``{symbol: assumption}`` for the model's parameters, changed or
+    extended by ``assume`` (names -> one of :data:`ASSUMPTIONS`)."""
+    out = {}
+    for p in model.parameters:
+        out[model.symbols[p.name]] = p.assumption
+    for key, value in (assume or {}).items():
+        if value not in ASSUMPTIONS:
+            raise ParameterError(f"unknown assumption {value!r} for '{key}'; expected one of "
+                                 f"{', '.join(ASSUMPTIONS)}")
+        if key in model.symbols:
+            out[model.symbols[key]] = value
+    return out
 
-    ``extra(model, choice)`` returns sympy expressions (in the parameters) to
-    convert into the same field, e.g. ``d f / d mu`` at the equilibrium.
+
+def choose_equilibrium(model, equilibrium, eliminate, assumptions, full=None,
+                       fixed=None) -> EquilibriumChoice:
+    """Choose the equilibrium.  A given mapping is read against the model as
+    written (``full``), so it may name parameters fixed by ``values``; their
+    values (``fixed``) are then substituted."""
+    if eliminate is not None:
+        if equilibrium is not None:
+            raise ParameterError("give either an equilibrium or eliminate=..., not both")
+        return parametrised_equilibrium(model, eliminate)
+    if isinstance(equilibrium, Mapping):
+        choice = given_equilibrium(full if full is not None else model, equilibrium)
+        if fixed:
+            choice = replace(choice, point=tuple(p.xreplace(fixed) for p in choice.point))
+        return choice
+    default = getattr(model, "equilibrium_hint", None)
+    if equilibrium is None and default:
+        return given_equilibrium(model, default)
+    candidates = solve_equilibria(model)
+    ctx = context_for(model.parameter_symbols, assumptions)
+    return select_equilibrium(model, candidates, equilibrium, ctx)
+
+
+def prepare(model, parameter: str | None = None, *, equilibrium=None, eliminate=None,
+            values: Mapping | None = None, assume: Mapping | None = None, order: int = 3,
+            backend: str = "flint",
+            extra: Callable[[Any, EquilibriumChoice], Iterable] | None = None,
+            vary: bool = False) -> PreparedProblem:
+    """Build the problem of an analysis once.
+
+    Parameters
+    ----------
+    model : Model
+    parameter : str, optional
+        The analysis' parameter (default: the model file's choice).
+    equilibrium, eliminate, values, assume, backend
+        As for :func:`criticality.hopf`.
+    order : int
+        Degree of the Taylor expansion.
+    extra : callable, optional
+        ``extra(model, choice)`` returns sympy expressions (in the parameters)
+        to convert into the same field, e.g. ``d f / d mu`` at the equilibrium.
+    vary : bool
+        The analysis varies ``parameter`` across a critical value (Hopf,
+        Bautin): it must stay free, occur in the model and not occur inside a
+        transcendental function at the equilibrium.
     """
+    full, fixed = model, {}
     if values:
-        model = model.with_values(**dict(values))
+        fixed = model.value_substitution(values)
+        model = model.with_values(dict(values))
     name = parameter or getattr(model, "bifurcation_parameter", None)
     if not name:
-        raise ParameterError("name the parameter of the analysis")
-    model.parameter(name)
-    assumptions = _assumptions(model, assume)
-    choice = _equilibrium(model, equilibrium, eliminate, assumptions)
+        raise ParameterError("name the bifurcation parameter (the model file does not choose one)")
+    if name in model.states:
+        raise ParameterError(f"'{name}' is a state variable, not a parameter")
+    model.parameter(name)  # raises with a did-you-mean if unknown
+    assumptions = assumption_map(model, assume)
+    stage("choosing the equilibrium")
+    choice = choose_equilibrium(model, equilibrium, eliminate, assumptions, full, fixed)
     eqs = tuple(e.xreplace(choice.substitutions) for e in model.equations)
+    mu = model.symbols[name]
+    if vary and any(s == mu for s in choice.substitutions):
+        raise ParameterError(f"the bifurcation parameter '{name}' cannot be eliminated")
     for s in choice.new_symbols:
         assumptions.setdefault(s, (assume or {}).get(s.name, "real"))
     params = tuple(s for s in model.parameter_symbols if s not in choice.substitutions)
     params += tuple(choice.new_symbols)
-    raw = raw_taylor(eqs, model.state_symbols, choice.point, order, tuple(model.states))
-    more = tuple(sympy.sympify(e) for e in extra(model, choice))
-    atoms = collect_atoms(list(raw.coefficients()) + list(choice.point) + list(more), params)
+    if vary and not any(e.has(mu) for e in eqs) and not any(x.has(mu) for x in choice.point):
+        raise NoHopfPointError(f"the bifurcation parameter '{name}' does not occur in the model",
+                               reason="parameter_absent")
+    more = tuple(sympy.sympify(e) for e in (extra(model, choice) if extra else ()))
+    return _fields(model, name, mu, choice, eqs, params, assumptions, order, backend,
+                   choice.point, more, vary)
+
+
+def prepare_system(equations, states, parameters, parameter, equilibrium, order: int = 3,
+                   backend: str = "flint", state_names=(), assumptions=None) -> PreparedProblem:
+    """:func:`prepare` for a system given as sympy objects (no model, no
+    choice of equilibrium): the equations, the state and parameter symbols,
+    the parameter varied (a symbol) and the equilibrium point."""
+    states = tuple(states)
+    names = tuple(state_names) or tuple(str(s) for s in states)
+    choice = EquilibriumChoice(tuple(sympy.sympify(x) for x in equilibrium), "given", {}, ())
+    return _fields(None, str(parameter), parameter, choice,
+                   tuple(sympy.sympify(e) for e in equations), tuple(parameters),
+                   dict(assumptions or {}), order, backend, choice.point, (), True,
+                   states=states, names=names)
+
+
+def _fields(model, name, mu, choice, eqs, params, assumptions, order, backend, point, more,
+            vary, states=None, names=None) -> PreparedProblem:
+    """The field stage: Taylor data, disguised atoms, the tower, the check."""
+    states = tuple(model.state_symbols) if states is None else tuple(states)
+    names = tuple(model.states) if names is None else tuple(names)
+    if order > 3:
+        hint(f"ask for a lower order (order={order} was asked; order=3 gives l1)")
+    stage("expanding the model in Taylor series at the equilibrium")
+    raw = raw_taylor(eqs, states, point, order, names)
+    equilibrium = tuple(point)
+    rules = algebraic_atom_rules(list(raw.coefficients()) + list(equilibrium) + list(more))
+    if rules:
+        raw = raw.map(lambda c: c.xreplace(rules))
+        equilibrium = tuple(x.xreplace(rules) for x in equilibrium)
+        more = tuple(e.xreplace(rules) for e in more)
+    atoms = collect_atoms(list(raw.coefficients()) + list(equilibrium) + list(more), params)
+    inside = [a for a in atoms if a.has(mu)] if vary else []
+    if inside:
+        raise ClosedFormUnavailableError(
+            f"the bifurcation parameter '{mu}' occurs inside {inside[0]} at the "
+            "equilibrium, so its critical value is not algebraic in closed form. Parametrise "
+            "the family by the equilibrium (eliminate=[...]) so that it occurs polynomially, "
+            "choose another bifurcation parameter, or use the numeric mode (guess={...}).")
     plain = context_for(params, assumptions)
     tower = Tower(params, atoms, backend, lambda e: truth(plain.sign(e)))
-    x0 = [tower.convert(e) for e in choice.point]
+    x0 = [tower.convert(e) for e in equilibrium]
     taylor = TaylorForms.from_raw(raw, x0, tower.convert, tower.base)
-    bad = [(model.states[i], r) for i, r in enumerate(taylor.residual()) if r]
+    _check_equilibrium(tower, taylor, names)
+    taylor = TaylorForms(tower.top, taylor.n, taylor.order, taylor.components)
+    converted = tuple(tower.convert(e) for e in more)
+    return PreparedProblem(model, name, mu, choice, tuple(eqs), states, names, tuple(params),
+                           MappingProxyType(dict(assumptions)), order, backend, equilibrium,
+                           raw, tower, taylor, converted, tuple(more))
+
+
+def _check_equilibrium(tower, taylor, names):
+    bad = [(names[i], r) for i, r in enumerate(taylor.residual()) if r]
     if bad:
         parts = "; ".join(f"the right-hand side for '{n}' equals {tower.to_sympy(r)}"
                           for n, r in bad)
-        raise NotAnEquilibriumError(f"the given point is not an equilibrium: {parts} there "
-                                    "instead of 0")
-    K = tower.top
-    taylor = TaylorForms(K, taylor.n, taylor.order, taylor.components)
-    converted = tuple(tower.convert(e) for e in more)
-    return Prepared(model, name, model.symbols[name], choice, eqs, params, assumptions, tower,
-                    taylor, converted)
-
-
-@dataclass(frozen=True)
-class SolvedPoint:
-    """``symbol = value`` with ``value`` in ``target``; ``substitute`` maps
-    elements of the source tower into ``target``."""
-
-    symbol: sympy.Symbol
-    value: object
-    source: Tower
-    target: Tower
-    images: dict
-
-    def substitute(self, x):
-        return self.source.substitute(x, self.symbol, self.value, self.target, self.images)
-
-
-def _biquadratic(tower, x, symbol):
-    """Roots of ``c4 s^4 + c2 s^2 + c0`` (a factor even in ``symbol``)."""
-    K = tower.base
-    x = lower(x)
-    if isinstance(x, QuadraticElement) or not hasattr(K, "coefficients_in"):
-        return []
-    out = []
-    _, factors = K(x).num.factor()
-    for poly, _m in factors:
-        coeffs = K.coefficients_in(poly, symbol)
-        if max(coeffs, default=0) != 4 or any(k % 2 for k in coeffs):
-            continue
-        c = [K.from_polynomials(coeffs[k], K._one_poly) if k in coeffs else K.zero
-             for k in (0, 2, 4)]
-        for sign in (1, -1):
-            target = tower.fresh()
-            r = target.sqrt(c[1] * c[1] - 4 * c[2] * c[0])
-            t = (-c[1] + sign * r) / (2 * c[2])
-            try:
-                out.append((target.sqrt(t), target))
-            except Exception:  # noqa: BLE001 - a root that is not analytic: skip it
-                continue
-    return out
-
-
-def solve_for(tower, x, symbol, positive=False):
-    """Closed-form solutions of ``x = 0`` for ``symbol``: factors of degree
-    one or two (and even factors of degree four).  Returns
-    ``(points, unsolved)`` with ``unsolved`` the sympy factors left alone."""
-    points, unsolved = [], []
-    for kind, data in _solutions(tower, symbol, x):
-        if kind == "unsolved":
-            unsolved.append(data)
-            continue
-        for value, target in _branch_values(tower, symbol, (kind, data)):
-            points.append((value, target))
-    if unsolved:
-        extra = _biquadratic(tower, x, symbol)
-        if extra:
-            points.extend(extra)
-            unsolved = unsolved[:-1] if len(unsolved) == 1 else unsolved
-    out = []
-    for value, target in points:
-        if not _may_be_real(target, value, positive):
-            continue
-        images = tower.radical_images(symbol, value, target)
-        out.append(SolvedPoint(symbol, value, tower, target, images))
-    return out, unsolved
-
-
-def _may_be_real(target, value, positive) -> bool:
-    """False for a value proved non-real (a root of a negative number) or,
-    with ``positive``, proved non-positive; numbers are checked numerically."""
-    e = target.to_sympy(value)
-    if not e.free_symbols:
-        v = sympy.N(e, 30)
-        re, im = v.as_real_imag()
-        if abs(im) > 1e-20 * max(1, abs(re)):
-            return False
-        return not positive or re > 0
-    if positive and sign_word(target, value, None) in ("negative", "zero", "nonpositive"):
-        return False
-    return True
-
-
-def sign_word(tower, x, ctx) -> str:
-    """``"positive"``, ``"negative"``, ``"zero"``, ``"nonnegative"``,
-    ``"nonpositive"`` or ``"undecided"``."""
-    x = lower(x)
-    if not x:
-        return "zero"
-    numeric = _numeric_sign(tower, x)
-    if numeric is not None:
-        return numeric
-    if ctx is None:
-        ctx = context_for((), {}, tower.atoms)
-    try:
-        fs = factored(tower, x, ctx)
-    except Exception:  # noqa: BLE001 - radicals: no decision
-        return "undecided"
-    if fs.undecided:
-        return "undecided"
-    return {POSITIVE: "positive", NEGATIVE: "negative", ZERO: "zero",
-            NONNEGATIVE: "nonnegative", NONPOSITIVE: "nonpositive"}.get(fs.sign, "undecided")
-
-
-def _numeric_sign(tower, x):
-    """The sign of a constant (an algebraic number, possibly with radicals
-    and transcendental atoms), decided at 60 digits; None for expressions
-    with free symbols or values too close to zero to decide."""
-    e = tower.to_sympy(x)
-    if e.free_symbols:
-        return None
-    v = sympy.N(e, 60)
-    re, im = v.as_real_imag()
-    if abs(im) > 1e-40 * max(1, abs(re)) or abs(re) < sympy.Float(10) ** -40:
-        return None
-    return "positive" if re > 0 else "negative"
-
-
-def expr(tower, x, ctx):
-    """A field element as a compact sympy expression."""
-    return canonical_expr(tower, x, ctx)
+        raise NotAnEquilibriumError(
+            f"the given point is not an equilibrium: {parts} there instead of 0. Check the "
+            "equilibrium coordinates, or let the engine solve for the equilibrium.")
