@@ -28,6 +28,8 @@ from ..algebra.flint_field import FlintRationalField, FlintRationalFunctionField
 from ..algebra.quadratic import QuadraticElement, QuadraticExtension, lower
 from ..errors import DegenerateHopfError, NoHopfPointError
 from .linear import factor_univariate, hurwitz_determinant, hurwitz_determinants
+from .solve import branch_values as _branch_values
+from .solve import closed_form_solutions
 
 __all__ = ["Condition", "CriticalBranch", "find_critical_branches", "nu_extension"]
 
@@ -92,32 +94,6 @@ def nu_extension(tower, W):
     return QuadraticExtension(tower.top, -W, "nu", root=sympy.I * sympy.sqrt(W_expr))
 
 
-def _solutions(tower_mu, mu, d):
-    """Critical values from ``d = 0``: list of ``(kind, data)`` with kind
-    ``"linear"`` (value), ``"quadratic"`` ((c2, c1, c0)) or ``"unsolved"`` (expr)."""
-    K = tower_mu.base
-    d = lower(d)
-    if isinstance(d, QuadraticElement):
-        return [("unsolved", tower_mu.to_sympy(d))]
-    d = K(d)
-    out = []
-    if isinstance(K, FlintRationalFunctionField):
-        _, factors = d.num.factor()
-        for poly, _m in factors:
-            coeffs = K.coefficients_in(poly, mu)
-            deg = max(coeffs)
-            c = [K.from_polynomials(coeffs[k], K._one_poly) if k in coeffs else K.zero
-                 for k in range(deg + 1)]
-            out.append(_classify(c, lambda: K.poly_to_sympy(poly)))
-    else:
-        num, _ = sympy.fraction(sympy.together(K.to_sympy(d)))
-        for f, _m in sympy.factor_list(num)[1]:
-            p = sympy.Poly(f, mu)
-            c = [K.from_sympy(x) for x in reversed(p.all_coeffs())]
-            out.append(_classify(c, lambda f=f: f))
-    return [o for o in out if o is not None]
-
-
 def linear_alternatives(tower_mu, mu, d) -> list:
     """Names of other parameters in which every factor of ``d`` that is not
     linear in ``mu`` is linear: analysing the Hopf set with respect to one of
@@ -135,33 +111,6 @@ def linear_alternatives(tower_mu, mu, d) -> list:
         linear = {s for s, k in degrees.items() if k == 1 and s != mu and s not in atoms}
         candidates = linear if candidates is None else candidates & linear
     return sorted(str(s) for s in candidates or ())
-
-
-def _classify(c, expr):
-    deg = len(c) - 1
-    if deg == 0:
-        return None
-    if deg == 1:
-        return ("linear", -c[0] / c[1])
-    if deg == 2:
-        return ("quadratic", (c[2], c[1], c[0]))
-    return ("unsolved", expr())
-
-
-def _branch_values(tower_mu, mu, solution):
-    """``[(value, target tower)]`` for one solution."""
-    kind, data = solution
-    target = tower_mu.fresh(drop=mu)
-    if kind == "linear":
-        return [(target.project(data), target)]
-    out = []
-    for sign in (1, -1):
-        if sign == -1:
-            target = tower_mu.fresh(drop=mu)
-        c2, c1, c0 = (target.project(c) for c in data)
-        s = target.sqrt(c1 * c1 - 4 * c2 * c0)
-        out.append(((-c1 + sign * s) / (2 * c2), target))
-    return out
 
 
 def _pair_carriers(factors):
@@ -310,7 +259,7 @@ def _candidates(tower_mu, mu, factors, describe, notes):
                          "eigenvalues for every parameter value (a conservative part); it is "
                          "not a crossing")
             continue
-        solutions = _solutions(tower_mu, mu, d)
+        solutions = closed_form_solutions(tower_mu, d, mu)
         if any(kind != "linear" for kind, _ in solutions):
             others = linear_alternatives(tower_mu, mu, d)
             if others:
