@@ -11,9 +11,9 @@ from hypothesis import strategies as st
 
 from criticality.algebra import QuadraticExtension, Tower
 from criticality.algebra.flint_field import FlintRationalField, FlintRationalFunctionField
-from criticality.algebra.linalg import determinant, kernel, matmul, solve
+from criticality.algebra.linalg import characteristic_polynomial, determinant, kernel, matmul, solve
 from criticality.algebra.sympy_field import SympyRationalFunctionField
-from criticality.local.linear import characteristic_polynomial, hurwitz_determinants
+from criticality.local.linear import hurwitz_determinants
 
 a, b, c = sympy.symbols("a b c", real=True)
 SYMS = (a, b, c)

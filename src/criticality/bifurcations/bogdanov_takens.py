@@ -38,7 +38,7 @@ from ..local.prepare import expr, prepare, sign_word, solve_for
 from ..outputs.simple import render_json, render_latex, render_text
 from ..algebra.linalg import dot, kernel, matvec, solve_consistent, transpose
 from ..errors import DegenerateBifurcationError, NoHopfPointError
-from ..local.linear import characteristic_polynomial
+from ..algebra.linalg import characteristic_polynomial
 
 __all__ = ["BogdanovTakensResult", "bogdanov_takens", "bogdanov_takens_all", "BT_CONVENTIONS"]
 

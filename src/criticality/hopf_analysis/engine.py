@@ -23,7 +23,7 @@ from ..local.critical import CriticalBranch, find_critical_branches
 from ..local.eigenbasis import Eigenbasis, critical_eigenbasis
 from ..algebra.canonical import factored
 from ..errors import NoHopfPointError, ParameterError
-from ..local.linear import characteristic_polynomial
+from ..algebra.linalg import characteristic_polynomial
 from ..local.lyapunov import complex_normal_form
 from ..local.normal_form import complexify, planar_normal_form, unit_coefficients
 from ..local.projection import projection_c1

@@ -2,97 +2,23 @@
 
 Pipeline place: Taylor forms -> **linear part** -> critical set.
 
-The characteristic polynomial ``chi(lambda) = det(lambda I - A)`` is computed
-by Berkowitz's division-free algorithm on integer polynomials (no expanded
-determinant, no gcds).  Over the flint parameter field it is
-then factored in ``Z[lambda, parameters]``, so that the Hurwitz determinant is
-built only for the factor that carries the critical pair.
+The characteristic polynomial ``chi(lambda) = det(lambda I - A)``
+(:func:`criticality.algebra.linalg.characteristic_polynomial`, Berkowitz's
+division-free algorithm on integer polynomials) is factored in
+``Z[lambda, parameters]`` through the polynomial-ring view of the field, so
+that the Hurwitz determinant is built only for the factor that carries the
+critical pair.
 """
 
 from __future__ import annotations
 
-import flint
-import sympy
-
 from ..algebra import upoly
-from ..algebra.flint_field import FlintRationalFunctionField
+from ..algebra.field import clear_denominators
 from ..algebra.linalg import determinant
-from ..algebra.quadratic import QuadraticElement, lower
-from ..budget import checkpoint
+from ..algebra.quadratic import QuadraticElement
 
-__all__ = ["characteristic_polynomial", "hurwitz_matrix", "hurwitz_determinants",
+__all__ = ["hurwitz_matrix", "hurwitz_determinants",
            "hurwitz_determinant", "factor_univariate"]
-
-
-def characteristic_polynomial(K, A):
-    """Coefficients (lowest degree first, monic) of ``det(lambda I - A)``.
-
-    Berkowitz's division-free algorithm (Berkowitz, Information Processing
-    Letters 18, 1984).  Over the flint parameter field the matrix is first
-    scaled by a common denominator ``D`` so that every product is a product of
-    integer polynomials (no gcds): ``chi_A`` has coefficients
-    ``a_k(D A) / D^k``.  Measured on a 20 x 20 symbolic Jacobian it is about
-    150 times faster than Hessenberg reduction with fractions.
-    """
-    low = [[lower(x) for x in row] for row in A]
-    base = getattr(K, "base", K)
-    while hasattr(base, "base"):
-        base = base.base
-    if isinstance(base, FlintRationalFunctionField) and not any(
-            isinstance(x, QuadraticElement) for row in low for x in row):
-        return _charpoly_cleared(base, [[base(x) for x in row] for row in low])
-    coeffs = _berkowitz(A, K.zero, K.one)
-    return upoly.trim(list(reversed(coeffs)))
-
-
-def _charpoly_cleared(K, A):
-    D = K._one_poly
-    for row in A:
-        for x in row:
-            if not x.den.is_one():
-                D = D * (x.den / D.gcd(x.den))
-    M = [[x.num * (D / x.den) if not x.num.is_zero() else x.num for x in row] for row in A]
-    coeffs = _berkowitz(M, K._zero_poly, K._one_poly)
-    out, Dk = [], K.one
-    Dfield = K.from_polynomials(D, K._one_poly)
-    for k, c in enumerate(coeffs):  # highest degree first: coefficient of lambda^(n-k)
-        out.append(K.from_polynomials(c, K._one_poly) / Dk if k else K.one)
-        Dk = Dk * Dfield
-    return upoly.trim(list(reversed(out)))
-
-
-def _berkowitz(M, zero, one):
-    """Coefficients of ``det(lambda I - M)``, highest degree first, using only
-    ring operations (+, -, *)."""
-    n = len(M)
-    C = [one, -M[0][0]]
-    for r in range(1, n):
-        checkpoint()
-        row = M[r][:r]
-        v = [M[i][r] for i in range(r)]
-        toeplitz = [one, -M[r][r]]
-        for k in range(r):
-            toeplitz.append(-_sparse_dot(row, v, zero))
-            if k < r - 1:
-                v = [_sparse_dot(M[i][:r], v, zero) for i in range(r)]
-        new = []
-        for i in range(r + 2):
-            acc = zero
-            for j in range(max(0, i - len(toeplitz) + 1), min(i, r) + 1):
-                t, c = toeplitz[i - j], C[j]
-                if t and c:
-                    acc = acc + t * c
-            new.append(acc)
-        C = new
-    return C
-
-
-def _sparse_dot(a, b, zero):
-    acc = zero
-    for x, y in zip(a, b):
-        if x and y:
-            acc = acc + x * y
-    return acc
 
 
 def hurwitz_matrix(coeffs):
@@ -159,53 +85,23 @@ def factor_univariate(tower, coeffs):
     """Factor a polynomial in lambda with coefficients in the tower's base field.
 
     Returns a list of ``(factor_coeffs, multiplicity)``, each factor monic in
-    lambda with coefficients in the base field.  Coefficients that involve
-    radicals (or a sympy-backed field) are not factored: the polynomial is
-    returned whole.
+    lambda with coefficients in the base field, factored in
+    ``Z[parameters, lambda]`` (the ring view of either backend).  Coefficients
+    that involve radicals are not factored: the polynomial is returned whole.
     """
     K = tower.base
-    if not all(_in_base(c) for c in coeffs) or not isinstance(K, FlintRationalFunctionField):
-        return _factor_with_sympy(tower, coeffs) if all(_in_base(c) for c in coeffs) \
-            else [(list(coeffs), 1)]
-    coeffs = [K(_base_part(c)) for c in coeffs]
-    names = tuple(str(s) for s in K.symbols) + ("lambda_",)
-    ctx = flint.fmpz_mpoly_ctx.get(names, "degrevlex")
-    nv = len(K.symbols)
-    den = K._one_poly
-    for c in coeffs:
-        g = den.gcd(c.den)
-        den = den * (c.den / g)
-    data = {}
-    for k, c in enumerate(coeffs):
-        num = c.num * (den / c.den)
-        for monom, v in num.to_dict().items():
-            data[tuple(monom) + (k,)] = v
-    _, factors = ctx.from_dict(data).factor()
+    if not all(_in_base(c) for c in coeffs):
+        return [(list(coeffs), 1)]
+    R = K.ring
+    _, nums = clear_denominators(K, [_base_part(c) for c in coeffs])
+    Rl = R.extend("lambda_")
+    _, factors = Rl.factor(Rl.from_coefficients(nums))
     out = []
     for f, mult in factors:
-        by_power: dict = {}
-        for monom, v in f.to_dict().items():
-            by_power.setdefault(monom[nv], {})[tuple(monom[:nv])] = v
+        by_power = Rl.split(f)
         deg = max(by_power)
-        poly = [K.from_polynomials(K.ctx.from_dict(by_power[k]), K._one_poly)
-                if k in by_power else K.zero for k in range(deg + 1)]
         if deg == 0:
             continue
-        out.append((upoly.monic(poly), int(mult)))
-    return out
-
-
-def _factor_with_sympy(tower, coeffs):
-    lam = sympy.Dummy("lambda")
-    K = tower.base
-    expr = sum((K.to_sympy(K(_base_part(c))) * lam ** k for k, c in enumerate(coeffs)), sympy.S.Zero)
-    num, _ = sympy.fraction(sympy.together(expr))
-    _, factors = sympy.factor_list(num, lam)
-    out = []
-    for f, mult in factors:
-        p = sympy.Poly(f, lam)
-        if p.degree() == 0:
-            continue
-        poly = [K.from_sympy(c) for c in reversed(p.all_coeffs())]
+        poly = [K.from_ring(by_power[k]) if k in by_power else K.zero for k in range(deg + 1)]
         out.append((upoly.monic(poly), int(mult)))
     return out
