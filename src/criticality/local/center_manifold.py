@@ -30,7 +30,7 @@ from ..algebra.quadratic import QuadraticElement
 from ..budget import checkpoint
 from ..errors import CriticalityError, DegenerateHopfError
 from .projection import solve_shifted
-from .taylor import compose, poly_mul
+from ..algebra.series import compose, mul as poly_mul
 
 __all__ = ["ReducedSystem", "reduce_to_center_manifold"]
 

@@ -88,7 +88,7 @@ from ..budget import checkpoint
 from ..errors import DegenerateHopfError
 from .prepare import check_order
 from .projection import solve_shifted
-from .taylor import compose
+from ..algebra.series import compose
 
 __all__ = ["NormalizationSeries", "normalization_series", "complex_normal_form",
            "unit_normal_form"]

@@ -24,20 +24,9 @@ from __future__ import annotations
 
 from math import factorial
 
-from ..budget import checkpoint
-from .taylor import poly_mul
+from ..algebra.series import add_into, compose_degree, conjugate, derivative, mul
 
 __all__ = ["complexify", "planar_normal_form", "hassard_c1", "unit_coefficients"]
-
-
-def _conj_poly(P):
-    return {(l, j): c.conjugate() for (j, l), c in P.items()}
-
-
-def _add_into(out, P, sign=1):
-    for m, c in P.items():
-        v = c if sign == 1 else -c
-        out[m] = out[m] + v if m in out else v
 
 
 def complexify(reduced, N, order: int) -> dict:
@@ -52,55 +41,16 @@ def complexify(reduced, N, order: int) -> dict:
     def pw(var, poly, k):
         key = (var, k)
         if key not in powers:
-            powers[key] = {(0, 0): N.one} if k == 0 else poly_mul(pw(var, poly, k - 1), poly, order)
+            powers[key] = {(0, 0): N.one} if k == 0 else mul(pw(var, poly, k - 1), poly, order)
         return powers[key]
 
     G: dict = {}
     for gdict, factor in ((reduced.g1, N.one), (reduced.g2, nu * W_inv)):
         for (a, b), c in gdict.items():
-            term = poly_mul(pw(1, xi1, a), pw(2, xi2, b), order)
+            term = mul(pw(1, xi1, a), pw(2, xi2, b), order)
             coeff = factor * c
-            _add_into(G, {m: coeff * v for m, v in term.items()})
+            add_into(G, {m: coeff * v for m, v in term.items()})
     return {m: c for m, c in G.items() if c}
-
-
-def _compose(G, H, Hb, order, keep=None):
-    """The terms of total degree ``order`` of ``G(H, Hb)`` (only the monomials
-    in ``keep``, if given).  ``H`` starts at degree one, so ``H^j`` is only
-    needed up to degree ``order - l`` when it is to be multiplied by
-    ``Hb^l``."""
-    out: dict = {}
-    cache: dict = {}
-
-    def power(which, k, top):
-        key = (which, k, top)
-        if key not in cache:
-            base = H if which == 0 else Hb
-            cache[key] = {m: c for m, c in base.items() if sum(m) <= top} if k == 1 else \
-                poly_mul(power(which, k - 1, top - 1), base, top)
-        return cache[key]
-
-    for (j, l), c in G.items():
-        if j + l > order:
-            continue
-        checkpoint()
-        if j and l:
-            term = poly_mul(power(0, j, order - l), power(1, l, order - j), order, True, keep)
-        else:
-            term = power(0, j, order) if j else power(1, l, order)
-            term = {m: v for m, v in term.items() if sum(m) == order
-                    and (keep is None or m in keep)}
-        _add_into(out, {m: c * v for m, v in term.items()})
-    return out
-
-
-def _derivative(P, var):
-    out = {}
-    for (j, l), c in P.items():
-        k = j if var == 0 else l
-        if k:
-            out[(j - 1, l) if var == 0 else (j, l - 1)] = c * k
-    return out
 
 
 def planar_normal_form(G, N, order: int):
@@ -110,17 +60,17 @@ def planar_normal_form(G, N, order: int):
     H = {(1, 0): N.one}
     Nf: dict = {}
     for d in range(2, order + 1):
-        Hb = _conj_poly(H)
+        Hb = conjugate(H)
         # at the last degree only the resonant coefficient is wanted
         keep = {((d + 1) // 2, (d - 1) // 2)} if d == order else None
-        rhs = _compose(G, H, Hb, d, keep)
+        rhs = compose_degree(G, H, Hb, d, keep)
         if Nf:
-            Hw = _derivative(H, 0)
+            Hw = derivative(H, 0)
             Hw.pop((0, 0), None)
-            Hwb = _derivative(H, 1)
+            Hwb = derivative(H, 1)
             corr: dict = {}
-            _add_into(corr, poly_mul(Hw, Nf, d, True, keep))
-            _add_into(corr, poly_mul(Hwb, _conj_poly(Nf), d, True, keep))
+            add_into(corr, mul(Hw, Nf, d, True, keep))
+            add_into(corr, mul(Hwb, conjugate(Nf), d, True, keep))
             for m, c in corr.items():
                 if sum(m) == d:
                     rhs[m] = rhs[m] - c if m in rhs else -c

@@ -26,7 +26,7 @@ import sympy
 
 from ..errors import NotAnalyticError
 
-__all__ = ["RawTaylor", "TaylorForms", "raw_taylor", "multilinear", "compose"]
+__all__ = ["RawTaylor", "TaylorForms", "raw_taylor", "multilinear"]
 
 
 @dataclass(frozen=True)
@@ -264,47 +264,3 @@ def multilinear(K, part: dict, vectors):
                 s = s + t
         acc = acc + s
     return acc
-
-
-def compose(K, part: dict, polys, order: int, cache: dict):
-    """``P(u)`` for ``u_j = polys[j]`` (bivariate dicts ``{(a, b): c}``),
-    truncated at total degree ``order``.  ``cache`` memoises powers of the
-    ``polys`` between calls."""
-    out: dict = {}
-    for e, c in part.items():
-        term = {(0, 0): c}
-        for j, k in enumerate(e):
-            if k:
-                term = poly_mul(term, _poly_power(polys, j, k, order, cache), order)
-        for m, v in term.items():
-            out[m] = out[m] + v if m in out else v
-    return out
-
-
-def _poly_power(polys, j, k, order, cache):
-    key = (j, k)
-    if key not in cache:
-        cache[key] = polys[j] if k == 1 else poly_mul(_poly_power(polys, j, k - 1, order, cache),
-                                                      polys[j], order)
-    return cache[key]
-
-
-def poly_mul(p: dict, q: dict, order: int, exact: bool = False, keep=None) -> dict:
-    """Product of two bivariate dicts truncated at total degree ``order``.
-
-    With ``exact`` only the terms of total degree ``order`` are formed, and
-    ``keep`` (a set of exponent pairs) restricts them further: the wanted
-    coefficients are computed without the rest of the product.
-    """
-    out: dict = {}
-    for (a, b), c in p.items():
-        for (d, e), f in q.items():
-            deg = a + b + d + e
-            if deg > order or (exact and deg < order):
-                continue
-            m = (a + d, b + e)
-            if keep is not None and deg == order and m not in keep:
-                continue
-            v = c * f
-            out[m] = out[m] + v if m in out else v
-    return out
