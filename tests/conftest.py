@@ -23,6 +23,14 @@ def hide_package(monkeypatch):
     return hide
 
 
+@pytest.fixture(params=["flint", "sympy"])
+def backend(request):
+    """The exact arithmetic of the parameter field: python-flint and the
+    pure-sympy stand-in run the same engine tests and must give the same
+    results."""
+    return request.param
+
+
 @pytest.fixture(scope="session")
 def lorenz():
     """The Hopf analysis of the Lorenz system in r at its positive equilibrium

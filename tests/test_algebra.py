@@ -112,11 +112,11 @@ def test_rational_fast_path_matches_generic():
 
 
 @pytest.mark.parametrize("seed", [1, 2, 3])
-def test_characteristic_polynomial_against_sympy(seed):
+def test_characteristic_polynomial_against_sympy(seed, backend):
     rng = random.Random(seed)
     n = 5
     M = sympy.Matrix(n, n, lambda i, j: rng.choice([0, 0, 1, -2, a, b, a * b - 1, 3]))
-    T = Tower(SYMS)
+    T = Tower(SYMS, backend=backend)
     chi = characteristic_polynomial(T.top, [[T.convert(M[i, j]) for j in range(n)] for i in range(n)])
     lam = sympy.Symbol("lambda")
     mine = sum(T.to_sympy(x) * lam ** k for k, x in enumerate(chi))
@@ -156,3 +156,66 @@ def test_perfect_square_radicand_becomes_rational():
     x = T.convert(sympy.sqrt(sympy.Mul(4, a ** 2, evaluate=False), evaluate=False))
     assert not T.levels
     assert T.to_sympy(x) == 2 * a
+
+
+@settings(max_examples=40, deadline=None)
+@given(x=rational_functions())
+def test_ring_view_agrees_on_both_fields_and_with_sympy(x):
+    """numerator / denominator recover the element, and the factorisation in
+    the ring multiplies back to the numerator, with the same irreducible
+    factors as sympy's factor_list (a general-purpose reference) on flint and
+    on the stand-in."""
+    ref_factors = None
+    for K in (FlintRationalFunctionField(SYMS), SympyRationalFunctionField(SYMS)):
+        R = K.ring
+        e = K.from_sympy(x)
+        n, d = K.numerator(e), K.denominator(e)
+        assert K.from_ring(n, d) == e
+        assert sympy.cancel(R.to_sympy(n) / R.to_sympy(d) - x) == 0
+        content, factors = R.factor(n)
+        product = sympy.Integer(content) * sympy.Mul(*(R.to_sympy(f) ** m for f, m in factors))
+        assert sympy.expand(product - R.to_sympy(n)) == 0
+        mine = sorted(sympy.srepr(sympy.factor_list(R.to_sympy(f))[1][0][0]) for f, _ in factors)
+        if ref_factors is None:
+            ref_factors = sorted(sympy.srepr(g) for g, _ in sympy.factor_list(R.to_sympy(n))[1])
+        assert mine == ref_factors
+
+
+@pytest.mark.parametrize("backend", ["flint", "sympy"])
+def test_ring_view_resultant_and_coefficients_against_sympy(backend):
+    """The resultant in an added variable equals sympy's resultant, and
+    coefficients in one generator split the polynomial (sympy's Poly is the
+    reference)."""
+    K = Tower(SYMS, backend=backend).base
+    R = K.ring
+    s = sympy.Symbol("s_")
+    E = [R.from_sympy(b), R.from_sympy(a * b - 1), R.from_sympy(c)]
+    O = [R.from_sympy(a + 2), R.from_sympy(b ** 2)]
+    Rs = R.extend("s_")
+    res = R.to_sympy(Rs.resultant(Rs.from_coefficients(E), Rs.from_coefficients(O)))
+    pe = sum(R.to_sympy(x) * s ** k for k, x in enumerate(E))
+    po = sum(R.to_sympy(x) * s ** k for k, x in enumerate(O))
+    assert sympy.expand(res - sympy.resultant(pe, po, s)) == 0
+    p = R.from_sympy(a ** 2 * b + 3 * a * c - b + 7)
+    parts = {k: R.to_sympy(v) for k, v in R.coefficients_in(p, a).items()}
+    ref = sympy.Poly(a ** 2 * b + 3 * a * c - b + 7, a)
+    assert parts == {m[0]: coeff for m, coeff in ref.terms()}
+    assert R.evaluate(p, [2, 3, 5]) == 2 ** 2 * 3 + 3 * 2 * 5 - 3 + 7
+
+
+@pytest.mark.parametrize("backend", ["flint", "sympy"])
+def test_closed_form_solver_finds_linear_quadratic_and_biquadratic_roots(backend):
+    """solve_for on (a - 2b)(a^2 - b)(a^4 - 5a^2 + 4) finds every root that
+    sympy.solve (the reference) finds, on both fields alike: a = 2b,
+    a = +-sqrt(b) and a = +-1, +-2 from the biquadratic factor."""
+    from criticality.local.solve import solve_for
+
+    T = Tower((a, b), backend=backend)
+    x = T.convert((a - 2 * b) * (a ** 2 - b) * (a ** 4 - 5 * a ** 2 + 4))
+    points, unsolved = solve_for(T, x, a)
+    assert not unsolved
+    found = {sympy.simplify(p.target.to_sympy(p.value)) for p in points}
+    ref = {sympy.simplify(r) for r in sympy.solve((a - 2 * b) * (a ** 2 - b)
+                                                   * (a ** 4 - 5 * a ** 2 + 4), a)}
+    assert found == ref
+

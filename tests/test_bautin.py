@@ -22,11 +22,12 @@ def _normal_form(s):
 
 
 @pytest.mark.parametrize("s,sign,side", [(-1, "negative", "k >"), (1, "positive", "k <")])
-def test_bautin_normal_form(s, sign, side):
+def test_bautin_normal_form(s, sign, side, backend):
     """The Bautin point of the normal form is k = 0 with l2 = 4 s (the 2^k
     convention factor, see criticality.local.lyapunov), and the fold of cycles lies
     where l1 l2 < 0 (common practice, no source: the radial equation)."""
-    p = bautin_points(_normal_form(s), "mu", "k", equilibrium={"x": 0, "y": 0})[0]
+    p = bautin_points(_normal_form(s), "mu", "k", equilibrium={"x": 0, "y": 0},
+                      backend=backend)[0]
     assert p.second_value == 0 and p.critical_value == 0
     assert p.l2 == 4 * s and p.l2_sign == sign
     assert p.fold_of_cycles_side.startswith(side)

@@ -11,41 +11,41 @@ from criticality.bifurcations.fold import fold
 from criticality.registry import analyses, get
 
 
-def test_fold_normal_form_read_off():
+def test_fold_normal_form_read_off(backend):
     """x' = mu - x^2: a = -1, t = 1, fold at mu = 0 with two equilibria for
     mu > 0 (the saddle-node normal form; Kuznetsov, Elements of Applied
     Bifurcation Theory, 3rd ed., 2004, Section 3.2, from memory)."""
     m = Model(["x"], {"x": "mu - x^2"}, parameters={"mu": "real"})
-    r = fold(m, "mu", eliminate=["mu"])
+    r = fold(m, "mu", eliminate=["mu"], backend=backend)
     assert r.kind == "fold"
     assert r.critical_values == {"x_eq": 0, "mu": 0}
     assert (r.a, r.transversality) == (-1, 1)
     assert "mu >" in r.verdict
 
 
-def test_transcritical_and_pitchfork_normal_forms():
+def test_transcritical_and_pitchfork_normal_forms(backend):
     """x' = mu x - x^2 is transcritical (a = -1, lambda' = 1); x' = mu x -+ x^3
     are the super- and subcritical pitchforks (d = -+1) (common practice, no
     source)."""
     trans = fold(Model(["x"], {"x": "mu*x - x^2"}, parameters={"mu": "real"}), "mu",
-                 equilibrium={"x": 0})
+                 equilibrium={"x": 0}, backend=backend)
     assert trans.kind == "transcritical" and trans.a == -1 and trans.eigenvalue_speed == 1
     assert trans.transversality == 0
     sup = fold(Model(["x"], {"x": "mu*x - x^3"}, parameters={"mu": "real"}), "mu",
-               equilibrium={"x": 0})
+               equilibrium={"x": 0}, backend=backend)
     assert sup.kind == "pitchfork" and sup.cubic == -1 and "supercritical" in sup.verdict
     assert any("symmetry" in n for n in sup.notes)
     sub = fold(Model(["x"], {"x": "mu*x + x^3"}, parameters={"mu": "real"}), "mu",
-               equilibrium={"x": 0})
+               equilibrium={"x": 0}, backend=backend)
     assert sub.kind == "pitchfork" and sub.cubic == 1 and "subcritical" in sub.verdict
 
 
-def test_pitchfork_through_the_center_manifold():
+def test_pitchfork_through_the_center_manifold(backend):
     """x' = mu x - x y, y' = -y + x^2: the center manifold y = x^2 + ... turns
     the quadratic coupling into the cubic coefficient d = -1 (common practice,
     no source: the reduction by hand)."""
     m = Model(["x", "y"], {"x": "mu*x - x*y", "y": "-y + x^2"}, parameters={"mu": "real"})
-    r = fold(m, "mu", equilibrium={"x": 0, "y": 0})
+    r = fold(m, "mu", equilibrium={"x": 0, "y": 0}, backend=backend)
     assert r.kind == "pitchfork" and r.cubic == -1 and r.a == 0
 
 
@@ -55,12 +55,12 @@ def _real_equilibria(mu):
     return sum(1 for r in roots if abs(r.imag) < 1e-12)
 
 
-def test_fold_in_two_dimensions_matches_an_equilibrium_count():
+def test_fold_in_two_dimensions_matches_an_equilibrium_count(backend):
     """x' = mu - x^2 - y, y' = x - 2 y folds at x0 = -1/4, mu = -1/16; the
     predicted side (two equilibria above mu_c) agrees with counting the real
     roots of mu = x^2 + x/2 by numpy on either side."""
     m = Model(["x", "y"], {"x": "mu - x^2 - y", "y": "x - 2*y"}, parameters={"mu": "real"})
-    r = fold(m, "mu", eliminate=["mu", "y"])
+    r = fold(m, "mu", eliminate=["mu", "y"], backend=backend)
     assert r.kind == "fold"
     assert r.critical_values["x_eq"] == sympy.Rational(-1, 4)
     assert r.critical_values["mu"] == sympy.Rational(-1, 16)
@@ -186,7 +186,7 @@ def _fitzhugh_nagumo():
                  parameters={"I": "real", "a": "real", "b": "positive", "eps": "positive"})
 
 
-def test_bogdanov_takens_of_the_fitzhugh_nagumo_model_matches_a_hand_derivation():
+def test_bogdanov_takens_of_the_fitzhugh_nagumo_model_matches_a_hand_derivation(backend):
     """The FitzHugh-Nagumo model (FitzHugh, "Impulses and physiological states
     in theoretical models of nerve membrane", Biophys. J. 1, 1961;
     Nagumo, Arimoto and Yoshizawa, Proc. IRE 50, 1962)
@@ -202,7 +202,7 @@ def test_bogdanov_takens_of_the_fitzhugh_nagumo_model_matches_a_hand_derivation(
       a = <p1, B(q0, q0)>/2 = -v0 and b_BT = <p0, B(q0, q0)> = -2 v0 b,
     so a/b_BT = (1 - v0^2)/2 and a b_BT = 2 v0^2 b > 0: next to every such
     point the Hopf bifurcation is subcritical."""
-    r = bogdanov_takens(_fitzhugh_nagumo(), "b", "eps", eliminate=["I", "w"])
+    r = bogdanov_takens(_fitzhugh_nagumo(), "b", "eps", eliminate=["I", "w"], backend=backend)
     v0 = sympy.Symbol("v0")
 
     def plain(e):  # the package's v_eq carries assumptions; compare with a plain symbol

@@ -23,12 +23,12 @@ def _planar_general():
                  parameters={"w": "positive", "mu": "real"})
 
 
-def test_planar_formula_of_guckenheimer_holmes():
+def test_planar_formula_of_guckenheimer_holmes(backend):
     """l1 = 2a/omega with a from Guckenheimer and Holmes, Nonlinear Oscillations,
     Dynamical Systems, and Bifurcations of Vector Fields, 1983, Section 3.4
     (eq. 3.4.11, equation number from memory), all 14 coefficients symbolic."""
     m = _planar_general()
-    r = hopf(m, "mu", equilibrium={"x": 0, "y": 0})
+    r = hopf(m, "mu", equilibrium={"x": 0, "y": 0}, backend=backend)
     s = m.symbols
     w = s["w"]
     a20, a11, a02, a30, a21, a12, a03 = (s[k] for k in ("a20", "a11", "a02", "a30", "a21", "a12", "a03"))
@@ -45,12 +45,12 @@ def test_planar_formula_of_guckenheimer_holmes():
     assert r.routes_agree
 
 
-def test_van_der_pol_type_amplitude():
+def test_van_der_pol_type_amplitude(backend):
     """x' = y, y' = -x + mu y - x^2 y: supercritical, cycle amplitude 2 sqrt(mu)
     in x (common practice, no source)."""
     m = Model(states=["x", "y"], equations={"x": "y", "y": "-x + mu*y - x^2*y"},
               parameters={"mu": "real"})
-    r = hopf(m, "mu", equilibrium={"x": 0, "y": 0})
+    r = hopf(m, "mu", equilibrium={"x": 0, "y": 0}, backend=backend)
     mu = m.symbols["mu"]
     assert r.critical_value == 0 and r.omega == 1
     assert r.classification == "supercritical"
@@ -59,13 +59,13 @@ def test_van_der_pol_type_amplitude():
     assert r.cycle.period == 2 * sympy.pi
 
 
-def test_brusselator():
+def test_brusselator(backend):
     """Brusselator x' = A - (B+1) x + x^2 y, y' = B x - x^2 y: Hopf at B = 1 + A^2
     with omega = A (Strogatz, Nonlinear Dynamics and Chaos, 1994, Exercise 8.3.1,
     from memory); supercritical for every A > 0 (from memory)."""
     m = Model(states=["x", "y"], equations={"x": "A - (B + 1)*x + x^2*y", "y": "B*x - x^2*y"},
               parameters={"A": "positive", "B": "positive"})
-    r = hopf(m, "B", equilibrium={"x": "A", "y": "B/A"})
+    r = hopf(m, "B", equilibrium={"x": "A", "y": "B/A"}, backend=backend)
     A = m.symbols["A"]
     assert sympy.expand(r.critical_value - (1 + A ** 2)) == 0
     assert r.omega == A
@@ -73,14 +73,16 @@ def test_brusselator():
     assert r.verdict.startswith("supercritical for all admissible parameters")
 
 
-def test_lorenz():
+@pytest.mark.parametrize("backend", ["flint", pytest.param("sympy", marks=pytest.mark.slow)])
+def test_lorenz(backend):
     """Lorenz system: r_H = sigma (sigma + b + 3)/(sigma - b - 1), and the Hopf
     bifurcation is subcritical (Strogatz, Nonlinear Dynamics and Chaos, 1994,
     Section 9.2; Sparrow, The Lorenz Equations, 1982)."""
     m = Model(states=["x", "y", "z"],
               equations={"x": "sigma*(y - x)", "y": "r*x - y - x*z", "z": "x*y - b*z"},
               parameters={"sigma": "positive", "b": "positive", "r": "positive"})
-    r = hopf(m, "r", equilibrium={"x": "sqrt(b*(r - 1))", "y": "sqrt(b*(r - 1))", "z": "r - 1"})
+    r = hopf(m, "r", equilibrium={"x": "sqrt(b*(r - 1))", "y": "sqrt(b*(r - 1))", "z": "r - 1"},
+             backend=backend)
     s, b = m.symbols["sigma"], m.symbols["b"]
     assert sympy.cancel(r.critical_value - s * (s + b + 3) / (s - b - 1)) == 0
     assert r.classification == "subcritical"
@@ -91,7 +93,7 @@ def test_lorenz():
     assert n.pair_error < 1e-25 and n.others_stable
 
 
-def test_rosenzweig_macarthur_paradox_of_enrichment():
+def test_rosenzweig_macarthur_paradox_of_enrichment(backend):
     """Predator-prey with Holling type II response x' = x(1 - x/K) - x y/(1 + x),
     y' = y(e x/(1 + x) - d): the equilibrium loses stability at
     K = (e + d)/(e - d) (Rosenzweig, Science 171, 1971, 'Paradox of
@@ -99,7 +101,8 @@ def test_rosenzweig_macarthur_paradox_of_enrichment():
     m = Model(states=["x", "y"],
               equations={"x": "x*(1 - x/K) - x*y/(1 + x)", "y": "y*(e*x/(1 + x) - d)"},
               parameters={"K": "positive", "e": "positive", "d": "positive"})
-    r = hopf(m, "K", equilibrium={"x": "d/(e - d)", "y": "(1 - d/(e - d)/K)*(1 + d/(e - d))"})
+    r = hopf(m, "K", equilibrium={"x": "d/(e - d)", "y": "(1 - d/(e - d)/K)*(1 + d/(e - d))"},
+             backend=backend)
     K, e, d = (m.symbols[k] for k in "Ked")
     assert sympy.cancel(r.critical_value - (e + d) / (e - d)) == 0
     assert r.routes_agree
