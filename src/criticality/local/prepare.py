@@ -27,6 +27,7 @@ from ..algebra.signs import SignContext, context_for, truth
 from ..budget import hint, stage
 from ..errors import (ClosedFormUnavailableError, NoHopfPointError, NotAnEquilibriumError,
                       OrderError, ParameterError)
+from ..model.parameter import ASSUMPTIONS
 from .equilibria import (EquilibriumChoice, given_equilibrium, parametrised_equilibrium,
                          select_equilibrium, solve_equilibria)
 from .sign_words import expr, sign_word
@@ -34,11 +35,7 @@ from .solve import SolvedPoint, solve_for
 from .taylor import RawTaylor, TaylorForms, raw_taylor
 
 __all__ = ["PreparedProblem", "prepare", "prepare_system", "check_order", "assumption_map",
-           "choose_equilibrium", "ASSUMPTIONS", "SolvedPoint", "solve_for", "sign_word", "expr"]
-
-#: The sign assumptions a parameter (or a free equilibrium coordinate) may carry.
-ASSUMPTIONS = ("real", "positive", "nonnegative", "negative", "nonzero")
-
+           "choose_equilibrium", "SolvedPoint", "solve_for", "sign_word", "expr"]
 
 def check_order(order) -> int:
     """The order of a normal form: an odd integer ``>= 3`` (3 gives ``l1``,
@@ -132,7 +129,7 @@ class PreparedProblem:
 
 def assumption_map(model, assume: Mapping | None) -> dict:
     """``{symbol: assumption}`` for the model's parameters, changed or
-    extended by ``assume`` (names -> one of :data:`ASSUMPTIONS`)."""
+    extended by ``assume`` (names -> one of the model's assumption words)."""
     out = {}
     for p in model.parameters:
         out[model.symbols[p.name]] = p.assumption

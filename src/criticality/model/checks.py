@@ -17,8 +17,8 @@ import sympy
 from .syntax import _suggest
 from ..errors import ExpressionError, InvalidModelError
 from .expressions import convert_sympy, format_expression, name_problem, parse_expression
-from .core import (_NUMBER_TYPES, _PARAMETER_KEYS, Parameter, _assumption_problem, _constant,
-                    _name_of, _sign_problem)
+from .parameter import (_NUMBER_TYPES, _PARAMETER_KEYS, Parameter, _assumption_problem,
+                        _constant, _name_of, _sign_problem)
 
 __all__: list[str] = []
 

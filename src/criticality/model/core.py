@@ -15,8 +15,6 @@ split radicals such as ``sqrt(b*(r - 1))`` behind the engine's back.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-from fractions import Fraction
 from types import MappingProxyType
 from typing import Mapping
 
@@ -24,114 +22,11 @@ import sympy
 
 from .syntax import _NOT_FINITE, _suggest
 from ..errors import ExpressionError, ParameterError
-from .expressions import convert_sympy, format_expression, name_problem, parse_expression
+from .checks import _Assembler
+from .expressions import convert_sympy, format_expression, parse_expression
+from .parameter import ASSUMPTIONS, Parameter, _constant, _name_of, _sign_problem
 
 __all__ = ["Model", "Parameter", "ASSUMPTIONS"]
-
-#: the sign assumptions a parameter may carry
-ASSUMPTIONS = ("real", "positive", "nonnegative", "nonzero", "negative")
-_SIGN_TEST = {"positive": ("is_positive", "> 0"), "nonnegative": ("is_nonnegative", ">= 0"),
-              "negative": ("is_negative", "< 0"), "nonzero": ("is_nonzero", "!= 0")}
-_PARAMETER_KEYS = ("assume", "value", "description")
-_NUMBER_TYPES = (int, float, Fraction, sympy.Expr)
-
-
-def _assumption_problem(assumption: object) -> str | None:
-    if isinstance(assumption, str) and assumption in ASSUMPTIONS:
-        return None
-    if not isinstance(assumption, str):
-        return f"the assumption must be a word, not {type(assumption).__name__}"
-    hint = _suggest(assumption, ASSUMPTIONS)
-    hint = f"did you mean {hint[0]!r}? " if hint else ""
-    return f"unknown assumption {assumption!r}; {hint}(one of {', '.join(ASSUMPTIONS)})"
-
-
-def _constant(raw: object, context: str, line: int | None = None) -> sympy.Expr:
-    """An exact real constant from text, a Python number or a sympy number."""
-    used: list[str] = []
-    collect = (lambda name, column: used.append(name))
-    if isinstance(raw, str):
-        value = parse_expression(raw, {}, context=context, line=line, on_unknown=collect)
-    else:
-        value = convert_sympy(raw, {}, context=context, on_unknown=collect)
-    if used or value.free_symbols:
-        names = ", ".join(dict.fromkeys(used or sorted(map(str, value.free_symbols))))
-        raise ExpressionError(f"a value must be a constant number; it uses {names}",
-                              context=context, line=line)
-    if value.is_extended_real is False:
-        raise ExpressionError(f"the value {value} is not real", context=context, line=line)
-    return value
-
-
-def _sign_problem(name: str, assumption: str, value: sympy.Expr) -> str | None:
-    """Say how ``value`` violates the assumption of parameter ``name``, if it does."""
-    if assumption not in _SIGN_TEST:
-        return None
-    attribute, relation = _SIGN_TEST[assumption]
-    verdict = getattr(value, attribute)
-    if verdict is None:
-        verdict = getattr(sympy.Float(value.evalf(60), 60), attribute)
-    if verdict:
-        return None
-    shown = format_expression(value)
-    if verdict is None:
-        return f"cannot decide whether the value {shown} of {name!r} is {assumption}"
-    return f"the value {shown} violates the assumption that {name!r} is {assumption} ({relation})"
-
-
-@dataclass(frozen=True)
-class Parameter:
-    """A symbolic parameter of a model.
-
-    Attributes
-    ----------
-    name : str
-        The parameter's name (its symbol is ``Symbol(name, real=True)``).
-    assumption : str
-        One of ``"real"``, ``"positive"``, ``"nonnegative"``, ``"nonzero"``,
-        ``"negative"``; kept as metadata, not as a sympy assumption.
-    default : sympy.Expr or None
-        An exact real constant (e.g. ``Rational(1, 2)``) or None.  Text, Python
-        numbers and sympy numbers are accepted and converted exactly.
-    declared : bool
-        False for a name the equations use but the model did not declare.
-    description : str or None
-        What the parameter means, for people reading the model.
-    """
-
-    name: str
-    assumption: str = "real"
-    default: sympy.Expr | None = None
-    declared: bool = True
-    description: str | None = None
-
-    def __post_init__(self):
-        problems = [p for p in (name_problem(self.name), _assumption_problem(self.assumption))
-                    if p is not None]
-        if self.description is not None and not isinstance(self.description, str):
-            problems.append("the description must be a string")
-        if self.default is not None and not problems:
-            try:
-                value = _constant(self.default, f"value of parameter {self.name!r}")
-            except ExpressionError as exc:
-                problems.append(str(exc))
-            else:
-                object.__setattr__(self, "default", value)
-                problems.append(_sign_problem(self.name, self.assumption, value))
-        problems = [p for p in problems if p]
-        if problems:
-            raise ParameterError(f"parameter {self.name!r}: " + "; ".join(problems))
-
-    @property
-    def symbol(self) -> sympy.Symbol:
-        """The model's symbol for this parameter, ``Symbol(name, real=True)``."""
-        return sympy.Symbol(self.name, real=True)
-
-
-def _name_of(key: object) -> object:
-    """A name given as a string or as a sympy symbol (matched by name)."""
-    return key.name if isinstance(key, sympy.Symbol) else key
-
 
 _FIELDS = ("name", "description", "states", "parameters", "equations", "equilibrium_hint",
            "bifurcation_parameter", "notes", "lines", "source", "symbols")
@@ -192,7 +87,6 @@ class Model:
     def __init__(self, states, equations, parameters=None, *, name: str | None = None,
                  description: str | None = None, equilibrium: Mapping | None = None,
                  bifurcation_parameter: str | None = None):
-        from .checks import _Assembler
         fields = _Assembler().run(states, equations, parameters, name, description,
                                   equilibrium, bifurcation_parameter)
         self._fill(fields, {})
@@ -247,7 +141,6 @@ class Model:
     @classmethod
     def _from_pieces(cls, pieces: dict, *, source: str, locate, problems: list,
                      lines: Mapping[str, int], error) -> "Model":
-        from .checks import _Assembler
         assembler = _Assembler(source, locate, problems)
         fields = assembler.run(error=error, **pieces)
         return cls._build(fields, {s: n for s, n in lines.items() if s in fields["states"]})
