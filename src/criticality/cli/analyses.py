@@ -22,19 +22,12 @@ analysis needs two symbols), the equilibrium options of the main command,
 
 from __future__ import annotations
 
-import argparse
 
+from .options import flags as _flags
 from .support import Stage, equilibrium_choice, name_list, pairs, read_model, write_output
 from ..budget import time_limit
 
 __all__ = ["register"]
-
-
-def _flags(parser) -> None:
-    parser.add_argument("-q", "--quiet", action="store_true", default=argparse.SUPPRESS,
-                        help="no progress messages on standard error")
-    parser.add_argument("--debug", action="store_true", default=argparse.SUPPRESS,
-                        help="show the traceback of an error")
 
 
 def _options(parser, analysis) -> None:

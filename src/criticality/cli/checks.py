@@ -18,7 +18,7 @@ writes what it returns; there is no mathematics here.
     ``plane.png``, ``plane.svg``, ``curve.csv`` and ``amplitude.png``.
 
 Every subcommand takes the analysis options of the main command
-(:func:`criticality.cli.main.add_analysis_options`: the model file, ``-p``,
+(:func:`criticality.cli.options.add_analysis_options`: the model file, ``-p``,
 ``--equilibrium``, ``--eliminate``, ``--set`` to fix parameters before the
 analysis, ...) and ``--at NAME=VALUE`` (repeatable) for the parameter point
 of the check and the fixed parameters of the diagram; model defaults fill the
@@ -29,9 +29,11 @@ rest.  Files are written atomically and never overwritten without
 
 from __future__ import annotations
 
-import argparse
 import os
 import sys
+
+from .options import add_analysis_options, analyse_from_args
+from .options import flags as _flags
 
 __all__ = ["register", "EXIT_NOT_CONFIRMED", "EXIT_INCONCLUSIVE"]
 
@@ -47,16 +49,8 @@ _SURVEY_FILES = ("report.txt", "report.tex", "plane.png", "plane.svg", "curve.cs
 # -- options ---------------------------------------------------------------------------------
 
 
-def _flags(parser) -> None:
-    parser.add_argument("-q", "--quiet", action="store_true", default=argparse.SUPPRESS,
-                        help="no progress messages on standard error")
-    parser.add_argument("--debug", action="store_true", default=argparse.SUPPRESS,
-                        help="show the traceback of an error")
-
-
 def _common(parser) -> None:
     from .support import pairs
-    from .main import add_analysis_options
 
     _flags(parser)
     add_analysis_options(parser)
@@ -155,8 +149,6 @@ def _point(args) -> dict:
 
 
 def _analyse(args):
-    from .main import analyse_from_args
-
     return analyse_from_args(args), _point(args)
 
 

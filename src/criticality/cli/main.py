@@ -45,8 +45,13 @@ import argparse
 import sys
 import traceback
 
-from .support import (Stage, equilibrium_choice, name_list, pairs, read_model,
-                           split_top_level, write_output)
+from . import analyses, checks
+from .options import UsageError as _UsageError
+from .options import add_analysis_options, analyse_from_args
+from .options import flags as _flags
+from .options import merge as _merge
+from .options import quiet as _quiet
+from .support import Stage, pairs, write_output
 from ..errors import CriticalityError
 
 __all__ = ["main", "build_parser", "add_analysis_options", "analyse_from_args",
@@ -56,55 +61,7 @@ EXIT_OK, EXIT_USAGE, EXIT_INTERNAL, EXIT_INTERRUPTED = 0, 2, 70, 130
 _DEMO = "demo.toml"
 
 
-class _UsageError(Exception):
-    """A command line that parses but does not make sense."""
-
-
 # -- options ---------------------------------------------------------------------------------
-
-
-def _flags(parser) -> None:
-    parser.add_argument("-q", "--quiet", action="store_true", default=argparse.SUPPRESS,
-                        help="no progress messages on standard error")
-    parser.add_argument("--debug", action="store_true", default=argparse.SUPPRESS,
-                        help="show the traceback of an error")
-
-
-def add_analysis_options(parser) -> None:
-    """The options that choose what to analyse (shared by the subcommands)."""
-    parser.add_argument("model", help="TOML model file, or - to read standard input")
-    parser.add_argument("-p", "--parameter", help="the bifurcation parameter (default: the "
-                        "model file's bifurcation_parameter)")
-    parser.add_argument("-e", "--equilibrium", type=equilibrium_choice, metavar="CHOICE",
-                        help='the equilibrium: "x=0, y=sqrt(b*(r-1))", an index (0, 1, ...) of '
-                        "the solved equilibria, or positive / nonnegative / nonzero (default: "
-                        "the model file's, else the only one)")
-    parser.add_argument("--eliminate", type=name_list, metavar="NAMES",
-                        help="parametrise the family by the equilibrium: solve f(x0) = 0 for "
-                        "these names (comma-separated, one per state); the other states "
-                        "become free symbols <state>_eq")
-    parser.add_argument("--set", dest="values", action="append", default=[], metavar="NAME=VALUE",
-                        type=lambda s: pairs([s], "--set"),
-                        help="fix a parameter to an exact value before the analysis, e.g. "
-                        "--set a=1/2 (repeatable)")
-    parser.add_argument("--assume", action="append", default=[], metavar="NAME=SIGN",
-                        type=lambda s: pairs([s], "--assume"),
-                        help="a sign assumption, e.g. --assume x_eq=positive (repeatable)")
-    parser.add_argument("--order", type=int, default=3, help="order of the normal form: 3 "
-                        "gives l1, 5 also l2 (default 3)")
-    parser.add_argument("--branch", type=int, default=None,
-                        help="branch of the critical set (default 0)")
-    parser.add_argument("--backend", choices=("flint", "sympy"), default="flint",
-                        help="exact arithmetic of the parameter field (default flint)")
-    parser.add_argument("--time-limit", type=float, default=None, metavar="SECONDS",
-                        help="stop the analysis after this many seconds with a message "
-                        "naming the stage reached and ways to make the problem smaller "
-                        "(exit code 7; default: no limit)")
-    parser.add_argument("--guess", type=lambda s: pairs(split_top_level(s), "--guess"),
-                        metavar="NAME=VALUE,...",
-                        help="numeric mode for equilibria without closed form: starting values "
-                        "for every state and the parameter, e.g. --guess V=-60,m=0.05,I=10; "
-                        "the other parameters need values (--set or the model file)")
 
 
 def _point_options(parser, digits: int) -> None:
@@ -121,44 +78,6 @@ def _output_options(parser) -> None:
                         help="write to FILE (written atomically) instead of standard output")
     parser.add_argument("-f", "--force", action="store_true",
                         help="overwrite FILE if it exists")
-
-
-def _merge(dicts, option: str) -> dict:
-    out = {}
-    for d in dicts:
-        for key, value in d.items():
-            if key in out:
-                raise _UsageError(f"{option}: {key!r} is given twice")
-            out[key] = value
-    return out
-
-
-def _quiet(args) -> bool:
-    return bool(getattr(args, "quiet", False))
-
-
-def analyse_from_args(args):
-    """Read the model named by ``args`` and run the Hopf analysis the options
-    ask for; returns the :class:`~criticality.HopfResult`."""
-    from ..registry import get
-
-    with Stage("reading the model", quiet=_quiet(args)):
-        model = read_model(args.model)
-    values = _merge(args.values, "--set") or None
-    assume = _merge(args.assume, "--assume") or None
-    run = get("hopf").function
-    name = args.parameter or model.bifurcation_parameter or "?"
-    guess = getattr(args, "guess", None)
-    if guess:
-        with Stage(f"numeric Hopf analysis in {name}", quiet=_quiet(args)):
-            return run(model, args.parameter, guess=guess, order=args.order, values=values,
-                       digits=max(getattr(args, "digits", 30), 15),
-                       time_limit=getattr(args, "time_limit", None))
-    with Stage(f"Hopf analysis in {name}", quiet=_quiet(args)):
-        return run(model, args.parameter, equilibrium=args.equilibrium,
-                   eliminate=args.eliminate, branch=args.branch, order=args.order,
-                   values=values, assume=assume, backend=args.backend,
-                   time_limit=getattr(args, "time_limit", None))
 
 
 # -- handlers --------------------------------------------------------------------------------
@@ -248,8 +167,6 @@ def _subcommand(sub, name, handler, help_text, description, aliases=()):
 def _register_extensions(sub) -> None:
     """Subcommands of other modules: the analyses beyond Hopf, the simulation
     check and the diagrams."""
-    from . import analyses, checks
-
     for module in (analyses, checks):
         module.register(sub)
 
