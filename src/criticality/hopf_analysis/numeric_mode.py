@@ -40,7 +40,7 @@ from ..budget import checkpoint
 from ..local.eigenbasis import Eigenbasis
 from ..errors import DegenerateHopfError, EquilibriumNotFoundError, NoHopfPointError, ParameterError
 from ..local.lyapunov import complex_normal_form
-from ..local.prepare import check_order
+from ..local.prepare import check_order, resolve_parameter
 from ..local.projection import projection_c1
 from ..local.taylor import TaylorForms, raw_taylor
 
@@ -335,7 +335,8 @@ def hopf_numeric(model, parameter: str, guess: Mapping, *, digits: int = 30, ord
     if not 5 <= digits <= 500:
         raise ParameterError(f"digits must be between 5 and 500, got {digits}")
     check_order(order)
-    fixed = _fixed_model(model, parameter, values or {})
+    base, parameter = resolve_parameter(model, parameter, values)
+    fixed = _fixed_model(base, parameter, {})
     if len(fixed.states) < 2:
         raise NoHopfPointError("a Hopf bifurcation needs at least two state variables",
                                reason="empty_critical_set")

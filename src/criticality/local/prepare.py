@@ -34,8 +34,9 @@ from .sign_words import expr, sign_word
 from .solve import SolvedPoint, solve_for
 from .taylor import RawTaylor, TaylorForms, raw_taylor
 
-__all__ = ["PreparedProblem", "prepare", "prepare_system", "check_order", "assumption_map",
-           "choose_equilibrium", "SolvedPoint", "solve_for", "sign_word", "expr"]
+__all__ = ["PreparedProblem", "prepare", "prepare_system", "check_order", "resolve_parameter",
+           "assumption_map", "choose_equilibrium", "SolvedPoint", "solve_for", "sign_word",
+           "expr"]
 
 def check_order(order) -> int:
     """The order of a normal form: an odd integer ``>= 3`` (3 gives ``l1``,
@@ -164,6 +165,23 @@ def choose_equilibrium(model, equilibrium, eliminate, assumptions, full=None,
     return select_equilibrium(model, candidates, equilibrium, ctx)
 
 
+def resolve_parameter(model, parameter: str | None, values: Mapping | None = None):
+    """``(model with the fixed values applied, name of the parameter)``: the
+    first step of every analysis, the numeric mode's included.  The name
+    defaults to the model file's choice; a state, an unknown name (with a
+    did-you-mean) or a value that breaks an assumption raise
+    :class:`ParameterError`."""
+    if values:
+        model = model.with_values(dict(values))
+    name = parameter or getattr(model, "bifurcation_parameter", None)
+    if not name:
+        raise ParameterError("name the bifurcation parameter (the model file does not choose one)")
+    if name in model.states:
+        raise ParameterError(f"'{name}' is a state variable, not a parameter")
+    model.parameter(name)  # raises with a did-you-mean if unknown
+    return model, name
+
+
 def prepare(model, parameter: str | None = None, *, equilibrium=None, eliminate=None,
             values: Mapping | None = None, assume: Mapping | None = None, order: int = 3,
             backend: str = "flint",
@@ -188,16 +206,8 @@ def prepare(model, parameter: str | None = None, *, equilibrium=None, eliminate=
         Bautin): it must stay free, occur in the model and not occur inside a
         transcendental function at the equilibrium.
     """
-    full, fixed = model, {}
-    if values:
-        fixed = model.value_substitution(values)
-        model = model.with_values(dict(values))
-    name = parameter or getattr(model, "bifurcation_parameter", None)
-    if not name:
-        raise ParameterError("name the bifurcation parameter (the model file does not choose one)")
-    if name in model.states:
-        raise ParameterError(f"'{name}' is a state variable, not a parameter")
-    model.parameter(name)  # raises with a did-you-mean if unknown
+    full, fixed = model, (model.value_substitution(values) if values else {})
+    model, name = resolve_parameter(model, parameter, values)
     assumptions = assumption_map(model, assume)
     stage("choosing the equilibrium")
     choice = choose_equilibrium(model, equilibrium, eliminate, assumptions, full, fixed)
