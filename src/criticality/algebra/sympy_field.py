@@ -66,7 +66,11 @@ class SympyRationalFunctionField(Field):
             if not expr.is_Rational:
                 raise ValueError(f"{expr} is not a rational number")
             return QQ(int(expr.p), int(expr.q))
-        return self._field.from_expr(expr)
+        x = self._field.from_expr(expr)
+        # from_expr does not make the denominator canonical (its leading
+        # coefficient can be negative), so equal elements could compare
+        # unequal; new() cancels and fixes the sign.
+        return self._field.new(x.numer, x.denom)
 
     def to_sympy(self, x):
         if not self.symbols:
