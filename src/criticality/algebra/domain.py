@@ -16,7 +16,6 @@ by an element of another tower (:meth:`Tower.substitute`).
 from __future__ import annotations
 
 from dataclasses import dataclass
-from fractions import Fraction
 
 import sympy
 
@@ -221,16 +220,14 @@ class Tower:
         if parent is None or parent.base is self.base:
             return x
         K, target = parent.base, self.base
-        if isinstance(K, FlintRationalFunctionField):
-            x = K(x)
-            if isinstance(target, FlintRationalField):
-                return target(Fraction(int(_constant(x.num)), int(_constant(x.den))))
-            keep = [K.symbols.index(s) for s in target.symbols]
-            num, den = (target.ctx.from_dict({tuple(m[i] for i in keep): c
-                                              for m, c in p.to_dict().items()})
-                        for p in (x.num, x.den))
-            return target.from_polynomials(num, den)
-        return target.from_sympy(K.to_sympy(K(x)))
+        R, T = K.ring, target.ring
+        x = K(x)
+        num, den = K.numerator(x), K.denominator(x)
+        dropped = [i for i, s in enumerate(K.symbols) if s not in target.symbols]
+        for p in (num, den):
+            if any(m[i] for m in R.to_dict(p) for i in dropped):
+                raise CriticalityError("internal: a dropped generator is still present")
+        return target.from_ring(R.project(num, T), R.project(den, T))
 
         # -- structure ---------------------------------------------------------------------
     @property
@@ -396,16 +393,12 @@ class Tower:
 
 
 def _substitute_base(K, x, symbol, value, target: Tower):
-    if isinstance(K, FlintRationalField) or symbol not in K.symbols:
-        return target.base(x) if not isinstance(K, FlintRationalFunctionField) else \
-            _reembed(K, x, target)
-    if isinstance(K, FlintRationalFunctionField):
-        num = _horner(K, K.coefficients_in(x.num, symbol), value, target)
-        den = _horner(K, K.coefficients_in(x.den, symbol), value, target)
-        return num / den
-    expr = K.to_sympy(x)
-    num, den = sympy.fraction(sympy.together(expr))
-    return _horner_sympy(num, symbol, value, target) / _horner_sympy(den, symbol, value, target)
+    if symbol not in K.symbols:
+        return _reembed(K, x, target)
+    R = K.ring
+    num = _horner(K, R.coefficients_in(K.numerator(x), symbol), value, target)
+    den = _horner(K, R.coefficients_in(K.denominator(x), symbol), value, target)
+    return num / den
 
 
 def _reembed(K, x, target):
@@ -416,15 +409,6 @@ def _reembed(K, x, target):
     return target.convert(K.to_sympy(x))
 
 
-def _constant(poly):
-    """The value of a constant ``fmpz_mpoly``."""
-    if poly.is_zero():
-        return 0
-    if not poly.is_constant():
-        raise CriticalityError("internal: a dropped generator is still present")
-    return int(poly.coeffs()[0])
-
-
 def _horner(K, coeffs: dict, value, target: Tower):
     acc = target.base.zero
     if not coeffs:
@@ -433,15 +417,7 @@ def _horner(K, coeffs: dict, value, target: Tower):
         acc = acc * value
         c = coeffs.get(k)
         if c is not None:
-            acc = acc + _reembed(K, K.from_polynomials(c, K._one_poly), target)
-    return acc
-
-
-def _horner_sympy(expr, symbol, value, target: Tower):
-    poly = sympy.Poly(expr, symbol)
-    acc = target.base.zero
-    for c in poly.all_coeffs():
-        acc = acc * value + target.convert(c)
+            acc = acc + _reembed(K, K.from_ring(c), target)
     return acc
 
 
