@@ -22,7 +22,8 @@ import sympy
 
 from ..errors import ClosedFormUnavailableError, CriticalityError
 from .flint_field import FlintRationalField, FlintRationalFunctionField
-from .quadratic import QuadraticElement, QuadraticExtension
+from .algebraic import AlgebraicElement, AlgebraicExtension
+from .quadratic import QuadraticElement, QuadraticExtension, lower
 from .sympy_field import SympyRationalFunctionField
 
 __all__ = ["Tower", "Atom", "make_base_field", "collect_atoms", "algebraic_atom_rules"]
@@ -260,16 +261,26 @@ class Tower:
         self._radicals.append((radicand, root))
         return root
 
+    def adjoin_root(self, modulus, root_expr, interval=None):
+        """Adjoin a root of the irreducible polynomial ``modulus`` (coefficients
+        in the top field, lowest first) as a new level and return it (the
+        generator of ``top[t]/(modulus)``; see :mod:`criticality.algebra.algebraic`)."""
+        ext = AlgebraicExtension(self.top, modulus, f"t{len(self.levels)}", root=root_expr,
+                                 interval=interval)
+        self.levels.append(ext)
+        return ext.gen
+
     def square_root(self, x):
         """The principal root of ``x`` when ``x`` is a square in K, else None."""
+        x = lower(x)
+        if isinstance(x, AlgebraicElement):
+            return None  # squares in an algebraic extension are not detected
         if isinstance(x, QuadraticElement):
             if x.b:
                 return None
-            x = x.a
-            while isinstance(x, QuadraticElement):
-                if x.b:
-                    return None
-                x = x.a
+            x = lower(x.a)
+            if isinstance(x, (QuadraticElement, AlgebraicElement)):
+                return None
         if not x:
             return self.base.zero
         K = self.base
@@ -356,6 +367,9 @@ class Tower:
     def _to_sympy(self, x):
         if isinstance(x, QuadraticElement):
             return self._to_sympy(x.a) + self._to_sympy(x.b) * x.ext.root
+        if isinstance(x, AlgebraicElement):
+            return sympy.Add(*[self._to_sympy(a) * x.ext.root ** k
+                               for k, a in enumerate(x.c) if a])
         return self.base.to_sympy(self.base(x))
 
     # -- maps ---------------------------------------------------------------------------------

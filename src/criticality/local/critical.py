@@ -23,7 +23,11 @@ from dataclasses import dataclass
 import flint
 import sympy
 
+from fractions import Fraction
+
 from ..algebra import upoly
+from ..algebra.algebraic import AlgebraicElement, RealAlgebraicRoot
+from ..algebra.certified import is_numeric
 from ..algebra.flint_field import FlintRationalField, FlintRationalFunctionField
 from ..algebra.quadratic import QuadraticElement, QuadraticExtension, lower
 from ..errors import DegenerateHopfError, NoHopfPointError
@@ -92,9 +96,11 @@ def nu_extension(tower, W):
     return QuadraticExtension(tower.top, -W, "nu", root=sympy.I * sympy.sqrt(W_expr))
 
 
-def _solutions(tower_mu, mu, d):
+def _solutions(tower_mu, mu, d, algebraic=False):
     """Critical values from ``d = 0``: list of ``(kind, data)`` with kind
-    ``"linear"`` (value), ``"quadratic"`` ((c2, c1, c0)) or ``"unsolved"`` (expr)."""
+    ``"linear"`` (value), ``"quadratic"`` ((c2, c1, c0)), ``"algebraic"``
+    (the coefficients of an irreducible factor of degree >= 3, lowest first;
+    only with ``algebraic=True``) or ``"unsolved"`` (expr)."""
     K = tower_mu.base
     d = lower(d)
     if isinstance(d, QuadraticElement):
@@ -108,13 +114,13 @@ def _solutions(tower_mu, mu, d):
             deg = max(coeffs)
             c = [K.from_polynomials(coeffs[k], K._one_poly) if k in coeffs else K.zero
                  for k in range(deg + 1)]
-            out.append(_classify(c, lambda: K.poly_to_sympy(poly)))
+            out.append(_classify(c, lambda: K.poly_to_sympy(poly), algebraic))
     else:
         num, _ = sympy.fraction(sympy.together(K.to_sympy(d)))
         for f, _m in sympy.factor_list(num)[1]:
             p = sympy.Poly(f, mu)
             c = [K.from_sympy(x) for x in reversed(p.all_coeffs())]
-            out.append(_classify(c, lambda f=f: f))
+            out.append(_classify(c, lambda f=f: f, algebraic))
     return [o for o in out if o is not None]
 
 
@@ -137,7 +143,7 @@ def linear_alternatives(tower_mu, mu, d) -> list:
     return sorted(str(s) for s in candidates or ())
 
 
-def _classify(c, expr):
+def _classify(c, expr, algebraic=False):
     deg = len(c) - 1
     if deg == 0:
         return None
@@ -145,12 +151,16 @@ def _classify(c, expr):
         return ("linear", -c[0] / c[1])
     if deg == 2:
         return ("quadratic", (c[2], c[1], c[0]))
+    if algebraic:
+        return ("algebraic", tuple(c))
     return ("unsolved", expr())
 
 
 def _branch_values(tower_mu, mu, solution):
     """``[(value, target tower)]`` for one solution."""
     kind, data = solution
+    if kind == "algebraic":
+        return _root_values(tower_mu, mu, data)
     target = tower_mu.fresh(drop=mu)
     if kind == "linear":
         return [(target.project(data), target)]
@@ -162,6 +172,49 @@ def _branch_values(tower_mu, mu, solution):
         s = target.sqrt(c1 * c1 - 4 * c2 * c0)
         out.append(((-c1 + sign * s) / (2 * c2), target))
     return out
+
+
+def _root_values(tower_mu, mu, coeffs):
+    """``[(value, target tower)]`` for an irreducible factor of degree >= 3:
+    one branch per real root, each in its own extension ``K[t]/(m)``.
+
+    With numeric coefficients the real roots are isolated exactly (sympy's
+    ``CRootOf`` and its intervals); with symbolic ones the number of real
+    roots is read at a sample point of the parameters (positive integers) and
+    the root is the family's ``RealAlgebraicRoot``."""
+    probe = tower_mu.fresh(drop=mu)
+    low = [probe.project(c) for c in coeffs]
+    x = sympy.Dummy("x")
+    body = sympy.Add(*[probe.to_sympy(c) * x ** k for k, c in enumerate(low)])
+    if is_numeric(probe):
+        poly = sympy.Poly(body, x)
+        roots = [((Fraction(int(a.p), int(a.q)), Fraction(int(b.p), int(b.q))), sympy.CRootOf(
+            poly, k)) for k, ((a, b), _m) in enumerate(poly.intervals())]
+    else:
+        roots = [(None, RealAlgebraicRoot(sympy.Lambda(x, body), k))
+                 for k in range(_real_root_count(body, x))]
+    out = []
+    for interval, root in roots:
+        target = tower_mu.fresh(drop=mu)
+        modulus = [target.project(c) for c in coeffs]
+        out.append((target.adjoin_root(modulus, root, interval), target))
+    return out
+
+
+def _real_root_count(body, x) -> int:
+    """Real roots of ``body`` (in ``x``) at a sample point: distinct positive
+    integers for the parameters."""
+    symbols = sorted(body.free_symbols - {x}, key=sympy.default_sort_key)
+    rng = random.Random(len(symbols))
+    for _ in range(3):
+        point = {s: sympy.Integer(rng.randint(2, 40)) for s in symbols}
+        try:
+            p = sympy.Poly(body.xreplace(point), x)
+        except sympy.PolynomialError:
+            continue
+        if p.degree() == sympy.degree(body, x) and p.is_sqf:
+            return p.count_roots()
+    return sympy.degree(body, x)
 
 
 def _pair_carriers(factors):
@@ -193,7 +246,7 @@ def pair_sum_condition(tower, f):
     K = tower.base
     coeffs = [lower(c) for c in f]
     if not isinstance(K, FlintRationalFunctionField) or any(
-            isinstance(c, QuadraticElement) for c in coeffs):
+            isinstance(c, (QuadraticElement, AlgebraicElement)) for c in coeffs):
         return hurwitz_determinant(tower.top, f, len(f) - 2)
     coeffs = [K(c) for c in coeffs]
     den = K._one_poly
@@ -226,7 +279,7 @@ def _pair_sums_vanish(tower, coeffs) -> bool:
     K = tower.base
     low = [lower(c) for c in coeffs]
     if isinstance(K, FlintRationalFunctionField) and not any(
-            isinstance(c, QuadraticElement) for c in low):
+            isinstance(c, (QuadraticElement, AlgebraicElement)) for c in low):
         rng = random.Random(len(coeffs))
         Q = FlintRationalField()
         for _ in range(2):
@@ -310,7 +363,7 @@ def _candidates(tower_mu, mu, factors, describe, notes):
                          "eigenvalues for every parameter value (a conservative part); it is "
                          "not a crossing")
             continue
-        solutions = _solutions(tower_mu, mu, d)
+        solutions = _solutions(tower_mu, mu, d, algebraic=True)
         if any(kind != "linear" for kind, _ in solutions):
             others = linear_alternatives(tower_mu, mu, d)
             if others:
@@ -323,7 +376,8 @@ def _candidates(tower_mu, mu, factors, describe, notes):
                 notes.append(f"critical values where {sol[1]} = 0 have no closed form in "
                              f"{describe(mu)} (degree > 2); they were not analysed")
                 continue
-            found.extend((sol[0] != "linear", len(f), len(found) + k, f, v, t)
+            rank = {"linear": 0, "quadratic": 1}.get(sol[0], 2)
+            found.extend((rank, len(f), len(found) + k, f, v, t)
                          for k, (v, t) in enumerate(_branch_values(tower_mu, mu, sol)))
     found.sort(key=lambda c: c[:3])
     return [c[3:] for c in found]
