@@ -21,13 +21,14 @@ def _reactor():
                  parameters={"a": "positive", "b": "positive", "q": "positive"})
 
 
-def _independent_l1(model, values, critical, equilibrium, digits=25):
+def _independent_l1(model, values, critical, equilibrium, digits=25, parameter=None):
     """l1 by the mpmath projection formula at the numeric critical point."""
     sym = model.symbols
     at = {sym[k]: v for k, v in values.items()}
-    at[sym["b"] if "b" in sym else sym["mu"]] = critical
+    at[sym[parameter or ("b" if "b" in sym else "mu")]] = critical
     eqs = [e.xreplace(at) for e in model.equations]
-    point = {sym[k]: sympy.Float(mpmath.nstr(v, digits + 15), digits + 15) for k, v in equilibrium.items()}
+    point = {sym[k]: sympy.Float(mpmath.nstr(v, digits + 15), digits + 15)
+             if isinstance(v, mpmath.mpf) else sympy.N(v, digits + 15) for k, v in equilibrium.items()}
     return numeric_first_lyapunov(eqs, [sym[s] for s in model.states], point, digits)[1]
 
 
@@ -146,3 +147,44 @@ def test_every_real_root_is_a_branch_with_a_decided_verdict(T, roots):
             assert abs(l1 - ref) < mpmath.mpf(10) ** -20 * max(1, abs(ref))
         assert (l1 < 0) == (r.classification == "supercritical")
     assert values == sorted(values)
+
+
+def test_radical_of_the_parameter_in_the_equilibrium():
+    """x' = x^2 - x + beta - y, y' = x - y/2 at x0 = 3/2 - sqrt(9 - 4 beta)/2
+    (a radical of the bifurcation parameter, once answered with a false 'no
+    Hopf point'): the trace 2 x0 - 3/2 vanishes at beta = 27/16 (hand
+    computation: sqrt(9 - 4 beta) = 3/2); l1 agrees with the independent
+    projection formula (Kuznetsov 2004, Section 3.5) and the numeric mode.
+    The other equilibrium (the + root) has no Hopf point: the norm's root is
+    rejected there."""
+    model = Model(states=["x", "y"], equations={"x": "x^2 - x + beta - y", "y": "x - y/2"},
+                  parameters={"beta": "positive"})
+    r = hopf(model, "beta", equilibrium={"x": "3/2 - sqrt(9 - 4*beta)/2",
+                                         "y": "3 - sqrt(9 - 4*beta)"})
+    assert r.critical_value == sympy.Rational(27, 16)
+    assert all(c.status == "holds" for c in r.conditions)
+    ref = _independent_l1(model, {}, sympy.Rational(27, 16),
+                          {"x": sympy.Rational(3, 4), "y": sympy.Rational(3, 2)},
+                          parameter="beta")
+    with mpmath.workdps(30):
+        assert abs(mpmath.mpf(str(sympy.N(r.l1, 30))) - ref) < mpmath.mpf(10) ** -20
+    num = hopf(model, "beta", guess={"x": 0.7, "y": 1.4, "beta": 1.6}, digits=20)
+    assert abs(float(num.critical_value) - 27 / 16) < 1e-12
+    assert abs(float(num.l1) - float(ref)) < 1e-12
+    from criticality.errors import NoHopfPointError
+    with pytest.raises(NoHopfPointError):
+        hopf(model, "beta", equilibrium={"x": "3/2 + sqrt(9 - 4*beta)/2",
+                                         "y": "3 + sqrt(9 - 4*beta)"})
+
+
+def test_radical_of_the_parameter_with_a_quadratic_critical_value():
+    """x' = x^2 - x + beta - y, y' = x - beta y at its first equilibrium: the
+    norm of the trace gives beta^2 + 5 beta + 2 = 0 (hand computation), whose
+    root -5/2 + sqrt(17)/2 is negative: the condition on the declared sign of
+    beta is proved to fail."""
+    model = Model(states=["x", "y"], equations={"x": "x^2 - x + beta - y", "y": "x - beta*y"},
+                  parameters={"beta": "positive"})
+    results = hopf_all(model, "beta", equilibrium=0)
+    (r,) = results
+    assert sympy.simplify(r.critical_value - (-sympy.Rational(5, 2) + sympy.sqrt(17) / 2)) == 0
+    assert r.condition("critical_value_admissible").status == "fails"

@@ -398,15 +398,40 @@ class Tower:
             return a + b * level_map[x.ext]
         return _substitute_base(self.base, self.base(x), symbol, value, target)
 
-    def radical_images(self, symbol, value, target: "Tower", value_expr=None) -> dict:
+    def radical_images(self, symbol, value, target: "Tower", value_expr=None,
+                       zeros=()) -> dict:
         """Adjoin to ``target`` the images of this tower's radicals under
-        ``symbol -> value`` and return the map extension -> image."""
+        ``symbol -> value`` and return the map extension -> image.
+
+        ``zeros`` are elements ``a + b s`` (``s`` the generator of one of this
+        tower's levels) known to vanish at ``value`` or at a conjugate of it:
+        there ``G(value)`` is the square of ``r = -a/b``, and the image of
+        ``s`` is ``r`` or ``-r``, whichever is the principal root (decided
+        exactly at numeric values, by the sign rules otherwise), instead of a
+        new (zero-divisor) extension."""
         images: dict = {}
+        hints = {z.ext: z for z in zeros if isinstance(z, QuadraticElement)}
         for ext in self.levels:
             radicand = self.substitute(ext.radicand, symbol, value, target, images)
             root_expr = ext.root.subs(symbol, value_expr) if value_expr is not None else None
-            images[ext] = target.sqrt(radicand, root_expr)
+            root = None
+            z = hints.get(ext)
+            if z is not None and target.square_root(radicand) is None:
+                b = self.substitute(z.b, symbol, value, target, images)
+                if b:
+                    r = -self.substitute(z.a, symbol, value, target, images) / b
+                    if r * r == radicand:
+                        root = target.principal(r)
+            images[ext] = root if root is not None else target.sqrt(radicand, root_expr)
         return images
+
+    def principal(self, r):
+        """``r`` or ``-r``: the one that is the principal square root of
+        ``r**2`` (positive for a positive radicand)."""
+        from .certified import certified_sign, is_numeric
+        if is_numeric(self):
+            return -r if certified_sign(r) == -1 else r
+        return -r if _sign_of(self.to_sympy(r), self.positivity) is False else r
 
 
 def _substitute_base(K, x, symbol, value, target: Tower):

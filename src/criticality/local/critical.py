@@ -104,7 +104,13 @@ def _solutions(tower_mu, mu, d, algebraic=False):
     K = tower_mu.base
     d = lower(d)
     if isinstance(d, QuadraticElement):
-        return [("unsolved", tower_mu.to_sympy(d))]
+        if not algebraic:
+            return [("unsolved", tower_mu.to_sympy(d))]
+        # radicals of mu: the zeros of d are among those of its norm over K
+        # (a polynomial in mu); _make_branch keeps the roots of d itself
+        d = norm_to_base(d)
+        if not d:
+            return []
     d = K(d)
     out = []
     if isinstance(K, FlintRationalFunctionField):
@@ -122,6 +128,15 @@ def _solutions(tower_mu, mu, d, algebraic=False):
             c = [K.from_sympy(x) for x in reversed(p.all_coeffs())]
             out.append(_classify(c, lambda f=f: f, algebraic))
     return [o for o in out if o is not None]
+
+
+def norm_to_base(x):
+    """The norm of a tower element down to the base field (the product of its
+    conjugates under every sign change of the radicals)."""
+    x = lower(x)
+    while isinstance(x, QuadraticElement):
+        x = lower(x.norm())
+    return x
 
 
 def linear_alternatives(tower_mu, mu, d) -> list:
@@ -311,12 +326,13 @@ def find_critical_branches(tower_mu, mu, chi, *, describe=str, accept=None, want
     factors = factor_univariate(tower_mu, chi)
     candidates = _candidates(tower_mu, mu, factors, describe, notes)
     examined = rejected = 0
-    for f, value, target in candidates:
+    for f, value, target, d in candidates:
         if want is not None and len(branches) >= want:
             break
         examined += 1
         try:
-            branch = _make_branch(tower_mu, mu, chi, f, value, target, len(branches), factors)
+            branch = _make_branch(tower_mu, mu, chi, f, value, target, len(branches), factors,
+                                  zeros=(lower(d),))
         except DegenerateHopfError as exc:
             degenerate.append(exc)
             continue
@@ -377,7 +393,7 @@ def _candidates(tower_mu, mu, factors, describe, notes):
                              f"{describe(mu)} (degree > 2); they were not analysed")
                 continue
             rank = {"linear": 0, "quadratic": 1}.get(sol[0], 2)
-            found.extend((rank, len(f), len(found) + k, f, v, t)
+            found.extend((rank, len(f), len(found) + k, f, v, t, d)
                          for k, (v, t) in enumerate(_branch_values(tower_mu, mu, sol)))
     found.sort(key=lambda c: c[:3])
     return [c[3:] for c in found]
@@ -402,8 +418,8 @@ def _cofactor_factors(factors, sub, lam2, cofactor):
     return out if divided else [cofactor]
 
 
-def _make_branch(tower_mu, mu, chi, f, value, target, index, factors=()):
-    images = tower_mu.radical_images(mu, value, target)
+def _make_branch(tower_mu, mu, chi, f, value, target, index, factors=(), zeros=()):
+    images = tower_mu.radical_images(mu, value, target, zeros=zeros)
     sub = lambda c: tower_mu.substitute(c, mu, value, target, images)  # noqa: E731
     f_at = [sub(c) for c in f]
     chi_at = [sub(c) for c in chi]
