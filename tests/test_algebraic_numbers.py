@@ -188,3 +188,41 @@ def test_radical_of_the_parameter_with_a_quadratic_critical_value():
     (r,) = results
     assert sympy.simplify(r.critical_value - (-sympy.Rational(5, 2) + sympy.sqrt(17) / 2)) == 0
     assert r.condition("critical_value_admissible").status == "fails"
+
+
+SELKOV = {"x": "-x + a*y + x^2*y", "y": "b - a*y - x^2*y"}
+
+
+def test_selkov_glycolysis_quartic_critical_set():
+    """Sel'kov's glycolysis model in dimensionless form (Sel'kov, Eur. J.
+    Biochem. 4 (1968) 79-86; as in Strogatz, Nonlinear Dynamics and Chaos,
+    1994, Section 7.3, Example 7.3.2, from memory): the trace vanishes where
+    b^4 + (2a - 1) b^2 + a + a^2 = 0, i.e. b^2 = (1 - 2a +- sqrt(1 - 8a))/2.
+    In b this quartic is irreducible; its positive roots are the admissible
+    branches and come first, each with l1 equal to the independent projection
+    formula (Kuznetsov 2004, Section 3.5), and the family's evaluation agrees."""
+    model = Model(states=["x", "y"], equations=SELKOV,
+                  parameters={"a": "positive", "b": "positive"})
+    a = sympy.Rational(1, 10)
+    results = hopf_all(model, "b", values={"a": a})
+    assert len(results) == 4
+    published = sorted(sympy.sqrt((1 - 2 * a + s * sympy.sqrt(1 - 8 * a)) / 2) for s in (-1, 1))
+    admissible = [r for r in results
+                  if r.condition("critical_value_admissible").status == "holds"]
+    assert admissible == list(results[:2])
+    assert all(r.condition("critical_value_admissible").status == "fails" for r in results[2:])
+    family = hopf_all(model, "b")
+    assert len(family) == 2
+    for r, b_c, fam in zip(admissible, published, family):
+        assert abs(sympy.N(r.critical_value - b_c, 40)) < 1e-35
+        assert r.classification == "supercritical"
+        assert all(c.status == "holds" for c in r.conditions)
+        eq = {k: sympy.N(v.xreplace({model.symbols["b"]: r.critical_value}), 45)
+              for k, v in r.equilibrium.items()}
+        ref = _independent_l1(model, {"a": a}, sympy.N(r.critical_value, 45), eq)
+        with mpmath.workdps(30):
+            assert abs(mpmath.mpf(str(sympy.N(r.l1, 30))) - ref) < mpmath.mpf(10) ** -20
+        e = fam.evaluate(a=a, digits=30)
+        assert abs(e.critical_value - sympy.N(b_c, 30)) < 1e-25
+        assert abs(e.l1 - ref) < 1e-20
+    assert hopf(model, "b", values={"a": a}).critical_value == results[0].critical_value

@@ -240,9 +240,10 @@ class AlgebraicExtension(Field):
 
 class RealAlgebraicRoot(sympy.Function):
     """``RealAlgebraicRoot(Lambda(x, m(x)), k)``: the k-th real root (in
-    increasing order) of ``m``, a polynomial whose coefficients depend on the
-    parameters.  Once every parameter has a rational value it becomes
-    sympy's ``CRootOf(m, k)`` (and evaluates numerically).
+    increasing order, from 0) of ``m``, a polynomial whose coefficients depend
+    on the parameters; ``RealAlgebraicRoot(Lambda(x, m(x)), k, 0)`` counts
+    only the positive roots.  Once every parameter has a rational value it
+    becomes sympy's ``CRootOf`` (and evaluates numerically).
 
     Examples
     --------
@@ -251,10 +252,12 @@ class RealAlgebraicRoot(sympy.Function):
     >>> r = RealAlgebraicRoot(sympy.Lambda(x, x**3 - a**2), 0)
     >>> sympy.N(r.xreplace({a: 8}), 5)
     4.0000
+    >>> RealAlgebraicRoot(sympy.Lambda(x, x**2 - 2), 0, 0)
+    sqrt(2)
     """
 
     @classmethod
-    def eval(cls, lam, k):
+    def eval(cls, lam, k, bound=None):
         if not isinstance(lam, sympy.Lambda) or not k.is_Integer:
             return None
         body = lam.expr
@@ -265,8 +268,11 @@ class RealAlgebraicRoot(sympy.Function):
         if not all(c.is_Rational for c in poly.all_coeffs()):
             return None
         roots = poly.real_roots()
+        if bound is not None:
+            roots = [r for r in roots if r > bound]
         if int(k) >= len(roots):
-            raise ValueError(f"{body} has only {len(roots)} real root(s) here, not a root "
+            where = "" if bound is None else f" above {bound}"
+            raise ValueError(f"{body} has {len(roots)} real root(s){where} here, no root "
                              f"number {int(k)}")
         return roots[int(k)]
 
@@ -274,20 +280,33 @@ class RealAlgebraicRoot(sympy.Function):
     def free_symbols(self):
         return self.args[0].free_symbols
 
+    def _eval_is_positive(self):
+        if len(self.args) == 3 and self.args[2] == 0:
+            return True
+        return None
+
+    def _eval_is_real(self):
+        return True
+
     def _eval_evalf(self, prec):
         lam = self.args[0]
         x = lam.variables[0]
         body = lam.expr
         if body.free_symbols - {x}:
             return None
-        coeffs = [sympy.N(c, prec_to_dps(prec) + 10) for c in sympy.Poly(body, x).all_coeffs()]
         import mpmath
-        with mpmath.workprec(prec + 30):
-            roots = mpmath.polyroots([mpmath.mpf(str(c)) for c in coeffs], maxsteps=200,
-                                     extraprec=prec)
-            real = sorted(mpmath.re(r) for r in roots if abs(mpmath.im(r)) < mpmath.mpf(2) ** (-prec // 2))
-        k = int(self.args[1])
-        return sympy.Float(real[k], prec_to_dps(prec)) if k < len(real) else None
+        dps = prec_to_dps(prec) + 10
+        coeffs = [sympy.N(c, dps) for c in sympy.Poly(body, x).all_coeffs()]
+        with mpmath.workdps(dps):
+            roots = mpmath.polyroots([mpmath.mpf(str(c)) for c in coeffs], maxsteps=400,
+                                     extraprec=2 * prec)
+            tiny = mpmath.mpf(10) ** (-dps // 2)
+            real = sorted(mpmath.re(r) for r in roots if abs(mpmath.im(r)) < tiny)
+            if len(self.args) == 3:
+                real = [r for r in real if r > mpmath.mpf(str(sympy.N(self.args[2], dps)))]
+            k = int(self.args[1])
+            return sympy.Float(mpmath.nstr(real[k], dps), prec_to_dps(prec)) \
+                if k < len(real) else None
 
 
 def prec_to_dps(prec: int) -> int:

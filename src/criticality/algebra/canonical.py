@@ -34,7 +34,7 @@ def factored(tower, x, ctx: SignContext, *, restore: bool = True) -> FactoredSig
         expr = canonical_expr(tower, x, ctx)
         if not restore and tower.atoms:
             expr = expr.xreplace({a.expr: a.symbol for a in tower.atoms})
-        sign = certified_sign(x) if is_numeric(tower) else None
+        sign = certified_sign(x) if is_numeric(tower) else _assumed_sign(expr)
         if sign == 1:
             return FactoredSign(sympy.Integer(1), (FactorSign(expr, 1, False, POSITIVE),),
                                 POSITIVE)
@@ -53,6 +53,18 @@ def factored(tower, x, ctx: SignContext, *, restore: bool = True) -> FactoredSig
     else:
         raw = ctx.factored(K.to_sympy(x))
     return _restore(tower, raw) if restore else raw
+
+
+def _assumed_sign(expr):
+    """The sign sympy's assumptions give a small expression (e.g. a root
+    declared positive), else None."""
+    if larger_than((expr,), 60):
+        return None
+    if expr.is_positive:
+        return 1
+    if expr.is_negative:
+        return -1
+    return None
 
 
 def _restore(tower, fs: FactoredSign) -> FactoredSign:

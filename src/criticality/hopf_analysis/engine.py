@@ -118,7 +118,8 @@ def run_engine(problem: Problem, select: int | None = None) -> EngineOutput:
     branches, notes, degenerate, unexamined = find_critical_branches(
         tower, problem.parameter, chi, describe=lambda s: f"'{s}'",
         accept=lambda b: _may_be_positive(b, ctx),
-        want=None if select is None else select + 1)
+        want=None if select is None else select + 1,
+        admissible=lambda b: _in_range(b, ctx, problem.assumptions.get(problem.parameter)))
     if select is not None:
         if not 0 <= select < len(branches):
             raise ParameterError(f"branch {select} does not exist: the critical set has "
@@ -165,6 +166,17 @@ def _linear_hint(notes) -> str:
 def _may_be_positive(branch, ctx) -> bool:
     sign = factored(branch.tower, branch.W, ctx, restore=False).sign
     return sign not in (NEGATIVE, NONPOSITIVE, ZERO)
+
+
+def _in_range(branch, ctx, assumption) -> bool:
+    """False where the critical value provably violates the parameter's
+    declared sign."""
+    if assumption not in ("positive", "nonnegative", "negative"):
+        return True
+    value = -branch.value if assumption == "negative" else branch.value
+    sign = factored(branch.tower, value, ctx, restore=False).sign
+    bad = (NEGATIVE, NONPOSITIVE, ZERO) if assumption != "nonnegative" else (NEGATIVE,)
+    return sign not in bad
 
 
 def _check_equilibrium(tower, taylor, problem):

@@ -18,7 +18,7 @@ transversality is ``d lambda / d mu = -phi_mu / phi_lambda`` at
 from __future__ import annotations
 
 import random
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import flint
 import sympy
@@ -194,9 +194,10 @@ def _root_values(tower_mu, mu, coeffs):
     one branch per real root, each in its own extension ``K[t]/(m)``.
 
     With numeric coefficients the real roots are isolated exactly (sympy's
-    ``CRootOf`` and its intervals); with symbolic ones the number of real
-    roots is read at a sample point of the parameters (positive integers) and
-    the root is the family's ``RealAlgebraicRoot``."""
+    ``CRootOf`` and its intervals).  With symbolic ones the root is the
+    family's ``RealAlgebraicRoot`` (counting only positive roots when the
+    parameter is declared positive) and the number of real roots is the
+    largest found at a few sample points of the parameters."""
     probe = tower_mu.fresh(drop=mu)
     low = [probe.project(c) for c in coeffs]
     x = sympy.Dummy("x")
@@ -206,8 +207,10 @@ def _root_values(tower_mu, mu, coeffs):
         roots = [((Fraction(int(a.p), int(a.q)), Fraction(int(b.p), int(b.q))), sympy.CRootOf(
             poly, k)) for k, ((a, b), _m) in enumerate(poly.intervals())]
     else:
-        roots = [(None, RealAlgebraicRoot(sympy.Lambda(x, body), k))
-                 for k in range(_real_root_count(body, x))]
+        positive = tower_mu.positivity is not None and tower_mu.positivity(mu) is True
+        bound = (sympy.Integer(0),) if positive else ()
+        roots = [(None, RealAlgebraicRoot(sympy.Lambda(x, body), k, *bound))
+                 for k in range(_real_root_count(body, x, positive))]
     out = []
     for interval, root in roots:
         target = tower_mu.fresh(drop=mu)
@@ -216,20 +219,25 @@ def _root_values(tower_mu, mu, coeffs):
     return out
 
 
-def _real_root_count(body, x) -> int:
-    """Real roots of ``body`` (in ``x``) at a sample point: distinct positive
-    integers for the parameters."""
+def _real_root_count(body, x, positive) -> int:
+    """The largest number of real (positive) roots of ``body`` at a few
+    sample points of its parameters (positive rationals of several scales)."""
     symbols = sorted(body.free_symbols - {x}, key=sympy.default_sort_key)
     rng = random.Random(len(symbols))
-    for _ in range(3):
-        point = {s: sympy.Integer(rng.randint(2, 40)) for s in symbols}
+    best = 0
+    scales = (sympy.Rational(1, 100), sympy.Rational(1, 10), 1, 10, 100)
+    for trial in range(15):
+        point = {s: sympy.Rational(rng.randint(1, 97), 97) * rng.choice(scales)
+                 for s in symbols}
         try:
             p = sympy.Poly(body.xreplace(point), x)
         except sympy.PolynomialError:
             continue
-        if p.degree() == sympy.degree(body, x) and p.is_sqf:
-            return p.count_roots()
-    return sympy.degree(body, x)
+        if p.degree() != sympy.degree(body, x) or not p.is_sqf:
+            continue
+        best = max(best, p.count_roots(0, None) - (1 if p.eval(0) == 0 else 0)
+                   if positive else p.count_roots())
+    return best
 
 
 def _pair_carriers(factors):
@@ -309,7 +317,8 @@ def _pair_sums_vanish(tower, coeffs) -> bool:
     return not pair_sum_condition(tower, coeffs)
 
 
-def find_critical_branches(tower_mu, mu, chi, *, describe=str, accept=None, want=None):
+def find_critical_branches(tower_mu, mu, chi, *, describe=str, accept=None, want=None,
+                           admissible=None):
     """The closed-form branches of the critical set.
 
     Candidates are examined in a fixed order: critical values that need no
@@ -317,12 +326,16 @@ def find_critical_branches(tower_mu, mu, chi, *, describe=str, accept=None, want
     pair.  ``accept(branch)`` may reject a branch (e.g. omega^2 provably <= 0);
     with ``want`` the search stops after that many accepted branches (the
     others can be expensive: square roots make every later element a pair).
+    ``admissible(branch)`` returns False where the critical value provably
+    violates the parameter's declared range: such branches are kept, but
+    after all the others (so that branch 0 is admissible whenever one is),
+    and do not count towards ``want``.
 
     Returns ``(branches, notes, degenerate, unexamined)``; raises
     :class:`NoHopfPointError` when no branch exists and
     :class:`DegenerateHopfError` when the only branches are degenerate.
     """
-    notes, branches, degenerate = [], [], []
+    notes, branches, degenerate, late = [], [], [], []
     factors = factor_univariate(tower_mu, chi)
     candidates = _candidates(tower_mu, mu, factors, describe, notes)
     examined = rejected = 0
@@ -345,10 +358,17 @@ def find_critical_branches(tower_mu, mu, chi, *, describe=str, accept=None, want
         if accept is not None and not accept(branch):
             rejected += 1
             continue
+        if admissible is not None and not admissible(branch):
+            late.append(branch)
+            continue
         branches.append(branch)
     if rejected:
         notes.append(f"{rejected} branch(es) of the critical set have omega^2 <= 0 (neutral "
                      "saddles) and were dropped")
+    if late:
+        notes.append(f"{len(late)} branch(es) of the critical set have a critical value "
+                     f"outside the declared range of {describe(mu)}; they are listed last")
+        branches = [replace(b, index=k) for k, b in enumerate(branches + late)]
     unexamined = len(candidates) - examined
     if unexamined:
         notes.append(f"{unexamined} further candidate critical value(s) were not examined "
