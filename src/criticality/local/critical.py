@@ -20,7 +20,6 @@ from __future__ import annotations
 import random
 from dataclasses import dataclass, replace
 
-import flint
 import sympy
 
 from fractions import Fraction
@@ -28,12 +27,13 @@ from fractions import Fraction
 from ..algebra import upoly
 from ..algebra.algebraic import AlgebraicElement, RealAlgebraicRoot
 from ..algebra.certified import is_numeric
-from ..algebra.flint_field import FlintRationalField, FlintRationalFunctionField
+from ..algebra.polyops import numerator_factors, pair_resultant, rational_field, value_at
 from ..algebra.quadratic import QuadraticElement, QuadraticExtension, lower
-from ..errors import DegenerateHopfError, NoHopfPointError
+from ..errors import ClosedFormUnavailableError, DegenerateHopfError, NoHopfPointError
 from .linear import factor_univariate, hurwitz_determinant, hurwitz_determinants
 
-__all__ = ["Condition", "CriticalBranch", "find_critical_branches", "nu_extension"]
+__all__ = ["Condition", "CriticalBranch", "CriticalSet", "find_critical_branches",
+           "nu_extension"]
 
 
 @dataclass(frozen=True)
@@ -90,6 +90,35 @@ class CriticalBranch:
     cofactor_factors: tuple = ()
 
 
+@dataclass(frozen=True)
+class CriticalSet:
+    """The outcome of the search for branches, as data.
+
+    Attributes
+    ----------
+    branches : tuple of CriticalBranch
+        In the order of their index (admissible ones first).
+    notes : tuple of str
+        Sentences for the result's notes.
+    degenerate : tuple of DegenerateHopfError
+        Candidates that are degenerate Hopf points.
+    unexamined : int
+        Candidates not examined (the search stopped after ``want``).
+    linear_in : tuple of str
+        Other parameters in which every non-linear factor of the critical set
+        is linear (an analysis in one of them needs no roots).
+    needs_root : bool
+        Whether some branch's critical value is a root (degree >= 2).
+    """
+
+    branches: tuple
+    notes: tuple
+    degenerate: tuple
+    unexamined: int
+    linear_in: tuple = ()
+    needs_root: bool = False
+
+
 def nu_extension(tower, W):
     """The field ``top(nu)`` with ``nu**2 = -W`` (``nu = i omega``)."""
     W_expr = tower.to_sympy(W)
@@ -111,22 +140,8 @@ def _solutions(tower_mu, mu, d, algebraic=False):
         d = norm_to_base(d)
         if not d:
             return []
-    d = K(d)
-    out = []
-    if isinstance(K, FlintRationalFunctionField):
-        _, factors = d.num.factor()
-        for poly, _m in factors:
-            coeffs = K.coefficients_in(poly, mu)
-            deg = max(coeffs)
-            c = [K.from_polynomials(coeffs[k], K._one_poly) if k in coeffs else K.zero
-                 for k in range(deg + 1)]
-            out.append(_classify(c, lambda: K.poly_to_sympy(poly), algebraic))
-    else:
-        num, _ = sympy.fraction(sympy.together(K.to_sympy(d)))
-        for f, _m in sympy.factor_list(num)[1]:
-            p = sympy.Poly(f, mu)
-            c = [K.from_sympy(x) for x in reversed(p.all_coeffs())]
-            out.append(_classify(c, lambda f=f: f, algebraic))
+    out = [_classify(f.coefficients, f.expr, algebraic)
+           for f in numerator_factors(K, K(d), mu)]
     return [o for o in out if o is not None]
 
 
@@ -145,12 +160,12 @@ def linear_alternatives(tower_mu, mu, d) -> list:
     them gives it in closed form without square roots."""
     K = tower_mu.base
     d = lower(d)
-    if isinstance(d, QuadraticElement) or not isinstance(K, FlintRationalFunctionField):
+    if isinstance(d, (QuadraticElement, AlgebraicElement)) or not d:
         return []
     candidates = None
     atoms = {a.symbol for a in tower_mu.atoms}
-    for poly, _m in K(d).num.factor()[1]:
-        degrees = dict(zip(K.symbols, poly.degrees()))
+    for factor in numerator_factors(K, K(d), mu):
+        degrees = factor.degrees
         if degrees.get(mu, 0) <= 1:
             continue
         linear = {s for s, k in degrees.items() if k == 1 and s != mu and s not in atoms}
@@ -268,31 +283,11 @@ def pair_sum_condition(tower, f):
     """
     K = tower.base
     coeffs = [lower(c) for c in f]
-    if not isinstance(K, FlintRationalFunctionField) or any(
-            isinstance(c, (QuadraticElement, AlgebraicElement)) for c in coeffs):
-        return hurwitz_determinant(tower.top, f, len(f) - 2)
-    coeffs = [K(c) for c in coeffs]
-    den = K._one_poly
-    for c in coeffs:
-        den = den * (c.den / den.gcd(c.den))
-    polys = [c.num * (den / c.den) for c in coeffs]
-    names = tuple(str(x) for x in K.symbols) + ("s_",)
-    ctx = flint.fmpz_mpoly_ctx.get(names, "degrevlex")
-    nv = len(K.symbols)
-
-    def lift(part):
-        data = {}
-        for k, p in enumerate(part):
-            for monom, v in p.to_dict().items():
-                data[tuple(monom) + (k,)] = v
-        return ctx.from_dict(data)
-
-    E, O = lift(polys[0::2]), lift(polys[1::2])
-    if O.is_zero():
-        return K.zero
-    R = E.resultant(O, "s_")
-    data = {tuple(m[:nv]): v for m, v in R.to_dict().items()}
-    return K.from_polynomials(K.ctx.from_dict(data), K._one_poly) if data else K.zero
+    if not any(isinstance(c, (QuadraticElement, AlgebraicElement)) for c in coeffs):
+        R = pair_resultant(K, coeffs)
+        if R is not None:
+            return R
+    return hurwitz_determinant(tower.top, f, len(f) - 2)
 
 
 def _pair_sums_vanish(tower, coeffs) -> bool:
@@ -301,15 +296,14 @@ def _pair_sums_vanish(tower, coeffs) -> bool:
     in milliseconds; only when that is zero is the exact condition computed."""
     K = tower.base
     low = [lower(c) for c in coeffs]
-    if isinstance(K, FlintRationalFunctionField) and not any(
+    Q = rational_field(K)
+    if Q is not None and K.symbols and not any(
             isinstance(c, (QuadraticElement, AlgebraicElement)) for c in low):
         rng = random.Random(len(coeffs))
-        Q = FlintRationalField()
         for _ in range(2):
             point = [rng.randint(-10 ** 6, 10 ** 6) for _ in K.symbols]
             try:
-                values = [Q(flint.fmpq(c.num(*point)) / flint.fmpq(c.den(*point)))
-                          for c in (K(x) for x in low)]
+                values = [value_at(K, x, point) for x in low]
             except ZeroDivisionError:
                 continue
             if hurwitz_determinant(Q, values, len(values) - 2):
@@ -331,13 +325,16 @@ def find_critical_branches(tower_mu, mu, chi, *, describe=str, accept=None, want
     after all the others (so that branch 0 is admissible whenever one is),
     and do not count towards ``want``.
 
-    Returns ``(branches, notes, degenerate, unexamined)``; raises
-    :class:`NoHopfPointError` when no branch exists and
-    :class:`DegenerateHopfError` when the only branches are degenerate.
+    Returns a :class:`CriticalSet`; raises :class:`NoHopfPointError` when it
+    is proved that no branch exists, :class:`DegenerateHopfError` when the
+    only branches are degenerate, and :class:`ClosedFormUnavailableError`
+    when a factor of the critical set may carry branches that were not found
+    (no real root at the sample points of a family).
     """
     notes, branches, degenerate, late = [], [], [], []
     factors = factor_univariate(tower_mu, chi)
-    candidates = _candidates(tower_mu, mu, factors, describe, notes)
+    info = {"linear_in": (), "rootless": []}
+    candidates = _candidates(tower_mu, mu, factors, describe, notes, info)
     examined = rejected = 0
     for f, value, target, d in candidates:
         if want is not None and len(branches) >= want:
@@ -374,9 +371,17 @@ def find_critical_branches(tower_mu, mu, chi, *, describe=str, accept=None, want
         notes.append(f"{unexamined} further candidate critical value(s) were not examined "
                      "(hopf_all examines every branch)")
     if branches:
-        return branches, notes, degenerate, unexamined
+        return CriticalSet(tuple(branches), tuple(notes), tuple(degenerate), unexamined,
+                           tuple(info["linear_in"]), any(len(b.tower.levels) for b in branches))
     if degenerate:
         raise degenerate[0]
+    if info["rootless"]:
+        raise ClosedFormUnavailableError(
+            f"the critical set contains {info['rootless'][0]} = 0, whose roots in "
+            f"{describe(mu)} depend on the parameters; no real root was found at sample "
+            "points of the parameters, so no branch is given in closed form (which is not a "
+            "proof that none exists). Fix the parameters (values={...}) for exact roots, or "
+            "use the numeric mode (guess={...}) near a suspected Hopf point.")
     if not candidates:
         raise NoHopfPointError(
             f"no pair of eigenvalues can cross the imaginary axis as {describe(mu)} varies: "
@@ -389,8 +394,10 @@ def find_critical_branches(tower_mu, mu, chi, *, describe=str, accept=None, want
         "not a pair crossing the imaginary axis", reason="omega_squared_nonpositive")
 
 
-def _candidates(tower_mu, mu, factors, describe, notes):
-    """``(factor, critical value, target tower)`` in the order of examination."""
+def _candidates(tower_mu, mu, factors, describe, notes, info):
+    """``(factor, critical value, target tower, pair condition)`` in the order
+    of examination; ``info`` collects the parameters in which the critical set
+    is linear and the factors whose roots were not found."""
     found = []
     for f in _pair_carriers(factors):
         d = pair_sum_condition(tower_mu, f)
@@ -402,6 +409,7 @@ def _candidates(tower_mu, mu, factors, describe, notes):
         solutions = _solutions(tower_mu, mu, d, algebraic=True)
         if any(kind != "linear" for kind, _ in solutions):
             others = linear_alternatives(tower_mu, mu, d)
+            info["linear_in"] = tuple(others)
             if others:
                 notes.append(f"the critical set is not linear in {describe(mu)} (its critical "
                              "value needs a square root or has no closed form) but it is linear "
@@ -413,8 +421,13 @@ def _candidates(tower_mu, mu, factors, describe, notes):
                              f"{describe(mu)} (degree > 2); they were not analysed")
                 continue
             rank = {"linear": 0, "quadratic": 1}.get(sol[0], 2)
+            values = _branch_values(tower_mu, mu, sol)
+            if not values and sol[0] == "algebraic" and not is_numeric(tower_mu.fresh(drop=mu)):
+                x = sympy.Symbol(str(mu))
+                info["rootless"].append(sympy.Add(*[tower_mu.to_sympy(c) * x ** k
+                                                    for k, c in enumerate(sol[1])]))
             found.extend((rank, len(f), len(found) + k, f, v, t, d)
-                         for k, (v, t) in enumerate(_branch_values(tower_mu, mu, sol)))
+                         for k, (v, t) in enumerate(values))
     found.sort(key=lambda c: c[:3])
     return [c[3:] for c in found]
 
