@@ -226,3 +226,38 @@ def test_selkov_glycolysis_quartic_critical_set():
         assert abs(e.critical_value - sympy.N(b_c, 30)) < 1e-25
         assert abs(e.l1 - ref) < 1e-20
     assert hopf(model, "b", values={"a": a}).critical_value == results[0].critical_value
+
+
+WATT_BETA = {"x": "y", "y": "z^2*sin(x)*cos(x) - sin(x) - eps*y", "z": "alpha*(cos(x) - beta)"}
+
+
+def test_watt_governor_without_reparametrisation():
+    """The Watt governor as written by Sotomayor, Mello and Braga
+    ("Bifurcation analysis of the Watt governor system", Comput. Appl. Math.
+    26 (2007); arXiv math/0606230), with cos(x0) = beta and z0 = 1/sqrt(beta):
+    sin(acos(beta)) = sqrt(1 - beta^2) and sqrt(beta) are radicals of the
+    equilibrium and the critical damping eps = 2 alpha beta^(3/2) (their Hopf
+    condition; from memory) needs a radical too.  l1 agrees with the
+    reparametrised model (beta = b^2) and with the independent projection
+    formula (Kuznetsov 2004, Section 3.5); at numeric values the verdict is
+    decided."""
+    model = Model(["x", "y", "z"], WATT_BETA,
+                  parameters={"eps": "positive", "alpha": "positive", "beta": "positive"})
+    eq = {"x": "acos(beta)", "y": 0, "z": "1/sqrt(beta)"}
+    r = hopf(model, "eps", equilibrium=eq)
+    alpha, beta = model.symbols["alpha"], model.symbols["beta"]
+    assert sympy.simplify(r.critical_value - 2 * alpha * beta ** sympy.Rational(3, 2)) == 0
+    e = r.evaluate(alpha="1/2", beta="81/100", digits=30)
+    sym = model.symbols
+    at = {sym["alpha"]: sympy.Rational(1, 2), sym["beta"]: sympy.Rational(81, 100),
+          sym["eps"]: sympy.Rational(729, 1000)}
+    eqs = [f.xreplace(at) for f in model.equations]
+    point = {sym["x"]: sympy.acos(sympy.Rational(81, 100)), sym["y"]: 0,
+             sym["z"]: sympy.Rational(10, 9)}
+    ref = numeric_first_lyapunov(eqs, [sym["x"], sym["y"], sym["z"]], point, 25)[1]
+    assert abs(e.critical_value - mpmath.mpf(729) / 1000) < 1e-14
+    assert abs(e.l1 - ref) < 1e-18 * abs(ref)
+    fixed = hopf(model, "eps", equilibrium=eq, values={"beta": "1/2", "alpha": 1})
+    assert fixed.critical_value == sympy.sqrt(2) / 2
+    assert fixed.classification == "supercritical"
+    assert all(c.status == "holds" for c in fixed.conditions)

@@ -253,13 +253,52 @@ class Tower:
                 return element
         root = self.square_root(radicand)
         if root is None:
-            sym_root = root_expr if root_expr is not None else \
-                sympy.sqrt(sympy.factor(self.to_sympy(radicand)))
+            root = self._known_multiple(radicand)
+        if root is None:
+            sym_root = root_expr if root_expr is not None else self._root_expr(radicand)
             ext = QuadraticExtension(self.top, radicand, f"s{len(self.levels)}", root=sym_root)
             self.levels.append(ext)
             root = ext.gen
         self._radicals.append((radicand, root))
         return root
+
+    def _root_expr(self, radicand):
+        """``sqrt(radicand)`` as a sympy expression, with the squares of
+        factors of known positive sign taken outside the root."""
+        expr = sympy.factor(self.to_sympy(radicand))
+        if self.positivity is None or not expr.is_Mul and not expr.is_Pow:
+            return sympy.sqrt(expr)
+        outside, inside = [], []
+        for f in sympy.Mul.make_args(expr):
+            base, k = f.as_base_exp()
+            if k.is_Integer and k >= 2 and not base.is_number and _positive(base, self.positivity):
+                outside.append(base ** (int(k) // 2))
+                if int(k) % 2:
+                    inside.append(base)
+            else:
+                inside.append(f)
+        return sympy.Mul(*outside) * sympy.sqrt(sympy.Mul(*inside))
+
+    def _known_multiple(self, radicand):
+        """``sqrt(R) = sqrt(R G) / sqrt(G)`` when ``R G`` is a square for a
+        radicand ``G`` already adjoined (both in the base field), so that
+        ``sqrt(b)`` and ``sqrt(4 a^2 b^3)`` do not become two generators of a
+        ring with zero divisors; None otherwise."""
+        R = lower(radicand)
+        if isinstance(R, (QuadraticElement, AlgebraicElement)):
+            return None
+        for G, element in self._radicals:
+            G = lower(G)
+            if isinstance(G, (QuadraticElement, AlgebraicElement)) or not isinstance(
+                    lower(element), QuadraticElement):
+                continue
+            try:
+                q = self.square_root(R * G)
+            except ClosedFormUnavailableError:
+                continue  # the sign of the root is not known
+            if q is not None:
+                return q / element
+        return None
 
     def adjoin_root(self, modulus, root_expr, interval=None):
         """Adjoin a root of the irreducible polynomial ``modulus`` (coefficients
@@ -431,7 +470,31 @@ class Tower:
         from .certified import certified_sign, is_numeric
         if is_numeric(self):
             return -r if certified_sign(r) == -1 else r
-        return -r if _sign_of(self.to_sympy(r), self.positivity) is False else r
+        sign = self._sign(r)
+        if sign is None:
+            expr = self.to_sympy(r)
+            sign = expr.is_positive
+        return -r if sign is False else r
+
+    def _sign(self, x):
+        """True (positive), False (negative) or None for an element, from the
+        sign rules on the base field: ``a + b s`` with ``s`` a principal root
+        of a positive radicand has the sign of ``a`` and ``b`` when they agree."""
+        x = lower(x)
+        if isinstance(x, AlgebraicElement):
+            return None
+        if not isinstance(x, QuadraticElement):
+            try:
+                return _sign_of(self.to_sympy(x), self.positivity) if x else None
+            except (sympy.PolynomialError, ValueError, TypeError):
+                return None
+        if self._sign(x.ext.radicand) is not True:
+            return None
+        sa = self._sign(x.a) if x.a else None
+        sb = self._sign(x.b)
+        if not x.a:
+            return sb
+        return sa if sa == sb else None
 
 
 def _substitute_base(K, x, symbol, value, target: Tower):
@@ -490,6 +553,13 @@ def _sign_of(expr, positivity):
     if positivity is None:
         return None
     return positivity(expr)
+
+
+def _positive(expr, positivity) -> bool:
+    try:
+        return positivity(expr) is True
+    except (sympy.PolynomialError, ValueError, TypeError):
+        return False
 
 
 def _atom_positive(atom, positivity) -> bool:
