@@ -78,6 +78,10 @@ def test_cube_root_critical_value_in_the_reactor_family():
     r = hopf(model, "b", values={"q": "1/10"})
     assert isinstance(r.critical_value, RealAlgebraicRoot)
     assert r.routes_agree
+    # proved on the whole family a > 0: the root is continuous (discriminant,
+    # leading and constant coefficient never vanish) and the resultants with
+    # omega^2 and the transversality never vanish (common practice, no source)
+    assert all(c.status == "holds" for c in r.conditions)
     for a, b_c in ((1, 1), (8, 4)):
         e = r.evaluate(a=a, digits=30)
         assert abs(e.critical_value - b_c) < 1e-25
@@ -261,3 +265,48 @@ def test_watt_governor_without_reparametrisation():
     assert fixed.critical_value == sympy.sqrt(2) / 2
     assert fixed.classification == "supercritical"
     assert all(c.status == "holds" for c in fixed.conditions)
+
+
+def _random_critical_model(seed):
+    """A planar model whose trace vanishes on an irreducible polynomial of
+    degree 2 to 4 in mu with real roots, and random mu-dependent
+    nonlinear terms (invented test data)."""
+    import random
+    rng = random.Random(seed)
+    mu = sympy.Symbol("mu")
+    while True:
+        degree = rng.choice((2, 3, 4))
+        T = sympy.Add(*[rng.randint(-4, 4) * mu ** k for k in range(degree)]) + mu ** degree
+        poly = sympy.Poly(T, mu)
+        if poly.is_irreducible and poly.count_roots() >= 1:
+            break
+    c = [rng.choice((-2, -1, 1, 2, 3)) for _ in range(4)]
+    eqs = {"x": f"({T})*x - y + {c[0]}*mu*x^2 + {c[1]}*x*y - x^3",
+           "y": f"x + ({T})*y + {c[2]}*y^2 + {c[3]}*mu*x^2*y"}
+    return Model(states=["x", "y"], equations=eqs, parameters={"mu": "real"}), poly
+
+
+@pytest.mark.parametrize("seed", [1, 3, 4, 7])
+def test_random_critical_sets_of_degree_two_to_four(seed):
+    """On random models with critical sets of degree 2 to 4 both arithmetic
+    backends (python-flint and the pure-sympy stand-in) give the same
+    branches, the two series routes agree, l1 equals the independent
+    projection formula (Kuznetsov 2004, Section 3.5) and the numeric mode
+    started near each root reproduces it."""
+    model, poly = _random_critical_model(seed)
+    flint_results = hopf_all(model, "mu", equilibrium={"x": 0, "y": 0})
+    sympy_results = hopf_all(model, "mu", equilibrium={"x": 0, "y": 0}, backend="sympy")
+    assert len(flint_results) == len(sympy_results) == poly.count_roots()
+    for r, s in zip(flint_results, sympy_results):
+        assert r.routes_agree and s.routes_agree
+        mu_c = sympy.N(r.critical_value, 45)
+        assert abs(mu_c - sympy.N(s.critical_value, 45)) < 1e-40
+        with mpmath.workdps(30):
+            l1 = mpmath.mpf(str(sympy.N(r.l1, 35)))
+            assert abs(l1 - mpmath.mpf(str(sympy.N(s.l1, 35)))) < mpmath.mpf(10) ** -25
+            ref = _independent_l1(model, {}, mu_c, {"x": 0, "y": 0})
+            assert abs(l1 - ref) < mpmath.mpf(10) ** -20 * max(1, abs(ref))
+        guess = {"x": 0.001, "y": 0.001, "mu": float(mu_c) + 1e-3}
+        num = hopf(model, "mu", guess=guess, digits=20)
+        assert abs(float(num.critical_value) - float(mu_c)) < 1e-12
+        assert abs(float(num.l1) - float(l1)) < 1e-10 * max(1, abs(float(l1)))

@@ -17,6 +17,7 @@ import sympy
 from .flint_field import FlintRationalFunctionField
 from .algebraic import AlgebraicElement
 from .certified import certified_sign, is_numeric
+from .family_signs import family_sign
 from .quadratic import QuadraticElement, lower
 from .signs import NEGATIVE, POSITIVE, UNKNOWN, ZERO, FactoredSign, FactorSign, SignContext
 
@@ -35,6 +36,8 @@ def factored(tower, x, ctx: SignContext, *, restore: bool = True) -> FactoredSig
         if not restore and tower.atoms:
             expr = expr.xreplace({a.expr: a.symbol for a in tower.atoms})
         sign = certified_sign(x) if is_numeric(tower) else _assumed_sign(expr)
+        if sign is None and isinstance(x, AlgebraicElement):
+            sign = family_sign(tower, x, ctx)
         if sign == 1:
             return FactoredSign(sympy.Integer(1), (FactorSign(expr, 1, False, POSITIVE),),
                                 POSITIVE)

@@ -217,6 +217,8 @@ def _root_values(tower_mu, mu, coeffs):
     low = [probe.project(c) for c in coeffs]
     x = sympy.Dummy("x")
     body = sympy.Add(*[probe.to_sympy(c) * x ** k for k, c in enumerate(low)])
+    if probe.to_sympy(low[-1]).could_extract_minus_sign():
+        body = -body  # the same roots, printed with a positive leading term
     if is_numeric(probe):
         poly = sympy.Poly(body, x)
         roots = [((Fraction(int(a.p), int(a.q)), Fraction(int(b.p), int(b.q))), sympy.CRootOf(
