@@ -369,6 +369,63 @@ def rational(n: int, seed: int = 7) -> Case:
     )
 
 
+# --- critical sets of degree 3 and 4 ---------------------------------------------
+
+
+def reactor_cubic() -> Case:
+    """Autocatalytic reactor x' = a - x y^2/(1 + y/10), y' = x y^2/(1 + y/10) - b y
+    (an invented model).
+
+    The equilibrium is y0 = a/b, x0 = b (a + 10 b)/(10 a).  The trace of the
+    Jacobian vanishes where b^3 = a^2 (irreducible of degree 3 in b over
+    Q(a)), so b_c = a^(2/3), and there omega^2 = det =
+    10 (a^2 + 100 a^(4/3) - 10 a^(5/3))/(a + 1000); the engine works in
+    Q(a)[b]/(b^3 - a^2).  Checked numerically by ``--check-cases``.
+    """
+    x, y = sp.symbols("x y", real=True)
+    a, b = _symbols("a b", "positive")
+    q = sp.Rational(1, 10)
+    rate = x * y**2 / (1 + q * y)
+    third = sp.Rational(1, 3)
+    return Case(
+        name="reactor_cubic",
+        description="Autocatalytic reactor (invented), a symbolic, bifurcation parameter b; "
+        "the critical set b^3 = a^2 is irreducible of degree 3.",
+        states=(x, y), equations=(a - rate, rate - b * y),
+        parameters={a: "positive", b: "positive"}, bifurcation=b,
+        equilibrium={x: b * (a + 10 * b) / (10 * a), y: a / b},
+        critical_value=a ** (2 * third),
+        omega_squared=10 * (a**2 + 100 * a ** (4 * third) - 10 * a ** (5 * third)) / (a + 1000),
+        box={a: (sp.Rational(1, 2), 20)},
+    )
+
+
+def selkov_quartic() -> Case:
+    """Sel'kov's glycolysis model x' = -x + a y + x^2 y, y' = b - a y - x^2 y
+    (Sel'kov, Eur. J. Biochem. 4 (1968) 79-86, in the dimensionless form of
+    Strogatz, Nonlinear Dynamics and Chaos, 1994, Example 7.3.2; from memory).
+
+    At (b, b/(a + b^2)) the trace is -(b^4 + (2a - 1) b^2 + a + a^2)/(a + b^2):
+    an irreducible quartic in b over Q(a); its smallest positive root is
+    b_c^2 = (1 - 2a - sqrt(1 - 8a))/2 (real for a < 1/8), and omega^2 = det =
+    a + b_c^2.
+    """
+    x, y = sp.symbols("x y", real=True)
+    a, b = _symbols("a b", "positive")
+    b_c = sp.sqrt((1 - 2 * a - sp.sqrt(1 - 8 * a)) / 2)
+    return Case(
+        name="selkov_quartic",
+        description="Sel'kov glycolysis model, a symbolic, bifurcation parameter b; the "
+        "critical set is an irreducible quartic in b.",
+        states=(x, y), equations=(-x + a * y + x**2 * y, b - a * y - x**2 * y),
+        parameters={a: "positive", b: "positive"}, bifurcation=b,
+        equilibrium={x: b, y: b / (a + b**2)},
+        critical_value=b_c, omega_squared=a + b_c**2,
+        box={a: (0, sp.Rational(1, 8))},
+        conditions=(1 - 8 * a,),
+    )
+
+
 _BUILDERS: dict[str, Callable[[], Case]] = {
     "planar": planar,
     "lorenz": lorenz,
@@ -376,6 +433,8 @@ _BUILDERS: dict[str, Callable[[], Case]] = {
     "coupled": coupled,
     **{f"ring_{c}": (lambda c=c: ring(c)) for c in (3, 4, 5, 6, 8, 10)},
     **{f"rational_{n}": (lambda n=n: rational(n)) for n in (5, 10, 20, 30)},
+    "reactor_cubic": reactor_cubic,
+    "selkov_quartic": selkov_quartic,
 }
 
 #: every case, in table order

@@ -52,6 +52,16 @@ def _leaf(node: sp.Basic, values: dict):
     raise TypeError(f"cannot evaluate atom {node!r}")
 
 
+def _root(node: sp.Basic, values: dict):
+    """mpmath value of an algebraic number given as a root of a polynomial
+    (the engine's critical values of degree >= 3), by sympy's own evaluation
+    at the point."""
+    point = {s: sp.Float(mpmath.nstr(values[s.name], mpmath.mp.dps + 5), mpmath.mp.dps + 5)
+             for s in node.free_symbols}
+    exact = {s: sp.nsimplify(v, rational=True) for s, v in point.items()}
+    return mpmath.mpf(sp.N(node.xreplace(exact), mpmath.mp.dps + 5)._mpf_)
+
+
 def _combine(node: sp.Basic, args: list):
     """mpmath value of a compound node from its arguments' values."""
     if node.is_Add:
@@ -62,6 +72,8 @@ def _combine(node: sp.Basic, args: list):
         base, exponent = args
         if node.exp.is_Integer:
             return base ** int(node.exp)
+        if isinstance(base, mpmath.mpf) and base >= 0:
+            return mpmath.power(base, exponent)  # a real root of a nonnegative number
         return mpmath.power(mpmath.mpc(base), exponent)
     for function, mp_function in _FUNCTIONS.items():
         if isinstance(node, function):
@@ -83,7 +95,9 @@ def mp_eval(expr: sp.Basic, values: dict):
         node, expanded = stack.pop()
         if node in done:
             continue
-        if not node.args:
+        if isinstance(node, (sp.Lambda, sp.CRootOf)) or type(node).__name__ == "RealAlgebraicRoot":
+            done[node] = _root(node, values)
+        elif not node.args:
             done[node] = _leaf(node, values)
         elif expanded:
             done[node] = _combine(node, [done[a] for a in node.args])

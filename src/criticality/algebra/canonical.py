@@ -15,21 +15,37 @@ from __future__ import annotations
 import sympy
 
 from .flint_field import FlintRationalFunctionField
+from .algebraic import AlgebraicElement
+from .certified import certified_sign, is_numeric
+from .family_signs import family_sign
 from .quadratic import QuadraticElement, lower
-from .signs import UNKNOWN, FactoredSign, FactorSign, SignContext
+from .signs import NEGATIVE, POSITIVE, UNKNOWN, ZERO, FactoredSign, FactorSign, SignContext
 
 __all__ = ["factored", "canonical_expr", "larger_than"]
 
 
 def factored(tower, x, ctx: SignContext, *, restore: bool = True) -> FactoredSign:
-    """Factor an element with signs; an element with radicals is one
-    undecided factor.  With ``restore=False`` transcendental atoms stay as
-    the field's placeholder symbols (as the sign context knows them)."""
+    """Factor an element with signs; an element with radicals or roots is one
+    factor, of certified sign when it is a number
+    (:mod:`criticality.algebra.certified`), else undecided.  With
+    ``restore=False`` transcendental atoms stay as the field's placeholder
+    symbols (as the sign context knows them)."""
     x = lower(x)
-    if isinstance(x, QuadraticElement):
+    if isinstance(x, (QuadraticElement, AlgebraicElement)):
         expr = canonical_expr(tower, x, ctx)
         if not restore and tower.atoms:
             expr = expr.xreplace({a.expr: a.symbol for a in tower.atoms})
+        sign = certified_sign(x) if is_numeric(tower) else _assumed_sign(expr)
+        if sign is None and isinstance(x, AlgebraicElement):
+            sign = family_sign(tower, x, ctx)
+        if sign == 1:
+            return FactoredSign(sympy.Integer(1), (FactorSign(expr, 1, False, POSITIVE),),
+                                POSITIVE)
+        if sign == -1:
+            return FactoredSign(sympy.Integer(-1), (FactorSign(-expr, 1, False, POSITIVE),),
+                                NEGATIVE)
+        if sign == 0:
+            return FactoredSign(sympy.Integer(0), (), ZERO)
         return FactoredSign(sympy.Integer(1), (FactorSign(expr, 1, False, UNKNOWN),), UNKNOWN)
     K = tower.base
     x = K(x)
@@ -40,6 +56,18 @@ def factored(tower, x, ctx: SignContext, *, restore: bool = True) -> FactoredSig
     else:
         raw = ctx.factored(K.to_sympy(x))
     return _restore(tower, raw) if restore else raw
+
+
+def _assumed_sign(expr):
+    """The sign sympy's assumptions give a small expression (e.g. a root
+    declared positive), else None."""
+    if larger_than((expr,), 60):
+        return None
+    if expr.is_positive:
+        return 1
+    if expr.is_negative:
+        return -1
+    return None
 
 
 def _restore(tower, fs: FactoredSign) -> FactoredSign:
@@ -56,6 +84,9 @@ def canonical_expr(tower, x, ctx: SignContext) -> sympy.Expr:
     x = lower(x)
     if isinstance(x, QuadraticElement):
         return canonical_expr(tower, x.a, ctx) + canonical_expr(tower, x.b, ctx) * x.ext.root
+    if isinstance(x, AlgebraicElement):
+        return sympy.Add(*[canonical_expr(tower, a, ctx) * x.ext.root ** k
+                           for k, a in enumerate(x.c) if a])
     return factored(tower, x, ctx).as_expr()
 
 

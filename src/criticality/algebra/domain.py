@@ -21,7 +21,8 @@ import sympy
 
 from ..errors import ClosedFormUnavailableError, CriticalityError
 from .flint_field import FlintRationalField, FlintRationalFunctionField
-from .quadratic import QuadraticElement, QuadraticExtension
+from .algebraic import AlgebraicElement, AlgebraicExtension
+from .quadratic import QuadraticElement, QuadraticExtension, lower
 from .sympy_field import SympyRationalFunctionField
 
 __all__ = ["Tower", "Atom", "make_base_field", "collect_atoms", "algebraic_atom_rules"]
@@ -249,24 +250,73 @@ class Tower:
                 return element
         root = self.square_root(radicand)
         if root is None:
-            sym_root = root_expr if root_expr is not None else \
-                sympy.sqrt(sympy.factor(self.to_sympy(radicand)))
+            root = self._known_multiple(radicand)
+        if root is None:
+            sym_root = root_expr if root_expr is not None else self._root_expr(radicand)
             ext = QuadraticExtension(self.top, radicand, f"s{len(self.levels)}", root=sym_root)
             self.levels.append(ext)
             root = ext.gen
         self._radicals.append((radicand, root))
         return root
 
+    def _root_expr(self, radicand):
+        """``sqrt(radicand)`` as a sympy expression, with the squares of
+        factors of known positive sign taken outside the root."""
+        expr = sympy.factor(self.to_sympy(radicand))
+        if self.positivity is None or not expr.is_Mul and not expr.is_Pow:
+            return sympy.sqrt(expr)
+        outside, inside = [], []
+        for f in sympy.Mul.make_args(expr):
+            base, k = f.as_base_exp()
+            if k.is_Integer and k >= 2 and not base.is_number and _positive(base, self.positivity):
+                outside.append(base ** (int(k) // 2))
+                if int(k) % 2:
+                    inside.append(base)
+            else:
+                inside.append(f)
+        return sympy.Mul(*outside) * sympy.sqrt(sympy.Mul(*inside))
+
+    def _known_multiple(self, radicand):
+        """``sqrt(R) = sqrt(R G) / sqrt(G)`` when ``R G`` is a square for a
+        radicand ``G`` already adjoined (both in the base field), so that
+        ``sqrt(b)`` and ``sqrt(4 a^2 b^3)`` do not become two generators of a
+        ring with zero divisors; None otherwise."""
+        R = lower(radicand)
+        if isinstance(R, (QuadraticElement, AlgebraicElement)):
+            return None
+        for G, element in self._radicals:
+            G = lower(G)
+            if isinstance(G, (QuadraticElement, AlgebraicElement)) or not isinstance(
+                    lower(element), QuadraticElement):
+                continue
+            try:
+                q = self.square_root(R * G)
+            except ClosedFormUnavailableError:
+                continue  # the sign of the root is not known
+            if q is not None:
+                return q / element
+        return None
+
+    def adjoin_root(self, modulus, root_expr, interval=None):
+        """Adjoin a root of the irreducible polynomial ``modulus`` (coefficients
+        in the top field, lowest first) as a new level and return it (the
+        generator of ``top[t]/(modulus)``; see :mod:`criticality.algebra.algebraic`)."""
+        ext = AlgebraicExtension(self.top, modulus, f"t{len(self.levels)}", root=root_expr,
+                                 interval=interval)
+        self.levels.append(ext)
+        return ext.gen
+
     def square_root(self, x):
         """The principal root of ``x`` when ``x`` is a square in K, else None."""
+        x = lower(x)
+        if isinstance(x, AlgebraicElement):
+            return None  # squares in an algebraic extension are not detected
         if isinstance(x, QuadraticElement):
             if x.b:
                 return None
-            x = x.a
-            while isinstance(x, QuadraticElement):
-                if x.b:
-                    return None
-                x = x.a
+            x = lower(x.a)
+            if isinstance(x, (QuadraticElement, AlgebraicElement)):
+                return None
         if not x:
             return self.base.zero
         K = self.base
@@ -353,6 +403,9 @@ class Tower:
     def _to_sympy(self, x):
         if isinstance(x, QuadraticElement):
             return self._to_sympy(x.a) + self._to_sympy(x.b) * x.ext.root
+        if isinstance(x, AlgebraicElement):
+            return sympy.Add(*[self._to_sympy(a) * x.ext.root ** k
+                               for k, a in enumerate(x.c) if a])
         return self.base.to_sympy(self.base(x))
 
     # -- maps ---------------------------------------------------------------------------------
@@ -381,15 +434,64 @@ class Tower:
             return a + b * level_map[x.ext]
         return _substitute_base(self.base, self.base(x), symbol, value, target)
 
-    def radical_images(self, symbol, value, target: "Tower", value_expr=None) -> dict:
+    def radical_images(self, symbol, value, target: "Tower", value_expr=None,
+                       zeros=()) -> dict:
         """Adjoin to ``target`` the images of this tower's radicals under
-        ``symbol -> value`` and return the map extension -> image."""
+        ``symbol -> value`` and return the map extension -> image.
+
+        ``zeros`` are elements ``a + b s`` (``s`` the generator of one of this
+        tower's levels) known to vanish at ``value`` or at a conjugate of it:
+        there ``G(value)`` is the square of ``r = -a/b``, and the image of
+        ``s`` is ``r`` or ``-r``, whichever is the principal root (decided
+        exactly at numeric values, by the sign rules otherwise), instead of a
+        new (zero-divisor) extension."""
         images: dict = {}
+        hints = {z.ext: z for z in zeros if isinstance(z, QuadraticElement)}
         for ext in self.levels:
             radicand = self.substitute(ext.radicand, symbol, value, target, images)
             root_expr = ext.root.subs(symbol, value_expr) if value_expr is not None else None
-            images[ext] = target.sqrt(radicand, root_expr)
+            root = None
+            z = hints.get(ext)
+            if z is not None and target.square_root(radicand) is None:
+                b = self.substitute(z.b, symbol, value, target, images)
+                if b:
+                    r = -self.substitute(z.a, symbol, value, target, images) / b
+                    if r * r == radicand:
+                        root = target.principal(r)
+            images[ext] = root if root is not None else target.sqrt(radicand, root_expr)
         return images
+
+    def principal(self, r):
+        """``r`` or ``-r``: the one that is the principal square root of
+        ``r**2`` (positive for a positive radicand)."""
+        from .certified import certified_sign, is_numeric
+        if is_numeric(self):
+            return -r if certified_sign(r) == -1 else r
+        sign = self._sign(r)
+        if sign is None:
+            expr = self.to_sympy(r)
+            sign = expr.is_positive
+        return -r if sign is False else r
+
+    def _sign(self, x):
+        """True (positive), False (negative) or None for an element, from the
+        sign rules on the base field: ``a + b s`` with ``s`` a principal root
+        of a positive radicand has the sign of ``a`` and ``b`` when they agree."""
+        x = lower(x)
+        if isinstance(x, AlgebraicElement):
+            return None
+        if not isinstance(x, QuadraticElement):
+            try:
+                return _sign_of(self.to_sympy(x), self.positivity) if x else None
+            except (sympy.PolynomialError, ValueError, TypeError):
+                return None
+        if self._sign(x.ext.radicand) is not True:
+            return None
+        sa = self._sign(x.a) if x.a else None
+        sb = self._sign(x.b)
+        if not x.a:
+            return sb
+        return sa if sa == sb else None
 
 
 def _substitute_base(K, x, symbol, value, target: Tower):
@@ -427,6 +529,13 @@ def _sign_of(expr, positivity):
     if positivity is None:
         return None
     return positivity(expr)
+
+
+def _positive(expr, positivity) -> bool:
+    try:
+        return positivity(expr) is True
+    except (sympy.PolynomialError, ValueError, TypeError):
+        return False
 
 
 def _atom_positive(atom, positivity) -> bool:

@@ -162,10 +162,15 @@ class QuadraticElement:
 
 def lower(x):
     """``x`` in the smallest field of its tower that contains it: strips
-    extension levels whose generator has a zero coefficient."""
-    while isinstance(x, QuadraticElement) and not x.b:
-        x = x.a
-    return x
+    extension levels whose generator has a zero coefficient (quadratic
+    extensions and the algebraic extensions of :mod:`criticality.algebra.algebraic`)."""
+    while True:
+        if isinstance(x, QuadraticElement) and not x.b:
+            x = x.a
+        elif getattr(x, "c", None) is not None and hasattr(x, "ext") and not any(x.c[1:]):
+            x = x.c[0]  # an element of an algebraic extension that lies in its base field
+        else:
+            return x
 
 
 class QuadraticExtension(Field):

@@ -15,6 +15,8 @@ from dataclasses import replace
 
 import sympy
 
+from ..algebra.algebraic import AlgebraicExtension
+from ..algebra.certified import is_numeric
 from ..algebra.quadratic import lower
 from ..algebra.canonical import canonical_expr, factored, larger_than
 from .classify import classify
@@ -345,11 +347,29 @@ def _fresh_coordinates(model):
     return sympy.symbols((f"xi{k}", f"eta{k}"), real=True)
 
 
+def _root_notes(tower):
+    """Say how a critical value of degree >= 3 is represented and how its
+    signs were decided."""
+    out = []
+    for level in tower.levels:
+        if not isinstance(level, AlgebraicExtension):
+            continue
+        x = sympy.Symbol("x")
+        poly = level.modulus_expr(x)
+        how = ("every sign at it was decided exactly (interval arithmetic from its isolating "
+               "interval, precision doubled until the sign is certain)" if is_numeric(tower) else
+               "quantities are polynomials in it; conditions that involve it are stated with it")
+        out.append(f"the critical value is a root of {sympy.sstr(poly)} = 0 (degree "
+                   f"{level.degree}, in x = the critical value); {how}")
+    return out
+
+
 def _notes(model, choice, out, bc):
     notes = list(getattr(model, "notes", ()))
     if choice.note:
         notes.append(choice.note)
     notes.extend(out.notes)
+    notes.extend(_root_notes(bc.branch.tower))
     if not bc.routes_agree:
         notes.append("WARNING: the center-manifold route and the projection formula disagree; "
                      "please report this model")

@@ -77,10 +77,12 @@ def run_engine(problem: PreparedProblem, select: int | None = None) -> EngineOut
     chi = characteristic_polynomial(K, A_mu)
     ctx = problem.context()
     stage(f"solving for the critical set in '{problem.mu}'")
-    branches, notes, degenerate, unexamined = find_critical_branches(
+    critical_set = find_critical_branches(
         tower, problem.mu, chi, describe=lambda s: f"'{s}'",
         accept=lambda b: _may_be_positive(b, ctx),
-        want=None if select is None else select + 1)
+        want=None if select is None else select + 1,
+        admissible=lambda b: _in_range(b, ctx, problem.assumptions.get(problem.mu)))
+    branches, notes = critical_set.branches, list(critical_set.notes)
     if select is not None:
         if not 0 <= select < len(branches):
             raise ParameterError(f"branch {select} does not exist: the critical set has "
@@ -93,7 +95,8 @@ def run_engine(problem: PreparedProblem, select: int | None = None) -> EngineOut
     for b in todo:
         if len(b.tower.levels) > len(tower.levels):
             hint(f"the critical value of '{problem.mu}' needs a square root, which makes "
-                 "every later step work with pairs over a larger field" + _linear_hint(notes))
+                 "every later step work with pairs over a larger field" +
+                 _linear_hint(critical_set.linear_in))
         try:
             bc = _compute_branch(tower, taylor_mu, b, problem, order)
         except ZeroDivisionError:
@@ -110,23 +113,32 @@ def run_engine(problem: PreparedProblem, select: int | None = None) -> EngineOut
             "on every branch of the critical set omega^2 <= 0: where two eigenvalues sum to "
             "zero they are a real pair +-kappa (a neutral saddle), not a pair crossing the "
             "imaginary axis", reason="omega_squared_nonpositive")
-    return EngineOutput(tower, chi, A_mu, tuple(computed), tuple(notes), tuple(degenerate),
-                        len(branches) + unexamined)
+    return EngineOutput(tower, chi, A_mu, tuple(computed), tuple(notes),
+                        critical_set.degenerate, len(branches) + critical_set.unexamined)
 
 
-def _linear_hint(notes) -> str:
-    """The parameters in which the critical set is linear, from the notes of
-    :func:`find_critical_branches`, as a clause for the budget's message."""
-    for note in notes:
-        if "but it is linear in " in note:
-            names = note.split("but it is linear in ", 1)[1].split(":", 1)[0]
-            return f"; it is linear in {names}, which would avoid the root"
-    return ""
+def _linear_hint(names) -> str:
+    """A clause for the budget's message: the parameters in which the
+    critical set is linear (from the typed critical set)."""
+    if not names:
+        return ""
+    return f"; it is linear in {', '.join(map(repr, names))}, which would avoid the root"
 
 
 def _may_be_positive(branch, ctx) -> bool:
     sign = factored(branch.tower, branch.W, ctx, restore=False).sign
     return sign not in (NEGATIVE, NONPOSITIVE, ZERO)
+
+
+def _in_range(branch, ctx, assumption) -> bool:
+    """False where the critical value provably violates the parameter's
+    declared sign."""
+    if assumption not in ("positive", "nonnegative", "negative"):
+        return True
+    value = -branch.value if assumption == "negative" else branch.value
+    sign = factored(branch.tower, value, ctx, restore=False).sign
+    bad = (NEGATIVE, NONPOSITIVE, ZERO) if assumption != "nonnegative" else (NEGATIVE,)
+    return sign not in bad
 
 
 def _compute_branch(tower, taylor_mu, branch, problem, order) -> BranchComputation:

@@ -18,20 +18,22 @@ transversality is ``d lambda / d mu = -phi_mu / phi_lambda`` at
 from __future__ import annotations
 
 import random
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
-import flint
 import sympy
 
-from ..algebra import upoly
-from ..algebra.flint_field import FlintRationalField, FlintRationalFunctionField
-from ..algebra.quadratic import QuadraticElement, QuadraticExtension, lower
-from ..errors import DegenerateHopfError, NoHopfPointError
-from .linear import factor_univariate, hurwitz_determinant, hurwitz_determinants
-from .solve import branch_values as _branch_values
-from .solve import closed_form_solutions
+from fractions import Fraction
 
-__all__ = ["Condition", "CriticalBranch", "find_critical_branches", "nu_extension"]
+from ..algebra import upoly
+from ..algebra.algebraic import AlgebraicElement, RealAlgebraicRoot
+from ..algebra.certified import is_numeric
+from ..algebra.polyops import numerator_factors, pair_resultant, rational_field, value_at
+from ..algebra.quadratic import QuadraticElement, QuadraticExtension, lower
+from ..errors import ClosedFormUnavailableError, DegenerateHopfError, NoHopfPointError
+from .linear import factor_univariate, hurwitz_determinant, hurwitz_determinants
+
+__all__ = ["Condition", "CriticalBranch", "CriticalSet", "find_critical_branches",
+           "nu_extension"]
 
 
 @dataclass(frozen=True)
@@ -88,10 +90,68 @@ class CriticalBranch:
     cofactor_factors: tuple = ()
 
 
+@dataclass(frozen=True)
+class CriticalSet:
+    """The outcome of the search for branches, as data.
+
+    Attributes
+    ----------
+    branches : tuple of CriticalBranch
+        In the order of their index (admissible ones first).
+    notes : tuple of str
+        Sentences for the result's notes.
+    degenerate : tuple of DegenerateHopfError
+        Candidates that are degenerate Hopf points.
+    unexamined : int
+        Candidates not examined (the search stopped after ``want``).
+    linear_in : tuple of str
+        Other parameters in which every non-linear factor of the critical set
+        is linear (an analysis in one of them needs no roots).
+    needs_root : bool
+        Whether some branch's critical value is a root (degree >= 2).
+    """
+
+    branches: tuple
+    notes: tuple
+    degenerate: tuple
+    unexamined: int
+    linear_in: tuple = ()
+    needs_root: bool = False
+
+
 def nu_extension(tower, W):
     """The field ``top(nu)`` with ``nu**2 = -W`` (``nu = i omega``)."""
     W_expr = tower.to_sympy(W)
     return QuadraticExtension(tower.top, -W, "nu", root=sympy.I * sympy.sqrt(W_expr))
+
+
+def _solutions(tower_mu, mu, d, algebraic=False):
+    """Critical values from ``d = 0``: list of ``(kind, data)`` with kind
+    ``"linear"`` (value), ``"quadratic"`` ((c2, c1, c0)), ``"algebraic"``
+    (the coefficients of an irreducible factor of degree >= 3, lowest first;
+    only with ``algebraic=True``) or ``"unsolved"`` (expr)."""
+    K = tower_mu.base
+    d = lower(d)
+    if isinstance(d, QuadraticElement):
+        if not algebraic:
+            return [("unsolved", tower_mu.to_sympy(d))]
+        # radicals of mu: the zeros of d are among those of its norm over K
+        # (a polynomial in mu); _make_branch keeps the roots of d itself
+        d = norm_to_base(d)
+        if not d:
+            return []
+    out = [_classify(f.coefficients, f.expr, algebraic)
+           for f in numerator_factors(K, K(d), mu)]
+    return [o for o in out if o is not None]
+
+
+def norm_to_base(x):
+    """The norm of a tower element down to the base field (the product of its
+    conjugates under every sign change of the radicals)."""
+    x = lower(x)
+    while isinstance(x, QuadraticElement):
+        x = lower(x.norm())
+    return x
 
 
 def linear_alternatives(tower_mu, mu, d) -> list:
@@ -100,17 +160,101 @@ def linear_alternatives(tower_mu, mu, d) -> list:
     them gives it in closed form without square roots."""
     K = tower_mu.base
     d = lower(d)
-    if isinstance(d, QuadraticElement) or not isinstance(K, FlintRationalFunctionField):
+    if isinstance(d, (QuadraticElement, AlgebraicElement)) or not d:
         return []
     candidates = None
     atoms = {a.symbol for a in tower_mu.atoms}
-    for poly, _m in K(d).num.factor()[1]:
-        degrees = dict(zip(K.symbols, poly.degrees()))
+    for factor in numerator_factors(K, K(d), mu):
+        degrees = factor.degrees
         if degrees.get(mu, 0) <= 1:
             continue
         linear = {s for s, k in degrees.items() if k == 1 and s != mu and s not in atoms}
         candidates = linear if candidates is None else candidates & linear
     return sorted(str(s) for s in candidates or ())
+
+
+def _classify(c, expr, algebraic=False):
+    deg = len(c) - 1
+    if deg == 0:
+        return None
+    if deg == 1:
+        return ("linear", -c[0] / c[1])
+    if deg == 2:
+        return ("quadratic", (c[2], c[1], c[0]))
+    if algebraic:
+        return ("algebraic", tuple(c))
+    return ("unsolved", expr())
+
+
+def _branch_values(tower_mu, mu, solution):
+    """``[(value, target tower)]`` for one solution."""
+    kind, data = solution
+    if kind == "algebraic":
+        return _root_values(tower_mu, mu, data)
+    target = tower_mu.fresh(drop=mu)
+    if kind == "linear":
+        return [(target.project(data), target)]
+    out = []
+    for sign in (1, -1):
+        if sign == -1:
+            target = tower_mu.fresh(drop=mu)
+        c2, c1, c0 = (target.project(c) for c in data)
+        s = target.sqrt(c1 * c1 - 4 * c2 * c0)
+        out.append(((-c1 + sign * s) / (2 * c2), target))
+    return out
+
+
+def _root_values(tower_mu, mu, coeffs):
+    """``[(value, target tower)]`` for an irreducible factor of degree >= 3:
+    one branch per real root, each in its own extension ``K[t]/(m)``.
+
+    With numeric coefficients the real roots are isolated exactly (sympy's
+    ``CRootOf`` and its intervals).  With symbolic ones the root is the
+    family's ``RealAlgebraicRoot`` (counting only positive roots when the
+    parameter is declared positive) and the number of real roots is the
+    largest found at a few sample points of the parameters."""
+    probe = tower_mu.fresh(drop=mu)
+    low = [probe.project(c) for c in coeffs]
+    x = sympy.Dummy("x")
+    body = sympy.Add(*[probe.to_sympy(c) * x ** k for k, c in enumerate(low)])
+    if probe.to_sympy(low[-1]).could_extract_minus_sign():
+        body = -body  # the same roots, printed with a positive leading term
+    if is_numeric(probe):
+        poly = sympy.Poly(body, x)
+        roots = [((Fraction(int(a.p), int(a.q)), Fraction(int(b.p), int(b.q))), sympy.CRootOf(
+            poly, k)) for k, ((a, b), _m) in enumerate(poly.intervals())]
+    else:
+        positive = tower_mu.positivity is not None and tower_mu.positivity(mu) is True
+        bound = (sympy.Integer(0),) if positive else ()
+        roots = [(None, RealAlgebraicRoot(sympy.Lambda(x, body), k, *bound))
+                 for k in range(_real_root_count(body, x, positive))]
+    out = []
+    for interval, root in roots:
+        target = tower_mu.fresh(drop=mu)
+        modulus = [target.project(c) for c in coeffs]
+        out.append((target.adjoin_root(modulus, root, interval), target))
+    return out
+
+
+def _real_root_count(body, x, positive) -> int:
+    """The largest number of real (positive) roots of ``body`` at a few
+    sample points of its parameters (positive rationals of several scales)."""
+    symbols = sorted(body.free_symbols - {x}, key=sympy.default_sort_key)
+    rng = random.Random(len(symbols))
+    best = 0
+    scales = (sympy.Rational(1, 100), sympy.Rational(1, 10), 1, 10, 100)
+    for trial in range(15):
+        point = {s: sympy.Rational(rng.randint(1, 97), 97) * rng.choice(scales)
+                 for s in symbols}
+        try:
+            p = sympy.Poly(body.xreplace(point), x)
+        except sympy.PolynomialError:
+            continue
+        if p.degree() != sympy.degree(body, x) or not p.is_sqf:
+            continue
+        best = max(best, p.count_roots(0, None) - (1 if p.eval(0) == 0 else 0)
+                   if positive else p.count_roots())
+    return best
 
 
 def _pair_carriers(factors):
@@ -141,31 +285,11 @@ def pair_sum_condition(tower, f):
     """
     K = tower.base
     coeffs = [lower(c) for c in f]
-    if not isinstance(K, FlintRationalFunctionField) or any(
-            isinstance(c, QuadraticElement) for c in coeffs):
-        return hurwitz_determinant(tower.top, f, len(f) - 2)
-    coeffs = [K(c) for c in coeffs]
-    den = K._one_poly
-    for c in coeffs:
-        den = den * (c.den / den.gcd(c.den))
-    polys = [c.num * (den / c.den) for c in coeffs]
-    names = tuple(str(x) for x in K.symbols) + ("s_",)
-    ctx = flint.fmpz_mpoly_ctx.get(names, "degrevlex")
-    nv = len(K.symbols)
-
-    def lift(part):
-        data = {}
-        for k, p in enumerate(part):
-            for monom, v in p.to_dict().items():
-                data[tuple(monom) + (k,)] = v
-        return ctx.from_dict(data)
-
-    E, O = lift(polys[0::2]), lift(polys[1::2])
-    if O.is_zero():
-        return K.zero
-    R = E.resultant(O, "s_")
-    data = {tuple(m[:nv]): v for m, v in R.to_dict().items()}
-    return K.from_polynomials(K.ctx.from_dict(data), K._one_poly) if data else K.zero
+    if not any(isinstance(c, (QuadraticElement, AlgebraicElement)) for c in coeffs):
+        R = pair_resultant(K, coeffs)
+        if R is not None:
+            return R
+    return hurwitz_determinant(tower.top, f, len(f) - 2)
 
 
 def _pair_sums_vanish(tower, coeffs) -> bool:
@@ -174,15 +298,14 @@ def _pair_sums_vanish(tower, coeffs) -> bool:
     in milliseconds; only when that is zero is the exact condition computed."""
     K = tower.base
     low = [lower(c) for c in coeffs]
-    if isinstance(K, FlintRationalFunctionField) and not any(
-            isinstance(c, QuadraticElement) for c in low):
+    Q = rational_field(K)
+    if Q is not None and K.symbols and not any(
+            isinstance(c, (QuadraticElement, AlgebraicElement)) for c in low):
         rng = random.Random(len(coeffs))
-        Q = FlintRationalField()
         for _ in range(2):
             point = [rng.randint(-10 ** 6, 10 ** 6) for _ in K.symbols]
             try:
-                values = [Q(flint.fmpq(c.num(*point)) / flint.fmpq(c.den(*point)))
-                          for c in (K(x) for x in low)]
+                values = [value_at(K, x, point) for x in low]
             except ZeroDivisionError:
                 continue
             if hurwitz_determinant(Q, values, len(values) - 2):
@@ -190,7 +313,8 @@ def _pair_sums_vanish(tower, coeffs) -> bool:
     return not pair_sum_condition(tower, coeffs)
 
 
-def find_critical_branches(tower_mu, mu, chi, *, describe=str, accept=None, want=None):
+def find_critical_branches(tower_mu, mu, chi, *, describe=str, accept=None, want=None,
+                           admissible=None):
     """The closed-form branches of the critical set.
 
     Candidates are examined in a fixed order: critical values that need no
@@ -198,21 +322,29 @@ def find_critical_branches(tower_mu, mu, chi, *, describe=str, accept=None, want
     pair.  ``accept(branch)`` may reject a branch (e.g. omega^2 provably <= 0);
     with ``want`` the search stops after that many accepted branches (the
     others can be expensive: square roots make every later element a pair).
+    ``admissible(branch)`` returns False where the critical value provably
+    violates the parameter's declared range: such branches are kept, but
+    after all the others (so that branch 0 is admissible whenever one is),
+    and do not count towards ``want``.
 
-    Returns ``(branches, notes, degenerate, unexamined)``; raises
-    :class:`NoHopfPointError` when no branch exists and
-    :class:`DegenerateHopfError` when the only branches are degenerate.
+    Returns a :class:`CriticalSet`; raises :class:`NoHopfPointError` when it
+    is proved that no branch exists, :class:`DegenerateHopfError` when the
+    only branches are degenerate, and :class:`ClosedFormUnavailableError`
+    when a factor of the critical set may carry branches that were not found
+    (no real root at the sample points of a family).
     """
-    notes, branches, degenerate = [], [], []
+    notes, branches, degenerate, late = [], [], [], []
     factors = factor_univariate(tower_mu, chi)
-    candidates = _candidates(tower_mu, mu, factors, describe, notes)
+    info = {"linear_in": (), "rootless": []}
+    candidates = _candidates(tower_mu, mu, factors, describe, notes, info)
     examined = rejected = 0
-    for f, value, target in candidates:
+    for f, value, target, d in candidates:
         if want is not None and len(branches) >= want:
             break
         examined += 1
         try:
-            branch = _make_branch(tower_mu, mu, chi, f, value, target, len(branches), factors)
+            branch = _make_branch(tower_mu, mu, chi, f, value, target, len(branches), factors,
+                                  zeros=(lower(d),))
         except DegenerateHopfError as exc:
             degenerate.append(exc)
             continue
@@ -225,18 +357,33 @@ def find_critical_branches(tower_mu, mu, chi, *, describe=str, accept=None, want
         if accept is not None and not accept(branch):
             rejected += 1
             continue
+        if admissible is not None and not admissible(branch):
+            late.append(branch)
+            continue
         branches.append(branch)
     if rejected:
         notes.append(f"{rejected} branch(es) of the critical set have omega^2 <= 0 (neutral "
                      "saddles) and were dropped")
+    if late:
+        notes.append(f"{len(late)} branch(es) of the critical set have a critical value "
+                     f"outside the declared range of {describe(mu)}; they are listed last")
+        branches = [replace(b, index=k) for k, b in enumerate(branches + late)]
     unexamined = len(candidates) - examined
     if unexamined:
         notes.append(f"{unexamined} further candidate critical value(s) were not examined "
                      "(hopf_all examines every branch)")
     if branches:
-        return branches, notes, degenerate, unexamined
+        return CriticalSet(tuple(branches), tuple(notes), tuple(degenerate), unexamined,
+                           tuple(info["linear_in"]), any(len(b.tower.levels) for b in branches))
     if degenerate:
         raise degenerate[0]
+    if info["rootless"]:
+        raise ClosedFormUnavailableError(
+            f"the critical set contains {info['rootless'][0]} = 0, whose roots in "
+            f"{describe(mu)} depend on the parameters; no real root was found at sample "
+            "points of the parameters, so no branch is given in closed form (which is not a "
+            "proof that none exists). Fix the parameters (values={...}) for exact roots, or "
+            "use the numeric mode (guess={...}) near a suspected Hopf point.")
     if not candidates:
         raise NoHopfPointError(
             f"no pair of eigenvalues can cross the imaginary axis as {describe(mu)} varies: "
@@ -249,8 +396,10 @@ def find_critical_branches(tower_mu, mu, chi, *, describe=str, accept=None, want
         "not a pair crossing the imaginary axis", reason="omega_squared_nonpositive")
 
 
-def _candidates(tower_mu, mu, factors, describe, notes):
-    """``(factor, critical value, target tower)`` in the order of examination."""
+def _candidates(tower_mu, mu, factors, describe, notes, info):
+    """``(factor, critical value, target tower, pair condition)`` in the order
+    of examination; ``info`` collects the parameters in which the critical set
+    is linear and the factors whose roots were not found."""
     found = []
     for f in _pair_carriers(factors):
         d = pair_sum_condition(tower_mu, f)
@@ -259,9 +408,10 @@ def _candidates(tower_mu, mu, factors, describe, notes):
                          "eigenvalues for every parameter value (a conservative part); it is "
                          "not a crossing")
             continue
-        solutions = closed_form_solutions(tower_mu, d, mu)
+        solutions = _solutions(tower_mu, mu, d, algebraic=True)
         if any(kind != "linear" for kind, _ in solutions):
             others = linear_alternatives(tower_mu, mu, d)
+            info["linear_in"] = tuple(others)
             if others:
                 notes.append(f"the critical set is not linear in {describe(mu)} (its critical "
                              "value needs a square root or has no closed form) but it is linear "
@@ -272,8 +422,14 @@ def _candidates(tower_mu, mu, factors, describe, notes):
                 notes.append(f"critical values where {sol[1]} = 0 have no closed form in "
                              f"{describe(mu)} (degree > 2); they were not analysed")
                 continue
-            found.extend((sol[0] != "linear", len(f), len(found) + k, f, v, t)
-                         for k, (v, t) in enumerate(_branch_values(tower_mu, mu, sol)))
+            rank = {"linear": 0, "quadratic": 1}.get(sol[0], 2)
+            values = _branch_values(tower_mu, mu, sol)
+            if not values and sol[0] == "algebraic" and not is_numeric(tower_mu.fresh(drop=mu)):
+                x = sympy.Symbol(str(mu))
+                info["rootless"].append(sympy.Add(*[tower_mu.to_sympy(c) * x ** k
+                                                    for k, c in enumerate(sol[1])]))
+            found.extend((rank, len(f), len(found) + k, f, v, t, d)
+                         for k, (v, t) in enumerate(values))
     found.sort(key=lambda c: c[:3])
     return [c[3:] for c in found]
 
@@ -297,8 +453,8 @@ def _cofactor_factors(factors, sub, lam2, cofactor):
     return out if divided else [cofactor]
 
 
-def _make_branch(tower_mu, mu, chi, f, value, target, index, factors=()):
-    images = tower_mu.radical_images(mu, value, target)
+def _make_branch(tower_mu, mu, chi, f, value, target, index, factors=(), zeros=()):
+    images = tower_mu.radical_images(mu, value, target, zeros=zeros)
     sub = lambda c: tower_mu.substitute(c, mu, value, target, images)  # noqa: E731
     f_at = [sub(c) for c in f]
     chi_at = [sub(c) for c in chi]

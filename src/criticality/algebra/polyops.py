@@ -1,0 +1,113 @@
+"""Polynomial questions about elements of the parameter field.
+
+Pipeline place: used by the critical set (:mod:`criticality.local.critical`),
+which asks them without seeing a field's representation: the factors of a
+numerator as polynomials in one generator, the degrees of a factor, the
+resultant that detects two roots summing to zero, and a value at an integer
+point.  Each function works on the python-flint field (fast paths with
+``fmpz_mpoly``) and on the pure-sympy stand-in.
+"""
+
+from __future__ import annotations
+
+from fractions import Fraction
+
+import flint
+import sympy
+
+from .flint_field import FlintRationalField, FlintRationalFunctionField
+
+__all__ = ["NumeratorFactor", "numerator_factors", "pair_resultant", "value_at"]
+
+
+class NumeratorFactor:
+    """One irreducible factor of a numerator, seen as a polynomial in a generator.
+
+    Attributes
+    ----------
+    coefficients : list
+        Field elements, lowest degree first (``len - 1`` is the degree).
+    degrees : dict
+        Generator symbol -> degree of the factor in it.
+    """
+
+    __slots__ = ("coefficients", "degrees", "_expr")
+
+    def __init__(self, coefficients, degrees, expr):
+        self.coefficients = coefficients
+        self.degrees = degrees
+        self._expr = expr
+
+    def expr(self) -> sympy.Expr:
+        """The factor as a sympy expression (built on demand)."""
+        return self._expr()
+
+
+def numerator_factors(K, x, symbol) -> list:
+    """The irreducible factors of the numerator of ``x`` (an element of ``K``)
+    as polynomials in ``symbol``."""
+    x = K(x)
+    out = []
+    if isinstance(K, FlintRationalFunctionField):
+        one = K.one
+        for poly, _m in x.num.factor()[1]:
+            coeffs = K.coefficients_in(poly, symbol)
+            deg = max(coeffs)
+            c = [K.from_polynomials(coeffs[k], one.num) if k in coeffs else K.zero
+                 for k in range(deg + 1)]
+            degrees = dict(zip(K.symbols, poly.degrees()))
+            out.append(NumeratorFactor(c, degrees, lambda poly=poly: K.poly_to_sympy(poly)))
+        return out
+    num, _ = sympy.fraction(sympy.together(K.to_sympy(x)))
+    for f, _m in sympy.factor_list(num)[1]:
+        p = sympy.Poly(f, symbol)
+        c = [K.from_sympy(a) for a in reversed(p.all_coeffs())]
+        degrees = {s: sympy.degree(f, s) for s in K.symbols}
+        out.append(NumeratorFactor(c, degrees, lambda f=f: f))
+    return out
+
+
+def pair_resultant(K, coeffs):
+    """``Res_s(E, O)`` for ``f(l) = E(l^2) + l O(l^2)`` with coefficients in
+    ``K``, by python-flint's multivariate resultant; None on a field without
+    that fast path (the caller uses the Hurwitz determinant)."""
+    if not isinstance(K, FlintRationalFunctionField):
+        return None
+    coeffs = [K(c) for c in coeffs]
+    den = K.one.num
+    for c in coeffs:
+        den = den * (c.den / den.gcd(c.den))
+    polys = [c.num * (den / c.den) for c in coeffs]
+    names = tuple(str(x) for x in K.symbols) + ("s_",)
+    ctx = flint.fmpz_mpoly_ctx.get(names, "degrevlex")
+    nv = len(K.symbols)
+
+    def lift(part):
+        data = {}
+        for k, p in enumerate(part):
+            for monom, v in p.to_dict().items():
+                data[tuple(monom) + (k,)] = v
+        return ctx.from_dict(data)
+
+    E, O = lift(polys[0::2]), lift(polys[1::2])
+    if O.is_zero():
+        return K.zero
+    R = E.resultant(O, "s_")
+    data = {tuple(m[:nv]): v for m, v in R.to_dict().items()}
+    return K.from_polynomials(K.ctx.from_dict(data), K.one.num) if data else K.zero
+
+
+def value_at(K, x, point):
+    """``x`` at integer values of the generators (in ``K.symbols`` order), as
+    an element of QQ on the same backend; ``ZeroDivisionError`` at a pole;
+    None where the field cannot evaluate cheaply."""
+    if isinstance(K, FlintRationalFunctionField):
+        x = K(x)
+        return FlintRationalField()(Fraction(int(x.num(*point)), 1)) / \
+            FlintRationalField()(Fraction(int(x.den(*point)), 1))
+    return None
+
+
+def rational_field(K):
+    """QQ on the backend of ``K``."""
+    return FlintRationalField() if isinstance(K, FlintRationalFunctionField) else None
