@@ -60,8 +60,9 @@ def _conditions(d, digits):
                   "pair +-kappa", _f(d["W"], digits), ">", "holds" if d["W"] > 0 else "fails"),
         Condition("transversal", "the pair crosses with non-zero speed: Re d lambda / d mu != 0",
                   _f(beta, digits), "!=", "holds" if abs(beta) > tol else "fails"),
-        Condition("others_stable", "the largest real part of the other eigenvalues is negative",
-                  _f(-others, digits), ">", "holds" if others < 0 else "fails"),
+        Condition("others_stable", "the largest real part of the other eigenvalues is negative "
+                  "(float64 eigenvalues)", _f(-others, min(digits, 15)), ">",
+                  "holds" if others < 0 else "fails"),
     )
 
 
@@ -80,9 +81,10 @@ def _cycle(d, digits, mu, mu_c, states, stable_others):
                            2 * sympy.pi / _f(d["omega"], digits), _f(slope, digits))
 
 
-def numeric_result(model, original, parameter, d, digits, correct, agreement, routes, order):
+def numeric_result(original, parameter, d, digits, correct, agreement, routes, order, how):
     """Build the result; ``correct`` digits are reported, ``agreement`` is the
-    raw number of digits on which the two runs agreed."""
+    raw estimate of correct digits, ``how`` the note that says how it was found."""
+    model = original
     with mpmath.workdps(digits + 10):
         mu = original.symbols[parameter]
         mu_c = _f(d["mu_c"], digits)
@@ -95,9 +97,7 @@ def numeric_result(model, original, parameter, d, digits, correct, agreement, ro
         if abs(l1) < mpmath.mpf(10) ** (-correct) * max(1, abs(c1) / omega):
             cls = "degenerate"
         status = f"numeric ({correct} correct digits)"
-        note = (f"numeric mode: the Hopf point was located by Newton's method from the guess; "
-                f"runs at {digits + 15} and {2 * digits + 15} significant digits agree to "
-                f"{agreement} digits, so {correct} digits are reported as correct")
+        note = how
         verdict = {"supercritical": "supercritical (numeric): l1 < 0",
                    "subcritical": "subcritical (numeric): l1 > 0",
                    "degenerate": "l1 is zero to the computed accuracy: the next Lyapunov "
