@@ -41,7 +41,8 @@ from ..errors import NoHopfPointError, ParameterError
 from ..local.compiled import CompiledTaylor
 from ..local.lyapunov import complex_normal_form
 from ..local.numeric_hopf import (FloatField, HopfSystem, MpField, eigen_data, engine_eigenbasis,
-                                  numpy_projection_c1, numpy_transversality)
+                                  numpy_projection_c1, numpy_projection_c1_real,
+                                  numpy_transversality)
 from ..local.projection import projection_c1
 
 __all__ = ["hopf_numeric", "numeric_setup", "NumericSetup", "FLOAT64_DIGITS"]
@@ -50,6 +51,24 @@ __all__ = ["hopf_numeric", "numeric_setup", "NumericSetup", "FLOAT64_DIGITS"]
 FLOAT64_DIGITS = 13
 _CACHE: "OrderedDict[tuple, CompiledTaylor]" = OrderedDict()
 _CACHE_SIZE = 16
+
+
+_VALUES: "OrderedDict[tuple, dict]" = OrderedDict()
+
+
+def _exact_values(model, values: dict) -> dict:
+    """``model.value_substitution(values)``, remembered for repeated calls."""
+    try:
+        key = (model._key(), tuple(sorted((k, v) for k, v in values.items())))
+        hash(key)
+    except TypeError:
+        return model.value_substitution(values)
+    hit = _VALUES.get(key)
+    if hit is None:
+        hit = _VALUES[key] = model.value_substitution(values)
+        while len(_VALUES) > 256:
+            _VALUES.popitem(last=False)
+    return hit
 
 
 class NumericSetup:
@@ -70,7 +89,7 @@ class NumericSetup:
                                  "be given a fixed value in values=")
         defaults = {k: v for k, v in model.defaults().items()
                     if k not in given and k not in (parameter, *along)}
-        exact = model.value_substitution({**defaults, **given})
+        exact = _exact_values(model, {**defaults, **given})
         symbols = list(model.parameter_symbols)
         names = [s.name for s in symbols]
         varied = {parameter, *along}
@@ -140,11 +159,14 @@ def run_float(setup: NumericSetup, pt, order: int) -> dict:
     vals = np.array(ct.values(pt.x, pt.params, "math"), dtype=float)
     A, pbar = eigen_data(ct, vals, pt.omega, pt.q, "numpy")
     c1_dense = numpy_projection_c1(dense, vals, A, pt.omega, pt.q, pbar)
-    K = FloatField()
-    eb = engine_eigenbasis(A, pt.omega, pt.q, pbar, K)
-    taylor = ct.taylor_forms(vals, K, order)
-    N = eb.nu_field
-    cs = [_complex(N, c, pt.omega) for c in complex_normal_form(taylor, eb, order)]
+    if order == 3:  # realified solves: the second route to c1
+        cs = [complex(numpy_projection_c1_real(dense, vals, A, pt.omega, pt.q, pbar))]
+    else:  # the engine's normalization method over float64
+        K = FloatField()
+        eb = engine_eigenbasis(A, pt.omega, pt.q, pbar, K)
+        taylor = ct.taylor_forms(vals, K, order)
+        N = eb.nu_field
+        cs = [_complex(N, c, pt.omega) for c in complex_normal_form(taylor, eb, order)]
     dlam = complex(numpy_transversality(dense, vals, A, pt.q, pbar, 0))
     others, lam = _others_max_re(np, A, pt.omega)
     eps = 2.2e-16

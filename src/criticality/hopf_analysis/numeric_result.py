@@ -7,6 +7,8 @@ result is numeric and how many of its digits are correct.
 
 from __future__ import annotations
 
+from collections.abc import Mapping
+
 import mpmath
 import sympy
 
@@ -18,6 +20,8 @@ __all__ = ["numeric_result"]
 
 
 def _f(x, digits):
+    if digits <= 15:  # float64 results: no decimal round trip needed
+        return sympy.Float(float(x), digits)
     return sympy.Float(mpmath.nstr(x, digits + 2, strip_zeros=False), digits)
 
 
@@ -66,6 +70,34 @@ def _conditions(d, digits):
     )
 
 
+class _Amplitudes(Mapping):
+    """``{state: sqrt(k_j (mu - mu_c))}``, each expression built when first
+    read (building them all costs more than the numeric analysis itself)."""
+
+    def __init__(self, coeffs, offset):
+        self._coeffs, self._offset, self._built = dict(coeffs), offset, {}
+
+    def __getitem__(self, key):
+        if key not in self._built:
+            self._built[key] = sympy.sqrt(self._coeffs[key] * self._offset)
+        return self._built[key]
+
+    def __iter__(self):
+        return iter(self._coeffs)
+
+    def __len__(self):
+        return len(self._coeffs)
+
+    def __reduce__(self):
+        return (_Amplitudes, (self._coeffs, self._offset))
+
+    def __eq__(self, other):
+        return isinstance(other, Mapping) and dict(self.items()) == dict(other.items())
+
+    def __repr__(self):
+        return repr(dict(self.items()))
+
+
 def _cycle(d, digits, mu, mu_c, states, stable_others):
     beta = mpmath.re(d["dlam"])
     c1 = d["c"][0]
@@ -73,7 +105,7 @@ def _cycle(d, digits, mu, mu_c, states, stable_others):
     k = -beta / R
     offset = mu - mu_c
     coeffs = {s: _f(4 * k * abs(x) ** 2, digits) for s, x in zip(states, d["q"])}
-    amps = {s: sympy.sqrt(c * offset) for s, c in coeffs.items()}
+    amps = _Amplitudes(coeffs, offset)
     side = "above" if k > 0 else "below"
     slope = mpmath.im(d["dlam"]) - beta * mpmath.im(c1) / R
     stable = bool(R < 0 and stable_others)

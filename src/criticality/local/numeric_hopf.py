@@ -41,7 +41,8 @@ from ..errors import DegenerateHopfError, EquilibriumNotFoundError, NoHopfPointE
 from .eigenbasis import Eigenbasis
 
 __all__ = ["FloatField", "MpField", "HopfSystem", "HopfPoint", "eigen_data",
-           "numpy_projection_c1", "engine_eigenbasis"]
+           "numpy_projection_c1", "numpy_projection_c1_real", "engine_eigenbasis",
+           "numpy_transversality"]
 
 
 class FloatField:
@@ -469,6 +470,30 @@ def numpy_projection_c1(dense, vals, A, omega, q, pbar):
     c1 = 0.5 * (pbar @ Cqqqb) - pbar @ dense.form(vals, 2, q, h11) \
         + 0.5 * (pbar @ dense.form(vals, 2, qb, h20))
     return c1 / np.vdot(q, q).real
+
+
+def numpy_projection_c1_real(dense, vals, A, omega, q, pbar):
+    """The same ``c1`` with the two solves realified (``2n x 2n`` real block
+    system for ``(2 i omega I - A) h = r``): a second route whose rounding
+    differs, used to estimate the float64 error."""
+    np = _np()
+    n = len(q)
+    qb = q.conj()
+    Bqqb = dense.form(vals, 2, q, qb).real
+    Bqq = dense.form(vals, 2, q, q)
+    eye = np.eye(n)
+    M = np.block([[-A, -2 * omega * eye], [2 * omega * eye, -A]])
+    try:
+        h11 = np.linalg.solve(A, Bqqb)
+        hh = np.linalg.solve(M, np.concatenate([Bqq.real, Bqq.imag]))
+    except np.linalg.LinAlgError:
+        raise DegenerateHopfError("the Jacobian is singular or 2 i omega is an eigenvalue at "
+                                  "the located point", reason="resonance")
+    h20 = hh[:n] + 1j * hh[n:]
+    t1 = pbar @ dense.form(vals, 3, q, q, qb)
+    t2 = pbar @ dense.form(vals, 2, q, h11.astype(complex))
+    t3 = pbar @ dense.form(vals, 2, qb, h20)
+    return (0.5 * t1 - t2 + 0.5 * t3) / float(np.sum(q.real ** 2 + q.imag ** 2))
 
 
 def numpy_transversality(dense, vals, A, q, pbar, k: int):
