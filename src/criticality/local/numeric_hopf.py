@@ -169,16 +169,16 @@ class HopfSystem:
         M[n:2 * n, n] = Ju @ vr
         M[n:2 * n, n + 1] = vi
         M[n:2 * n, n + 2:2 * n + 2] = A
-        M[n:2 * n, 2 * n + 2:] = om * eye
+        M[n:2 * n, 2 * n + 2:m] = om * eye
         M[2 * n:3 * n, :n] = D.hessian_times(vals, vi)
         M[2 * n:3 * n, n] = Ju @ vi
         M[2 * n:3 * n, n + 1] = -vr
         M[2 * n:3 * n, n + 2:2 * n + 2] = -om * eye
-        M[2 * n:3 * n, 2 * n + 2:] = A
+        M[2 * n:3 * n, 2 * n + 2:m] = A
         M[3 * n, n + 2:2 * n + 2] = c.real
-        M[3 * n, 2 * n + 2:] = c.imag
+        M[3 * n, 2 * n + 2:m] = c.imag
         M[3 * n + 1, n + 2:2 * n + 2] = -c.imag
-        M[3 * n + 1, 2 * n + 2:] = c.real
+        M[3 * n + 1, 2 * n + 2:m] = c.real
         for col, k in enumerate(param_columns):
             Jk = D.J_param(vals, k)
             M[:n, m + col] = D.f_param(vals, k)
