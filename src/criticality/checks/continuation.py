@@ -141,13 +141,13 @@ class HopfCurve:
         """The curve in the ``(along, parameter)`` plane, coloured by verdict,
         Bautin points and turning points marked; returns the axes."""
         try:
-            import matplotlib.pyplot as plt
+            from matplotlib.figure import Figure
         except ImportError as exc:
             raise MissingExtraError("plots need matplotlib; install it with: "
                                     "pip install 'criticality[plot]'") from exc
         np = _np()
         if ax is None:
-            ax = plt.figure().add_subplot()
+            ax = Figure().add_subplot()
         colours = {"supercritical": "tab:blue", "subcritical": "tab:red",
                    "degenerate": "tab:purple"}
         a, mu = np.asarray(self.along_values), np.asarray(self.critical_value)

@@ -286,6 +286,12 @@ class HopfSystem:
                 t /= 2
                 if t < 1e-6:
                     where = trial[:n + 1]
+                    if far <= radius:
+                        raise EquilibriumNotFoundError(
+                            f"Newton's method on the Hopf system stalled (the residual "
+                            f"{norm:.2e} no longer decreases) at parameter value "
+                            f"{y[n]:.6g}, at distance {far:.3g} from the guess: there may be no "
+                            "Hopf point near the guess; give a guess closer to one")
                     raise EquilibriumNotFoundError(
                         f"Newton's method found no Hopf point within distance {radius:g} of "
                         f"the guess (scaled max norm); its iterates were heading to "
