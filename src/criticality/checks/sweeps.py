@@ -26,7 +26,8 @@ import sympy
 
 from ..errors import MissingExtraError, ParameterError
 
-__all__ = ["Sweep", "sweep", "quantity_expression", "QUANTITIES", "grid_function"]
+__all__ = ["Sweep", "sweep", "quantity_expression", "QUANTITIES", "grid_function",
+           "evaluate_many"]
 
 #: the named quantities a sweep accepts (plus ``amplitude_coefficient:<state>``
 #: and ``amplitude:<state>``)
@@ -305,3 +306,32 @@ def sweep(result, quantity, grid: Mapping, *, values: Mapping | None = None,
     return Sweep(quantity=str(quantity), expression=sub,
                  grid={n: a for n, a in zip(names, arrays)}, values=out, admissible=ok,
                  fixed=fixed)
+
+
+def evaluate_many(result, points: Mapping, quantities=("critical_value", "omega", "l1"), *,
+                  values: Mapping | None = None, scheduler=None) -> Mapping:
+    """Several quantities of ``result`` at many parameter points at once.
+
+    ``points`` maps parameter names to arrays (broadcast together); each
+    quantity is compiled once and evaluated in float64 chunks.  Returns a
+    read-only mapping ``{quantity: numpy array}`` with NaN where the Hopf point
+    does not exist (see :func:`sweep`).
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> from criticality import Model, hopf
+    >>> m = Model(["x", "y"], {"x": "y", "y": "-x + (mu - a)*y - x^2*y"}, {"mu": "real"})
+    >>> r = hopf(m, "mu", equilibrium={"x": 0, "y": 0})
+    >>> evaluate_many(r, {"a": np.array([0.0, 1.5])})["critical_value"]
+    array([0. , 1.5])
+    """
+    from types import MappingProxyType
+
+    out = {}
+    for q in quantities:
+        arr = sweep(result, q, points, values=values, progress=False,
+                    scheduler=scheduler).masked()
+        arr.setflags(write=False)
+        out[str(q)] = arr
+    return MappingProxyType(out)
