@@ -42,7 +42,7 @@ from ..local.compiled import CompiledTaylor
 from ..local.lyapunov import complex_normal_form
 from ..local.numeric_hopf import (FloatField, HopfSystem, MpField, eigen_data, engine_eigenbasis,
                                   numpy_projection_c1, numpy_projection_c1_real,
-                                  numpy_transversality)
+                                  mp_projection_c1, numpy_transversality)
 from ..local.projection import projection_c1
 
 __all__ = ["hopf_numeric", "numeric_setup", "NumericSetup", "FLOAT64_DIGITS"]
@@ -209,7 +209,13 @@ def run_mp(setup: NumericSetup, system: HopfSystem, pt, dps: int, order: int,
         taylor = ct.taylor_forms(vals, K, order)
         N = eb.nu_field
         c1p = projection_c1(taylor, eb) / eb.qq
-        cs = complex_normal_form(taylor, eb, order) if routes or order > 3 else [c1p]
+        if order > 3:
+            cs = complex_normal_form(taylor, eb, order)
+        elif routes:  # the second route: complex solves on the compiled tensors
+            c1 = mp_projection_c1(ct, vals, A, om, q, pbar)
+            cs = [N.element(mpmath.re(c1), mpmath.im(c1) / om)]
+        else:
+            cs = [c1p]
         n = ct.n
         f_mu = mpmath.matrix(n, 1)
         for i, pos in ct.layout.f_p[0]:
