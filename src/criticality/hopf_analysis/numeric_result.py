@@ -27,7 +27,12 @@ def _f(x, digits):
 
 def _c(x, digits):
     x = mpmath.mpc(x)
-    return _f(x.real, digits) + sympy.I * _f(x.imag, digits)
+    re, im = _f(x.real, digits), _f(x.imag, digits)
+    if not re or not im:
+        return re + sympy.I * im
+    # the canonical form sympy's arithmetic would build (a Float, then Float*I),
+    # assembled directly: the arithmetic costs more than the numeric analysis
+    return sympy.Add._from_args((re, sympy.Mul._from_args((im, sympy.I))))
 
 
 class _NumericDetails:
