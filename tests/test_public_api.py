@@ -15,6 +15,8 @@ EXPECTED = {
     # outputs, checks and pictures
     "latex_report", "validate", "ValidationReport", "sweep", "plot_parameter_plane",
     "plot_amplitude", "save_figure", "curve_data", "write_curve_csv",
+    # numeric continuation and batch analyses
+    "hopf_curve", "HopfCurve", "analyse_many",
     # errors
     "CriticalityError", "ModelError", "ExpressionError", "ExpressionSyntaxError",
     "ForbiddenExpressionError", "ExpressionLimitError", "UnknownSymbolError",

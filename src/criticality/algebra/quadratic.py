@@ -36,6 +36,12 @@ class QuadraticElement:
         self.b = b
         self.ext = ext
 
+    def _mpmath_(self, prec, rounding):
+        # mpmath's protocol: a number on the left (mpf * element) asks for a
+        # conversion first; refusing quickly here sends it to __rmul__ without
+        # mpmath building an error message from repr(self) (slow for mpf parts)
+        raise TypeError("an element of a quadratic extension is not an mpmath number")
+
     def _coerce(self, other):
         """Return other as ``(a, b)`` in this extension, or None if it is of a
         higher extension (so that its reflected operation takes over)."""

@@ -5,10 +5,11 @@ figures.
 
 :func:`sweep` turns one quantity of a :class:`~criticality.hopf_analysis.results.HopfResult`
 (``"l1"``, ``"critical_value"``, ``"amplitude_coefficient:x"``, ... or any
-sympy expression in its parameters) into a numpy function with
-``sympy.lambdify`` and evaluates it over a grid of parameter values, in
-chunks.  Points where the Hopf point does not exist (``omega^2 <= 0``, or the
-critical value outside the parameter's declared range) are marked in
+sympy expression in its parameters) into a numpy function with common
+subexpressions removed (:mod:`criticality.local.codegen`), compiled once, and
+evaluates it over a grid of parameter values in float64 chunks (serially, or
+as tasks on a dask cluster with ``scheduler=``).  Points where the Hopf point
+does not exist (``omega^2 <= 0``, or the critical value outside the parameter's declared range) are marked in
 :attr:`Sweep.admissible`.  A sweep that runs longer than a couple of seconds
 reports its progress on standard error (or to a callback); pass
 ``progress=False`` to keep it silent.
@@ -25,7 +26,8 @@ import sympy
 
 from ..errors import MissingExtraError, ParameterError
 
-__all__ = ["Sweep", "sweep", "quantity_expression", "QUANTITIES", "grid_function"]
+__all__ = ["Sweep", "sweep", "quantity_expression", "QUANTITIES", "grid_function",
+           "evaluate_many"]
 
 #: the named quantities a sweep accepts (plus ``amplitude_coefficient:<state>``
 #: and ``amplitude:<state>``)
@@ -34,7 +36,8 @@ QUANTITIES = ("critical_value", "omega", "omega_squared", "period", "transversal
 
 #: seconds after which a sweep starts to report progress
 PROGRESS_AFTER = 2.0
-_CHUNK = 1 << 15
+_CHUNK = 1 << 14
+_CHUNKS_PER_TASK = 16
 
 
 def _numpy():
@@ -151,7 +154,31 @@ def grid_function(result, expr, names, values=None) -> tuple:
         raise ParameterError(f"no value for {', '.join(left)}: put it on the grid or give it a "
                              "fixed value")
     args = [symbols.get(n, sympy.Symbol(n, real=True)) for n in names]
-    return sympy.lambdify(args, sub, modules="numpy"), sub, fixed
+    return compiled_function(sub, args), sub, fixed
+
+
+def compiled_function(expr, args):
+    """``expr`` compiled once for numpy arrays, common subexpressions removed
+    (:mod:`criticality.local.codegen`; the result's own sympy expression, no
+    user text).  Falls back to ``sympy.lambdify`` for a node the compiler does
+    not print."""
+    from ..local.codegen import UnsupportedExpression, compile_expressions
+
+    try:
+        fn = compile_expressions([expr], args, "numpy")
+    except UnsupportedExpression:
+        return sympy.lambdify(args, expr, modules="numpy")
+    return _First(fn)
+
+
+class _First:
+    """The single output of a compiled list, called with positional arrays."""
+
+    def __init__(self, fn):
+        self.fn = fn
+
+    def __call__(self, *arrays):
+        return self.fn(arrays)[0]
 
 
 def _admissible_expressions(result) -> list:
@@ -182,18 +209,40 @@ class _Progress:
         sys.stderr.flush()
 
 
-def _evaluate(np, fn, arrays, report) -> object:
-    flat = [a.ravel() for a in arrays]
-    total = flat[0].size
+def _evaluate_block(fn, flat, report=None, offset: int = 0, total: int | None = None):
+    """``fn`` over aligned chunks of the flat arrays (also a cluster task)."""
+    import numpy as np
+
+    size = flat[0].size
+    total = size if total is None else total
     out = None
     with np.errstate(all="ignore"):
-        for start in range(0, total, _CHUNK):
+        for start in range(0, size, _CHUNK):
             part = fn(*(a[start:start + _CHUNK] for a in flat))
-            part = np.broadcast_to(np.asarray(part), (min(_CHUNK, total - start),))
+            part = np.broadcast_to(np.asarray(part), (min(_CHUNK, size - start),))
             if out is None:
-                out = np.empty(total, dtype=complex if np.iscomplexobj(part) else float)
+                out = np.empty(size, dtype=complex if np.iscomplexobj(part) else float)
+            elif np.iscomplexobj(part) and not np.iscomplexobj(out):
+                out = out.astype(complex)
             out[start:start + part.size] = part
-            report(min(start + _CHUNK, total), total)
+            if report is not None:
+                report(offset + min(start + _CHUNK, size), total)
+    return out
+
+
+def _evaluate(np, fn, arrays, report, scheduler=None) -> object:
+    flat = [a.ravel() for a in arrays]
+    total = flat[0].size
+    if scheduler is None:
+        out = _evaluate_block(fn, flat, report)
+    else:
+        from .cluster import map_tasks
+        block = _CHUNK * _CHUNKS_PER_TASK  # tasks split on chunk boundaries: same chunks
+        items = [(fn, [a[s:s + block] for a in flat]) for s in range(0, total, block)]
+        parts = map_tasks(scheduler, _evaluate_block, items)
+        kind = complex if any(np.iscomplexobj(p) for p in parts) else float
+        out = np.concatenate([np.asarray(p, dtype=kind) for p in parts])
+        report(total, total)
     if np.iscomplexobj(out):
         small = np.abs(out.imag) <= 1e-12 * (1 + np.abs(out.real))
         if np.all(small | ~np.isfinite(out)):
@@ -202,7 +251,7 @@ def _evaluate(np, fn, arrays, report) -> object:
 
 
 def sweep(result, quantity, grid: Mapping, *, values: Mapping | None = None,
-          progress: bool | str | Callable = "auto") -> Sweep:
+          progress: bool | str | Callable = "auto", scheduler=None) -> Sweep:
     """Evaluate a closed form of ``result`` over a grid of parameter values.
 
     Parameters
@@ -221,6 +270,11 @@ def sweep(result, quantity, grid: Mapping, *, values: Mapping | None = None,
         ``"auto"``/True: a line on stderr once the sweep has run for
         :data:`PROGRESS_AFTER` seconds; False: silent; a callable receives
         ``(done, total)`` after every chunk.
+    scheduler : dask.distributed.Client or str, optional
+        Evaluate the chunks as tasks on a dask cluster (each task gets the
+        compiled expression, rebuilt on the worker from its generated source,
+        and its slice of the grid); the values are identical to the serial
+        run.
 
     Returns
     -------
@@ -243,12 +297,41 @@ def sweep(result, quantity, grid: Mapping, *, values: Mapping | None = None,
     fn, sub, fixed = grid_function(result, expr, names, values)
     arrays = np.broadcast_arrays(*(np.asarray(grid[n], dtype=float) for n in names))
     report = _Progress(f"sweep {quantity}", progress)
-    out = _evaluate(np, fn, arrays, report)
+    out = _evaluate(np, fn, arrays, report, scheduler)
     ok = np.ones(out.shape, dtype=bool)
     for cond, relation in _admissible_expressions(result):
         cfn = grid_function(result, cond, names, values)[0]
-        c = np.real(_evaluate(np, cfn, arrays, lambda *a: None))
+        c = np.real(_evaluate(np, cfn, arrays, lambda *a: None, scheduler))
         ok &= (c > 0) if relation == ">" else (c != 0)
     return Sweep(quantity=str(quantity), expression=sub,
                  grid={n: a for n, a in zip(names, arrays)}, values=out, admissible=ok,
                  fixed=fixed)
+
+
+def evaluate_many(result, points: Mapping, quantities=("critical_value", "omega", "l1"), *,
+                  values: Mapping | None = None, scheduler=None) -> Mapping:
+    """Several quantities of ``result`` at many parameter points at once.
+
+    ``points`` maps parameter names to arrays (broadcast together); each
+    quantity is compiled once and evaluated in float64 chunks.  Returns a
+    read-only mapping ``{quantity: numpy array}`` with NaN where the Hopf point
+    does not exist (see :func:`sweep`).
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> from criticality import Model, hopf
+    >>> m = Model(["x", "y"], {"x": "y", "y": "-x + (mu - a)*y - x^2*y"}, {"mu": "real"})
+    >>> r = hopf(m, "mu", equilibrium={"x": 0, "y": 0})
+    >>> evaluate_many(r, {"a": np.array([0.0, 1.5])})["critical_value"]
+    array([0. , 1.5])
+    """
+    from types import MappingProxyType
+
+    out = {}
+    for q in quantities:
+        arr = sweep(result, q, points, values=values, progress=False,
+                    scheduler=scheduler).masked()
+        arr.setflags(write=False)
+        out[str(q)] = arr
+    return MappingProxyType(out)

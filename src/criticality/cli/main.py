@@ -22,7 +22,9 @@ Subcommands
 
 plus the subcommands registered by :mod:`criticality.cli.main.analyses` (``fold``,
 ``bautin``, ``bogdanov-takens``) and by :mod:`criticality.cli.main.checks` (the
-simulation check ``confirm`` and the diagrams ``plane`` and ``survey``).
+simulation check ``confirm`` and the diagrams ``plane`` and ``survey``) and by
+:mod:`criticality.cli.numeric` (the numeric Hopf curve ``curve`` and the batch
+analysis ``batch``).
 
 Exit status
 -----------
@@ -45,7 +47,7 @@ import argparse
 import sys
 import traceback
 
-from . import analyses, checks
+from . import analyses, checks, numeric
 from .options import UsageError as _UsageError
 from .options import add_analysis_options, analyse_from_args
 from .options import flags as _flags
@@ -167,7 +169,7 @@ def _subcommand(sub, name, handler, help_text, description, aliases=()):
 def _register_extensions(sub) -> None:
     """Subcommands of other modules: the analyses beyond Hopf, the simulation
     check and the diagrams."""
-    for module in (analyses, checks):
+    for module in (analyses, checks, numeric):
         module.register(sub)
 
 

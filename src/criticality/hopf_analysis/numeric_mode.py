@@ -1,253 +1,248 @@
-"""The numeric mode: a Hopf point located by mpmath when no closed form exists.
+"""The numeric mode: a Hopf point located numerically when no closed form exists.
 
-Pipeline place: model + guess -> **numeric Hopf point** -> the same normal-form
-machinery, run over a floating-point field -> :class:`HopfResult` with
-``status`` "numeric".
+Pipeline place: model + guess -> compiled Taylor data
+(:mod:`criticality.local.compiled`) -> **Newton on the Hopf system**
+(:mod:`criticality.local.numeric_hopf`) -> the engine's normal-form
+machinery over a numeric field -> :class:`HopfResult` with ``status``
+"numeric (k correct digits)".
 
-For models whose equilibrium has no closed form (exponential rate laws,
-Hill functions with a symbolic exponent, the Hodgkin-Huxley equations), the
-equilibrium and the critical value are found together by Newton's method on
-the augmented system
+For models whose equilibrium has no closed form (exponential rate laws, Hill
+functions with a symbolic exponent, the Hodgkin-Huxley equations, rings of
+tanh units), the equilibrium, the critical value, omega and the critical
+eigenvector are found together by Newton's method on the Hopf system (the
+eigenvector formulation, analytic Jacobian).  The model's derivatives are
+differentiated and compiled once per model (with common subexpressions
+removed) and kept in a small cache, so a further point of the same model,
+with other parameter values or another guess, costs only the numerics.
 
-    f(x, mu) = 0,     Delta_(n-1)(J(x, mu)) = 0,
-
-where ``Delta_(n-1)`` is the Hurwitz determinant of the characteristic
-polynomial (it vanishes where two eigenvalues sum to zero; a real pair
-+-kappa is rejected afterwards by requiring omega^2 > 0).  At the point, the
-Taylor coefficients are evaluated numerically and the engine's own exact
-algorithms run over :class:`MpField`, a field of mpmath numbers (the linear
-solves pivot on the largest entry): the eigen-data, the projection formula
-for ``c1`` and the normalization method (:mod:`criticality.local.lyapunov`) for
-``c1, c2, ...``.
-
-Accuracy.  The whole computation runs twice, at ``digits + 15`` and at
-``2 digits + 15`` significant digits; the number of digits on which the two
-runs agree (over the critical value, the equilibrium, omega, the
-transversality and the Lyapunov coefficients) is reported as the number of
-correct digits, and the values of the more precise run, rounded to
-``digits``, are returned.
+Accuracy.  Up to 13 digits the whole computation runs in float64; the
+number of correct digits is estimated from the condition number of the Newton
+matrix (``cond * eps``, the first-order bound), the last Newton correction and
+the agreement of two routes to ``c1`` (a dense complex projection formula
+and the engine's realified one).  If that estimate falls short of the digits
+asked, or more digits are asked, the float64 point is refined in mpmath, and
+the analysis runs twice, at ``digits + 15`` and ``2 digits + 15`` significant
+digits; the number of digits on which the two runs agree (critical value,
+equilibrium, omega, transversality and Lyapunov coefficients) is reported as
+the number of correct digits, and the values of the more precise run,
+rounded to ``digits``, are returned.
 """
 
 from __future__ import annotations
 
+import math
+from collections import OrderedDict
 from typing import Mapping
 
 import mpmath
 import sympy
 
-from ..algebra.quadratic import QuadraticElement, QuadraticExtension
-from ..budget import checkpoint
-from ..local.eigenbasis import Eigenbasis
-from ..errors import DegenerateHopfError, EquilibriumNotFoundError, NoHopfPointError, ParameterError
+from ..errors import NoHopfPointError, ParameterError
+from ..local.compiled import CompiledTaylor
 from ..local.lyapunov import complex_normal_form
 from ..local.prepare import check_order, resolve_parameter
+from ..local.numeric_hopf import (FloatField, HopfSystem, MpField, eigen_data, engine_eigenbasis,
+                                  numpy_projection_c1, numpy_projection_c1_real,
+                                  mp_projection_c1, numpy_transversality)
 from ..local.projection import projection_c1
-from ..local.taylor import TaylorForms, raw_taylor
 
-__all__ = ["MpField", "locate_hopf_point", "hopf_numeric"]
+__all__ = ["hopf_numeric", "numeric_setup", "NumericSetup", "FLOAT64_DIGITS", "guess_vector",
+           "nu_to_complex"]
 
-
-class MpField:
-    """The real numbers at the current mpmath precision, as an engine field.
-
-    ``size`` is minus the absolute value, so that the engine's size-aware
-    pivoting becomes partial pivoting on the largest entry.
-    """
-
-    backend = "mpmath"
-    symbols: tuple = ()
-    level = 0
-
-    def __init__(self):
-        self.zero = mpmath.mpf(0)
-        self.one = mpmath.mpf(1)
-
-    def __call__(self, value):
-        if isinstance(value, QuadraticElement):
-            return value
-        if isinstance(value, sympy.Basic):
-            return mpmath.mpf(sympy.N(value, mpmath.mp.dps + 5))
-        return mpmath.mpf(value)
-
-    def size(self, x):
-        return -abs(x)
-
-    def to_sympy(self, x):
-        return sympy.Float(x, mpmath.mp.dps)
-
-    def is_zero(self, x) -> bool:
-        return not x
+#: the most digits the float64 route may report
+FLOAT64_DIGITS = 13
+_CACHE: "OrderedDict[tuple, CompiledTaylor]" = OrderedDict()
+_CACHE_SIZE = 16
 
 
-# -- locating the point ------------------------------------------------------------------
-
-def _charpoly(J):
-    """``[1, a1, ..., an]`` of ``det(lambda I - J)`` (Faddeev-LeVerrier)."""
-    n = J.rows
-    coeffs = [mpmath.mpf(1)]
-    M = mpmath.zeros(n, n)
-    eye = mpmath.eye(n)
-    for k in range(1, n + 1):
-        M = J * M + coeffs[-1] * eye
-        coeffs.append(-sum((J * M)[i, i] for i in range(n)) / k)
-    return coeffs
+_VALUES: "OrderedDict[tuple, dict]" = OrderedDict()
 
 
-def _hurwitz(coeffs, k):
-    m = len(coeffs) - 1
-    H = mpmath.matrix(k, k)
-    for i in range(1, k + 1):
-        for j in range(1, k + 1):
-            idx = 2 * j - i
-            H[i - 1, j - 1] = coeffs[idx] if 0 <= idx <= m else 0
-    return mpmath.det(H)
+def _exact_values(model, values: dict) -> dict:
+    """``model.value_substitution(values)``, remembered for repeated calls."""
+    try:
+        key = (model._key(), tuple(sorted((k, v) for k, v in values.items())))
+        hash(key)
+    except TypeError:
+        return model.value_substitution(values)
+    hit = _VALUES.get(key)
+    if hit is None:
+        hit = _VALUES[key] = model.value_substitution(values)
+        while len(_VALUES) > 256:
+            _VALUES.popitem(last=False)
+    return hit
 
 
-class _System:
-    """Lambdified ``f``, its Jacobian and ``d f / d mu`` (mpmath code)."""
+class NumericSetup:
+    """A model compiled for the numeric mode: the compiled Taylor data, the
+    parameter symbols in order and their exact values, the bifurcation
+    parameter's index, and the float values for Newton."""
 
-    def __init__(self, equations, states, mu):
-        self.n = len(states)
-        args = list(states) + [mu]
-        F = sympy.Matrix(equations)
-        J = F.jacobian(list(states))
-        self.f = sympy.lambdify(args, list(F), modules="mpmath")
-        self.J = sympy.lambdify(args, J.tolist(), modules="mpmath")
-        self.f_mu = sympy.lambdify(args, list(F.diff(mu)), modules="mpmath")
-        self.J_mu = sympy.lambdify(args, J.diff(mu).tolist(), modules="mpmath")
-
-    def residual(self, y):
-        J = mpmath.matrix(self.J(*y))
-        return list(self.f(*y)) + [_hurwitz(_charpoly(J), self.n - 1)]
-
-
-def _newton(system, y, tol):
-    y = [mpmath.mpf(v) for v in y]
-    m = len(y)
-    h = mpmath.mpf(10) ** (-(mpmath.mp.dps // 3))
-    res = system.residual(y)
-    for _ in range(200):
-        checkpoint()
-        norm = max(abs(r) for r in res)
-        if norm < tol:
-            return y
-        Jm = mpmath.matrix(m, m)
-        for j in range(m):
-            step = h * max(1, abs(y[j]))
-            yp, ym = list(y), list(y)
-            yp[j] += step
-            ym[j] -= step
-            rp, rm = system.residual(yp), system.residual(ym)
-            for i in range(m):
-                Jm[i, j] = (rp[i] - rm[i]) / (2 * step)
-        try:
-            delta = mpmath.lu_solve(Jm, mpmath.matrix([-r for r in res]))
-        except ZeroDivisionError:
-            break
-        t = mpmath.mpf(1)
-        while t > mpmath.mpf(2) ** -30:
-            trial = [a + t * delta[i] for i, a in enumerate(y)]
-            try:
-                r_trial = system.residual(trial)
-            except (ZeroDivisionError, ValueError):
-                r_trial = None
-            if r_trial is not None and max(abs(r) for r in r_trial) < norm:
-                y, res = trial, r_trial
-                break
-            t /= 2
+    def __init__(self, model, parameter: str, values, order: int, along: tuple = ()):
+        if parameter in model.states:
+            raise ParameterError(f"'{parameter}' is a state variable, not a parameter")
+        model.parameter(parameter)  # did-you-mean on an unknown name
+        for a in along:
+            model.parameter(a)
+        given = dict(values or {})
+        clash = sorted(set(given) & {parameter, *along})
+        if clash:
+            raise ParameterError(f"{', '.join(map(repr, clash))} is varied, so it cannot also "
+                                 "be given a fixed value in values=")
+        defaults = {k: v for k, v in model.defaults().items()
+                    if k not in given and k not in (parameter, *along)}
+        exact = _exact_values(model, {**defaults, **given})
+        symbols = list(model.parameter_symbols)
+        names = [s.name for s in symbols]
+        varied = {parameter, *along}
+        missing = [n for n in names if n not in varied and model.symbols[n] not in exact]
+        if missing:
+            raise ParameterError(
+                f"the numeric mode needs a value for every parameter except '{parameter}'; "
+                f"no value for {', '.join(map(repr, missing))} (give values={{...}} or "
+                "defaults in the model)")
+        self.model = model
+        self.parameter = parameter
+        self.names = names
+        self.mu_index = names.index(parameter)
+        self.along_index = tuple(names.index(a) for a in along)
+        self.exact = [exact.get(s, sympy.Integer(0)) for s in symbols]
+        self.floats = [float(sympy.N(v, 20)) for v in self.exact]
+        active = (self.mu_index, *self.along_index)
+        key = (model._key(), tuple(names), active, order)
+        compiled = _CACHE.get(key)
+        if compiled is None:
+            compiled = CompiledTaylor(model.equations, model.state_symbols, symbols, active,
+                                      order)
+            _CACHE[key] = compiled
+            while len(_CACHE) > _CACHE_SIZE:
+                _CACHE.popitem(last=False)
         else:
-            break
-    raise EquilibriumNotFoundError(
-        "Newton's method did not converge from the guess to a point where f(x) = 0 and a pair "
-        "of eigenvalues sums to zero; give a guess closer to the Hopf point (state values and "
-        "the parameter value)")
+            _CACHE.move_to_end(key)
+        self.compiled = compiled
+
+    def system(self) -> HopfSystem:
+        return HopfSystem(self.compiled, self.floats, self.mu_index)
+
+    def mp_params(self, dps: int) -> list:
+        with mpmath.workdps(dps + 5):
+            return [mpmath.mpf(int(v)) if v.is_Integer else mpmath.mpf(sympy.N(v, dps + 5))
+                    for v in self.exact]
 
 
-def locate_hopf_point(equations, states, mu, guess, dps: int):
-    """``(x0, mu_c)`` as mpf numbers at ``dps`` digits, from ``guess``
-    (values for the states followed by the parameter)."""
-    system = _System(equations, states, mu)
-    with mpmath.workdps(dps):
-        y = _newton(system, guess, mpmath.mpf(10) ** (-dps + 5))
-    return y[:-1], y[-1], system
+def numeric_setup(model, parameter, values=None, order: int = 3, along: tuple = ()):
+    """The (cached) compiled setup of ``model`` for the numeric mode."""
+    return NumericSetup(model, parameter, values, order, along)
 
 
-# -- the normal form at the point -----------------------------------------------------------
+# -- float64 --------------------------------------------------------------------------------
 
-def _taylor(equations, states, point, order, K):
-    at = [sympy.Float(x, mpmath.mp.dps + 5) for x in point]
-    raw = raw_taylor(equations, states, at, order)
-    return TaylorForms.from_raw(raw, [K(x) for x in at], K, K)
-
-
-def _eigenbasis(A, K):
-    n = len(A)
-    M = mpmath.matrix(A)
-    E, ER = mpmath.eig(M)
-    k = max(range(n), key=lambda i: mpmath.im(E[i]) - 1e6 * abs(mpmath.re(E[i])))
-    omega = mpmath.im(E[k])
-    if omega <= 0 or abs(mpmath.re(E[k])) > abs(omega) * mpmath.mpf(10) ** (-mpmath.mp.dps // 2):
-        raise NoHopfPointError("at the located point no pair of eigenvalues lies on the imaginary "
-                               "axis away from zero (it is a real pair +-kappa: a neutral saddle)",
-                               reason="omega_squared_nonpositive")
-    W = omega ** 2
-    y = [ER[i, k] for i in range(n)]
-    v, Av = [mpmath.im(x) / omega for x in y], [mpmath.re(x) for x in y]
-    EL, LR = mpmath.eig(M.T)
-    kl = min(range(n), key=lambda i: abs(EL[i] - mpmath.mpc(0, omega)))
-    z = [LR[i, kl] for i in range(n)]
-    w, wA = [mpmath.im(x) / omega for x in z], [mpmath.re(x) for x in z]
-    N = QuadraticExtension(K, -W, "nu", root=sympy.Symbol("nu"))
-    q = [N.element(a, b) for a, b in zip(Av, v)]
-    pbar = [N.element(a, b) for a, b in zip(wA, w)]
-    norm = sum((a * b for a, b in zip(pbar, q)), N.zero)
-    pbar = [x / norm for x in pbar]
-    qq = sum(a * a for a in Av) + W * sum(b * b for b in v)
-    A2 = (M * M).tolist()
-    e2 = [-x for x in v]
-    dot = lambda a, b: sum(x * y for x, y in zip(a, b))  # noqa: E731
-    gram = ((dot(w, Av), dot(w, e2)), (dot(wA, Av), dot(wA, e2)),
-            dot(w, Av) * dot(wA, e2) - dot(w, e2) * dot(wA, Av))
-    return Eigenbasis(A, A2, W, v, Av, q, pbar, w, wA, qq, K, N, gram), E, k
-
-
-def _cvalue(N, x):
-    """An element of the nu-extension as an mpc number."""
+def nu_to_complex(N, x, omega):
     a, b = N.components(x)
-    return mpmath.mpc(a, b * mpmath.sqrt(-N.radicand))
+    return complex(a) + 1j * complex(b) * omega
 
 
-def _run(equations, states, mu, guess, dps, order):
-    """Every quantity at ``dps`` digits (a dict of mpmath numbers)."""
+def _others_max_re(np, A, omega):
+    lam = np.linalg.eigvals(np.asarray(A, dtype=float))
+    order = np.argsort(np.abs(lam - 1j * omega))
+    keep = [z for i, z in enumerate(lam) if i not in (order[0],)]
+    keep.sort(key=lambda z: abs(z + 1j * omega))
+    rest = keep[1:]
+    return max((z.real for z in rest), default=-1.0), lam
+
+
+def run_float(setup: NumericSetup, pt, order: int) -> dict:
+    """Every quantity in float64 at the located point, with the estimated
+    number of correct digits (key ``"correct"``)."""
+    import numpy as np
+
+    ct = setup.compiled
+    dense = ct.dense()
+    vals = np.array(ct.values(pt.x, pt.params, "math"), dtype=float)
+    A, pbar = eigen_data(ct, vals, pt.omega, pt.q, "numpy")
+    c1_dense = numpy_projection_c1(dense, vals, A, pt.omega, pt.q, pbar)
+    if order == 3:  # realified solves: the second route to c1
+        cs = [complex(numpy_projection_c1_real(dense, vals, A, pt.omega, pt.q, pbar))]
+    else:  # the engine's normalization method over float64
+        K = FloatField()
+        eb = engine_eigenbasis(A, pt.omega, pt.q, pbar, K)
+        taylor = ct.taylor_forms(vals, K, order)
+        N = eb.nu_field
+        cs = [nu_to_complex(N, c, pt.omega) for c in complex_normal_form(taylor, eb, order)]
+    dlam = complex(numpy_transversality(dense, vals, A, pt.q, pbar, 0))
+    others, lam = _others_max_re(np, A, pt.omega)
+    eps = 2.2e-16
+    spread = abs(c1_dense - cs[0]) / max(abs(cs[0]), 1e-300)
+    err = max(pt.condition * eps, pt.correction, spread, 4 * eps)
+    correct = max(0, min(FLOAT64_DIGITS, int(math.floor(-math.log10(err)))))
+    qn = pt.q / math.sqrt(np.vdot(pt.q, pt.q).real)
+    with mpmath.workdps(20):
+        return {
+            "x0": [mpmath.mpf(float(v)) for v in pt.x], "mu_c": mpmath.mpf(pt.mu),
+            "omega": mpmath.mpf(pt.omega), "W": mpmath.mpf(pt.omega) ** 2,
+            "c": [mpmath.mpc(c) for c in cs], "c1_projection": mpmath.mpc(complex(c1_dense)),
+            "dlam": mpmath.mpc(dlam), "q": [mpmath.mpc(complex(z)) for z in qn],
+            "p": [mpmath.mpc(complex(z)) for z in (pbar.conj() * np.vdot(pt.q, pt.q).real /
+                                                   math.sqrt(np.vdot(pt.q, pt.q).real))],
+            "A": [[mpmath.mpf(float(a)) for a in row] for row in A],
+            "eigenvalues": [mpmath.mpc(complex(z)) for z in lam],
+            "others_max_re": mpmath.mpf(float(others)), "correct": correct,
+        }
+
+
+# -- mpmath ---------------------------------------------------------------------------------
+
+def run_mp(setup: NumericSetup, system: HopfSystem, pt, dps: int, order: int,
+           routes: bool = True) -> dict:
+    """Every quantity at ``dps`` digits (mpmath), from the float64 point;
+    without ``routes`` (order 3) only the projection formula gives ``c1``."""
+    import numpy as np
+
+    ct = setup.compiled
+    exact = setup.mp_params(dps)
+    x, mu, om, q, pm = system.refine(pt, dps, exact)
     with mpmath.workdps(dps):
-        x0, mu_c, system = locate_hopf_point(equations, states, mu, guess, dps)
+        pm = list(exact)
+        pm[setup.mu_index] = mu
+        vals = ct.values(x, pm, "mpmath")
+        A, pbar = eigen_data(ct, vals, om, q, "mpmath")
         K = MpField()
-        eqs = [e.xreplace({mu: sympy.Float(mu_c, dps + 5)}) for e in equations]
-        taylor = _taylor(eqs, states, x0, order, K)
-        A = taylor.jacobian()
-        eb, eigs, k = _eigenbasis(A, K)
+        eb = engine_eigenbasis(A, om, q, pbar, K)
+        taylor = ct.taylor_forms(vals, K, order)
         N = eb.nu_field
         c1p = projection_c1(taylor, eb) / eb.qq
-        cs = complex_normal_form(taylor, eb, order)
-        y = list(x0) + [mu_c]
-        A_mu = mpmath.matrix(system.J_mu(*y))
-        f_mu = mpmath.matrix(list(system.f_mu(*y)))
+        if order > 3:
+            cs = complex_normal_form(taylor, eb, order)
+        elif routes:  # the second route: complex solves on the compiled tensors
+            c1 = mp_projection_c1(ct, vals, A, om, q, pbar)
+            cs = [N.element(mpmath.re(c1), mpmath.im(c1) / om)]
+        else:
+            cs = [c1p]
+        n = ct.n
+        f_mu = mpmath.matrix(n, 1)
+        for i, pos in ct.layout.f_p[0]:
+            f_mu[i] = vals[pos]
         dx = mpmath.lu_solve(mpmath.matrix(A), -f_mu)
-        dx = [N(dx[i]) for i in range(len(states))]
-        q = eb.q
-        dA_q = [sum((N(A_mu[i, j]) * q[j] for j in range(len(q))), N.zero) for i in range(len(q))]
-        Bq = taylor.form(2, q, dx)
+        dxN = [N(dx[i]) for i in range(n)]
+        dA_q = [N.zero] * n
+        for i, j, pos in ct.layout.J_p[0]:
+            dA_q[i] = dA_q[i] + N(vals[pos]) * eb.q[j]
+        Bq = taylor.form(2, eb.q, dxN)
         dlam = sum((a * (b + c) for a, b, c in zip(eb.pbar, dA_q, Bq)), N.zero)
-        omega = mpmath.sqrt(eb.W)
-        others = [e for i, e in enumerate(eigs) if abs(e - mpmath.mpc(0, omega)) > 1e-6 * omega
-                  and abs(e + mpmath.mpc(0, omega)) > 1e-6 * omega]
+
+        def cv(z):
+            a, b = N.components(z)
+            return mpmath.mpc(a, b * om)
+
+        others, lam = _others_max_re(np, [[float(a) for a in row] for row in A], float(om))
+        root = mpmath.sqrt(eb.qq)
         return {
-            "x0": x0, "mu_c": mu_c, "omega": omega, "W": eb.W,
-            "c": [_cvalue(N, c) for c in cs], "c1_projection": _cvalue(N, c1p),
-            "dlam": _cvalue(N, dlam), "q": [_cvalue(N, x) / mpmath.sqrt(eb.qq) for x in q],
-            "p": [mpmath.conj(_cvalue(N, x)) * mpmath.sqrt(eb.qq) for x in eb.pbar],
-            "A": [[a for a in row] for row in A], "eigenvalues": list(eigs),
-            "others_max_re": max((mpmath.re(e) for e in others), default=mpmath.mpf(-1)),
+            "x0": list(x), "mu_c": mu, "omega": om, "W": om ** 2,
+            "c": [cv(c) for c in cs], "c1_projection": cv(c1p), "dlam": cv(dlam),
+            "q": [cv(z) / root for z in eb.q],
+            "p": [mpmath.conj(cv(z)) * root for z in eb.pbar],
+            "A": [list(row) for row in A], "eigenvalues": [mpmath.mpc(complex(z)) for z in lam],
+            "others_max_re": mpmath.mpf(float(others)),
         }
 
 
@@ -261,12 +256,15 @@ def _agreement(a, b, digits, cap):
     for x, y in pairs:
         diff = abs(x - y)
         if diff:
-            rel = diff if abs(y) < tiny else diff / abs(y)  # absolute for values below 10^-digits
+            rel = diff if abs(y) < tiny else diff / abs(y)
             worst = min(worst, int(mpmath.floor(-mpmath.log10(rel))))
     return max(worst, 0)
 
 
-def _guess_vector(model, parameter, guess, states):
+def guess_vector(model, parameter, guess):
+    if not isinstance(guess, Mapping):
+        raise ParameterError(f"guess must be a mapping {{name: value}}, got "
+                             f"{type(guess).__name__}")
     known = set(model.states) | {parameter}
     bad = [k for k in guess if k not in known]
     if bad:
@@ -284,29 +282,20 @@ def _guess_vector(model, parameter, guess, states):
         if isinstance(value, str):
             value = model.parse(value, context=f"guess for '{key}'")
         try:
-            out.append(mpmath.mpf(sympy.N(sympy.sympify(value, strict=True), 50)))
+            if isinstance(value, (int, float)):
+                number = float(value)
+            else:
+                number = float(sympy.N(sympy.sympify(value, strict=True), 20))
         except (TypeError, ValueError, sympy.SympifyError) as exc:
             raise ParameterError(f"the guess for '{key}' must be a number, got {value!r}") from exc
+        if not math.isfinite(number):
+            raise ParameterError(f"the guess for '{key}' must be finite, got {value!r}")
+        out.append(number)
     return out
 
 
-def _fixed_model(model, parameter, values):
-    model = model.with_values(**dict(values)) if values else model
-    defaults = {k: v for k, v in model.defaults().items() if k != parameter}
-    if defaults:
-        model = model.with_values(**defaults)
-    model.parameter(parameter)
-    rest = [p.name for p in model.parameters if p.name != parameter]
-    if rest:
-        raise ParameterError(
-            f"the numeric mode needs a value for every parameter except '{parameter}'; "
-            f"no value for {', '.join(map(repr, rest))} (give values={{...}} or defaults in "
-            "the model)")
-    return model
-
-
 def hopf_numeric(model, parameter: str, guess: Mapping, *, digits: int = 30, order: int = 3,
-                 values: Mapping | None = None):
+                 values: Mapping | None = None, radius: float = 1.0):
     """Locate a Hopf point numerically from ``guess`` and analyse it.
 
     Parameters
@@ -318,39 +307,59 @@ def hopf_numeric(model, parameter: str, guess: Mapping, *, digits: int = 30, ord
     guess : mapping
         Starting values for every state and for ``parameter``.
     digits : int
-        Significant digits wanted (5 to 500).
+        Significant digits wanted (5 to 500); up to 13 the analysis runs in
+        float64 when its error estimate allows.
     order : int
         Odd, >= 3: ``2k + 1`` gives ``l1 .. lk``.
     values : mapping, optional
         Values for other parameters.
+    radius : float
+        The trust region: Newton's iterates stay within this scaled distance
+        (max norm, scale ``max(1, |guess|)`` per coordinate) of the guess; a
+        Hopf point farther away is refused.
 
     Returns
     -------
     HopfResult
         With ``status`` saying that it is numeric and how many digits are
-        correct (two runs at different precisions compared).
+        correct, and a note giving the distance of the point from the guess.
     """
     from .numeric_result import numeric_result
 
-    if not 5 <= digits <= 500:
-        raise ParameterError(f"digits must be between 5 and 500, got {digits}")
+    if isinstance(digits, bool) or not isinstance(digits, int) or not 5 <= digits <= 500:
+        raise ParameterError(f"digits must be an integer between 5 and 500, got {digits!r}")
     check_order(order)
-    base, parameter = resolve_parameter(model, parameter, values)
-    fixed = _fixed_model(base, parameter, {})
-    if len(fixed.states) < 2:
+    if not isinstance(radius, (int, float)) or not radius > 0:
+        raise ParameterError(f"radius must be a positive number, got {radius!r}")
+    model, parameter = resolve_parameter(model, parameter, values)
+    values = None
+    if len(model.states) < 2:
         raise NoHopfPointError("a Hopf bifurcation needs at least two state variables",
                                reason="empty_critical_set")
-    mu = fixed.symbols[parameter]
-    states = fixed.state_symbols
-    start = _guess_vector(fixed, parameter, guess, states)
-    low = _run(fixed.equations, states, mu, start, digits + 15, order)
-    refined = [*low["x0"], low["mu_c"]]
-    high = _run(fixed.equations, states, mu, refined, 2 * digits + 15, order)
+    setup = numeric_setup(model, parameter, values, order)
+    start = guess_vector(model, parameter, guess)
+    system = setup.system()
+    pt = system.solve(start[:-1], start[-1], radius=float(radius))
+    where = (f"the Hopf point lies at scaled distance {pt.distance:.3g} from the guess "
+             f"(Newton: {pt.iterations} steps within the trust radius {float(radius):g})")
+    if digits <= FLOAT64_DIGITS:
+        d = run_float(setup, pt, order)
+        if d["correct"] >= digits:
+            routes = abs(d["c1_projection"] - d["c"][0]) <= 10.0 ** (-digits) * \
+                max(1, abs(d["c"][0]))
+            how = (f"numeric mode (float64): the Hopf point was located by Newton's method from "
+                   f"the guess; the error estimate (condition number, last correction, two "
+                   f"routes to c1) gives {d['correct']} correct digits; {where}")
+            return numeric_result(model, parameter, d, digits, digits, d["correct"], routes,
+                                  order, how)
+    low = run_mp(setup, system, pt, digits + 15, order, routes=False)
+    high = run_mp(setup, system, pt, 2 * digits + 15, order)
     with mpmath.workdps(2 * digits + 15):
         correct = _agreement(low, high, digits, digits + 15)
         routes = abs(high["c1_projection"] - high["c"][0]) <= mpmath.mpf(10) ** (-digits) * \
             max(1, abs(high["c"][0]))
-    if high["W"] <= 0:
-        raise DegenerateHopfError("omega^2 <= 0 at the located point", reason="zero_eigenvalue")
-    return numeric_result(fixed, model, parameter, high, digits, min(correct, digits), correct,
-                          routes, order)
+    how = (f"numeric mode: the Hopf point was located by Newton's method from the guess; runs "
+           f"at {digits + 15} and {2 * digits + 15} significant digits agree to {correct} "
+           f"digits, so {min(correct, digits)} digits are reported as correct; {where}")
+    return numeric_result(model, parameter, high, digits, min(correct, digits), correct,
+                          routes, order, how)

@@ -7,6 +7,8 @@ result is numeric and how many of its digits are correct.
 
 from __future__ import annotations
 
+from collections.abc import Mapping
+
 import mpmath
 import sympy
 
@@ -18,12 +20,19 @@ __all__ = ["numeric_result"]
 
 
 def _f(x, digits):
+    if digits <= 15:  # float64 results: no decimal round trip needed
+        return sympy.Float(float(x), digits)
     return sympy.Float(mpmath.nstr(x, digits + 2, strip_zeros=False), digits)
 
 
 def _c(x, digits):
     x = mpmath.mpc(x)
-    return _f(x.real, digits) + sympy.I * _f(x.imag, digits)
+    re, im = _f(x.real, digits), _f(x.imag, digits)
+    if not re or not im:
+        return re + sympy.I * im
+    # the canonical form sympy's arithmetic would build (a Float, then Float*I),
+    # assembled directly: the arithmetic costs more than the numeric analysis
+    return sympy.Add._from_args((re, sympy.Mul._from_args((im, sympy.I))))
 
 
 class _NumericDetails:
@@ -60,9 +69,38 @@ def _conditions(d, digits):
                   "pair +-kappa", _f(d["W"], digits), ">", "holds" if d["W"] > 0 else "fails"),
         Condition("transversal", "the pair crosses with non-zero speed: Re d lambda / d mu != 0",
                   _f(beta, digits), "!=", "holds" if abs(beta) > tol else "fails"),
-        Condition("others_stable", "the largest real part of the other eigenvalues is negative",
-                  _f(-others, digits), ">", "holds" if others < 0 else "fails"),
+        Condition("others_stable", "the largest real part of the other eigenvalues is negative "
+                  "(float64 eigenvalues)", _f(-others, min(digits, 15)), ">",
+                  "holds" if others < 0 else "fails"),
     )
+
+
+class _Amplitudes(Mapping):
+    """``{state: sqrt(k_j (mu - mu_c))}``, each expression built when first
+    read (building them all costs more than the numeric analysis itself)."""
+
+    def __init__(self, coeffs, offset):
+        self._coeffs, self._offset, self._built = dict(coeffs), offset, {}
+
+    def __getitem__(self, key):
+        if key not in self._built:
+            self._built[key] = sympy.sqrt(self._coeffs[key] * self._offset)
+        return self._built[key]
+
+    def __iter__(self):
+        return iter(self._coeffs)
+
+    def __len__(self):
+        return len(self._coeffs)
+
+    def __reduce__(self):
+        return (_Amplitudes, (self._coeffs, self._offset))
+
+    def __eq__(self, other):
+        return isinstance(other, Mapping) and dict(self.items()) == dict(other.items())
+
+    def __repr__(self):
+        return repr(dict(self.items()))
 
 
 def _cycle(d, digits, mu, mu_c, states, stable_others):
@@ -72,7 +110,7 @@ def _cycle(d, digits, mu, mu_c, states, stable_others):
     k = -beta / R
     offset = mu - mu_c
     coeffs = {s: _f(4 * k * abs(x) ** 2, digits) for s, x in zip(states, d["q"])}
-    amps = {s: sympy.sqrt(c * offset) for s, c in coeffs.items()}
+    amps = _Amplitudes(coeffs, offset)
     side = "above" if k > 0 else "below"
     slope = mpmath.im(d["dlam"]) - beta * mpmath.im(c1) / R
     stable = bool(R < 0 and stable_others)
@@ -80,9 +118,10 @@ def _cycle(d, digits, mu, mu_c, states, stable_others):
                            2 * sympy.pi / _f(d["omega"], digits), _f(slope, digits))
 
 
-def numeric_result(model, original, parameter, d, digits, correct, agreement, routes, order):
+def numeric_result(original, parameter, d, digits, correct, agreement, routes, order, how):
     """Build the result; ``correct`` digits are reported, ``agreement`` is the
-    raw number of digits on which the two runs agreed."""
+    raw estimate of correct digits, ``how`` the note that says how it was found."""
+    model = original
     with mpmath.workdps(digits + 10):
         mu = original.symbols[parameter]
         mu_c = _f(d["mu_c"], digits)
@@ -95,9 +134,7 @@ def numeric_result(model, original, parameter, d, digits, correct, agreement, ro
         if abs(l1) < mpmath.mpf(10) ** (-correct) * max(1, abs(c1) / omega):
             cls = "degenerate"
         status = f"numeric ({correct} correct digits)"
-        note = (f"numeric mode: the Hopf point was located by Newton's method from the guess; "
-                f"runs at {digits + 15} and {2 * digits + 15} significant digits agree to "
-                f"{agreement} digits, so {correct} digits are reported as correct")
+        note = how
         verdict = {"supercritical": "supercritical (numeric): l1 < 0",
                    "subcritical": "subcritical (numeric): l1 > 0",
                    "degenerate": "l1 is zero to the computed accuracy: the next Lyapunov "

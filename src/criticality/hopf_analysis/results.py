@@ -233,6 +233,14 @@ class HopfResult:
         merged.update(kwargs)
         return evaluate_result(self, merged, digits=digits)
 
+    def evaluate_many(self, points: Mapping, quantities=("critical_value", "omega", "l1"),
+                      **kwargs):
+        """Quantities at many parameter points: arrays in, arrays out
+        (float64, compiled once; see :func:`criticality.checks.sweeps.evaluate_many`)."""
+        from ..checks.sweeps import evaluate_many
+
+        return evaluate_many(self, points, quantities, **kwargs)
+
     # -- outputs -----------------------------------------------------------------------------
     def summary(self) -> str:
         """A readable plain-text summary (table of quantities, verdict, conventions)."""

@@ -51,7 +51,7 @@ def _expr(value):
     return text if text is not None else {"unrepresentable": sympy.sstr(value)}
 
 
-def _complex(value) -> dict:
+def nu_to_complex(value) -> dict:
     re, im = split_complex(value)
     return {"re": _expr(re), "im": _expr(im)}
 
@@ -150,8 +150,8 @@ def result_to_dict(result, *, point: Mapping | None = None, digits: int = 30) ->
         "omega": _expr(result.omega),
         "period": _expr(result.period),
         "transversality": _expr(result.transversality),
-        "eigenvalue_derivative": _complex(result.eigenvalue_derivative),
-        "c1": _complex(result.c1),
+        "eigenvalue_derivative": nu_to_complex(result.eigenvalue_derivative),
+        "c1": nu_to_complex(result.c1),
         "l1": _expr(result.l1),
         "planar_coefficient": _expr(result.planar_coefficient),
         "lyapunov_coefficients": [_expr(c) for c in result.lyapunov_coefficients],
