@@ -12,9 +12,11 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 from functools import cached_property
-from typing import Mapping
+from typing import ClassVar, Mapping
 
 import sympy
+
+from ..renderers import render
 
 __all__ = ["Conventions", "CONVENTIONS", "CyclePrediction", "ReducedSystemView", "HopfResult"]
 
@@ -144,6 +146,8 @@ class HopfResult:
     parameters; see :attr:`conventions` for the normalisation.
     """
 
+    result_kind: ClassVar[str] = "hopf"
+
     model: object
     parameter: str
     parameter_symbol: sympy.Symbol
@@ -233,29 +237,37 @@ class HopfResult:
         merged.update(kwargs)
         return evaluate_result(self, merged, digits=digits)
 
-    # -- outputs -----------------------------------------------------------------------------
+    # -- outputs (rendered by the renderers registered for the kind "hopf") ----------------
     def summary(self) -> str:
-        """A readable plain-text summary (table of quantities, verdict, conventions)."""
-        from ..outputs.text import result_summary
+        """A short plain-text summary (at most 40 lines): the verdict, the main
+        quantities, the condition, one line of conventions, the cautions."""
+        return render(self, "text")
 
-        return result_summary(self)
+    def details(self) -> str:
+        """The full plain text: every quantity, the conditions, the cycle, the
+        notes, every convention and caution."""
+        return render(self, "details")
 
     def to_latex(self) -> str:
         """Every quantity as a LaTeX equation (an ``align``-ready block)."""
-        from ..outputs.latex import result_to_latex
+        return render(self, "latex")
 
-        return result_to_latex(self)
+    def to_report(self, **options) -> str:
+        """The LaTeX derivation report (``fragment=True``: no preamble)."""
+        return render(self, "report", **options)
 
     def to_json(self, **kwargs) -> str:
         """The result as JSON in the documented, versioned schema."""
-        from ..outputs.json_io import result_to_json
-
-        return result_to_json(self, **kwargs)
+        return render(self, "json", **kwargs)
 
     def _repr_latex_(self):
-        from ..outputs.latex import result_to_notebook_latex
+        return render(self, "notebook_latex")
 
-        return result_to_notebook_latex(self)
+    def _repr_html_(self):
+        return render(self, "html")
+
+    def _repr_markdown_(self):
+        return render(self, "markdown")
 
     def _latex(self, printer=None):
         return self.to_latex()

@@ -25,6 +25,7 @@ from __future__ import annotations
 
 import sympy
 
+from ..renderers import register_renderer
 from .latex_expr import latex_name
 from .latex_sections import Document, report_body
 
@@ -146,3 +147,8 @@ def latex_report(result, width: float = 66) -> str:
                         "\\begin{document}\n\\maketitle\n")
     return head + report_body(doc) + "\n\\end{document}\n"
 
+
+
+register_renderer("hopf", "latex", result_to_latex)
+register_renderer("hopf", "notebook_latex", result_to_notebook_latex)
+register_renderer("hopf", "report", latex_report)

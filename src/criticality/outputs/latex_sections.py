@@ -11,10 +11,9 @@ defined right after the first block that uses them.
 
 from __future__ import annotations
 
-import unicodedata
-
 import sympy
 
+from .escape import tex_text
 from .latex_expr import Notation, TexWriter, latex_name
 from .render import (CAUTIONS, classification_sentence, per_offset, reduced_system_or_none,
                       split_complex, transversality_sentence)
@@ -22,30 +21,7 @@ from ..hopf_analysis.results import CONVENTIONS
 
 __all__ = ["Document", "report_body", "tex_text", "join_rows"]
 
-_SPECIAL = {"\\": r"\textbackslash{}", "{": r"\{", "}": r"\}", "$": r"\$", "&": r"\&",
-            "#": r"\#", "^": r"\^{}", "_": r"\_", "%": r"\%", "~": r"\~{}",
-            "<": r"\textless{}", ">": r"\textgreater{}", "|": r"\textbar{}",
-            "*": r"*\allowbreak{}", "/": r"/\allowbreak{}"}
 _RELATIONS = {">": ">", "<": "<", "!=": "\\neq", ">=": "\\geq", "<=": "\\leq", "==": "="}
-
-
-def tex_text(text: str) -> str:
-    """Plain text made safe for LaTeX (specials escaped, non-ASCII letters
-    reduced to ASCII, long formulas in text allowed to break).
-
-    >>> tex_text("a_1 > 5% & {b}")
-    'a\\\\_1 \\\\textgreater{} 5\\\\% \\\\& \\\\{b\\\\}'
-    """
-    plain = unicodedata.normalize("NFKD", str(text))
-    out = []
-    for ch in plain:
-        if unicodedata.combining(ch):
-            continue
-        if ord(ch) > 126 or (ord(ch) < 32 and ch not in "\n\t"):
-            out.append("?")
-        else:
-            out.append(_SPECIAL.get(ch, ch))
-    return "".join(out)
 
 
 def join_rows(rows: list) -> str:

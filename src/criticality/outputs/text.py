@@ -15,6 +15,7 @@ import textwrap
 
 import mpmath
 
+from ..renderers import register_renderer
 from .render import (CAUTIONS, classification_sentence, cycle_sentences, model_text,
                       per_offset, split_complex, transversality_sentence, wrap_expression)
 
@@ -209,3 +210,7 @@ def numeric_summary(numeric, digits: int | None = None) -> str:
     lines.append("  eigenvalues of the Jacobian at the critical point:")
     lines += [f"    {_number(e, min(d, 20))}" for e in numeric.eigenvalues]
     return "\n".join(lines) + "\n"
+
+
+register_renderer("hopf", "text", result_summary)
+register_renderer("hopf", "details", result_summary)
