@@ -69,9 +69,9 @@ def add_provider(kind: str, *modules: str) -> None:
 def _load(kind: str) -> None:
     if kind in _LOADED:
         return
-    _LOADED.add(kind)
     for module in PROVIDERS.get(kind, ()):
         import_module(module)
+    _LOADED.add(kind)
 
 
 def renderer(kind: str, fmt: str) -> Callable[..., Any]:
