@@ -34,12 +34,13 @@ __all__ = ["FORMATS", "PROVIDERS", "register_renderer", "add_provider", "rendere
 
 #: the formats a renderer may be registered for
 FORMATS = ("text", "details", "latex", "notebook_latex", "report", "json", "dict", "html",
-           "markdown")
+           "markdown", "numpy", "c")
 
 #: kind -> the output modules that register its renderers (imported on first use)
 PROVIDERS: dict = {
     "hopf": ("criticality.outputs.text", "criticality.outputs.latex",
-             "criticality.outputs.json_io", "criticality.outputs.notebook"),
+             "criticality.outputs.json_io", "criticality.outputs.notebook",
+             "criticality.outputs.export"),
     "hopf_numeric_point": ("criticality.outputs.notebook",),
     "fold": ("criticality.outputs.simple", "criticality.outputs.notebook"),
     "bautin": ("criticality.outputs.simple", "criticality.outputs.notebook"),

@@ -19,6 +19,8 @@ Subcommands
     the analyses the package offers (from :mod:`criticality.registry`)
 ``demo``
     analyse a bundled invented model and show every output
+``export``
+    the closed forms as a standalone numpy module or as C code
 
 plus the subcommands registered by :mod:`criticality.cli.main.analyses` (``fold``,
 ``bautin``, ``bogdanov-takens``) and by :mod:`criticality.cli.main.checks` (the
@@ -248,9 +250,9 @@ def _subcommand(sub, name, handler, help_text, description, aliases=()):
 def _register_extensions(sub) -> None:
     """Subcommands of other modules: the analyses beyond Hopf, the simulation
     check and the diagrams."""
-    from . import analyses, checks
+    from . import analyses, checks, export
 
-    for module in (analyses, checks):
+    for module in (analyses, checks, export):
         module.register(sub)
 
 

@@ -260,6 +260,14 @@ class HopfResult:
         """The result as JSON in the documented, versioned schema."""
         return render(self, "json", **kwargs)
 
+    def to_numpy_module(self) -> str:
+        """The closed forms as a standalone Python module (numpy only)."""
+        return render(self, "numpy")
+
+    def to_c(self, prefix: str = "hopf_") -> str:
+        """The closed forms as C99 functions (``math.h`` only)."""
+        return render(self, "c", prefix=prefix)
+
     def _repr_latex_(self):
         return render(self, "notebook_latex")
 
