@@ -158,6 +158,9 @@ def _analyse(model, parameter, equilibrium, eliminate, order, values, assume, ba
             "omega^2 <= 0 on this branch under the declared assumptions: the two eigenvalues "
             "that sum to zero are a real pair +-kappa (a neutral saddle), not a pair crossing "
             "the imaginary axis", reason="omega_squared_nonpositive")
+    if fixed:  # the outputs list the parameters fixed before the analysis
+        records = tuple((full.parameter(s.name), v) for s, v in fixed.items())
+        results = [replace(r, fixed_parameters=records) for r in results]
     return tuple(results)
 
 

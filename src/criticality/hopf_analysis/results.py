@@ -178,6 +178,8 @@ class HopfResult:
     conventions: Conventions = CONVENTIONS
     status: str = "closed form"
     _details: object = field(default=None, repr=False, compare=False)
+    #: ``(parameter record, value)`` of the parameters fixed before the analysis (``values=``)
+    fixed_parameters: tuple = ()
 
     # -- computed on first access (display-oriented, not needed for the verdict) ----------
     @cached_property

@@ -129,7 +129,8 @@ def result_to_dict(result, *, point: Mapping | None = None, digits: int = 30) ->
     :func:`result_to_json`)."""
     conventions = result.conventions
     body = {
-        "model": _model(result.model),
+        "model": dict(_model(result.model), fixed={
+            p.name: _expr(v) for p, v in getattr(result, "fixed_parameters", ())}),
         "parameter": result.parameter,
         "assumptions": dict(result.assumptions),
         "equilibrium": {"method": result.equilibrium_how,

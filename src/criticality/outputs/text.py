@@ -112,7 +112,12 @@ def _header(result, width: int) -> list:
         "Hopf bifurcation"
     title += f" in the parameter {result.parameter}"
     branch = f"branch {result.branch_index + 1} of {result.branch_count}; {result.status}"
-    out = [title, "=" * min(len(title), width), f"({branch})", ""]
+    out = [title, "=" * min(len(title), width), f"({branch})"]
+    fixed = getattr(result, "fixed_parameters", ())
+    if fixed:
+        out += _paragraph("Fixed before the analysis: " + ", ".join(
+            f"{p.name} = {model_text(v)}" for p, v in fixed), width, "")
+    out.append("")
     how = result.equilibrium_how
     out.append(f"Equilibrium ({how})")
     for state, value in result.equilibrium.items():
