@@ -9,13 +9,14 @@ its file line where the model came from a file.
 
 from __future__ import annotations
 
+import warnings
 from types import MappingProxyType
 from typing import Mapping
 
 import sympy
 
 from .syntax import _suggest
-from ..errors import ExpressionError, InvalidModelError
+from ..errors import ExpressionError, InvalidModelError, NameTypoWarning
 from .expressions import convert_sympy, format_expression, name_problem, parse_expression
 from .core import (_NUMBER_TYPES, _PARAMETER_KEYS, Parameter, _assumption_problem, _constant,
                     _name_of, _sign_problem)
@@ -27,6 +28,9 @@ def _describe(value: object) -> str:
     kind = {bool: "a boolean", dict: "a table", list: "a list", str: "a string"}
     return kind.get(type(value), type(value).__name__)
 
+
+_GREEK = frozenset("alpha beta gamma delta epsilon zeta eta theta iota kappa lambda mu nu xi "
+                   "omicron pi rho sigma tau upsilon phi chi psi omega".split())
 
 class _Assembler:
     """Validates the pieces of a model, collecting every problem."""
@@ -266,6 +270,10 @@ class _Assembler:
             hint = _suggest(name, known)
             if hint:
                 note += f" (did you mean {' or '.join(map(repr, hint))}?)"
+            if hint and len(name) > 2 and name not in _GREEK:  # a Greek letter is deliberate
+                warnings.warn(NameTypoWarning(
+                    f"{unknown[name]} uses {name!r}, which is not declared (taken as a real "
+                    f"parameter); did you mean {' or '.join(map(repr, hint))}?"), stacklevel=2)
             self.notes.append(note)
             result.append(Parameter(name, "real", None, False))
         return result
