@@ -10,7 +10,7 @@ that a number copied into a paper can be traced to its normalisation and sign.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, fields, is_dataclass, replace
 from functools import cached_property
 from typing import ClassVar, Mapping
 
@@ -226,6 +226,41 @@ class HopfResult:
                 return c
         raise KeyError(key)
 
+    # -- the user's own symbols -------------------------------------------------------------
+    def with_declared_symbols(self) -> "HopfResult":
+        """This result with every expression in the model's
+        :attr:`~criticality.Model.declared_symbols` (each symbol carries its
+        declared assumption), so that ``sympy.Symbol("A", positive=True)``
+        matches.  The result itself uses :attr:`~criticality.Model.symbols`
+        (``Symbol(name, real=True)``), the symbols the computation ran in.
+
+        Examples
+        --------
+        >>> import sympy
+        >>> from criticality import Model, hopf
+        >>> m = Model(["x", "y"], {"x": "A - (B + 1)*x + x^2*y", "y": "B*x - x^2*y"},
+        ...           {"A": "positive", "B": "positive"})
+        >>> r = hopf(m, "B")
+        >>> r.critical_value.subs(m.symbols["A"], 2)
+        5
+        >>> A = sympy.Symbol("A", positive=True)
+        >>> r.with_declared_symbols().critical_value.subs(A, 2)
+        5
+        """
+        declared = self.model.declared_symbols
+        sub = {s: declared[name] for name, s in self.model.symbols.items()
+               if declared[name] is not s and declared[name] != s}
+        extra = {s: sympy.Symbol(s.name, real=True, **{self.assumptions[s.name]: True})
+                 for e in (self.critical_value, self.l1) for s in e.free_symbols
+                 if s not in sub and self.assumptions.get(s.name, "real") != "real"}
+        sub.update(extra)
+        if not sub:
+            return self
+        changes = {f.name: _swap(getattr(self, f.name), sub) for f in fields(self)
+                   if f.init and f.name not in ("model", "conventions", "assumptions",
+                                                "_details", "fixed_parameters")}
+        return replace(self, _details=_SwappedDetails(self._details, sub), **changes)
+
     # -- numeric ---------------------------------------------------------------------------
     def evaluate(self, values: Mapping | None = None, *, digits: int = 30, **kwargs):
         """Every quantity at a parameter point, to ``digits`` significant digits.
@@ -291,3 +326,29 @@ class HopfResult:
     def __repr__(self):
         return (f"HopfResult(parameter={self.parameter!r}, critical_value={self.critical_value}, "
                 f"classification={self.classification!r})")
+
+
+def _swap(value, sub: dict):
+    """``value`` (an expression, or a container or dataclass of them) with
+    the symbols replaced."""
+    if isinstance(value, (sympy.Basic, sympy.MatrixBase)):
+        return value.xreplace(sub)
+    if isinstance(value, Mapping):
+        return {k: _swap(v, sub) for k, v in value.items()}
+    if isinstance(value, tuple):
+        return tuple(_swap(v, sub) for v in value)
+    if is_dataclass(value) and not isinstance(value, type):
+        return replace(value, **{f.name: _swap(getattr(value, f.name), sub)
+                                 for f in fields(value) if f.init})
+    return value
+
+
+class _SwappedDetails:
+    """The display-oriented parts of a result, in other symbols."""
+
+    def __init__(self, inner, sub: dict):
+        self._inner, self._sub = inner, sub
+
+    def __getattr__(self, name):
+        method = getattr(self._inner, name)
+        return lambda *args, **kwargs: _swap(method(*args, **kwargs), self._sub)

@@ -264,6 +264,27 @@ class Model:
         """The symbols of the parameters, in parameter order."""
         return tuple(self.symbols[p.name] for p in self.parameters)
 
+    @property
+    def declared_symbols(self) -> dict:
+        """Name -> a sympy symbol carrying the declared assumption
+        (``Symbol("A", positive=True)`` for a positive parameter; states and
+        ``real`` parameters are ``Symbol(name, real=True)``, the same as
+        :attr:`symbols`).  ``result.with_declared_symbols()`` rewrites a
+        result in these, so that a user's own ``sympy.Symbol("A",
+        positive=True)`` matches.
+
+        >>> m = Model(["x"], {"x": "a - b*x"}, {"a": "positive", "b": "real"})
+        >>> m.symbols["a"] == sympy.Symbol("a", real=True)
+        True
+        >>> m.declared_symbols["a"] == sympy.Symbol("a", positive=True)
+        True
+        """
+        out = dict(self.symbols)
+        for p in self.parameters:
+            if p.assumption != "real":
+                out[p.name] = sympy.Symbol(p.name, real=True, **{p.assumption: True})
+        return out
+
     def parameter(self, name: str) -> Parameter:
         """The parameter called ``name``.
 
