@@ -32,7 +32,7 @@ __all__ = ["Model", "Parameter", "ASSUMPTIONS"]
 ASSUMPTIONS = ("real", "positive", "nonnegative", "nonzero", "negative")
 _SIGN_TEST = {"positive": ("is_positive", "> 0"), "nonnegative": ("is_nonnegative", ">= 0"),
               "negative": ("is_negative", "< 0"), "nonzero": ("is_nonzero", "!= 0")}
-_PARAMETER_KEYS = ("assume", "value", "description")
+_PARAMETER_KEYS = ("assume", "value", "description", "unit")
 _NUMBER_TYPES = (int, float, Fraction, sympy.Expr)
 
 
@@ -97,6 +97,8 @@ class Parameter:
         False for a name the equations use but the model did not declare.
     description : str or None
         What the parameter means, for people reading the model.
+    unit : str or None
+        Its unit (free text such as ``"1/day"``), for axis labels and tables.
     """
 
     name: str
@@ -104,12 +106,15 @@ class Parameter:
     default: sympy.Expr | None = None
     declared: bool = True
     description: str | None = None
+    unit: str | None = None
 
     def __post_init__(self):
         problems = [p for p in (name_problem(self.name), _assumption_problem(self.assumption))
                     if p is not None]
         if self.description is not None and not isinstance(self.description, str):
             problems.append("the description must be a string")
+        if self.unit is not None and not isinstance(self.unit, str):
+            problems.append("the unit must be a string")
         if self.default is not None and not problems:
             try:
                 value = _constant(self.default, f"value of parameter {self.name!r}")
@@ -134,7 +139,7 @@ def _name_of(key: object) -> object:
 
 
 _FIELDS = ("name", "description", "states", "parameters", "equations", "equilibrium_hint",
-           "bifurcation_parameter", "notes", "lines", "source", "symbols")
+           "bifurcation_parameter", "notes", "lines", "source", "symbols", "state_units")
 
 
 class Model:
@@ -191,10 +196,10 @@ class Model:
 
     def __init__(self, states, equations, parameters=None, *, name: str | None = None,
                  description: str | None = None, equilibrium: Mapping | None = None,
-                 bifurcation_parameter: str | None = None):
+                 bifurcation_parameter: str | None = None, state_units: Mapping | None = None):
         from .checks import _Assembler
         fields = _Assembler().run(states, equations, parameters, name, description,
-                                  equilibrium, bifurcation_parameter)
+                                  equilibrium, bifurcation_parameter, units=state_units)
         self._fill(fields, {})
 
     def _fill(self, fields: dict, lines: Mapping[str, int]) -> None:
@@ -218,6 +223,7 @@ class Model:
     def __reduce__(self):
         fields = {k: getattr(self, k) for k in _FIELDS if k != "lines"}
         fields["symbols"] = dict(self.symbols)
+        fields["state_units"] = dict(self.state_units)
         if self.equilibrium_hint is not None:
             fields["equilibrium_hint"] = dict(self.equilibrium_hint)
         return (_restore, (fields, dict(self.lines)))
@@ -421,7 +427,8 @@ class Model:
 
 def _restore(fields: dict, lines: dict) -> Model:
     """Rebuild a pickled model."""
-    fields = dict(fields, symbols=MappingProxyType(fields["symbols"]))
+    fields = dict(fields, symbols=MappingProxyType(fields["symbols"]),
+                  state_units=MappingProxyType(dict(fields.get("state_units") or {})))
     if fields["equilibrium_hint"] is not None:
         fields["equilibrium_hint"] = MappingProxyType(fields["equilibrium_hint"])
     return Model._build(fields, lines)

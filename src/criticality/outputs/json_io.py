@@ -69,8 +69,10 @@ def _model(model) -> dict:
         "bifurcation_parameter": model.bifurcation_parameter,
         "parameters": [{"name": p.name, "assumption": p.assumption,
                         "value": _expr(p.default) if p.default is not None else None,
-                        "description": p.description, "declared": p.declared}
+                        "description": p.description, "declared": p.declared,
+                        "unit": getattr(p, "unit", None)}
                        for p in model.parameters],
+        "state_units": dict(getattr(model, "state_units", None) or {}),
         "equations": {s: _expr(e) for s, e in zip(model.states, model.equations)},
     }
 
