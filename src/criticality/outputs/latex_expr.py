@@ -24,6 +24,8 @@ import re
 import sympy
 from sympy.printing.latex import LatexPrinter
 
+from ..algebra.canonical import compact
+
 __all__ = ["latex_name", "Notation", "TexWriter"]
 
 _GREEK = frozenset(
@@ -217,7 +219,7 @@ class TexWriter:
         """``e`` with wide inner sums replaced by named factors, and the
         numerator or denominator of a fraction that is still too wide named
         as a whole."""
-        e = sympy.sympify(e)
+        e = compact(sympy.sympify(e))
         if e.is_Relational:
             return e.func(self._rebuild(e.lhs, True), self._rebuild(e.rhs, True),
                           evaluate=False)

@@ -18,6 +18,7 @@ import mpmath
 import sympy
 
 from .latex_expr import latex_name
+from ..algebra.canonical import compact
 from .render import model_text
 from ..renderers import register_renderer
 
@@ -34,7 +35,7 @@ def _plain(value) -> str:
     if isinstance(value, (mpmath.mpf, mpmath.mpc)):
         return mpmath.nstr(value, 15)
     if isinstance(value, sympy.Basic):
-        return model_text(value)
+        return model_text(compact(value))
     if isinstance(value, dict):
         return ", ".join(f"{k} = {_plain(v)}" for k, v in value.items())
     if isinstance(value, (tuple, list)):
@@ -50,7 +51,7 @@ def _tex(value) -> str:
     if isinstance(value, sympy.Basic):
         names = {s: sympy.Symbol(latex_name(s.name)) for s in value.free_symbols
                  if isinstance(s, sympy.Symbol)}
-        text = sympy.latex(value.xreplace(names))
+        text = sympy.latex(compact(value).xreplace(names))
         return "$" + text.replace("|", "\\vert ") + "$"
     if isinstance(value, dict):
         return ", ".join(f"{k} = {_tex(v)}" for k, v in value.items())

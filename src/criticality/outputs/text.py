@@ -16,6 +16,7 @@ import textwrap
 import mpmath
 import sympy
 
+from ..algebra.canonical import compact
 from ..renderers import register_renderer
 from .render import (CAUTIONS, classification_sentence, cycle_sentences, model_text,
                       per_offset, split_complex, transversality_sentence, wrap_expression)
@@ -78,7 +79,7 @@ def _table(rows, width: int, heading: str = "closed form", lines: int | None = N
     room = max(width - _LABEL - 2, 20)
     out = [f"{'quantity'.ljust(_LABEL)}  {heading}", f"{'-' * _LABEL}  {'-' * min(room, 40)}"]
     for label, value in rows:
-        text = value if isinstance(value, str) else model_text(decimal(value))
+        text = value if isinstance(value, str) else model_text(decimal(compact(value)))
         pieces = _wrapped(text, room, lines)
         out.append(f"{label.ljust(_LABEL)}  {pieces[0]}")
         out += [f"{'':{_LABEL}}    {p}" for p in pieces[1:]]
@@ -96,7 +97,7 @@ def _expr_lines(prefix: str, expr, width: int, indent: str = "    ", suffix: str
         return [f"{indent}{prefix.rstrip()}"] + _expr_lines("", expr, width, indent + "    ",
                                                              suffix, lines)
     room = max(width - len(prefix) - len(indent), 20)
-    pieces = _wrapped(model_text(decimal(expr)), room, lines)
+    pieces = _wrapped(model_text(decimal(compact(expr))), room, lines)
     lines = [f"{indent}{prefix}{pieces[0]}"] + [f"{indent}{' ' * len(prefix)}  {p}"
                                                 for p in pieces[1:]]
     if suffix and len(lines[-1]) + len(suffix) + 1 <= width:
