@@ -77,3 +77,32 @@ def test_every_rational_quantity_is_compact():
     for q in (r.critical_value, r.omega_squared, r.transversality, r.q_norm_squared,
               *r.cycle.amplitude_coefficients.values()):
         assert _primitive_integer_factors(q), q
+
+
+def test_displays_are_compact(brusselator):
+    """Im c1 (a sum after splitting c1) is shown with one fraction bar and a
+    primitive numerator in the text and the LaTeX."""
+    from criticality.algebra.canonical import compact
+    from criticality.outputs.render import split_complex
+
+    _, r = brusselator
+    im = split_complex(r.c1)[1]
+    assert str(compact(im)) == "-(4*A**4 - 7*A**2 + 4)/(6*A*(2*A**2 + 1))"
+    assert sympy.cancel(compact(im) - im) == 0
+    row = next(line for line in r.details().splitlines() if line.startswith("Im c1"))
+    assert row.split(None, 2)[2] == "-(4*A**4 - 7*A**2 + 4)/(6*A*(2*A**2 + 1))"
+    assert "- \\frac{4 A^{4} - 7 A^{2} + 4}{6 A \\left(2 A^{2} + 1\\right)}" in r.to_latex()
+
+
+def test_repeated_logarithm_is_named_once():
+    """A logarithm that occurs in several quantities is printed as L_1 and
+    defined once, after the first block that uses it."""
+    m = Model(["x", "y"], {"x": "mu*x - y - log(1 + k/a)*x^3 + x*y",
+                           "y": "x + mu*y - log(1 + k/a)*y^3 + a*x^2"},
+              {"mu": "real", "k": "positive", "a": "positive"})
+    r = hopf(m, "mu", equilibrium={"x": 0, "y": 0})
+    tex = r.to_latex()
+    assert "\\ell_{1} &= - \\frac{3 L_{1}}{2}" in tex
+    assert tex.count("L_{1} &= \\log{\\left(1 + \\frac{k}{a} \\right)}") == 1
+    report = r.to_report()
+    assert report.count("L_{1} &= ") == 1 and "L_{1}" in report

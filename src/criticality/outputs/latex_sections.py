@@ -39,6 +39,25 @@ def _radical_bases(omega) -> set:
             if p.exp.is_Rational and p.exp.q == 2 and not p.base.is_number}
 
 
+def _named_candidates(result, bases) -> list:
+    """The expressions whose repeated logarithms, exponentials and radicals
+    get names (radicals of the frequency itself excepted: it has its own
+    symbol)."""
+    exprs = [result.critical_value, result.omega_squared, result.l1, result.c1,
+             result.transversality, *result.cycle.amplitude_coefficients.values(),
+             *(c.expr for c in result.conditions), *result.equilibrium.values()]
+    if result.supercritical_where is not None:
+        exprs.append(result.supercritical_where.lhs)
+    out = []
+    for e in exprs:
+        e = sympy.sympify(e)
+        if bases:
+            e = e.xreplace({p: sympy.Dummy() for p in e.atoms(sympy.Pow)
+                            if p.base in bases and p.exp.is_Rational and p.exp.q == 2})
+        out.append(e)
+    return out
+
+
 class Document:
     """Shared state of one LaTeX document for one result."""
 
@@ -62,6 +81,7 @@ class Document:
                            f"\\Big|_{{{self.mu_c}}}")
         self._omega_expr = sympy.sympify(result.omega)
         self._bases = _radical_bases(self._omega_expr)
+        self.writer.name_atoms(_named_candidates(result, self._bases))
 
     # -- expressions ------------------------------------------------------------------
     def split(self, expr) -> tuple:
