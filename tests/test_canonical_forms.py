@@ -106,3 +106,16 @@ def test_repeated_logarithm_is_named_once():
     assert tex.count("L_{1} &= \\log{\\left(1 + \\frac{k}{a} \\right)}") == 1
     report = r.to_report()
     assert report.count("L_{1} &= ") == 1 and "L_{1}" in report
+
+
+def test_repeated_logarithm_is_named_once_in_text():
+    """In the text summary and details a long repeated logarithm is L1, with
+    its definition shown once."""
+    m = Model(["x", "y"], {"x": "mu*x - y - log(1 - m/(a*e))*x^3 + x*y",
+                           "y": "x + mu*y - log(1 - m/(a*e))*y^3 + a*x^2"},
+              {"mu": "real", "m": "positive", "a": "positive", "e": "positive"})
+    r = hopf(m, "mu", equilibrium={"x": 0, "y": 0})
+    for text in (str(r), r.details()):
+        assert text.count("L1 = log(1 - m/(a*e))") == 1
+        assert "l1 = Re(c1)/omega           -3*L1/2" in text
+        assert text.count("log(") == 1

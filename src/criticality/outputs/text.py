@@ -61,6 +61,44 @@ def decimal(value):
 
 
 _MORE = " ..."
+#: repeated non-polynomial subexpressions -> their names, while a text is being written
+_NAMED: dict = {}
+
+
+def _named(result) -> dict:
+    """Names (L1, L2, ...) for the logarithms, exponentials and radicals that
+    occur at least twice in the main quantities and are long."""
+    from .latex_expr import _non_polynomial
+
+    exprs = [result.critical_value, result.omega_squared, result.l1, result.c1,
+             result.transversality, *result.cycle.amplitude_coefficients.values(),
+             *(c.expr for c in result.conditions)]
+    counts: dict = {}
+    for e in exprs:
+        for node in sympy.preorder_traversal(sympy.sympify(e)):
+            if _non_polynomial(node) and len(sympy.sstr(node)) > 12:
+                counts[node] = counts.get(node, 0) + 1
+    taken = set(result.model.symbols)
+    letter = next(c for c in ("L", "M", "N", "K", "W", "Q") if not any(
+        t.startswith(c) for t in taken)) if taken else "L"
+    chosen = sorted((n for n, k in counts.items() if k >= 2), key=sympy.default_sort_key)
+    return {node: sympy.Symbol(f"{letter}{k}", real=True) for k, node in enumerate(chosen, 1)}
+
+
+def _shown(expr):
+    expr = sympy.sympify(expr)
+    if _NAMED and not expr.is_Atom:
+        expr = expr.xreplace(_NAMED)
+    return decimal(compact(expr))
+
+
+def _definitions(width: int) -> list:
+    if not _NAMED:
+        return []
+    out = ["Named subexpressions (each written once)"]
+    for node, symbol in _NAMED.items():
+        out += _expr_lines(f"{symbol} = ", node, width, "  ", lines=None, raw=True)
+    return [out]
 
 
 def _wrapped(text: str, room: int, lines: int | None) -> list:
@@ -79,7 +117,7 @@ def _table(rows, width: int, heading: str = "closed form", lines: int | None = N
     room = max(width - _LABEL - 2, 20)
     out = [f"{'quantity'.ljust(_LABEL)}  {heading}", f"{'-' * _LABEL}  {'-' * min(room, 40)}"]
     for label, value in rows:
-        text = value if isinstance(value, str) else model_text(decimal(compact(value)))
+        text = value if isinstance(value, str) else model_text(_shown(value))
         pieces = _wrapped(text, room, lines)
         out.append(f"{label.ljust(_LABEL)}  {pieces[0]}")
         out += [f"{'':{_LABEL}}    {p}" for p in pieces[1:]]
@@ -92,12 +130,12 @@ def _paragraph(text: str, width: int, indent: str = "  ") -> list:
 
 
 def _expr_lines(prefix: str, expr, width: int, indent: str = "    ", suffix: str = "",
-                lines: int | None = None) -> list:
+                lines: int | None = None, raw: bool = False) -> list:
     if lines is not None and len(prefix) + len(indent) > width // 2:
         return [f"{indent}{prefix.rstrip()}"] + _expr_lines("", expr, width, indent + "    ",
                                                              suffix, lines)
     room = max(width - len(prefix) - len(indent), 20)
-    pieces = _wrapped(model_text(decimal(compact(expr))), room, lines)
+    pieces = _wrapped(model_text(decimal(expr) if raw else _shown(expr)), room, lines)
     lines = [f"{indent}{prefix}{pieces[0]}"] + [f"{indent}{' ' * len(prefix)}  {p}"
                                                 for p in pieces[1:]]
     if suffix and len(lines[-1]) + len(suffix) + 1 <= width:
@@ -131,7 +169,8 @@ def _header(result, width: int) -> list:
 def _verdict(result, width: int) -> list:
     out = ["Verdict"]
     out += _paragraph(classification_sentence(result.classification, result.cycle.amplitude_power), width)
-    out += _paragraph(f"In the engine's words: {result.verdict}.", width)
+    if result.supercritical_where is None and result.l1_zero_set is None:
+        out += _paragraph(f"Verdict: {result.verdict}.", width)
     if result.supercritical_where is not None:
         rel = result.supercritical_where
         op = ">" if rel.rel_op == ">" else "<"
@@ -155,7 +194,7 @@ def _conditions(result, width: int) -> list:
 
 def _cycle(result, width: int) -> list:
     out = ["Cycle near onset"]
-    for sentence in cycle_sentences(result):
+    for sentence in cycle_sentences(result, lambda e: model_text(_shown(e))):
         out += _paragraph(sentence, width)
     name = result.parameter
     k = per_offset(result, result.cycle.radius_squared)
@@ -179,6 +218,15 @@ def _cycle(result, width: int) -> list:
 
 
 def result_details(result, width: int = DEFAULT_WIDTH) -> str:
+    global _NAMED
+    _NAMED = _named(result)
+    try:
+        return _details(result, width)
+    finally:
+        _NAMED = {}
+
+
+def _details(result, width: int = DEFAULT_WIDTH) -> str:
     """The full plain text of a :class:`~criticality.HopfResult` (``result.details()``).
 
     Parameters
@@ -222,6 +270,7 @@ def result_details(result, width: int = DEFAULT_WIDTH) -> str:
         cautions += textwrap.wrap(line, width, initial_indent="  ! ", subsequent_indent="    ",
                                   break_on_hyphens=False)
     sections.append(cautions)
+    sections[2:2] = _definitions(width)
     return "\n\n".join("\n".join(s) for s in sections) + "\n"
 
 
@@ -280,7 +329,7 @@ def _packed(phrases, width: int) -> list:
 
 def _short_verdict(result, width: int, lines: int) -> list:
     verdict = f"Verdict: {result.verdict}"
-    out = [verdict if len(verdict) <= width else verdict[:width - len(_MORE)] + _MORE]
+    out = [verdict if len(verdict) <= width else "Verdict"]  # a long one: the condition below
     out += _paragraph(classification_sentence(result.classification,
                                               result.cycle.amplitude_power), width)
     if result.supercritical_where is not None:
@@ -320,7 +369,7 @@ def _short_conditions(result, width: int) -> list:
 
 def _short_cycle(result, width: int, lines: int) -> list:
     out = ["Cycle near onset"]
-    for sentence in cycle_sentences(result)[:3 if result.cycle.amplitude_power != 2 else 2]:
+    for sentence in cycle_sentences(result, lambda e: model_text(_shown(e)))[:3 if result.cycle.amplitude_power != 2 else 2]:
         out += _paragraph(sentence, width)
     name = result.parameter
     k = per_offset(result, result.cycle.radius_squared)
@@ -337,7 +386,7 @@ def _summary_sections(result, width: int, lines: int) -> list:
     head = _header(result, width)
     head = head[:head.index("")]
     status = "closed form" if result.status == "closed form" else result.status
-    return [head, _table(_rows(result), width, status, lines=lines),
+    return [head, _table(_rows(result), width, status, lines=lines), *_definitions(width),
             ["Classification: " + result.classification], _short_verdict(result, width, lines),
             _short_conditions(result, width), _short_cycle(result, width, lines),
             textwrap.wrap(_CONVENTION_LINE, width, break_on_hyphens=False) +
@@ -345,6 +394,15 @@ def _summary_sections(result, width: int, lines: int) -> list:
 
 
 def result_summary(result, width: int = DEFAULT_WIDTH) -> str:
+    global _NAMED
+    _NAMED = _named(result)
+    try:
+        return _summary(result, width)
+    finally:
+        _NAMED = {}
+
+
+def _summary(result, width: int = DEFAULT_WIDTH) -> str:
     """A summary of a :class:`~criticality.HopfResult` in at most
     :data:`SUMMARY_LINES` lines (``print(result)``): the main quantities, the
     verdict, the condition, the conditions, the cycle, one line of
@@ -366,13 +424,24 @@ def result_summary(result, width: int = DEFAULT_WIDTH) -> str:
         text = gap.join("\n".join(s) for s in sections) + "\n"
         if len(text.splitlines()) <= SUMMARY_LINES:
             return text
-    # still too long (many conditions): keep the head of the conditions
-    extra = len(text.splitlines()) - SUMMARY_LINES + 1
-    sections[4] = sections[4][:max(len(sections[4]) - extra, 1)] + [
-        "  ... more conditions: result.details()"]
-    text = "\n".join("\n".join(s) for s in sections) + "\n"
-    return "\n".join(text.splitlines()[:SUMMARY_LINES]) + "\n"
+    # still too long: shorten the middle sections (never the conventions and cautions)
+    sections = [list(sec) for sec in sections]
+    while sum(len(sec) for sec in sections) > SUMMARY_LINES:
+        shrinkable = [k for k, sec in enumerate(sections[:-1]) if len(sec) > 2 and k > 1]
+        if not shrinkable:
+            break
+        k = max(shrinkable, key=lambda i: len(sections[i]))
+        marker = "  ... (in full: result.details())"
+        if sections[k][-1] == marker:
+            del sections[k][-2]
+        else:
+            sections[k][-2:] = [marker]
+    text = "\n".join("\n".join(sec) for sec in sections) + "\n"
+    return text
 
+
+result_summary.__doc__, result_details.__doc__ = _summary.__doc__, _details.__doc__
+_summary.__doc__ = _details.__doc__ = None  # the examples run once, on the public names
 
 register_renderer("hopf", "text", result_summary)
 register_renderer("hopf", "details", result_details)
