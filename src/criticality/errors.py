@@ -278,3 +278,9 @@ class ValidationRunError(CriticalityError):
     """A numerical validation could not be carried out."""
 
     exit_code = 10
+
+
+class NameTypoWarning(UserWarning):
+    """A name used in the model is not declared but looks like a declared one
+    (a probable typo); the model takes it as a new real parameter.  The
+    command line prints it on standard error."""

@@ -21,7 +21,7 @@ from .family_signs import family_sign
 from .quadratic import QuadraticElement, lower
 from .signs import NEGATIVE, POSITIVE, UNKNOWN, ZERO, FactoredSign, FactorSign, SignContext
 
-__all__ = ["factored", "canonical_expr", "larger_than"]
+__all__ = ["factored", "canonical_expr", "larger_than", "compact"]
 
 
 def factored(tower, x, ctx: SignContext, *, restore: bool = True) -> FactoredSign:
@@ -101,3 +101,101 @@ def larger_than(exprs, nodes: int) -> bool:
             if count > nodes:
                 return True
     return False
+
+
+# -- the compact display shape -----------------------------------------------------------------
+
+#: expressions above this many nodes are shown as they are (compacting them costs more
+#: than it helps)
+COMPACT_NODES = 4000
+
+
+def _primitive(poly_expr):
+    """``(c, P)`` with ``poly_expr = c * P``, ``P`` a primitive polynomial with
+    integer coefficients, negated only when every coefficient is negative (a
+    factor keeps the orientation the sign analysis gave it); None when the
+    expression is not a polynomial in its atoms."""
+    gens = sorted(poly_expr.atoms(sympy.Symbol, sympy.Function), key=sympy.default_sort_key)
+    gens = [g for g in gens if not any(g != h and g.has(h) and h.is_Symbol for h in gens)
+            or g.is_Symbol]
+    try:
+        poly = sympy.Poly(poly_expr, *[g for g in gens if g.is_Symbol or g.is_Function])
+    except sympy.PolynomialError:
+        return None
+    if not poly.domain.is_QQ and not poly.domain.is_ZZ:
+        return None
+    den, poly = poly.clear_denoms()
+    content, prim = poly.primitive()
+    c = sympy.Rational(content) / sympy.Rational(den)
+    if all(coefficient < 0 for coefficient in prim.coeffs()):
+        c, prim = -c, -prim  # a sum of negative terms: the sign goes to the constant
+    return c, prim.as_expr()
+
+
+def _compact_factor(e):
+    """``(constant, factor)`` of one factor of a product."""
+    if e.is_Number:
+        return e, sympy.Integer(1)
+    if e.is_Pow and e.exp.is_Integer:
+        c, f = _compact_factor(e.base)
+        return c ** e.exp, f ** e.exp
+    if e.is_Add:
+        if any(sympy.fraction(t, exact=True)[1] != 1 for t in e.args):
+            together = sympy.together(e)
+            if together != e:
+                return _compact_product(together)
+        found = _primitive(e)
+        if found is not None:
+            return found
+        return sympy.Integer(1), sympy.Add(*[compact(t) for t in e.args])
+    return sympy.Integer(1), e  # functions and radicals keep their arguments as written
+
+
+def _compact_product(e):
+    c, factors = sympy.Integer(1), []
+    for arg in sympy.Mul.make_args(e):
+        k, f = _compact_factor(arg)
+        c *= k
+        factors += [g for g in sympy.Mul.make_args(f) if g != 1]
+    return c, sympy.Mul(*factors)
+
+
+def compact(expr):
+    """``expr`` in the compact display shape: a rational function as
+    ``c * N / D`` with one fraction bar, ``N`` and ``D`` products of primitive
+    integer polynomials with positive leading coefficients, the sign and the
+    rational constant in ``c``; functions and relations are compacted inside.
+    The value never changes (the shape only).
+
+    >>> a = sympy.Symbol("a", real=True)
+    >>> compact(-sympy.Rational(5, 6)*a**2 - a/12 - sympy.Rational(1, 12))
+    -(10*a**2 + a + 1)/12
+    >>> compact((-a**2/2 - 1)/(a*(2*a**2 + 1)))
+    -(a**2 + 2)/(2*a*(2*a**2 + 1))
+    """
+    expr = sympy.sympify(expr)
+    if expr.is_Atom or larger_than([expr], COMPACT_NODES):
+        return expr
+    if expr.is_Relational:
+        return expr.func(compact(expr.lhs), compact(expr.rhs), evaluate=False)
+    if expr.has(sympy.I):
+        re, im = [], []
+        for term in sympy.Add.make_args(expr):
+            (im if term.has(sympy.I) else re).append(term)
+        if re and im:
+            return sympy.Add(compact(sympy.Add(*re)), compact(sympy.Add(*im) / sympy.I) * sympy.I,
+                             evaluate=False)
+        return expr
+    if expr.is_Add:
+        c, rest = _compact_factor(expr)
+        if rest.is_Mul or rest.is_Pow:  # the sum was a fraction: compact its parts
+            c2, rest = _compact_product(rest)
+            c *= c2
+    else:
+        c, rest = _compact_product(expr)
+    if rest == 1:
+        return c
+    args = sympy.Mul.make_args(rest)
+    if len(args) == 1 and args[0].is_Add and c != 1:
+        return sympy.Mul(c, args[0], evaluate=False)
+    return sympy.Mul(c, rest)

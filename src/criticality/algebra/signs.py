@@ -81,9 +81,13 @@ class FactoredSign:
     def as_expr(self) -> sympy.Expr:
         """``constant * prod`` built in one go, known-sign factors first."""
         num = [f.expr ** f.multiplicity for f in self.factors if not f.in_denominator]
-        den = [f.expr ** f.multiplicity for f in self.factors if f.in_denominator]
-        out = sympy.Mul(self.constant, *num)
-        return out / sympy.Mul(*den) if den else out
+        den = [f.expr ** -f.multiplicity for f in self.factors if f.in_denominator]
+        # One Mul, so that the constant is never distributed over a sum:
+        # -(A^2 + 2)/(2 A (2 A^2 + 1)), not (-A^2/2 - 1)/(A (2 A^2 + 1)).  sympy
+        # distributes a number over a lone sum, so that case stays unevaluated.
+        if len(num) == 1 and not den and num[0].is_Add and self.constant != 1:
+            return sympy.Mul(self.constant, num[0], evaluate=False)
+        return sympy.Mul(self.constant, *num, *den)
 
     def sign_part(self) -> tuple:
         """``(s, P)``: the sign of the whole is ``s * sign(P)``, with ``P`` the

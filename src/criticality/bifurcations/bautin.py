@@ -31,13 +31,13 @@ opposite to ``l2``:
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Mapping
+from typing import ClassVar, Mapping
 
 import mpmath
 import sympy
 
 from ..local.prepare import expr, prepare, sign_word, solve_for
-from ..outputs.simple import render_json, render_latex, render_text
+from ..renderers import render
 from ..algebra.quadratic import lower
 from ..hopf_analysis.engine import run_engine
 from ..errors import NoHopfPointError
@@ -55,6 +55,8 @@ BAUTIN_CONVENTIONS = (
 @dataclass(frozen=True)
 class BautinPoint:
     """A point of the Hopf set where ``l1 = 0``, with ``l2`` there."""
+
+    result_kind: ClassVar[str] = "bautin"
 
     parameter: str
     second: str
@@ -82,14 +84,29 @@ class BautinPoint:
                 ("scenario", "scenario", self.scenario)]
 
     def summary(self) -> str:
-        return render_text(f"Bautin point on the Hopf set of '{self.parameter}'", self.rows(),
-                           self.notes, self.conventions)
+        """The result as plain text (a table, notes and conventions)."""
+        return render(self, "text")
+
+    def details(self) -> str:
+        """The full plain text (the same table: this kind is short)."""
+        return render(self, "details")
 
     def to_latex(self) -> str:
-        return render_latex("Bautin point", self.rows())
+        """The quantities as an ``align*`` block."""
+        return render(self, "latex")
 
     def to_json(self, **kwargs) -> str:
-        return render_json("bautin", self.rows(), self.notes, self.conventions, **kwargs)
+        """The result as JSON in the shared envelope."""
+        return render(self, "json", **kwargs)
+
+    def _repr_html_(self) -> str:
+        return render(self, "html")
+
+    def _repr_markdown_(self) -> str:
+        return render(self, "markdown")
+
+    def _repr_latex_(self) -> str:
+        return render(self, "notebook_latex")
 
     def evaluate(self, values: Mapping | None = None, digits: int = 30) -> dict:
         """The numeric values of the point's quantities at ``values``

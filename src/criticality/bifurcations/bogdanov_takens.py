@@ -31,11 +31,12 @@ analysis of the unfolding ``x' = y, y' = b1 + b2 x + x^2 + s x y``).
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import ClassVar
 
 import sympy
 
 from ..local.prepare import expr, prepare, sign_word, solve_for
-from ..outputs.simple import render_json, render_latex, render_text
+from ..renderers import render
 from ..algebra.linalg import dot, kernel, matvec, solve_consistent, transpose
 from ..errors import DegenerateBifurcationError, NoHopfPointError
 from ..algebra.linalg import characteristic_polynomial
@@ -54,6 +55,8 @@ BT_CONVENTIONS = (
 @dataclass(frozen=True)
 class BogdanovTakensResult:
     """A Bogdanov-Takens point and its normal-form coefficients."""
+
+    result_kind: ClassVar[str] = "bogdanov_takens"
 
     parameters: tuple
     values: dict
@@ -77,14 +80,29 @@ class BogdanovTakensResult:
                 ("ab_sign", "sign of a b", self.ab_sign), ("scenario", "scenario", self.scenario)]
 
     def summary(self) -> str:
-        return render_text(f"Bogdanov-Takens point in ({', '.join(self.parameters)})",
-                           self.rows(), self.notes, self.conventions)
+        """The result as plain text (a table, notes and conventions)."""
+        return render(self, "text")
+
+    def details(self) -> str:
+        """The full plain text (the same table: this kind is short)."""
+        return render(self, "details")
 
     def to_latex(self) -> str:
-        return render_latex("Bogdanov-Takens point", self.rows())
+        """The quantities as an ``align*`` block."""
+        return render(self, "latex")
 
     def to_json(self, **kwargs) -> str:
-        return render_json("bogdanov_takens", self.rows(), self.notes, self.conventions, **kwargs)
+        """The result as JSON in the shared envelope."""
+        return render(self, "json", **kwargs)
+
+    def _repr_html_(self) -> str:
+        return render(self, "html")
+
+    def _repr_markdown_(self) -> str:
+        return render(self, "markdown")
+
+    def _repr_latex_(self) -> str:
+        return render(self, "notebook_latex")
 
     def __str__(self):
         return self.summary()

@@ -36,11 +36,12 @@ Which case applies:
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import ClassVar
 
 import sympy
 
 from ..local.prepare import expr, prepare, sign_word, solve_for
-from ..outputs.simple import render_json, render_latex, render_text
+from ..renderers import render
 from ..algebra.linalg import determinant, dot, kernel, matvec, solve, transpose
 from ..errors import DegenerateBifurcationError, NoHopfPointError
 
@@ -57,6 +58,8 @@ FOLD_CONVENTIONS = (
 @dataclass(frozen=True)
 class FoldResult:
     """A point with a simple zero eigenvalue and its normal form."""
+
+    result_kind: ClassVar[str] = "fold"
 
     kind: str
     parameter: str
@@ -88,14 +91,29 @@ class FoldResult:
                 ("verdict", "verdict", self.verdict)]
 
     def summary(self) -> str:
-        return render_text(f"{self.kind.capitalize()} point in '{self.parameter}'", self.rows(),
-                           self.notes, self.conventions)
+        """The result as plain text (a table, notes and conventions)."""
+        return render(self, "text")
+
+    def details(self) -> str:
+        """The full plain text (the same table: this kind is short)."""
+        return render(self, "details")
 
     def to_latex(self) -> str:
-        return render_latex(f"{self.kind} point", self.rows())
+        """The quantities as an ``align*`` block."""
+        return render(self, "latex")
 
     def to_json(self, **kwargs) -> str:
-        return render_json("fold", self.rows(), self.notes, self.conventions, **kwargs)
+        """The result as JSON in the shared envelope."""
+        return render(self, "json", **kwargs)
+
+    def _repr_html_(self) -> str:
+        return render(self, "html")
+
+    def _repr_markdown_(self) -> str:
+        return render(self, "markdown")
+
+    def _repr_latex_(self) -> str:
+        return render(self, "notebook_latex")
 
     def __str__(self):
         return self.summary()

@@ -13,12 +13,13 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import Mapping
+from typing import ClassVar, Mapping
 
 import mpmath
 import sympy
 
 from ..errors import ParameterError
+from ..renderers import render
 
 __all__ = ["NumericHopfResult", "evaluate_result", "parameter_values"]
 
@@ -53,6 +54,14 @@ class NumericHopfResult:
     pair_error: object
     others_stable: bool
     conditions: tuple
+
+    result_kind: ClassVar[str] = "hopf_numeric_point"
+
+    def _repr_html_(self) -> str:
+        return render(self, "html")
+
+    def _repr_markdown_(self) -> str:
+        return render(self, "markdown")
 
     def amplitude(self, offset) -> dict:
         """Predicted amplitude of each state at ``mu = mu_c + offset`` (on the

@@ -36,7 +36,7 @@ from ..errors import ParameterError
 from .sweeps import _numpy, grid_function, sweep
 
 __all__ = ["CurveData", "StabilityGrid", "curve_data", "stability_grid", "curve_csv",
-           "write_curve_csv"]
+           "write_curve_csv", "feasibility_grid", "state_signs"]
 
 
 @dataclass(frozen=True)
@@ -338,6 +338,55 @@ def _equilibrium_exists(np, result, grid, vals):
             v = np.asarray(fn(*arrays), dtype=complex)
         ok = ok & np.isfinite(v) & (np.abs(v.imag) <= 1e-12 * (1 + np.abs(v.real)))
     return ok
+
+
+_SIGN_OK = {"positive": lambda v: v > 0, "nonnegative": lambda v: v >= 0,
+            "negative": lambda v: v < 0, "nonpositive": lambda v: v <= 0}
+
+
+def state_signs(result, feasible=None) -> dict:
+    """State -> the sign its equilibrium coordinate must have.
+
+    ``feasible`` is a sign word for every state (``"nonnegative"``,
+    ``"positive"``, ...), a mapping state -> sign word, or None: then the
+    signs declared for the family parameters ``<state>_eq`` of the
+    parametrised mode are used (empty when there are none).
+    """
+    states = result.model.states
+    if feasible is None:
+        return {s: result.assumptions[f"{s}_eq"] for s in states
+                if result.assumptions.get(f"{s}_eq") in _SIGN_OK}
+    table = {s: feasible for s in states} if isinstance(feasible, str) else dict(feasible)
+    for state, sign in table.items():
+        if state not in states:
+            raise ParameterError(f"feasible: {state!r} is not a state of the model (states: "
+                                 f"{', '.join(states)})")
+        if sign not in _SIGN_OK:
+            raise ParameterError(f"feasible: the sign of {state!r} must be one of "
+                                 f"{', '.join(_SIGN_OK)}, got {sign!r}")
+    return table
+
+
+def feasibility_grid(result, x: str, y: str, *, feasible=None, values: Mapping | None = None,
+                     x_range=(0.0, 1.0), y_range=(0.0, 1.0), points: int = 200):
+    """``(X, Y, ok)``: where on the plane the equilibrium has the signs of
+    :func:`state_signs` (a population stays nonnegative, ...); None when no
+    state has a sign to keep."""
+    np = _numpy()
+    signs = state_signs(result, feasible)
+    if not signs:
+        return None
+    xr, yr = _range(x, x_range), _range(y, y_range)
+    X, Y = np.meshgrid(np.linspace(*xr, points), np.linspace(*yr, points))
+    vals = _off_axes(values, x, y)
+    ok = np.ones(X.shape, dtype=bool)
+    for state, sign in signs.items():
+        fn = grid_function(result, sympy.sympify(result.equilibrium[state]), [x, y], vals)[0]
+        with np.errstate(all="ignore"):
+            v = np.broadcast_to(np.asarray(fn(X, Y), dtype=complex), X.shape)
+        real = np.isfinite(v) & (np.abs(v.imag) <= 1e-12 * (1 + np.abs(v.real)))
+        ok &= real & _SIGN_OK[sign](np.where(real, v.real, np.nan))
+    return X, Y, ok
 
 
 def _number(result, name, raw) -> float:

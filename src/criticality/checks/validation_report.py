@@ -15,7 +15,10 @@ Building strings is pure; nothing here prints or writes files.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Mapping
+from typing import ClassVar, Mapping
+
+from ..outputs.escape import tex_text
+from ..renderers import render
 
 __all__ = ["CycleMeasurement", "BracketOutcome", "ValidationReport"]
 
@@ -189,6 +192,8 @@ class ValidationReport:
         Wall-clock seconds spent.
     """
 
+    result_kind: ClassVar[str] = "validation"
+
     parameter: str
     values: Mapping[str, float]
     critical_value: float
@@ -220,6 +225,12 @@ class ValidationReport:
     def to_latex(self) -> str:
         """The report as a LaTeX fragment (a ``tabular`` and the verdict)."""
         return "\n".join(_latex_lines(self))
+
+    def _repr_html_(self) -> str:
+        return render(self, "html")
+
+    def _repr_markdown_(self) -> str:
+        return render(self, "markdown")
 
 
 # -- text -------------------------------------------------------------------------------------
@@ -369,16 +380,9 @@ def _latex_lines(r: ValidationReport) -> list:
         lines += _latex_measurements(r, p)
     if r.brackets:
         lines += _latex_brackets(r)
-    lines.append(f"Verdict: \\textbf{{{r.verdict}}}. " + " ".join(_tex_text(x) for x in r.reasons))
+    lines.append(f"Verdict: \\textbf{{{r.verdict}}}. " + " ".join(tex_text(x) for x in r.reasons))
     if r.warnings:
-        lines.append("Warnings: " + " ".join(_tex_text(w) for w in r.warnings))
+        lines.append("Warnings: " + " ".join(tex_text(w) for w in r.warnings))
     return lines
 
 
-_TEX_SPECIAL = {"\\": "\\textbackslash{}", "_": "\\_", "%": "\\%", "&": "\\&", "#": "\\#",
-                "$": "\\$", "^": "\\^{}", "~": "\\~{}", "{": "\\{", "}": "\\}"}
-
-
-def _tex_text(text: str) -> str:
-    """Plain text made safe for LaTeX."""
-    return "".join(_TEX_SPECIAL.get(c, c) for c in text)

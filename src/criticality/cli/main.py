@@ -19,6 +19,8 @@ Subcommands
     the analyses the package offers (from :mod:`criticality.registry`)
 ``demo``
     analyse a bundled invented model and show every output
+``export``
+    the closed forms as a standalone numpy module or as C code
 
 plus the subcommands registered by :mod:`criticality.cli.main.analyses` (``fold``,
 ``bautin``, ``bogdanov-takens``) and by :mod:`criticality.cli.main.checks` (the
@@ -47,7 +49,7 @@ import argparse
 import sys
 import traceback
 
-from . import analyses, checks, numeric
+from . import analyses, checks, export, numeric
 from .options import UsageError as _UsageError
 from .options import add_analysis_options, analyse_from_args
 from .options import flags as _flags
@@ -169,7 +171,7 @@ def _subcommand(sub, name, handler, help_text, description, aliases=()):
 def _register_extensions(sub) -> None:
     """Subcommands of other modules: the analyses beyond Hopf, the simulation
     check and the diagrams."""
-    for module in (analyses, checks, numeric):
+    for module in (analyses, checks, numeric, export):
         module.register(sub)
 
 

@@ -13,9 +13,10 @@ import os
 import sys
 import threading
 import time
+import warnings
 from contextlib import contextmanager
 
-from ..errors import CriticalityError
+from ..errors import CriticalityError, NameTypoWarning
 
 __all__ = ["pairs", "split_top_level", "equilibrium_choice", "name_list", "Stage",
            "read_model", "write_output", "EQUILIBRIUM_WORDS"]
@@ -131,10 +132,19 @@ def read_model(path: str, *, stdin=None):
     """The model in ``path`` (``"-"``: standard input)."""
     from ..model.core import Model
 
-    if path == "-":
-        stream = stdin if stdin is not None else sys.stdin
-        return Model.from_text(stream.read(), source="<stdin>")
-    return Model.from_file(path)
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", NameTypoWarning)
+        if path == "-":
+            stream = stdin if stdin is not None else sys.stdin
+            model = Model.from_text(stream.read(), source="<stdin>")
+        else:
+            model = Model.from_file(path)
+    for w in caught:
+        if issubclass(w.category, NameTypoWarning):
+            print(f"criticality: warning: {w.message}", file=sys.stderr)
+        else:
+            warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
+    return model
 
 
 @contextmanager

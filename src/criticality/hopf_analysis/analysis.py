@@ -8,6 +8,8 @@ each branch into a :class:`HopfResult` (:mod:`criticality.hopf_analysis.assemble
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 from typing import Mapping
 
 from .assemble import build_result
@@ -121,6 +123,10 @@ def _analyse(model, parameter, equilibrium, eliminate, order, values, assume, ba
             "omega^2 <= 0 on this branch under the declared assumptions: the two eigenvalues "
             "that sum to zero are a real pair +-kappa (a neutral saddle), not a pair crossing "
             "the imaginary axis", reason="omega_squared_nonpositive")
+    if values:  # the outputs list the parameters fixed before the analysis
+        fixed = model.value_substitution(values)
+        records = tuple((model.parameter(s.name), v) for s, v in fixed.items())
+        results = [replace(r, fixed_parameters=records) for r in results]
     return tuple(results)
 
 

@@ -10,11 +10,13 @@ that a number copied into a paper can be traced to its normalisation and sign.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, fields, is_dataclass, replace
 from functools import cached_property
-from typing import Mapping
+from typing import ClassVar, Mapping
 
 import sympy
+
+from ..renderers import render
 
 __all__ = ["Conventions", "CONVENTIONS", "CyclePrediction", "ReducedSystemView", "HopfResult"]
 
@@ -144,6 +146,8 @@ class HopfResult:
     parameters; see :attr:`conventions` for the normalisation.
     """
 
+    result_kind: ClassVar[str] = "hopf"
+
     model: object
     parameter: str
     parameter_symbol: sympy.Symbol
@@ -174,6 +178,8 @@ class HopfResult:
     conventions: Conventions = CONVENTIONS
     status: str = "closed form"
     _details: object = field(default=None, repr=False, compare=False)
+    #: ``(parameter record, value)`` of the parameters fixed before the analysis (``values=``)
+    fixed_parameters: tuple = ()
 
     # -- computed on first access (display-oriented, not needed for the verdict) ----------
     @cached_property
@@ -220,6 +226,41 @@ class HopfResult:
                 return c
         raise KeyError(key)
 
+    # -- the user's own symbols -------------------------------------------------------------
+    def with_declared_symbols(self) -> "HopfResult":
+        """This result with every expression in the model's
+        :attr:`~criticality.Model.declared_symbols` (each symbol carries its
+        declared assumption), so that ``sympy.Symbol("A", positive=True)``
+        matches.  The result itself uses :attr:`~criticality.Model.symbols`
+        (``Symbol(name, real=True)``), the symbols the computation ran in.
+
+        Examples
+        --------
+        >>> import sympy
+        >>> from criticality import Model, hopf
+        >>> m = Model(["x", "y"], {"x": "A - (B + 1)*x + x^2*y", "y": "B*x - x^2*y"},
+        ...           {"A": "positive", "B": "positive"})
+        >>> r = hopf(m, "B")
+        >>> r.critical_value.subs(m.symbols["A"], 2)
+        5
+        >>> A = sympy.Symbol("A", positive=True)
+        >>> r.with_declared_symbols().critical_value.subs(A, 2)
+        5
+        """
+        declared = self.model.declared_symbols
+        sub = {s: declared[name] for name, s in self.model.symbols.items()
+               if declared[name] is not s and declared[name] != s}
+        extra = {s: sympy.Symbol(s.name, real=True, **{self.assumptions[s.name]: True})
+                 for e in (self.critical_value, self.l1) for s in e.free_symbols
+                 if s not in sub and self.assumptions.get(s.name, "real") != "real"}
+        sub.update(extra)
+        if not sub:
+            return self
+        changes = {f.name: _swap(getattr(self, f.name), sub) for f in fields(self)
+                   if f.init and f.name not in ("model", "conventions", "assumptions",
+                                                "_details", "fixed_parameters")}
+        return replace(self, _details=_SwappedDetails(self._details, sub), **changes)
+
     # -- numeric ---------------------------------------------------------------------------
     def evaluate(self, values: Mapping | None = None, *, digits: int = 30, **kwargs):
         """Every quantity at a parameter point, to ``digits`` significant digits.
@@ -241,29 +282,45 @@ class HopfResult:
 
         return evaluate_many(self, points, quantities, **kwargs)
 
-    # -- outputs -----------------------------------------------------------------------------
+    # -- outputs (rendered by the renderers registered for the kind "hopf") ----------------
     def summary(self) -> str:
-        """A readable plain-text summary (table of quantities, verdict, conventions)."""
-        from ..outputs.text import result_summary
+        """A short plain-text summary (at most 40 lines): the verdict, the main
+        quantities, the condition, one line of conventions, the cautions."""
+        return render(self, "text")
 
-        return result_summary(self)
+    def details(self) -> str:
+        """The full plain text: every quantity, the conditions, the cycle, the
+        notes, every convention and caution."""
+        return render(self, "details")
 
     def to_latex(self) -> str:
         """Every quantity as a LaTeX equation (an ``align``-ready block)."""
-        from ..outputs.latex import result_to_latex
+        return render(self, "latex")
 
-        return result_to_latex(self)
+    def to_report(self, **options) -> str:
+        """The LaTeX derivation report (``fragment=True``: no preamble)."""
+        return render(self, "report", **options)
 
     def to_json(self, **kwargs) -> str:
         """The result as JSON in the documented, versioned schema."""
-        from ..outputs.json_io import result_to_json
+        return render(self, "json", **kwargs)
 
-        return result_to_json(self, **kwargs)
+    def to_numpy_module(self) -> str:
+        """The closed forms as a standalone Python module (numpy only)."""
+        return render(self, "numpy")
+
+    def to_c(self, prefix: str = "hopf_") -> str:
+        """The closed forms as C99 functions (``math.h`` only)."""
+        return render(self, "c", prefix=prefix)
 
     def _repr_latex_(self):
-        from ..outputs.latex import result_to_notebook_latex
+        return render(self, "notebook_latex")
 
-        return result_to_notebook_latex(self)
+    def _repr_html_(self):
+        return render(self, "html")
+
+    def _repr_markdown_(self):
+        return render(self, "markdown")
 
     def _latex(self, printer=None):
         return self.to_latex()
@@ -277,3 +334,29 @@ class HopfResult:
     def __repr__(self):
         return (f"HopfResult(parameter={self.parameter!r}, critical_value={self.critical_value}, "
                 f"classification={self.classification!r})")
+
+
+def _swap(value, sub: dict):
+    """``value`` (an expression, or a container or dataclass of them) with
+    the symbols replaced."""
+    if isinstance(value, (sympy.Basic, sympy.MatrixBase)):
+        return value.xreplace(sub)
+    if isinstance(value, Mapping):
+        return {k: _swap(v, sub) for k, v in value.items()}
+    if isinstance(value, tuple):
+        return tuple(_swap(v, sub) for v in value)
+    if is_dataclass(value) and not isinstance(value, type):
+        return replace(value, **{f.name: _swap(getattr(value, f.name), sub)
+                                 for f in fields(value) if f.init})
+    return value
+
+
+class _SwappedDetails:
+    """The display-oriented parts of a result, in other symbols."""
+
+    def __init__(self, inner, sub: dict):
+        self._inner, self._sub = inner, sub
+
+    def __getattr__(self, name):
+        method = getattr(self._inner, name)
+        return lambda *args, **kwargs: _swap(method(*args, **kwargs), self._sub)

@@ -9,13 +9,14 @@ its file line where the model came from a file.
 
 from __future__ import annotations
 
+import warnings
 from types import MappingProxyType
 from typing import Mapping
 
 import sympy
 
 from .syntax import _suggest
-from ..errors import ExpressionError, InvalidModelError
+from ..errors import ExpressionError, InvalidModelError, NameTypoWarning
 from .expressions import convert_sympy, format_expression, name_problem, parse_expression
 from .parameter import (_NUMBER_TYPES, _PARAMETER_KEYS, Parameter, _assumption_problem,
                         _constant, _name_of, _sign_problem)
@@ -27,6 +28,9 @@ def _describe(value: object) -> str:
     kind = {bool: "a boolean", dict: "a table", list: "a list", str: "a string"}
     return kind.get(type(value), type(value).__name__)
 
+
+_GREEK = frozenset("alpha beta gamma delta epsilon zeta eta theta iota kappa lambda mu nu xi "
+                   "omicron pi rho sigma tau upsilon phi chi psi omega".split())
 
 class _Assembler:
     """Validates the pieces of a model, collecting every problem."""
@@ -122,8 +126,10 @@ class _Assembler:
         fields = self.parameter_fields(label, name, spec)
         if fields is None:
             return None
-        assumption, value, description = fields
+        assumption, value, description, unit = fields
         before = len(self.problems)
+        if unit is not None and not isinstance(unit, str):
+            self.problem(label, "parameters", name, "the unit must be a string")
         problem = _assumption_problem(assumption)
         if problem is not None:
             self.problem(label, "parameters", name, problem)
@@ -133,16 +139,16 @@ class _Assembler:
             value = self.value(label, name, value, assumption if problem is None else "real")
         if len(self.problems) > before:
             return None
-        return Parameter(name, assumption, value, True, description)
+        return Parameter(name, assumption, value, True, description, unit)
 
     def parameter_fields(self, label: str, name: str, spec: object):
         if spec is None or isinstance(spec, str):
-            return spec or "real", None, None
+            return spec or "real", None, None, None
         if isinstance(spec, _NUMBER_TYPES) and not isinstance(spec, bool):
-            return "real", spec, None
+            return "real", spec, None, None
         if not isinstance(spec, Mapping):
             self.problem(label, "parameters", name, "expected an assumption word or a table "
-                         f"{{assume, value, description}}, found {_describe(spec)}")
+                         f"{{assume, value, description, unit}}, found {_describe(spec)}")
             return None
         unknown = [k for k in spec if k not in _PARAMETER_KEYS]
         for key in unknown:
@@ -152,7 +158,8 @@ class _Assembler:
                          f"(allowed: {', '.join(_PARAMETER_KEYS)})")
         if unknown:
             return None
-        return spec.get("assume", "real"), spec.get("value"), spec.get("description")
+        return (spec.get("assume", "real"), spec.get("value"), spec.get("description"),
+                spec.get("unit"))
 
     def value(self, label: str, name: str, raw: object, assumption: str):
         context = f"value of parameter {name!r}"
@@ -266,6 +273,10 @@ class _Assembler:
             hint = _suggest(name, known)
             if hint:
                 note += f" (did you mean {' or '.join(map(repr, hint))}?)"
+            if hint and len(name) > 2 and name not in _GREEK:  # a Greek letter is deliberate
+                warnings.warn(NameTypoWarning(
+                    f"{unknown[name]} uses {name!r}, which is not declared (taken as a real "
+                    f"parameter); did you mean {' or '.join(map(repr, hint))}?"), stacklevel=2)
             self.notes.append(note)
             result.append(Parameter(name, "real", None, False))
         return result
@@ -317,8 +328,30 @@ class _Assembler:
         self.problem("bifurcation_parameter", "bifurcation_parameter", None, message)
         return None
 
+    def state_units(self, units: object, states: list[str]) -> dict:
+        """The ``units`` table: state name -> unit text."""
+        if units is None:
+            return {}
+        if not isinstance(units, Mapping):
+            self.problem("units", "units", None, "expected a table of state name = \"unit\", "
+                         f"found {_describe(units)}")
+            return {}
+        out = {}
+        for key, unit in units.items():
+            if key not in states:
+                hint = _suggest(str(key), states)
+                hint = f"did you mean {hint[0]!r}? " if hint else ""
+                self.problem(f"unit of {str(key)[:40]!r}", "units", str(key),
+                             f"{str(key)[:40]!r} is not a state; {hint}(a parameter's unit is "
+                             "the key unit in its own table)")
+            elif not isinstance(unit, str):
+                self.problem(f"unit of {key!r}", "units", key, "the unit must be a string")
+            else:
+                out[key] = unit
+        return out
+
     def run(self, states, equations, parameters, name, description, equilibrium,
-            bifurcation_parameter, error=InvalidModelError) -> dict:
+            bifurcation_parameter, error=InvalidModelError, units=None) -> dict:
         """Validate everything; return the normalised fields or raise ``error``."""
         fields = {"name": self.text("name", name),
                   "description": self.text("description", description)}
@@ -331,6 +364,7 @@ class _Assembler:
         extra = self.undeclared(unknown, list(symbols))
         symbols.update((p.name, p.symbol) for p in extra)
         fields["equilibrium_hint"] = self.equilibrium(equilibrium, state_names, symbols)
+        fields["state_units"] = MappingProxyType(self.state_units(units, state_names))
         fields["bifurcation_parameter"] = self.bifurcation(bifurcation_parameter,
                                                            declared + extra, state_names)
         if self.problems:

@@ -29,7 +29,7 @@ from .parameter import ASSUMPTIONS, Parameter, _constant, _name_of, _sign_proble
 __all__ = ["Model", "Parameter", "ASSUMPTIONS"]
 
 _FIELDS = ("name", "description", "states", "parameters", "equations", "equilibrium_hint",
-           "bifurcation_parameter", "notes", "lines", "source", "symbols")
+           "bifurcation_parameter", "notes", "lines", "source", "symbols", "state_units")
 
 
 class Model:
@@ -86,9 +86,9 @@ class Model:
 
     def __init__(self, states, equations, parameters=None, *, name: str | None = None,
                  description: str | None = None, equilibrium: Mapping | None = None,
-                 bifurcation_parameter: str | None = None):
+                 bifurcation_parameter: str | None = None, state_units: Mapping | None = None):
         fields = _Assembler().run(states, equations, parameters, name, description,
-                                  equilibrium, bifurcation_parameter)
+                                  equilibrium, bifurcation_parameter, units=state_units)
         self._fill(fields, {})
 
     def _fill(self, fields: dict, lines: Mapping[str, int]) -> None:
@@ -112,6 +112,7 @@ class Model:
     def __reduce__(self):
         fields = {k: getattr(self, k) for k in _FIELDS if k != "lines"}
         fields["symbols"] = dict(self.symbols)
+        fields["state_units"] = dict(self.state_units)
         if self.equilibrium_hint is not None:
             fields["equilibrium_hint"] = dict(self.equilibrium_hint)
         return (_restore, (fields, dict(self.lines)))
@@ -156,6 +157,27 @@ class Model:
     def parameter_symbols(self) -> tuple[sympy.Symbol, ...]:
         """The symbols of the parameters, in parameter order."""
         return tuple(self.symbols[p.name] for p in self.parameters)
+
+    @property
+    def declared_symbols(self) -> dict:
+        """Name -> a sympy symbol carrying the declared assumption
+        (``Symbol("A", positive=True)`` for a positive parameter; states and
+        ``real`` parameters are ``Symbol(name, real=True)``, the same as
+        :attr:`symbols`).  ``result.with_declared_symbols()`` rewrites a
+        result in these, so that a user's own ``sympy.Symbol("A",
+        positive=True)`` matches.
+
+        >>> m = Model(["x"], {"x": "a - b*x"}, {"a": "positive", "b": "real"})
+        >>> m.symbols["a"] == sympy.Symbol("a", real=True)
+        True
+        >>> m.declared_symbols["a"] == sympy.Symbol("a", positive=True)
+        True
+        """
+        out = dict(self.symbols)
+        for p in self.parameters:
+            if p.assumption != "real":
+                out[p.name] = sympy.Symbol(p.name, real=True, **{p.assumption: True})
+        return out
 
     def parameter(self, name: str) -> Parameter:
         """The parameter called ``name``.
@@ -293,7 +315,8 @@ class Model:
 
 def _restore(fields: dict, lines: dict) -> Model:
     """Rebuild a pickled model."""
-    fields = dict(fields, symbols=MappingProxyType(fields["symbols"]))
+    fields = dict(fields, symbols=MappingProxyType(fields["symbols"]),
+                  state_units=MappingProxyType(dict(fields.get("state_units") or {})))
     if fields["equilibrium_hint"] is not None:
         fields["equilibrium_hint"] = MappingProxyType(fields["equilibrium_hint"])
     return Model._build(fields, lines)

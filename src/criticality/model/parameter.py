@@ -22,7 +22,7 @@ __all__ = ["Parameter", "ASSUMPTIONS"]
 ASSUMPTIONS = ("real", "positive", "nonnegative", "nonzero", "negative")
 _SIGN_TEST = {"positive": ("is_positive", "> 0"), "nonnegative": ("is_nonnegative", ">= 0"),
               "negative": ("is_negative", "< 0"), "nonzero": ("is_nonzero", "!= 0")}
-_PARAMETER_KEYS = ("assume", "value", "description")
+_PARAMETER_KEYS = ("assume", "value", "description", "unit")
 _NUMBER_TYPES = (int, float, Fraction, sympy.Expr)
 
 
@@ -87,6 +87,8 @@ class Parameter:
         False for a name the equations use but the model did not declare.
     description : str or None
         What the parameter means, for people reading the model.
+    unit : str or None
+        Its unit (free text such as ``"1/day"``), for axis labels and tables.
     """
 
     name: str
@@ -94,12 +96,15 @@ class Parameter:
     default: sympy.Expr | None = None
     declared: bool = True
     description: str | None = None
+    unit: str | None = None
 
     def __post_init__(self):
         problems = [p for p in (name_problem(self.name), _assumption_problem(self.assumption))
                     if p is not None]
         if self.description is not None and not isinstance(self.description, str):
             problems.append("the description must be a string")
+        if self.unit is not None and not isinstance(self.unit, str):
+            problems.append("the unit must be a string")
         if self.default is not None and not problems:
             try:
                 value = _constant(self.default, f"value of parameter {self.name!r}")

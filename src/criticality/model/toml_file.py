@@ -28,7 +28,7 @@ __all__ = ["read_model_text", "read_model_file", "model_to_toml", "MAX_FILE_CHAR
 MAX_FILE_CHARS = 1_000_000
 #: the keys a model file may have at its top level
 TOP_KEYS = ("name", "description", "states", "bifurcation_parameter", "parameters",
-            "equations", "equilibrium")
+            "equations", "equilibrium", "units")
 _BARE = r"[A-Za-z0-9_-]+"
 _PART = rf'(?:{_BARE}|"[^"]*"|\'[^\']*\')'
 _KEY = re.compile(rf"({_PART}(?:\s*\.\s*{_PART})*)\s*=")
@@ -176,13 +176,15 @@ def _string(text: str) -> str:
 
 
 def _parameter_entry(parameter) -> str:
-    if parameter.default is None and parameter.description is None:
+    if parameter.default is None and parameter.description is None and parameter.unit is None:
         return _string(parameter.assumption)
     fields = [f"assume = {_string(parameter.assumption)}"]
     if parameter.default is not None:
         fields.append(f"value = {_string(format_expression(parameter.default))}")
     if parameter.description is not None:
         fields.append(f"description = {_string(parameter.description)}")
+    if parameter.unit is not None:
+        fields.append(f"unit = {_string(parameter.unit)}")
     return "{ " + ", ".join(fields) + " }"
 
 
@@ -209,4 +211,8 @@ def model_to_toml(model) -> str:
     if model.equilibrium_hint is not None:
         out += ["", "[equilibrium]"]
         out += [f"{s} = {_string(format_expression(v))}" for s, v in model.equilibrium_hint.items()]
+    units = getattr(model, "state_units", None) or {}
+    if units:
+        out += ["", "[units]"]
+        out += [f"{s} = {_string(u)}" for s, u in units.items()]
     return "\n".join(out) + "\n"

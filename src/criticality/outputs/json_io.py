@@ -24,8 +24,9 @@ from typing import Mapping
 import mpmath
 import sympy
 
+from .envelope import SCHEMA_VERSION, envelope, read_document
 from .render import CAUTIONS, split_complex, try_model_text
-from ..errors import ModelFileError
+from ..renderers import register_renderer
 from ..model.expressions import parse_expression
 
 __all__ = ["SCHEMA", "SCHEMA_VERSION", "result_to_json", "result_to_dict", "read_expressions",
@@ -33,8 +34,6 @@ __all__ = ["SCHEMA", "SCHEMA_VERSION", "result_to_json", "result_to_dict", "read
 
 #: the schema's name, the value of the ``"schema"`` key
 SCHEMA = "criticality/hopf-result"
-#: the schema's version; it changes when a key changes meaning or disappears
-SCHEMA_VERSION = 1
 
 _CONVENTION_KEYS = ("inner_product", "eigenvectors", "normal_form", "lyapunov", "classical",
                     "sign", "cycle")
@@ -70,8 +69,10 @@ def _model(model) -> dict:
         "bifurcation_parameter": model.bifurcation_parameter,
         "parameters": [{"name": p.name, "assumption": p.assumption,
                         "value": _expr(p.default) if p.default is not None else None,
-                        "description": p.description, "declared": p.declared}
+                        "description": p.description, "declared": p.declared,
+                        "unit": getattr(p, "unit", None)}
                        for p in model.parameters],
+        "state_units": dict(getattr(model, "state_units", None) or {}),
         "equations": {s: _expr(e) for s, e in zip(model.states, model.equations)},
     }
 
@@ -128,17 +129,10 @@ def _numeric_fields(num, digits: int) -> dict:
 def result_to_dict(result, *, point: Mapping | None = None, digits: int = 30) -> dict:
     """The result as plain Python data in the JSON schema (see
     :func:`result_to_json`)."""
-    from .. import __version__
-
     conventions = result.conventions
-    return {
-        "schema": SCHEMA,
-        "schema_version": SCHEMA_VERSION,
-        "generator": {"name": "criticality", "version": __version__},
-        "analysis": "hopf",
-        "status": result.status,
-        "conventions": {k: getattr(conventions, k) for k in _CONVENTION_KEYS},
-        "model": _model(result.model),
+    body = {
+        "model": dict(_model(result.model), fixed={
+            p.name: _expr(v) for p, v in getattr(result, "fixed_parameters", ())}),
         "parameter": result.parameter,
         "assumptions": dict(result.assumptions),
         "equilibrium": {"method": result.equilibrium_how,
@@ -164,10 +158,11 @@ def result_to_dict(result, *, point: Mapping | None = None, digits: int = 30) ->
                         "relation": c.relation, "status": c.status} for c in result.conditions],
         "cycle": _cycle(result.cycle),
         "routes_agree": bool(result.routes_agree),
-        "notes": list(result.notes),
-        "cautions": list(CAUTIONS),
-        "numeric": None if point is None else _numeric(result, point, digits),
     }
+    return envelope(SCHEMA, "hopf", body, status=result.status,
+                    conventions={k: getattr(conventions, k) for k in _CONVENTION_KEYS},
+                    notes=result.notes, cautions=CAUTIONS,
+                    tail={"numeric": None if point is None else _numeric(result, point, digits)})
 
 
 def result_to_json(result, *, point: Mapping | None = None, digits: int = 30,
@@ -276,13 +271,7 @@ def read_expressions(json_text: str, *, exact: bool | None = None) -> dict:
         If the text is not JSON of this schema; expression errors name the
         path of the offending string.
     """
-    try:
-        doc = json.loads(json_text)
-    except (TypeError, ValueError) as exc:
-        raise ModelFileError(f"not a JSON document: {exc}") from None
-    if not isinstance(doc, dict) or doc.get("schema") != SCHEMA:
-        raise ModelFileError(f"not a {SCHEMA} document (the key 'schema' is missing or "
-                             "different)")
+    doc = read_document(json_text, SCHEMA)
     if exact is None:
         exact = not str(doc.get("status", "")).startswith("numeric")
     out = {}
@@ -330,3 +319,7 @@ def result_expressions(result) -> dict:
         if p.default is not None:
             table[f"model.parameters.{p.name}.value"] = p.default
     return {path: sympy.sympify(value) for path, value in table.items() if path in paths}
+
+
+register_renderer("hopf", "json", result_to_json)
+register_renderer("hopf", "dict", result_to_dict)

@@ -25,6 +25,7 @@ from __future__ import annotations
 
 import sympy
 
+from ..renderers import register_renderer
 from .latex_expr import latex_name
 from .latex_sections import Document, report_body
 
@@ -97,7 +98,7 @@ def result_to_latex(result, width: float = 40) -> str:
     >>> [row for row in tex.splitlines() if row.startswith("\\\\ell")]
     ['\\\\ell_{1} &= - \\\\frac{1}{4} \\\\\\\\']
     """
-    doc = Document(result, width=width, threshold=max(16, width * 0.55))
+    doc = Document(result, width=width, threshold=max(16, width * 0.55), zero_left=True)
     rows = _with_definitions(doc, _quantity_rows(doc), "align*")
     return doc.block(rows)
 
@@ -119,7 +120,7 @@ def result_to_notebook_latex(result, width: float = 70) -> str:
     return "$$\\begin{aligned}\n" + " \\\\\n".join(rows) + "\n\\end{aligned}$$"
 
 
-def latex_report(result, width: float = 66) -> str:
+def latex_report(result, width: float = 66, fragment: bool = False) -> str:
     """A standalone LaTeX document with the whole derivation of ``result``.
 
     It compiles with pdflatex using only amsmath, amssymb, geometry and
@@ -130,15 +131,21 @@ def latex_report(result, width: float = 66) -> str:
     result : HopfResult
     width : float
         Target width of a line of mathematics, in characters.
+    fragment : bool
+        Only the sections (no preamble, no ``\\begin{document}``), to drop
+        into an existing article that loads amsmath, amssymb and booktabs.
 
     Returns
     -------
     str
-        The text of a ``.tex`` file.
+        The text of a ``.tex`` file (or of the fragment).
     """
     from .. import __version__
 
     doc = Document(result, width=width, threshold=max(24, width * 0.45))
+    if fragment:
+        return (f"% criticality {__version__}: Hopf analysis (needs amsmath, amssymb, booktabs)\n"
+                "\\providecommand{\\statuslabel}[1]{\\textsc{#1}}\n" + report_body(doc) + "\n")
     title = doc.text(f"Hopf bifurcation of {result.model.name}" if result.model.name
                      else "Hopf bifurcation analysis")
     head = _PREAMBLE + (f"\\title{{{title}}}\n"
@@ -146,3 +153,8 @@ def latex_report(result, width: float = 66) -> str:
                         "\\begin{document}\n\\maketitle\n")
     return head + report_body(doc) + "\n\\end{document}\n"
 
+
+
+register_renderer("hopf", "latex", result_to_latex)
+register_renderer("hopf", "notebook_latex", result_to_notebook_latex)
+register_renderer("hopf", "report", latex_report)

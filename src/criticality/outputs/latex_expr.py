@@ -24,6 +24,8 @@ import re
 import sympy
 from sympy.printing.latex import LatexPrinter
 
+from ..algebra.canonical import compact
+
 __all__ = ["latex_name", "Notation", "TexWriter"]
 
 _GREEK = frozenset(
@@ -105,6 +107,7 @@ class Notation:
             "~eta": pick("\\eta", "\\zeta_{2}", "v_{\\mathrm{c}}"),
         }
         self.factor_letter = pick("P", "Q", "R", "F", "G", "H")
+        self.atom_letter = pick("L", "M", "N", "K", "W")
         self.widths = {key: 1.0 for key in self.names}
 
 
@@ -118,6 +121,15 @@ class _Printer(LatexPrinter):
     def _print_Symbol(self, expr, style="plain"):
         known = self._names.get(expr.name)
         return known if known is not None else latex_name(expr.name)
+
+
+def _non_polynomial(node) -> bool:
+    """A logarithm, exponential or other function, or a radical of a
+    non-numeric base."""
+    if isinstance(node, sympy.Function) and not isinstance(node, sympy.core.function.AppliedUndef):
+        return bool(node.free_symbols)
+    return (node.is_Pow and node.exp.is_Rational and not node.exp.is_Integer
+            and not node.base.is_number)
 
 
 def _needs_brackets(term) -> bool:
@@ -147,6 +159,34 @@ class TexWriter:
         self.defined: list = []
         self.pending: list = []
         self._memo: dict = {}
+        #: repeated non-polynomial subexpressions -> their names (see :meth:`name_atoms`)
+        self.atoms: dict = {}
+        self._atoms_used: set = set()
+
+    def name_atoms(self, exprs, min_count: int = 2, min_width: float = 6) -> None:
+        """Name the non-polynomial subexpressions (logarithms, exponentials,
+        radicals, roots) that occur at least ``min_count`` times in
+        ``exprs`` and are wider than ``min_width``: each is printed as
+        ``L_{k}`` and defined once, after the first block that uses it."""
+        counts: dict = {}
+        for e in exprs:
+            for node in sympy.preorder_traversal(sympy.sympify(e)):
+                if _non_polynomial(node):
+                    counts[node] = counts.get(node, 0) + 1
+        for node, count in sorted(counts.items(), key=lambda kv: sympy.default_sort_key(kv[0])):
+            if count >= min_count and self.measure(node) > min_width and node not in self.atoms:
+                index = len(self.atoms) + 1
+                symbol = sympy.Symbol(f"~atom{index:04d}")
+                self.names[symbol.name] = f"{self.notation.atom_letter}_{{{index}}}"
+                self.widths[symbol.name] = 2.0 + 0.6 * len(str(index))
+                self.atoms[node] = symbol
+
+    def _atom(self, e):
+        symbol = self.atoms[e]
+        if symbol not in self._atoms_used:
+            self._atoms_used.add(symbol)
+            self.pending.append((symbol, e))
+        return symbol
 
     # -- measuring --------------------------------------------------------------------
     def measure(self, e) -> float:
@@ -207,6 +247,8 @@ class TexWriter:
     def _rebuild(self, e, root: bool):
         if e.is_Atom:
             return e
+        if not root and e in self.atoms:
+            return self._atom(e)
         args = tuple(self._rebuild(a, False) for a in e.args)
         new = e if all(a is b for a, b in zip(args, e.args)) else e.func(*args)
         if not root and new.is_Add and self.measure(new) > self.threshold:
@@ -217,7 +259,7 @@ class TexWriter:
         """``e`` with wide inner sums replaced by named factors, and the
         numerator or denominator of a fraction that is still too wide named
         as a whole."""
-        e = sympy.sympify(e)
+        e = compact(sympy.sympify(e))
         if e.is_Relational:
             return e.func(self._rebuild(e.lhs, True), self._rebuild(e.rhs, True),
                           evaluate=False)

@@ -11,41 +11,18 @@ defined right after the first block that uses them.
 
 from __future__ import annotations
 
-import unicodedata
-
 import sympy
 
+from .escape import tex_text
 from .latex_expr import Notation, TexWriter, latex_name
+from .prose import prose_to_tex
 from .render import (CAUTIONS, classification_sentence, per_offset, reduced_system_or_none,
                       split_complex, transversality_sentence)
 from ..hopf_analysis.results import CONVENTIONS
 
 __all__ = ["Document", "report_body", "tex_text", "join_rows"]
 
-_SPECIAL = {"\\": r"\textbackslash{}", "{": r"\{", "}": r"\}", "$": r"\$", "&": r"\&",
-            "#": r"\#", "^": r"\^{}", "_": r"\_", "%": r"\%", "~": r"\~{}",
-            "<": r"\textless{}", ">": r"\textgreater{}", "|": r"\textbar{}",
-            "*": r"*\allowbreak{}", "/": r"/\allowbreak{}"}
 _RELATIONS = {">": ">", "<": "<", "!=": "\\neq", ">=": "\\geq", "<=": "\\leq", "==": "="}
-
-
-def tex_text(text: str) -> str:
-    """Plain text made safe for LaTeX (specials escaped, non-ASCII letters
-    reduced to ASCII, long formulas in text allowed to break).
-
-    >>> tex_text("a_1 > 5% & {b}")
-    'a\\\\_1 \\\\textgreater{} 5\\\\% \\\\& \\\\{b\\\\}'
-    """
-    plain = unicodedata.normalize("NFKD", str(text))
-    out = []
-    for ch in plain:
-        if unicodedata.combining(ch):
-            continue
-        if ord(ch) > 126 or (ord(ch) < 32 and ch not in "\n\t"):
-            out.append("?")
-        else:
-            out.append(_SPECIAL.get(ch, ch))
-    return "".join(out)
 
 
 def join_rows(rows: list) -> str:
@@ -62,14 +39,36 @@ def _radical_bases(omega) -> set:
             if p.exp.is_Rational and p.exp.q == 2 and not p.base.is_number}
 
 
+def _named_candidates(result, bases) -> list:
+    """The expressions whose repeated logarithms, exponentials and radicals
+    get names (radicals of the frequency itself excepted: it has its own
+    symbol)."""
+    exprs = [result.critical_value, result.omega_squared, result.l1, result.c1,
+             result.transversality, *result.cycle.amplitude_coefficients.values(),
+             *(c.expr for c in result.conditions), *result.equilibrium.values()]
+    if result.supercritical_where is not None:
+        exprs.append(result.supercritical_where.lhs)
+    out = []
+    for e in exprs:
+        e = sympy.sympify(e)
+        if bases:
+            e = e.xreplace({p: sympy.Dummy() for p in e.atoms(sympy.Pow)
+                            if p.base in bases and p.exp.is_Rational and p.exp.q == 2})
+        out.append(e)
+    return out
+
+
 class Document:
     """Shared state of one LaTeX document for one result."""
 
-    def __init__(self, result, width: float, threshold: float):
+    def __init__(self, result, width: float, threshold: float, zero_left: bool = False):
         self.result = result
+        self.zero_left = zero_left
         names = set(result.model.symbols) | set(result.substitutions) | {result.parameter}
         for value in result.equilibrium.values():
             names |= {s.name for s in sympy.sympify(value).free_symbols}
+        names |= {p.name for p, _ in getattr(result, "fixed_parameters", ())}
+        self.names = frozenset(names) | frozenset(result.model.states)
         self.notation = Notation(sorted(names))
         self.writer = TexWriter(self.notation, width=width, threshold=threshold)
         self.width = width
@@ -82,6 +81,7 @@ class Document:
                            f"\\Big|_{{{self.mu_c}}}")
         self._omega_expr = sympy.sympify(result.omega)
         self._bases = _radical_bases(self._omega_expr)
+        self.writer.name_atoms(_named_candidates(result, self._bases))
 
     # -- expressions ------------------------------------------------------------------
     def split(self, expr) -> tuple:
@@ -128,12 +128,29 @@ class Document:
         return _RELATIONS.get(op, op)
 
     def inequality_rows(self, rel) -> list:
-        """``0 < lhs`` style rows for a relational ``lhs > 0``."""
-        op = {">": "<", "<": ">"}.get(rel.rel_op, self.relation(rel.rel_op))
-        return self.writer.align_rows("0", rel.lhs - rel.rhs, relation=op)
+        """Rows for a relational ``lhs > 0``: the deciding expression on the
+        left and 0 on the right (``0 < lhs`` with ``zero_left``, the form of
+        the quantity block)."""
+        if self.zero_left:
+            op = {">": "<", "<": ">"}.get(rel.rel_op, self.relation(rel.rel_op))
+            return self.writer.align_rows("0", rel.lhs - rel.rhs, relation=op)
+        return self.relation_rows(rel.lhs - rel.rhs, self.relation(rel.rel_op))
+
+    def relation_rows(self, expr, relation: str) -> list:
+        """``expr relation 0`` as rows: the expression, broken as needed, then
+        the relation on the last row."""
+        w = self.writer
+        lines = w.pieces(w.shorten(expr))
+        rows = [f"&{lines[0]}"] + [f"&\\qquad {line}" for line in lines[1:]]
+        rows[-1] += f" {relation} 0"
+        return rows
 
     def text(self, text: str) -> str:
         return tex_text(text)
+
+    def prose(self, text: str) -> str:
+        """Prose with its formulas in math mode (model names recognised)."""
+        return prose_to_tex(" ".join(str(text).split()), self.names)
 
     # -- blocks ---------------------------------------------------------------------------
     def block(self, rows: list) -> str:
@@ -179,20 +196,23 @@ def _section_model(doc: Document) -> str:
     model, w = doc.result.model, doc.writer
     intro = []
     if model.description:
-        intro.append(doc.text(" ".join(model.description.split())))
+        intro.append(doc.prose(model.description))
     intro.append(f"States ({len(model.states)}): " +
                  ", ".join(f"${latex_name(s)}$" for s in model.states) +
                  f". Bifurcation parameter: ${doc.mu}$.")
     rows = []
     for state, rhs in zip(model.states, model.equations):
         rows += w.align_rows(_dot(state), rhs)
-    table = ["\\begin{tabular}{llll}", "\\toprule",
+    table = ["\\begin{tabular}{lllp{0.45\\textwidth}}", "\\toprule",
              "parameter & assumption & value & meaning \\\\", "\\midrule"]
     assumptions = doc.result.assumptions
     for p in model.parameters:
         value = "" if p.default is None else f"${w.tex(p.default)}$"
         table.append(f"${latex_name(p.name)}$ & {doc.text(assumptions.get(p.name, p.assumption))}"
-                     f" & {value} & {doc.text(p.description or '')} \\\\")
+                     f" & {value} & {_meaning(doc, p)} \\\\")
+    for p, fixed in getattr(doc.result, "fixed_parameters", ()):
+        table.append(f"${latex_name(p.name)}$ & fixed & ${w.tex(fixed)}$ & "
+                     f"{_meaning(doc, p)} (fixed before the analysis) \\\\")
     table += ["\\bottomrule", "\\end{tabular}"]
     extra = {k: v for k, v in assumptions.items() if k not in {p.name for p in model.parameters}}
     more = ("Further sign assumptions: " + ", ".join(
@@ -201,13 +221,20 @@ def _section_model(doc: Document) -> str:
                     "\n".join(table) if model.parameters else "", more)
 
 
+def _meaning(doc: Document, p) -> str:
+    words = doc.prose(p.description or "")
+    unit = getattr(p, "unit", None)
+    return words + (f" [{doc.text(unit)}]" if unit else "")
+
+
 def _section_equilibrium(doc: Document) -> str:
     r, w = doc.result, doc.writer
     how = {"given": "given with the model or the call",
            "solved": "found by solving $f(x) = 0$",
            "parametrised": "used as the family parameter: the parameters below were eliminated "
                            "so that the equilibrium coordinates are free symbols"}
-    text = (f"The equilibrium ({doc.text(how.get(r.equilibrium_how, r.equilibrium_how))}), as a "
+    how_words = how.get(r.equilibrium_how) or doc.text(r.equilibrium_how)
+    text = (f"The equilibrium ({how_words}), as a "
             f"function of ${doc.mu}$; the analysis takes it at ${doc.mu} = {doc.mu_c}$.")
     rows = []
     for state, value in r.equilibrium.items():
@@ -308,7 +335,8 @@ def _section_normal_form(doc: Document) -> str:
                          r.planar_coefficient)
     for k, coefficient in enumerate(r.lyapunov_coefficients[1:], start=2):
         rows += w.align_rows(f"\\ell_{{{k}}}", doc.over_omega(coefficient))
-    text = ("On the center manifold the normal form is $\\dot z = (\\beta + i" + doc.omega_tex +
+    text = ("The first Lyapunov coefficient $\\ell_{1}$ decides the type of the bifurcation. "
+            "On the center manifold the normal form is $\\dot z = (\\beta + i" + doc.omega_tex +
             ")z + c_{1} z|z|^{2} + \\dots$ with the unit normalisation "
             "$\\langle \\mathbf{q}, \\mathbf{q}\\rangle = 1$; $a_{\\mathrm{GH}}$ is the planar "
             "coefficient of Guckenheimer and Holmes (1983, Section 3.4).")
@@ -317,14 +345,16 @@ def _section_normal_form(doc: Document) -> str:
 
 def _section_verdict(doc: Document) -> str:
     r = doc.result
-    parts = [doc.text(classification_sentence(r.classification, r.cycle.amplitude_power)),
-             "In the engine's words: " + doc.text(r.verdict) + "."]
+    parts = [doc.prose(classification_sentence(r.classification, r.cycle.amplitude_power))]
+    if r.supercritical_where is None and r.l1_zero_set is None and len(r.verdict) <= 120:
+        parts.append("Verdict: " + doc.prose(r.verdict) + ".")
     if r.supercritical_where is not None:
         parts.append("Supercritical exactly where")
         parts.append(doc.math(doc.inequality_rows(r.supercritical_where)))
     if r.l1_zero_set is not None:
         parts.append("The first Lyapunov coefficient vanishes (Bautin points) where")
-        parts.append(doc.math(doc.writer.align_rows("0", r.l1_zero_set.lhs)))
+        parts.append(doc.math(doc.relation_rows(r.l1_zero_set.lhs, "=") if not doc.zero_left
+                              else doc.writer.align_rows("0", r.l1_zero_set.lhs)))
     return _section("Criticality", *parts)
 
 
@@ -355,8 +385,8 @@ def _unstable_words(doc: Document) -> str:
         plain = f"{name} {op} {name}_c"
         if plain in sentence:
             head, tail = sentence.split(plain, 1)
-            return doc.text(head) + f"${doc.mu} {op} {doc.mu_c}$" + doc.text(tail)
-    return doc.text(sentence)
+            return doc.prose(head) + f"${doc.mu} {op} {doc.mu_c}$" + doc.prose(tail)
+    return doc.prose(sentence)
 
 
 def _offset_rows(doc: Document, lhs: str, expr) -> list:
@@ -401,8 +431,8 @@ def _section_conditions(doc: Document) -> str:
     for c in doc.result.conditions:
         rel = sympy.StrictGreaterThan(c.expr, 0, evaluate=False) if c.relation == ">" else None
         rows = (doc.inequality_rows(rel) if rel is not None else
-                doc.writer.align_rows("0", c.expr, relation="\\neq"))
-        items.append(f"\\statuslabel{{{doc.text(c.status)}}}: {doc.text(c.description)}\n" +
+                doc.relation_rows(c.expr, "\\neq"))
+        items.append(f"\\statuslabel{{{doc.text(c.status)}}}: {doc.prose(c.description)}\n" +
                      doc.math(rows))
     intro = ("\\statuslabel{holds}: proved under the assumptions; \\statuslabel{open}: stated, "
              "not proved (the result is valid where it holds); \\statuslabel{fails}: proved "
@@ -412,7 +442,7 @@ def _section_conditions(doc: Document) -> str:
 
 def _section_words(doc: Document) -> str:
     r = doc.result
-    notes = ("\\begin{itemize}\n" + "\n".join(f"\\item {doc.text(n)}" for n in r.notes) +
+    notes = ("\\begin{itemize}\n" + "\n".join(f"\\item {doc.prose(n)}" for n in r.notes) +
              "\n\\end{itemize}") if r.notes else "None."
     lines = (_conventions_tex(doc) if r.conventions == CONVENTIONS
              else [doc.text(c) for c in r.conventions.lines()])

@@ -28,10 +28,12 @@ from typing import Mapping, Sequence
 
 from ..files import write_bytes_atomic
 from ..errors import MissingExtraError, ParameterError
-from ..checks.plane import CurveData, StabilityGrid, curve_data, stability_grid, write_curve_csv
+from ..checks.plane import (CurveData, StabilityGrid, curve_data, feasibility_grid,
+                            stability_grid, write_curve_csv)
+from .latex_expr import latex_name
 
 __all__ = ["PlaneDiagram", "AmplitudePlot", "plot_parameter_plane", "plot_amplitude",
-           "save_figure", "write_curve_csv", "curve_data"]
+           "save_figure", "write_curve_csv", "curve_data", "axis_label"]
 
 _STYLE = {"supercritical": dict(color="tab:blue", linestyle="-", linewidth=2.0),
           "subcritical": dict(color="tab:red", linestyle="--", linewidth=2.0)}
@@ -112,10 +114,45 @@ def _draw_curve(ax, curve, artists):
         artists["l1 = 0 (degenerate Hopf point)"] = [pts]
 
 
-def _draw_stability(ax, grid, artists):
+def _math(name: str) -> str:
+    """A model name as matplotlib mathtext."""
+    return "$" + latex_name(name) + "$"
+
+
+def axis_label(model, name: str) -> str:
+    """An axis label from the model: the description, the name in math and
+    the unit (``"sinking loss rate $v$ [1/day]"``); the bare name when the
+    model gives neither."""
+    description = unit = None
+    if name in getattr(model, "states", ()):
+        unit = (getattr(model, "state_units", None) or {}).get(name)
+    else:
+        for p in model.parameters:
+            if p.name == name:
+                description, unit = p.description, getattr(p, "unit", None)
+    if not description and not unit:
+        return name
+    text = f"{description} {_math(name)}" if description else _math(name)
+    return text + (f" [{unit}]" if unit else "")
+
+
+def _draw_infeasible(ax, feasible, artists):
     from matplotlib.patches import Patch
 
-    filled = grid.stable.astype(float)
+    X, Y, ok = feasible
+    if ok.all():
+        return
+    region = ax.contourf(X, Y, (~ok).astype(float), levels=[0.5, 1.5], colors=["0.55"],
+                         alpha=0.30, hatches=["//"])
+    proxy = Patch(facecolor="0.55", alpha=0.30, hatch="//")
+    artists["equilibrium not feasible"] = [region, proxy]
+
+
+def _draw_stability(ax, grid, artists, feasible=None):
+    from matplotlib.patches import Patch
+
+    stable = grid.stable if feasible is None else grid.stable & feasible[2]
+    filled = stable.astype(float)
     if filled.max() <= 0:
         return
     region = ax.contourf(grid.x, grid.y, filled, levels=[0.5, 1.5], colors=["tab:green"],
@@ -129,7 +166,8 @@ def plot_parameter_plane(result, x: str, y: str, *, values: Mapping | None = Non
                          y_range: Sequence[float] = (0.0, 1.0), ax=None, points: int = 400,
                          shade: bool = True, stability: str = "closed form",
                          shade_points: int = 200, figsize=(6.4, 4.8), dpi: int = 100,
-                         title: str | None = None, legend: bool = True) -> PlaneDiagram:
+                         title: str | None = None, legend: bool = True,
+                         feasible=None) -> PlaneDiagram:
     """Draw the Hopf curve of ``result`` in the ``(x, y)`` parameter plane.
 
     Parameters
@@ -156,10 +194,17 @@ def plot_parameter_plane(result, x: str, y: str, *, values: Mapping | None = Non
         Grid points per side for the shading.
     title : str, optional
     legend : bool
+    feasible : str or mapping, optional
+        The sign each state's equilibrium coordinate must keep (``"nonnegative"``
+        for every state, or ``{"P": "positive", ...}``); where the
+        equilibrium breaks it the plane is hatched grey ("not feasible") and
+        never shaded as stable.  Default: the signs declared for the family
+        parameters ``<state>_eq``, if any.
 
     Returns
     -------
     PlaneDiagram
+        The axes are labelled from the model's descriptions and units.
     """
     _matplotlib()
     curve = curve_data(result, x, y, values=values, x_range=x_range, y_range=y_range,
@@ -167,15 +212,20 @@ def plot_parameter_plane(result, x: str, y: str, *, values: Mapping | None = Non
     fig, ax = _axes(ax, figsize, dpi)
     artists: dict = {}
     grid = None
+    region = None
     if shade:
+        region = feasibility_grid(result, x, y, feasible=feasible, values=values,
+                                  x_range=x_range, y_range=y_range, points=shade_points)
         grid = stability_grid(result, x, y, values=values, x_range=x_range, y_range=y_range,
                               points=shade_points, method=stability)
-        _draw_stability(ax, grid, artists)
+        _draw_stability(ax, grid, artists, region)
+        if region is not None:
+            _draw_infeasible(ax, region, artists)
     _draw_curve(ax, curve, artists)
     ax.set_xlim(*x_range)
     ax.set_ylim(*y_range)
-    ax.set_xlabel(x)
-    ax.set_ylabel(y)
+    ax.set_xlabel(axis_label(result.model, x))
+    ax.set_ylabel(axis_label(result.model, y))
     ax.set_title(title if title is not None else _plane_title(result, curve))
     if legend and artists:
         ax.legend([v[-1] for v in artists.values()], list(artists), loc="best", fontsize="small")
@@ -184,11 +234,12 @@ def plot_parameter_plane(result, x: str, y: str, *, values: Mapping | None = Non
 
 def _plane_title(result, curve) -> str:
     mu = result.parameter
-    fixed = ", ".join(f"{k} = {_short(v)}" for k, v in sorted(curve.fixed.items()) if k != mu)
+    fixed = ", ".join(f"${latex_name(k)} = {_short(v)}$" for k, v in sorted(curve.fixed.items())
+                      if k != mu)
     if curve.mode == "level set":
-        head = f"Hopf curve: where {mu} = {_short(curve.fixed[mu])} is critical"
+        head = f"Hopf curve: where ${latex_name(mu)} = {_short(curve.fixed[mu])}$ is critical"
     else:
-        head = f"Hopf curve: critical value of {mu}"
+        head = f"Hopf curve: critical value ${latex_name(mu)}_{{\\mathrm{{c}}}}$"
     return head + (f" ({fixed})" if fixed else "")
 
 
@@ -296,10 +347,13 @@ def plot_amplitude(result, values: Mapping | None = None, *, states: Sequence[st
     if simulated is not None:
         _draw_simulated(ax, simulated, chosen, artists)
     ax.axvline(mu_c, color="0.5", linewidth=0.8)
-    ax.set_xlabel(result.parameter)
-    ax.set_ylabel("amplitude (half peak-to-peak)")
+    ax.set_xlabel(axis_label(result.model, result.parameter))
+    units = {(getattr(result.model, "state_units", None) or {}).get(s) for s in chosen}
+    ax.set_ylabel("amplitude (half peak-to-peak)" +
+                  (f" [{units.pop()}]" if len(units) == 1 and None not in units else ""))
+    mu_tex = latex_name(result.parameter)
     ax.set_title(title if title is not None else
-                 f"Cycle amplitude near {result.parameter}_c = {mu_c:.6g}")
+                 f"Cycle amplitude near ${mu_tex}_{{\\mathrm{{c}}}} = {mu_c:.6g}$")
     ax.legend([v[-1] for v in artists.values()], list(artists), loc="best", fontsize="small")
     return AmplitudePlot(fig, ax, mu, predicted, artists)
 
@@ -323,13 +377,31 @@ def _draw_simulated(ax, report, chosen, artists):
             artists.setdefault(f"{s}: start at {factor:g} x predicted, {outcome}", []).append(p)
 
 
+def _figure_of(thing):
+    """The matplotlib Figure of a plot object of this library (a
+    :class:`PlaneDiagram`, an :class:`AmplitudePlot`, ...), of an Axes, or a
+    Figure itself."""
+    if hasattr(thing, "savefig"):
+        return thing
+    for attribute in ("figure", "fig"):
+        inner = getattr(thing, attribute, None)
+        if inner is not None and hasattr(inner, "savefig"):
+            return inner
+    raise ParameterError(f"save_figure needs a figure or a plot of this library (it has a "
+                         f"'figure'); got {type(thing).__name__}")
+
+
 def save_figure(figure, path, *, force: bool = False, dpi: int | None = None) -> str:
     """Write ``figure`` to ``path`` (PNG, SVG or PDF, from the suffix) atomically.
+
+    ``figure`` is a matplotlib Figure or Axes, or any plot object this
+    library returns (:class:`PlaneDiagram`, :class:`AmplitudePlot`).
 
     The image has exactly the figure's size (``figsize * dpi`` pixels for
     PNG).  Raises :class:`~criticality.errors.OutputExistsError` if the file
     exists and ``force`` is False.
     """
+    figure = _figure_of(figure)
     path = os.fspath(path)
     fmt = os.path.splitext(path)[1].lstrip(".").lower()
     if fmt not in _FORMATS:

@@ -189,14 +189,16 @@ def _unstable_side(result):
     return "<" if side == ">" else ">"
 
 
-def cycle_sentences(result) -> list:
-    """The predicted cycle in words (side, stability, period)."""
+def cycle_sentences(result, show=None) -> list:
+    """The predicted cycle in words (side, stability, period); ``show``
+    writes an expression (default: :func:`model_text`)."""
+    show = model_text if show is None else show
     cycle, name = result.cycle, result.parameter
     side = {"above": f"The cycle exists for {name} > {name}_c (near the critical value).",
             "below": f"The cycle exists for {name} < {name}_c (near the critical value)."}
     out = [side.get(cycle.side, f"The side of {name}_c on which the cycle exists depends on "
                     "the parameters" + (f": it exists for {name} > {name}_c exactly where "
-                                        f"{model_text(cycle.side_condition.lhs)} > 0."
+                                        f"{show(cycle.side_condition.lhs)} > 0."
                                         if cycle.side_condition is not None else "."))]
     power = getattr(cycle, "amplitude_power", 2)
     deciding = "l1" if power == 2 else f"l{power // 2}"

@@ -11,9 +11,11 @@ import json
 
 import sympy
 
-__all__ = ["render_text", "render_latex", "render_json", "SCHEMA_VERSION"]
+from .envelope import SCHEMA_VERSION, envelope
+from .escape import tex_text
+from ..renderers import register_renderer
 
-SCHEMA_VERSION = "1"
+__all__ = ["render_text", "render_latex", "render_json", "SCHEMA_VERSION"]
 
 
 def _text(value) -> str:
@@ -50,20 +52,12 @@ def _latex_value(value) -> str:
     if isinstance(value, dict):
         return ",\\ ".join(f"{sympy.latex(sympy.Symbol(str(k)))} = {_latex_value(v)}"
                            for k, v in value.items())
-    return r"\text{" + _tex_text(str(value)) + "}"
-
-
-def _tex_text(text: str) -> str:
-    """Escape plain text for LaTeX text mode."""
-    table = {"\\": r"\textbackslash{}", "&": r"\&", "%": r"\%", "$": r"\$", "#": r"\#",
-             "_": r"\_", "{": r"\{", "}": r"\}", "^": r"\^{}", "~": r"\~{}",
-             "<": r"\textless{}", ">": r"\textgreater{}"}
-    return "".join(table.get(ch, ch) for ch in text)
+    return r"\text{" + tex_text(str(value)) + "}"
 
 
 def render_latex(title: str, rows) -> str:
     """An ``align*`` environment with one line per quantity."""
-    body = " \\\\\n".join(f"  \\text{{{_tex_text(label)}}} &: {_latex_value(value)}"
+    body = " \\\\\n".join(f"  \\text{{{tex_text(label)}}} &: {_latex_value(value)}"
                           for _, label, value in rows)
     return f"% {title}\n\\begin{{align*}}\n{body}\n\\end{{align*}}\n"
 
@@ -78,9 +72,44 @@ def _json_value(value):
     return _text(value)
 
 
+def render_dict(kind: str, rows, notes=(), conventions=(), status: str = "closed form") -> dict:
+    """The document of a result listed by rows, in the shared envelope."""
+    return envelope(f"criticality.{kind}", kind,
+                    {"quantities": {key: _json_value(value) for key, _, value in rows}},
+                    status=status, conventions=list(conventions), notes=notes)
+
+
 def render_json(kind: str, rows, notes=(), conventions=(), **kwargs) -> str:
-    """Every quantity as a string under its key, with the conventions."""
-    doc = {"schema": f"criticality.{kind}", "schema_version": SCHEMA_VERSION,
-           "quantities": {key: _json_value(value) for key, _, value in rows},
-           "notes": list(notes), "conventions": list(conventions)}
+    """Every quantity as a string under its key, with the conventions, in
+    the shared envelope (:mod:`criticality.outputs.envelope`)."""
+    doc = render_dict(kind, rows, notes, conventions)
     return json.dumps(doc, indent=kwargs.get("indent", 2), sort_keys=False)
+
+
+# -- the renderers of the fold, Bautin and Bogdanov-Takens results ----------------------------
+
+_TITLES = {
+    "fold": (lambda r: f"{r.kind.capitalize()} point in '{r.parameter}'",
+             lambda r: f"{r.kind} point"),
+    "bautin": (lambda r: f"Bautin point on the Hopf set of '{r.parameter}'",
+               lambda r: "Bautin point"),
+    "bogdanov_takens": (lambda r: f"Bogdanov-Takens point in ({', '.join(r.parameters)})",
+                        lambda r: "Bogdanov-Takens point"),
+}
+
+
+def _register(kind: str) -> None:
+    text_title, latex_title = _TITLES[kind]
+    register_renderer(kind, "text", lambda r, **kw: render_text(
+        text_title(r), r.rows(), r.notes, r.conventions))
+    register_renderer(kind, "details", lambda r, **kw: render_text(
+        text_title(r), r.rows(), r.notes, r.conventions))
+    register_renderer(kind, "latex", lambda r, **kw: render_latex(latex_title(r), r.rows()))
+    register_renderer(kind, "json", lambda r, **kw: render_json(
+        kind, r.rows(), r.notes, r.conventions, **kw))
+    register_renderer(kind, "dict", lambda r, **kw: render_dict(
+        kind, r.rows(), r.notes, r.conventions))
+
+
+for _kind in _TITLES:
+    _register(_kind)

@@ -14,11 +14,14 @@ from __future__ import annotations
 import textwrap
 
 import mpmath
+import sympy
 
+from ..algebra.canonical import compact
+from ..renderers import register_renderer
 from .render import (CAUTIONS, classification_sentence, cycle_sentences, model_text,
                       per_offset, split_complex, transversality_sentence, wrap_expression)
 
-__all__ = ["result_summary", "numeric_summary", "DEFAULT_WIDTH"]
+__all__ = ["result_summary", "result_details", "numeric_summary", "DEFAULT_WIDTH", "SUMMARY_LINES"]
 
 #: default line width of the summary
 DEFAULT_WIDTH = 100
@@ -40,13 +43,82 @@ def _rows(result) -> list:
     return rows
 
 
-def _table(rows, width: int, heading: str = "closed form") -> list:
-    """Label column plus wrapped expression column."""
+def decimal(value):
+    """A number that carries decimals (the numeric mode) as one decimal with
+    the digits of its least precise Float: ``2*pi/omega`` with a numeric
+    omega prints as ``6.2831...``, not as ``6.2831...*pi/1.0``.
+
+    >>> decimal(sympy.Float("1.5", 5) * sympy.pi)
+    4.7124
+    """
+    if not isinstance(value, sympy.Basic) or not value.is_number:
+        return value
+    floats = value.atoms(sympy.Float)
+    if not floats or value.has(sympy.I):
+        return value
+    digits = min(mpmath.libmp.prec_to_dps(f._prec) for f in floats)
+    return sympy.Float(sympy.N(value, digits + 2), digits)
+
+
+_MORE = " ..."
+#: repeated non-polynomial subexpressions -> their names, while a text is being written
+_NAMED: dict = {}
+
+
+def _named(result) -> dict:
+    """Names (L1, L2, ...) for the logarithms, exponentials and radicals that
+    occur at least twice in the main quantities and are long."""
+    from .latex_expr import _non_polynomial
+
+    exprs = [result.critical_value, result.omega_squared, result.l1, result.c1,
+             result.transversality, *result.cycle.amplitude_coefficients.values(),
+             *(c.expr for c in result.conditions)]
+    counts: dict = {}
+    for e in exprs:
+        for node in sympy.preorder_traversal(sympy.sympify(e)):
+            if _non_polynomial(node) and len(sympy.sstr(node)) > 12:
+                counts[node] = counts.get(node, 0) + 1
+    taken = set(result.model.symbols)
+    letter = next(c for c in ("L", "M", "N", "K", "W", "Q") if not any(
+        t.startswith(c) for t in taken)) if taken else "L"
+    chosen = sorted((n for n, k in counts.items() if k >= 2), key=sympy.default_sort_key)
+    return {node: sympy.Symbol(f"{letter}{k}", real=True) for k, node in enumerate(chosen, 1)}
+
+
+def _shown(expr):
+    expr = sympy.sympify(expr)
+    if _NAMED and not expr.is_Atom:
+        expr = expr.xreplace(_NAMED)
+    return decimal(compact(expr))
+
+
+def _definitions(width: int) -> list:
+    if not _NAMED:
+        return []
+    out = ["Named subexpressions (each written once)"]
+    for node, symbol in _NAMED.items():
+        out += _expr_lines(f"{symbol} = ", node, width, "  ", lines=None, raw=True)
+    return [out]
+
+
+def _wrapped(text: str, room: int, lines: int | None) -> list:
+    """``text`` wrapped to ``room``; with ``lines``, cut after that many lines
+    (the last one saying where the rest is)."""
+    pieces = wrap_expression(text, room)
+    if lines is None or len(pieces) <= lines:
+        return pieces
+    pieces = wrap_expression(text, max(room - len(_MORE), 20))
+    return pieces[:lines - 1] + [pieces[lines - 1] + _MORE]
+
+
+def _table(rows, width: int, heading: str = "closed form", lines: int | None = None) -> list:
+    """Label column plus wrapped expression column (at most ``lines`` lines
+    per quantity)."""
     room = max(width - _LABEL - 2, 20)
     out = [f"{'quantity'.ljust(_LABEL)}  {heading}", f"{'-' * _LABEL}  {'-' * min(room, 40)}"]
     for label, value in rows:
-        text = value if isinstance(value, str) else model_text(value)
-        pieces = wrap_expression(text, room)
+        text = value if isinstance(value, str) else model_text(_shown(value))
+        pieces = _wrapped(text, room, lines)
         out.append(f"{label.ljust(_LABEL)}  {pieces[0]}")
         out += [f"{'':{_LABEL}}    {p}" for p in pieces[1:]]
     return out
@@ -57,8 +129,13 @@ def _paragraph(text: str, width: int, indent: str = "  ") -> list:
                          break_on_hyphens=False) or [indent]
 
 
-def _expr_lines(prefix: str, expr, width: int, indent: str = "    ", suffix: str = "") -> list:
-    pieces = wrap_expression(model_text(expr), max(width - len(prefix) - len(indent), 20))
+def _expr_lines(prefix: str, expr, width: int, indent: str = "    ", suffix: str = "",
+                lines: int | None = None, raw: bool = False) -> list:
+    if lines is not None and len(prefix) + len(indent) > width // 2:
+        return [f"{indent}{prefix.rstrip()}"] + _expr_lines("", expr, width, indent + "    ",
+                                                             suffix, lines)
+    room = max(width - len(prefix) - len(indent), 20)
+    pieces = _wrapped(model_text(decimal(expr) if raw else _shown(expr)), room, lines)
     lines = [f"{indent}{prefix}{pieces[0]}"] + [f"{indent}{' ' * len(prefix)}  {p}"
                                                 for p in pieces[1:]]
     if suffix and len(lines[-1]) + len(suffix) + 1 <= width:
@@ -74,7 +151,12 @@ def _header(result, width: int) -> list:
         "Hopf bifurcation"
     title += f" in the parameter {result.parameter}"
     branch = f"branch {result.branch_index + 1} of {result.branch_count}; {result.status}"
-    out = [title, "=" * min(len(title), width), f"({branch})", ""]
+    out = [title, "=" * min(len(title), width), f"({branch})"]
+    fixed = getattr(result, "fixed_parameters", ())
+    if fixed:
+        out += _paragraph("Fixed before the analysis: " + ", ".join(
+            f"{p.name} = {model_text(v)}" for p, v in fixed), width, "")
+    out.append("")
     how = result.equilibrium_how
     out.append(f"Equilibrium ({how})")
     for state, value in result.equilibrium.items():
@@ -87,7 +169,8 @@ def _header(result, width: int) -> list:
 def _verdict(result, width: int) -> list:
     out = ["Verdict"]
     out += _paragraph(classification_sentence(result.classification, result.cycle.amplitude_power), width)
-    out += _paragraph(f"In the engine's words: {result.verdict}.", width)
+    if result.supercritical_where is None and result.l1_zero_set is None:
+        out += _paragraph(f"Verdict: {result.verdict}.", width)
     if result.supercritical_where is not None:
         rel = result.supercritical_where
         op = ">" if rel.rel_op == ">" else "<"
@@ -111,7 +194,7 @@ def _conditions(result, width: int) -> list:
 
 def _cycle(result, width: int) -> list:
     out = ["Cycle near onset"]
-    for sentence in cycle_sentences(result):
+    for sentence in cycle_sentences(result, lambda e: model_text(_shown(e))):
         out += _paragraph(sentence, width)
     name = result.parameter
     k = per_offset(result, result.cycle.radius_squared)
@@ -134,8 +217,17 @@ def _cycle(result, width: int) -> list:
     return out
 
 
-def result_summary(result, width: int = DEFAULT_WIDTH) -> str:
-    """A readable plain-text summary of a :class:`~criticality.HopfResult`.
+def result_details(result, width: int = DEFAULT_WIDTH) -> str:
+    global _NAMED
+    _NAMED = _named(result)
+    try:
+        return _details(result, width)
+    finally:
+        _NAMED = {}
+
+
+def _details(result, width: int = DEFAULT_WIDTH) -> str:
+    """The full plain text of a :class:`~criticality.HopfResult` (``result.details()``).
 
     Parameters
     ----------
@@ -151,7 +243,7 @@ def result_summary(result, width: int = DEFAULT_WIDTH) -> str:
     --------
     >>> from criticality import Model, hopf
     >>> m = Model(["x", "y"], {"x": "y", "y": "-x + mu*y - x^2*y"}, {"mu": "real"})
-    >>> text = result_summary(hopf(m, "mu", equilibrium={"x": 0, "y": 0}))
+    >>> text = result_details(hopf(m, "mu", equilibrium={"x": 0, "y": 0}))
     >>> print(text.splitlines()[0])
     Hopf bifurcation in the parameter mu
     >>> [line for line in text.splitlines() if line.startswith("l1")]
@@ -178,6 +270,7 @@ def result_summary(result, width: int = DEFAULT_WIDTH) -> str:
         cautions += textwrap.wrap(line, width, initial_indent="  ! ", subsequent_indent="    ",
                                   break_on_hyphens=False)
     sections.append(cautions)
+    sections[2:2] = _definitions(width)
     return "\n\n".join("\n".join(s) for s in sections) + "\n"
 
 
@@ -209,3 +302,146 @@ def numeric_summary(numeric, digits: int | None = None) -> str:
     lines.append("  eigenvalues of the Jacobian at the critical point:")
     lines += [f"    {_number(e, min(d, 20))}" for e in numeric.eigenvalues]
     return "\n".join(lines) + "\n"
+
+
+
+#: the most lines ``print(result)`` shows
+SUMMARY_LINES = 40
+_CONVENTION_LINE = ("Conventions: <a, b> = conj(a)^T b; A q = i omega q, <q, q> = 1; "
+                    "l1 = Re(c1)/omega. Every convention, and each expression cut with ... in "
+                    "full: result.details()")
+_CAUTION_PHRASES = ("Cautions: The analysis is local to the bifurcation point;",
+                    "a subcritical result means an abrupt, hysteretic onset;",
+                    "Verify the result before relying on it,",
+                    "and defer to applicable codes and licensed engineering practice.")
+
+
+def _packed(phrases, width: int) -> list:
+    """Phrases joined into lines of at most ``width``, never split."""
+    lines = [phrases[0]]
+    for phrase in phrases[1:]:
+        if len(lines[-1]) + 1 + len(phrase) <= width:
+            lines[-1] += " " + phrase
+        else:
+            lines.append("  " + phrase)
+    return lines
+
+
+def _short_verdict(result, width: int, lines: int) -> list:
+    verdict = f"Verdict: {result.verdict}"
+    out = [verdict if len(verdict) <= width else "Verdict"]  # a long one: the condition below
+    out += _paragraph(classification_sentence(result.classification,
+                                              result.cycle.amplitude_power), width)
+    if result.supercritical_where is not None:
+        rel = result.supercritical_where
+        op = ">" if rel.rel_op == ">" else "<"
+        out += _expr_lines("supercritical exactly where ", rel.lhs, width, "  ",
+                           suffix=f"{op} 0", lines=lines)
+    if result.l1_zero_set is not None:
+        out += _expr_lines("l1 = 0 (a Bautin point) where ", result.l1_zero_set.lhs, width,
+                           "  ", suffix="= 0", lines=1)
+    out += _paragraph(transversality_sentence(result), width)
+    return out
+
+
+def _short_description(text: str) -> str:
+    """The description of a condition up to its first top-level colon."""
+    depth = 0
+    for i, ch in enumerate(text):
+        depth += (ch == "(") - (ch == ")")
+        if ch == ":" and depth == 0:
+            return text[:i]
+    return text
+
+
+def _short_conditions(result, width: int) -> list:
+    out = ["Conditions"]
+    for c in result.conditions:
+        head = f"[{_STATUS.get(c.status, c.status)}] {_short_description(c.description)}: "
+        if len(head) <= width // 2:
+            out += _expr_lines(head, c.expr, width, "  ", suffix=f"{c.relation} 0", lines=1)
+        else:
+            out += _paragraph(head.rstrip(), width)[:2]
+            out += _expr_lines("", c.expr, width, "          ", suffix=f"{c.relation} 0",
+                               lines=1)
+    return out
+
+
+def _short_cycle(result, width: int, lines: int) -> list:
+    out = ["Cycle near onset"]
+    for sentence in cycle_sentences(result, lambda e: model_text(_shown(e)))[:3 if result.cycle.amplitude_power != 2 else 2]:
+        out += _paragraph(sentence, width)
+    name = result.parameter
+    k = per_offset(result, result.cycle.radius_squared)
+    if k is None:
+        out += _expr_lines("squared radius rho^2 = ", result.cycle.radius_squared, width, "  ",
+                           lines=lines)
+    else:
+        out += _expr_lines(f"squared radius rho^2 = K*({name} - {name}_c), K = ", k, width,
+                           "  ", lines=lines)
+    return out
+
+
+def _summary_sections(result, width: int, lines: int) -> list:
+    head = _header(result, width)
+    head = head[:head.index("")]
+    status = "closed form" if result.status == "closed form" else result.status
+    return [head, _table(_rows(result), width, status, lines=lines), *_definitions(width),
+            ["Classification: " + result.classification], _short_verdict(result, width, lines),
+            _short_conditions(result, width), _short_cycle(result, width, lines),
+            textwrap.wrap(_CONVENTION_LINE, width, break_on_hyphens=False) +
+            _packed(_CAUTION_PHRASES, width)]
+
+
+def result_summary(result, width: int = DEFAULT_WIDTH) -> str:
+    global _NAMED
+    _NAMED = _named(result)
+    try:
+        return _summary(result, width)
+    finally:
+        _NAMED = {}
+
+
+def _summary(result, width: int = DEFAULT_WIDTH) -> str:
+    """A summary of a :class:`~criticality.HopfResult` in at most
+    :data:`SUMMARY_LINES` lines (``print(result)``): the main quantities, the
+    verdict, the condition, the conditions, the cycle, one line of
+    conventions and the cautions.  Long expressions are cut (the full text is
+    :func:`result_details`, ``result.details()``).
+
+    Examples
+    --------
+    >>> from criticality import Model, hopf
+    >>> m = Model(["x", "y"], {"x": "y", "y": "-x + mu*y - x^2*y"}, {"mu": "real"})
+    >>> text = result_summary(hopf(m, "mu", equilibrium={"x": 0, "y": 0}))
+    >>> [line for line in text.splitlines() if line.startswith("l1")]
+    ['l1 = Re(c1)/omega           -1/4']
+    >>> len(text.splitlines()) <= SUMMARY_LINES
+    True
+    """
+    for lines, gap in ((2, "\n\n"), (1, "\n\n"), (1, "\n")):
+        sections = _summary_sections(result, width, lines)
+        text = gap.join("\n".join(s) for s in sections) + "\n"
+        if len(text.splitlines()) <= SUMMARY_LINES:
+            return text
+    # still too long: shorten the middle sections (never the conventions and cautions)
+    sections = [list(sec) for sec in sections]
+    while sum(len(sec) for sec in sections) > SUMMARY_LINES:
+        shrinkable = [k for k, sec in enumerate(sections[:-1]) if len(sec) > 2 and k > 1]
+        if not shrinkable:
+            break
+        k = max(shrinkable, key=lambda i: len(sections[i]))
+        marker = "  ... (in full: result.details())"
+        if sections[k][-1] == marker:
+            del sections[k][-2]
+        else:
+            sections[k][-2:] = [marker]
+    text = "\n".join("\n".join(sec) for sec in sections) + "\n"
+    return text
+
+
+result_summary.__doc__, result_details.__doc__ = _summary.__doc__, _details.__doc__
+_summary.__doc__ = _details.__doc__ = None  # the examples run once, on the public names
+
+register_renderer("hopf", "text", result_summary)
+register_renderer("hopf", "details", result_details)

@@ -1,0 +1,107 @@
+"""The registry of renderers: how each kind of result becomes text, LaTeX,
+JSON, HTML or Markdown.
+
+Pipeline place: beside the results.  A result never imports its printers: it
+names its kind (the class attribute ``result_kind``) and asks this registry
+for the renderer of a format.  The output modules register their renderers
+when they are imported; this module knows, per kind, which modules those are
+(a static table, imported on first use), so that asking for a renderer is
+enough to load it.
+
+A new kind of result plugs in with one line per format, from its own output
+module::
+
+    register_renderer("my_kind", "text", my_text_function)
+
+and, if that module should load by itself, one entry in :data:`PROVIDERS`
+(or a call to :func:`add_provider`).
+
+Examples
+--------
+>>> "latex" in FORMATS and "html" in FORMATS
+True
+>>> sorted(PROVIDERS)[:3]
+['bautin', 'bogdanov_takens', 'fold']
+"""
+
+from __future__ import annotations
+
+from importlib import import_module
+from typing import Any, Callable
+
+__all__ = ["FORMATS", "PROVIDERS", "register_renderer", "add_provider", "renderer", "render",
+           "formats_of"]
+
+#: the formats a renderer may be registered for
+FORMATS = ("text", "details", "latex", "notebook_latex", "report", "json", "dict", "html",
+           "markdown", "numpy", "c")
+
+#: kind -> the output modules that register its renderers (imported on first use)
+PROVIDERS: dict = {
+    "hopf": ("criticality.outputs.text", "criticality.outputs.latex",
+             "criticality.outputs.json_io", "criticality.outputs.notebook",
+             "criticality.outputs.export"),
+    "hopf_numeric_point": ("criticality.outputs.notebook",),
+    "fold": ("criticality.outputs.simple", "criticality.outputs.notebook"),
+    "bautin": ("criticality.outputs.simple", "criticality.outputs.notebook"),
+    "bogdanov_takens": ("criticality.outputs.simple", "criticality.outputs.notebook"),
+    "validation": ("criticality.outputs.notebook",),
+}
+
+_REGISTRY: dict = {}
+_LOADED: set = set()
+
+
+def register_renderer(kind: str, fmt: str, function: Callable[..., Any]) -> Callable[..., Any]:
+    """Register ``function(result, **options)`` as the ``fmt`` renderer of
+    results of kind ``kind`` (replacing an earlier one); returns it."""
+    if fmt not in FORMATS:
+        raise ValueError(f"unknown output format {fmt!r}; known: {', '.join(FORMATS)}")
+    _REGISTRY[(kind, fmt)] = function
+    return function
+
+
+def add_provider(kind: str, *modules: str) -> None:
+    """Name further modules that register renderers for ``kind``."""
+    PROVIDERS[kind] = tuple(PROVIDERS.get(kind, ())) + tuple(modules)
+    _LOADED.discard(kind)
+
+
+def _load(kind: str) -> None:
+    if kind in _LOADED:
+        return
+    for module in PROVIDERS.get(kind, ()):
+        import_module(module)
+    _LOADED.add(kind)
+
+
+def renderer(kind: str, fmt: str) -> Callable[..., Any]:
+    """The registered renderer, loading the kind's output modules first.
+
+    Raises
+    ------
+    LookupError
+        Naming the kind, the format and the formats that kind has.
+    """
+    _load(kind)
+    try:
+        return _REGISTRY[(kind, fmt)]
+    except KeyError:
+        have = ", ".join(formats_of(kind)) or "none"
+        raise LookupError(f"no {fmt!r} renderer is registered for results of kind {kind!r} "
+                          f"(registered formats: {have})") from None
+
+
+def formats_of(kind: str) -> tuple:
+    """The formats registered for ``kind``."""
+    _load(kind)
+    return tuple(f for f in FORMATS if (kind, f) in _REGISTRY)
+
+
+def render(result: Any, fmt: str, **options: Any) -> Any:
+    """``result`` in the format ``fmt``, by the renderer registered for its
+    kind (the class attribute ``result_kind``)."""
+    kind = getattr(result, "result_kind", None)
+    if kind is None:
+        raise LookupError(f"{type(result).__name__} declares no result_kind")
+    return renderer(kind, fmt)(result, **options)
