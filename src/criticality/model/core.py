@@ -264,6 +264,13 @@ class Model:
         """The symbols of the parameters, in parameter order."""
         return tuple(self.symbols[p.name] for p in self.parameters)
 
+    @property
+    def delays(self) -> tuple:
+        """The distinct delays of the equations (``x(t - tau)``), empty for an
+        ordinary differential equation."""
+        from .delayed import delays_of
+        return delays_of(self.equations)
+
     def parameter(self, name: str) -> Parameter:
         """The parameter called ``name``.
 
