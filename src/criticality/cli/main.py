@@ -45,6 +45,7 @@ import argparse
 import sys
 import traceback
 
+from .delay import delay_output
 from .support import (Stage, equilibrium_choice, name_list, pairs, read_model,
                            split_top_level, write_output)
 from ..errors import CriticalityError
@@ -168,6 +169,8 @@ def _analyse(args) -> int:
     from ..outputs.text import numeric_summary, result_summary
 
     result = analyse_from_args(args)
+    if getattr(result, "kind", "") == "hopf_delay":
+        return delay_output(args, result, "text")
     text = result_summary(result, width=args.width)
     point = _merge(args.point, "--at")
     if point:
@@ -181,6 +184,8 @@ def _report(args) -> int:
     from ..outputs.latex import latex_report, result_to_latex
 
     result = analyse_from_args(args)
+    if getattr(result, "kind", "") == "hopf_delay":
+        return delay_output(args, result, "fragment" if args.fragment else "latex")
     with Stage("writing the LaTeX", quiet=_quiet(args)):
         text = result_to_latex(result) + "\n" if args.fragment else latex_report(result)
     written = write_output(text, args.output, force=args.force)
@@ -194,6 +199,8 @@ def _json(args) -> int:
     from ..outputs.json_io import result_to_json
 
     result = analyse_from_args(args)
+    if getattr(result, "kind", "") == "hopf_delay":
+        return delay_output(args, result, "json")
     point = _merge(args.point, "--at") or None
     with Stage("writing the JSON", quiet=_quiet(args)):
         text = result_to_json(result, point=point, digits=args.digits,
@@ -206,6 +213,8 @@ def _evaluate(args) -> int:
     from ..outputs.text import numeric_summary
 
     result = analyse_from_args(args)
+    if getattr(result, "kind", "") == "hopf_delay":
+        return delay_output(args, result, "evaluate")
     point = _merge(args.point, "--at")
     with Stage("numeric evaluation", quiet=_quiet(args)):
         numeric = result.evaluate(point, digits=args.digits)
@@ -248,9 +257,9 @@ def _subcommand(sub, name, handler, help_text, description, aliases=()):
 def _register_extensions(sub) -> None:
     """Subcommands of other modules: the analyses beyond Hopf, the simulation
     check and the diagrams."""
-    from . import analyses, checks
+    from . import analyses, checks, delay
 
-    for module in (analyses, checks):
+    for module in (analyses, checks, delay):
         module.register(sub)
 
 

@@ -27,7 +27,9 @@ __all__ = ["hopf_delay"]
 
 def hopf_delay(model, parameter: str | None = None, *, equilibrium=None,
                values: Mapping | None = None, branch: int | None = None,
-               time_limit: float | None = None) -> DelayHopfResult:
+               assume: Mapping | None = None, time_limit: float | None = None,
+               order: int = 3, eliminate=None, guess=None, backend: str = "sympy",
+               **_ignored) -> DelayHopfResult:
     """Hopf analysis of a retarded equation with respect to ``parameter``.
 
     Parameters
@@ -45,8 +47,15 @@ def hopf_delay(model, parameter: str | None = None, *, equilibrium=None,
     branch : int, optional
         Which crossing frequency (delay mode) or which root ``mu(omega)``
         (parameter mode) when there are several; default 0.
+    assume : mapping, optional
+        Extra or changed sign assumptions of parameters, e.g. ``{"k": "positive"}``.
     time_limit : float, optional
         Wall-clock budget in seconds.
+    order, eliminate, guess, backend
+        Accepted for the interface of :func:`criticality.hopf`: only ``order=3``
+        (l1) is computed for delay equations, the equilibrium is given or solved
+        (not parametrised), and the computation is exact in sympy (``backend`` is
+        not used).
 
     Examples
     --------
@@ -56,13 +65,25 @@ def hopf_delay(model, parameter: str | None = None, *, equilibrium=None,
     >>> r.critical_value, r.omega, r.classification
     (pi/(2*k), k, 'supercritical')
     """
+    if order != 3:
+        raise ClosedFormUnavailableError(f"order={order}: for delay equations only l1 (order=3) "
+                                         "is computed")
+    if eliminate is not None:
+        raise ParameterError("eliminate= is not available for delay equations; give the "
+                             "equilibrium or let it be solved")
+    if guess is not None:
+        raise ClosedFormUnavailableError(
+            "the numeric mode from a guess is not available for delay equations; fix parameter "
+            "values (values=...) so that the crossing has a closed form")
     with time_limit_(time_limit, "the delay Hopf analysis"):
-        return _analyse(model, parameter, equilibrium, values, branch or 0)
+        return _analyse(model, parameter, equilibrium, values, branch or 0, assume)
 
 
-def _analyse(model, parameter, equilibrium, values, branch):
+def _analyse(model, parameter, equilibrium, values, branch, assume=None):
     if values:
         model = model.with_values(dict(values))
+    if assume:
+        model = _with_assumptions(model, assume)
     if not model.delays:
         raise ParameterError("the model has no delayed state x(t - tau); use criticality.hopf")
     name = parameter or model.bifurcation_parameter
@@ -94,8 +115,38 @@ def _analyse(model, parameter, equilibrium, values, branch):
     return _assemble(model, name, mu, choice, forms, crossing, data, forward, back)
 
 
+def _with_assumptions(model, assume):
+    """The model with changed sign assumptions of some parameters."""
+    from dataclasses import replace
+    from ..model.core import Model
+    known = {p.name for p in model.parameters}
+    unknown = [k for k in assume if k not in known]
+    if unknown:
+        raise ParameterError(f"assume= names {', '.join(map(repr, unknown))}, which "
+                             "are not parameters of the model")
+    parameters = [replace(p, assumption=assume.get(p.name, p.assumption)) for p in
+                  model.parameters]
+    return Model(list(model.states), dict(zip(model.states, model.equations)), parameters,
+                 name=model.name, description=model.description,
+                 equilibrium=None if model.equilibrium_hint is None else dict(
+                     model.equilibrium_hint),
+                 bifurcation_parameter=model.bifurcation_parameter)
+
+
+def _irrational(expr) -> bool:
+    """Whether an expression holds radicals or inverse trigonometric values
+    (where cancel and factor would spend minutes on gcds over the generators)."""
+    return any(p.is_Pow and not p.exp.is_Integer or isinstance(p, sympy.Function)
+               for p in sympy.preorder_traversal(expr))
+
+
 def _tidy(expr):
-    expr = sympy.cancel(sympy.sympify(expr))
+    """A compact form: factored where the expression is rational in the
+    parameters (and pi); kept as substituted where it holds radicals or acos."""
+    expr = sympy.sympify(expr)
+    if _irrational(expr):
+        return expr
+    expr = sympy.cancel(expr)
     try:
         return sympy.factor(expr)
     except (sympy.PolynomialError, ValueError, TypeError):

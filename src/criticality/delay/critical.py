@@ -110,6 +110,9 @@ def positive_symbols(model) -> tuple[dict, dict]:
 def decide_sign(expr) -> int | None:
     """+1, -1 or 0 where sympy's assumptions settle the sign of ``expr`` factor by
     factor (symbols carry their declared signs), else None."""
+    expr = sympy.sympify(expr)
+    if not expr.free_symbols:
+        return _numeric_sign(expr)
     expr = sympy.factor(sympy.cancel(expr))
     if expr == 0:
         return 0
@@ -132,6 +135,18 @@ def decide_sign(expr) -> int | None:
                 continue
         return None
     return sign
+
+
+def _numeric_sign(expr, digits: int = 60) -> int | None:
+    """The sign of a constant from a 60-digit evaluation (None when it is within
+    1e-50 of 0 and not exactly 0)."""
+    if expr == 0:
+        return 0
+    value = sympy.N(expr, digits)
+    re, im = value.as_real_imag()
+    if abs(im) > sympy.Float("1e-50") or abs(re) < sympy.Float("1e-50"):
+        return 0 if sympy.simplify(expr) == 0 else None
+    return 1 if re > 0 else -1
 
 
 def quasi_polynomial_parts(forms) -> tuple[sympy.Expr, sympy.Expr]:
@@ -233,8 +248,8 @@ def delay_crossing(model, forms, tau, branch: int = 0) -> Crossing:
     s0, status = roots[branch]
     omega = sympy.sqrt(s0)
     E = Cx(0) - _at_iw(P, w) / _at_iw(Q, w)
-    c = sympy.cancel(E.re.xreplace({w: omega}))
-    s = sympy.cancel(-E.im.xreplace({w: omega}))
+    c = sympy.cancel(sympy.S(E.re).xreplace({w: omega}))
+    s = sympy.cancel(-sympy.S(E.im).xreplace({w: omega}))
     theta = _theta(c, s)
     first = theta if theta != 0 else 2 * sympy.pi
     tau0 = first / omega
@@ -280,7 +295,7 @@ def parameter_crossing(model, forms, mu, branch: int = 0) -> Crossing:
             continue
         sub = {mu_pos: root}
         E = Cx(0) - _at_iw(P.xreplace(sub), w) / _at_iw(Q.xreplace(sub), w)
-        if E.re.has(w) or E.im.has(w):
+        if sympy.S(E.re).has(w) or sympy.S(E.im).has(w):
             continue
         candidates.append((root, E))
     if not candidates:
@@ -292,7 +307,7 @@ def parameter_crossing(model, forms, mu, branch: int = 0) -> Crossing:
         raise NoHopfPointError(f"branch {branch} does not exist; there are {len(candidates)}",
                                reason="no_such_branch")
     mu_w, E = candidates[branch]
-    c, s = E.re, -E.im
+    c, s = sympy.S(E.re), -sympy.S(E.im)
     theta = _theta(c, s)
     first = theta if theta != 0 else 2 * sympy.pi
     omega0 = first / tau

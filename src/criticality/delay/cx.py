@@ -1,15 +1,19 @@
 """Exact complex numbers as pairs of real sympy expressions (internal to the delay room).
 
 Every quantity of the delay analysis at ``lambda = i omega`` lives in
-``K(omega)(i)`` with ``K`` the field of the real parameters: the factor
+``K(omega, tau)(i)`` with ``K`` the field of the real parameters: the factor
 ``exp(-i omega tau)`` is itself an element there (``-P(i omega)/Q(i omega)``
-at a crossing).  Keeping real and imaginary parts apart, each reduced by
-``sympy.cancel`` after every operation, avoids sympy's ``I`` arithmetic and
-its ``expand_complex`` passes; conjugation flips the sign of the imaginary part
-(every symbol is real).
+at a crossing).  The components are elements of the engine's rational
+function field (python-flint behind :func:`criticality.algebra.domain.make_base_field`)
+where the problem is rational in its symbols, else sympy expressions reduced by
+``sympy.cancel`` after every operation.  Keeping real and imaginary parts apart
+avoids sympy's ``I`` arithmetic; conjugation flips the sign of the imaginary
+part (every symbol is real).
 """
 
 from __future__ import annotations
+
+from fractions import Fraction
 
 import sympy
 
@@ -17,7 +21,17 @@ __all__ = ["Cx", "ZERO", "ONE", "I_", "cx", "mat_vec", "solve", "kernel", "dot"]
 
 
 def _c(e):
-    return sympy.cancel(e) if isinstance(e, sympy.Basic) and not e.is_Number else sympy.S(e)
+    """Reduce a component: sympy expressions by cancel; Python ints and elements
+    of the engine's fields (:mod:`criticality.algebra`) are kept as they are."""
+    if isinstance(e, sympy.Basic):
+        if e.is_Integer:
+            return int(e)
+        if e.is_Rational:
+            return Fraction(int(e.p), int(e.q))
+        return e if e.is_Number else sympy.cancel(e)
+    if isinstance(e, float):
+        return sympy.Float(e)
+    return e
 
 
 class Cx:
@@ -46,9 +60,9 @@ class Cx:
 
     def __mul__(self, o):
         o = cx(o)
-        if o.im == 0:
+        if _zero(o.im):
             return Cx(self.re * o.re, self.im * o.re)
-        if self.im == 0:
+        if _zero(self.im):
             return Cx(self.re * o.re, self.re * o.im)
         return Cx(self.re * o.re - self.im * o.im, self.re * o.im + self.im * o.re)
 
@@ -56,10 +70,11 @@ class Cx:
 
     def __truediv__(self, o):
         o = cx(o)
-        if o.im == 0:
-            return Cx(self.re / o.re, self.im / o.re)
+        if _zero(o.im):
+            return Cx(_div(self.re, o.re), _div(self.im, o.re))
         norm = _c(o.re ** 2 + o.im ** 2)
-        return Cx((self.re * o.re + self.im * o.im) / norm, (self.im * o.re - self.re * o.im) / norm)
+        return Cx(_div(self.re * o.re + self.im * o.im, norm),
+                  _div(self.im * o.re - self.re * o.im, norm))
 
     def __rtruediv__(self, o):
         return cx(o) / self
@@ -71,18 +86,33 @@ class Cx:
         return _c(self.re ** 2 + self.im ** 2)
 
     def is_zero(self) -> bool:
-        return self.re == 0 and self.im == 0
+        return _zero(self.re) and _zero(self.im)
 
     def subs(self, mapping) -> "Cx":
         return Cx(self.re.xreplace(mapping) if mapping else self.re,
                   self.im.xreplace(mapping) if mapping else self.im)
 
     def expr(self) -> sympy.Expr:
-        """The sympy value re + I*im."""
+        """The sympy value re + I*im (sympy components)."""
         return self.re + sympy.I * self.im
+
+    def map(self, fn) -> "Cx":
+        """Both components converted by ``fn`` (e.g. a field's ``to_sympy``)."""
+        return Cx(fn(self.re), fn(self.im))
 
     def __repr__(self):
         return f"Cx({self.re}, {self.im})"
+
+
+def _div(a, b):
+    """a / b without Python's int division turning into a float."""
+    if isinstance(a, (int, Fraction)) and isinstance(b, (int, Fraction)):
+        return Fraction(a) / Fraction(b)
+    return a / b
+
+
+def _zero(x) -> bool:
+    return x == 0 if isinstance(x, (int, Fraction, sympy.Basic)) else not x
 
 
 def cx(value) -> Cx:
@@ -106,12 +136,20 @@ def mat_vec(M, v) -> list:
     return [dot(row, v) for row in M]
 
 
+def _size(x) -> int:
+    if isinstance(x, (int, Fraction)):
+        return 0
+    if isinstance(x, sympy.Basic):
+        return sympy.count_ops(x)
+    return x.field.size(x) if hasattr(x, "field") else len(str(x))
+
+
 def _pivot(rows, col, start):
     best = None
     for r in range(start, len(rows)):
         entry = rows[r][col]
         if not entry.is_zero():
-            size = sympy.count_ops(entry.re) + sympy.count_ops(entry.im)
+            size = _size(entry.re) + _size(entry.im)
             if best is None or size < best[0]:
                 best = (size, r)
     return None if best is None else best[1]

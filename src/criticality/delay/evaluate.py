@@ -22,6 +22,7 @@ import mpmath
 import sympy
 
 from ..errors import ParameterError
+from ..model.expressions import convert_sympy, parse_expression
 
 __all__ = ["NumericDelayResult", "evaluate_result"]
 
@@ -67,8 +68,14 @@ def _point(result, values: Mapping) -> dict:
         if name == result.parameter:
             continue
         parameter = model.parameter(name)
-        sub[model.symbols[parameter.name]] = sympy.nsimplify(raw) if isinstance(
-            raw, float) else sympy.sympify(raw, strict=True)
+        context = f"value of {parameter.name!r}"
+        if isinstance(raw, str):
+            value = parse_expression(raw, {}, context=context)
+        else:
+            value = convert_sympy(raw, {}, context=context, exact=not isinstance(raw, float))
+        if value.free_symbols:
+            raise ParameterError(f"the {context} must be a number, found {raw!r}")
+        sub[model.symbols[parameter.name]] = value
     free = set()
     for expr in (result.critical_value, result.omega, result.c1):
         free |= expr.free_symbols

@@ -79,7 +79,7 @@ class DelayForms:
                 entry = (cx(lam) if i == j else ZERO) - cx(self.matrices[0][i, j])
                 for k, factor in enumerate(factors, start=1):
                     a = self.matrices[k][i, j]
-                    if a != 0:
+                    if not _is_zero(a):
                         entry = entry - factor * a
                 row.append(entry)
             rows.append(row)
@@ -95,7 +95,7 @@ class DelayForms:
                 entry = ONE if i == j else ZERO
                 for k, factor in enumerate(factors, start=1):
                     a = self.matrices[k][i, j]
-                    if a != 0:
+                    if not _is_zero(a):
                         entry = entry + factor * (delays[k - 1] * a)
                 row.append(entry)
             rows.append(row)
@@ -133,6 +133,30 @@ class DelayForms:
                           tuple({k: sympy.cancel(s(v)) for k, v in t.items()} for t in self.third))
 
 
+    def converted(self, conv) -> "DelayForms":
+        """A copy whose coefficients are converted by ``conv`` (sympy -> field
+        element); the matrices become read-only grids indexed ``[i, j]``."""
+        grids = tuple(_Grid([[conv(m[i, j]) for j in range(m.cols)] for i in range(m.rows)])
+                      for m in self.matrices)
+        return DelayForms(self.states, self.point, tuple(conv(d) for d in self.delays),
+                          self.slots, grids,
+                          tuple({k: conv(v) for k, v in t.items()} for t in self.second),
+                          tuple({k: conv(v) for k, v in t.items()} for t in self.third))
+
+
+class _Grid:
+    """A matrix of field elements indexed like a sympy Matrix (``M[i, j]``)."""
+
+    __slots__ = ("rows_",)
+
+    def __init__(self, rows):
+        self.rows_ = rows
+
+    def __getitem__(self, key):
+        i, j = key
+        return self.rows_[i][j]
+
+
 def _symmetric_product(idx, vectors) -> Cx:
     """sum over distinct orderings of the index triple of u[a] v[b] w[c]."""
     from itertools import permutations
@@ -140,6 +164,10 @@ def _symmetric_product(idx, vectors) -> Cx:
     for a, b, c in set(permutations(idx)):
         total = total + vectors[0][a] * vectors[1][b] * vectors[2][c]
     return total
+
+
+def _is_zero(a) -> bool:
+    return a == 0 if isinstance(a, (int, sympy.Basic)) else not a
 
 
 def equilibrium_point(model, equilibrium=None):

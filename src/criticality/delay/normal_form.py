@@ -39,6 +39,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from fractions import Fraction
+
 import sympy
 
 from .cx import ONE, Cx, dot, kernel, mat_vec, solve
@@ -70,20 +72,66 @@ def _transpose(M):
     return [list(col) for col in zip(*M)]
 
 
+def _field_for(exprs, extra):
+    """The engine's rational function field over the symbols of ``exprs`` (and
+    ``extra``), with its conversion; None where some expression is not rational
+    over QQ in its symbols (pi, radicals, functions)."""
+    from ..algebra.domain import make_base_field
+    symbols = set(extra)
+    for e in exprs:
+        symbols |= sympy.sympify(e).free_symbols
+    symbols = sorted(symbols, key=sympy.default_sort_key)
+    for e in exprs:
+        e = sympy.sympify(e)
+        if not e.is_rational_function(*symbols) or e.has(sympy.pi, sympy.E):
+            return None
+    K = make_base_field(symbols)
+    return K
+
+
+def _sympy_of(x):
+    if isinstance(x, (int, Fraction)):
+        return sympy.Rational(x)
+    return x if isinstance(x, sympy.Basic) else x.field.to_sympy(x)
+
+
 def center_data(forms, crossing, mu_pos) -> CenterData:
     """q, p, the pairing, c1 by both routes and d lambda/d mu at the crossing.
 
     ``forms`` are in positive-assumption symbols with ``mu`` still free;
-    ``mu_pos`` is the bifurcation parameter's symbol there.
+    ``mu_pos`` is the bifurcation parameter's symbol there.  The computation
+    runs in the engine's rational function field QQ(parameters, omega, tau)
+    where everything is rational there, else in sympy expressions.
     """
-    w, T = crossing.w, crossing.T
+    at = forms if crossing.mode == "delay" else forms.substitute({mu_pos: crossing.mu_of_w})
     E = crossing.factor
-    if crossing.mode == "delay":
-        at = forms
-        delays = (T,)
-    else:
-        at = forms.substitute({mu_pos: crossing.mu_of_w})
-        delays = at.delays
+    exprs = [E.re, E.im, *at.delays, *(m[i, j] for m in at.matrices for i in range(m.rows)
+                                      for j in range(m.cols)),
+             *(v for t in at.second + at.third for v in t.values())]
+    slope_exprs = [m.diff(mu_pos)[i, j] for m in forms.matrices for i in range(m.rows)
+                   for j in range(m.cols)] if crossing.mode == "parameter" else []
+    if crossing.mode == "parameter":
+        slope_exprs = [sympy.sympify(e).xreplace({mu_pos: crossing.mu_of_w})
+                       for e in slope_exprs]
+    K = _field_for(exprs + slope_exprs, (crossing.w, crossing.T))
+    if K is None:
+        return _center_data(at, forms, crossing, mu_pos, None)
+    data = _center_data(at, forms, crossing, mu_pos, K.from_sympy)
+    back = _sympy_of
+    return CenterData(tuple(v.map(back) for v in data.q), tuple(v.map(back) for v in data.p),
+                      data.pairing.map(back), back(data.qq), data.c1_projection.map(back),
+                      data.c1_hkw.map(back), tuple(v.map(back) for v in data.h20),
+                      tuple(v.map(back) for v in data.h11), data.slope.map(back))
+
+
+def _center_data(at_sym, forms_sym, crossing, mu_pos, conv) -> CenterData:
+    """The computation proper; ``conv`` converts sympy to field elements (None:
+    stay in sympy)."""
+    at = at_sym if conv is None else at_sym.converted(conv)
+    conv = conv or (lambda e: e)
+    w, T = conv(crossing.w), conv(crossing.T)
+    E = crossing.factor.map(conv)
+    delays = (T,) if crossing.mode == "delay" else at.delays
     factors = [E]
     D = at.delta(Cx(0, w), factors)
     q = kernel(D)
@@ -98,10 +146,12 @@ def center_data(forms, crossing, mu_pos) -> CenterData:
     H20, H11 = at.extend(h20, [E * E]), at.extend(h11, [ONE])
     cubic = at.C(Q, Q, Qb)
     c1_a = dot(pt, [c + 2 * b1 + b2 for c, b1, b2 in
-                    zip(cubic, at.B(Q, H11), at.B(Qb, H20))]) * sympy.Rational(1, 2)
+                    zip(cubic, at.B(Q, H11), at.B(Qb, H20))]) / 2
     c1_b = _hkw(at, pt, Q, Qb, H20, H11, r20, r11, cubic, w)
-    qq = sympy.cancel(sum(x.abs2() for x in q))
-    slope = _slope(forms, crossing, mu_pos, q, p, pairing, factors, w)
+    qq = q[0].abs2()
+    for x in q[1:]:
+        qq = qq + x.abs2()
+    slope = _slope(forms_sym, crossing, mu_pos, q, p, pairing, factors, w, conv)
     return CenterData(tuple(q), tuple(pt), pairing, qq, c1_a, c1_b, tuple(h20), tuple(h11),
                       slope)
 
@@ -116,21 +166,21 @@ def _hkw(at, pt, Q, Qb, H20, H11, r20, r11, cubic, w) -> Cx:
     W11 = [a11 * x + b11 * y + z for x, y, z in zip(Q, Qb, H11)]
     g21 = dot(pt, [c + 2 * b1 + b2 for c, b1, b2 in
                    zip(cubic, at.B(Q, W11), at.B(Qb, W20))])
-    bracket = g20 * g11 - 2 * g11.abs2() - g02.abs2() / 3
-    return i * bracket / (2 * w) + g21 * sympy.Rational(1, 2)
+    bracket = g20 * g11 - 2 * g11.abs2() - Cx(g02.abs2()) / 3
+    return i * bracket / (2 * w) + g21 / 2
 
 
-def _slope(forms, crossing, mu_pos, q, p, pairing, factors, w) -> Cx:
+def _slope(forms, crossing, mu_pos, q, p, pairing, factors, w, conv) -> Cx:
     """d lambda/d mu = p (d Delta/d mu) q ... = -p Delta_mu q / (p Delta' q)."""
     n = forms.n
     E = factors[0]
     if crossing.mode == "delay":
         # Delta_tau = lambda A_1 exp(-lambda tau)
         A1 = forms.matrices[1]
-        M = [[Cx(0, w) * E * A1[i, j] for j in range(n)] for i in range(n)]
+        M = [[Cx(0, w) * E * conv(A1[i, j]) for j in range(n)] for i in range(n)]
     else:
         sub = {mu_pos: crossing.mu_of_w}
         A0 = forms.matrices[0].diff(mu_pos).xreplace(sub)
         A1 = forms.matrices[1].diff(mu_pos).xreplace(sub)
-        M = [[Cx(-A0[i, j]) - E * A1[i, j] for j in range(n)] for i in range(n)]
+        M = [[Cx(-conv(A0[i, j])) - E * conv(A1[i, j]) for j in range(n)] for i in range(n)]
     return Cx(0) - dot(p, mat_vec(M, q)) / pairing
