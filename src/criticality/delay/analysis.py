@@ -223,21 +223,24 @@ def _verdict(sign, l1, back):
 
 
 def _cycle(model, mu_pos, mu_c, omega, data, crossing, beta1, slope_im, c1_re, c1_im, sign, back):
-    k_radius = _tidy(-beta1 / c1_re) if c1_re != 0 else sympy.nan
-    side_sign = decide_sign(k_radius) if c1_re != 0 else None
+    degenerate = sign == 0
+    k_radius = sympy.nan if degenerate else _tidy(-beta1 / c1_re)
+    side_sign = None if degenerate else decide_sign(k_radius)
     side = {1: "above", -1: "below"}.get(side_sign, "undecided")
+    if degenerate:
+        side = "undecided"
     offset = mu_pos - mu_c
     amplitudes, coefficients = {}, {}
     qq = _at(crossing, data.qq)
     for state, v in zip(model.states, data.q):
-        k = _tidy(4 * k_radius * _at(crossing, v.abs2()) / qq) if c1_re != 0 else sympy.nan
+        k = sympy.nan if degenerate else _tidy(4 * k_radius * _at(crossing, v.abs2()) / qq)
         coefficients[state] = k.xreplace(back)
         amplitudes[state] = sympy.sqrt(k * offset).xreplace(back)
-    slope = _tidy(slope_im - beta1 * c1_im / c1_re) if c1_re != 0 else sympy.nan
+    slope = sympy.nan if degenerate else _tidy(slope_im - beta1 * c1_im / c1_re)
     stable = True if sign == -1 and crossing.mode == "delay" else (False if sign == 1 else None)
     return CyclePrediction(
-        side=side, side_condition=None if side != "undecided" else sympy.StrictGreaterThan(
-            k_radius.xreplace(back), 0),
+        side=side, side_condition=None if side != "undecided" or degenerate else
+        sympy.StrictGreaterThan(k_radius.xreplace(back), 0),
         stable=stable, radius_squared=(k_radius * offset).xreplace(back),
         amplitudes=amplitudes, amplitude_coefficients=coefficients,
         period=(2 * sympy.pi / omega).xreplace(back), frequency_slope=slope.xreplace(back))

@@ -77,7 +77,7 @@ def _field_for(exprs, extra):
     ``extra``), with its conversion; None where some expression is not rational
     over QQ in its symbols (pi, radicals, functions)."""
     from ..algebra.domain import make_base_field
-    symbols = set(extra)
+    symbols = {s for s in extra if isinstance(s, sympy.Symbol)}
     for e in exprs:
         symbols |= sympy.sympify(e).free_symbols
     symbols = sorted(symbols, key=sympy.default_sort_key)
@@ -85,8 +85,7 @@ def _field_for(exprs, extra):
         e = sympy.sympify(e)
         if not e.is_rational_function(*symbols) or e.has(sympy.pi, sympy.E):
             return None
-    K = make_base_field(symbols)
-    return K
+    return make_base_field(symbols)
 
 
 def _sympy_of(x):

@@ -1,8 +1,8 @@
 """The one delayed form the parser reads: a state applied to ``t`` minus a delay.
 
 Internal to :mod:`criticality.model.expressions`.  Inside an equation, ``x(t -
-tau)`` (``x`` a state, ``tau`` a parameter name) and ``x(t - 0.5)`` (a positive
-number) become :class:`~criticality.model.delayed.Delayed`.  Everything else
+tau)`` (``x`` a state, ``tau`` a parameter name) and ``x(t - 0.5)``, ``x(t - 1/3)`` (a positive
+number, written with numbers and pi only) become :class:`~criticality.model.delayed.Delayed`.  Everything else
 that calls a state is refused with a message that says what to write:
 ``x(t)`` (write ``x``), ``x(t + 1)`` (a future value), ``x(t - 2*tau)`` (name
 the delay), ``x(s - 1)`` (the time is ``t``), ``x(t - y)`` (a state is not a
@@ -58,6 +58,17 @@ def _is_time(node) -> bool:
     return isinstance(node, ast.Name) and _plain(node.id) == _TIME
 
 
+def _numeric(node) -> bool:
+    """Whether a delay is written with numbers only (``0.5``, ``1/3``, ``2*pi``)."""
+    for part in ast.walk(node):
+        if isinstance(part, ast.Name) and _plain(part.id) != "pi":
+            return False
+        if not isinstance(part, (ast.Constant, ast.Name, ast.BinOp, ast.UnaryOp, ast.operator,
+                                 ast.unaryop, ast.Load)):
+            return False
+    return True
+
+
 def _delay(builder, call, node, state: str) -> sympy.Expr:
     form = f"{state}(t - tau)"
     if isinstance(node, ast.Name):
@@ -73,11 +84,14 @@ def _delay(builder, call, node, state: str) -> sympy.Expr:
             raise builder.error(ForbiddenExpressionError, f"the delay {name!r} in "
                                 f"{builder.piece(call)} is not a parameter", node)
         return value
-    if isinstance(node, ast.Constant) and type(node.value) in (int, float):
-        value = builder.constant(node, 0)
-        if not value.is_positive:
+    if _numeric(node):
+        value = builder.build(node, 1)
+        if value.is_zero:
             raise builder.error(ForbiddenExpressionError, f"the delay in {builder.piece(call)} "
                                 f"is 0; write {state} for the current value", node)
+        if not value.is_positive:
+            raise builder.error(ForbiddenExpressionError, f"the delay in {builder.piece(call)} "
+                                "must be positive", node)
         return value
     raise builder.error(ForbiddenExpressionError, f"the delay in {builder.piece(call)} must be "
                         f"one parameter name or a positive number, as in {form} or {state}(t - 1)"
