@@ -302,3 +302,25 @@ def test_hutchinson_simulation_in_the_delay(hutchinson):
     report = hutchinson.validate({"r": 1.0, "K": 2.0})
     assert report.agrees and report.converging, str(report)
     assert all(row["period_error"] < 0.01 for row in report.rows)
+
+
+def test_bundled_example_runs():
+    """examples/cold_store_lag.py prints its verdict (an invented scenario)."""
+    import subprocess
+    import sys
+    from pathlib import Path
+    script = Path(__file__).resolve().parent.parent / "examples" / "cold_store_lag.py"
+    done = subprocess.run([sys.executable, str(script)], capture_output=True, text=True,
+                          timeout=300)
+    assert done.returncode == 0, done.stderr
+    assert "supercritical" in done.stdout and "first critical lags" in done.stdout
+
+
+@pytest.mark.slow
+def test_bundled_example_simulation():
+    """The cold store's predicted hunting cycle is confirmed by simulation."""
+    model = Model.from_file(__import__("pathlib").Path(__file__).resolve().parent.parent
+                            / "examples" / "cold_store_lag.toml")
+    r = hopf(model, "tau", values=model.defaults())
+    report = r.validate({})
+    assert report.status == "confirmed", str(report)
