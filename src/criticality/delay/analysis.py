@@ -160,6 +160,21 @@ def _at(crossing, expr, T=None):
     return _tidy(sympy.sympify(expr).xreplace({crossing.T: T}).xreplace({crossing.w: omega}))
 
 
+OMEGA, TAU0 = sympy.Symbol("omega", positive=True), sympy.Symbol("tau_0", positive=True)
+
+
+def _named(crossing, expr):
+    """An internal expression as a rational function of the named symbols tau_0
+    and (where it is a radical) omega: used where their closed forms hold
+    radicals or acos."""
+    omega = crossing.omega.xreplace(crossing.to_positive)
+    if _irrational(omega):
+        return sympy.sympify(expr).xreplace({crossing.w: OMEGA, crossing.T: TAU0}).xreplace(
+            crossing.to_model)
+    value = sympy.sympify(expr).xreplace({crossing.w: omega, crossing.T: TAU0})
+    return _tidy(value).xreplace(crossing.to_model)
+
+
 def _assemble(model, name, mu, choice, forms, crossing, data, forward, back):
     qq = data.qq
     c1_re = _at(crossing, data.c1_projection.re / qq)
@@ -179,6 +194,13 @@ def _assemble(model, name, mu, choice, forms, crossing, data, forward, back):
         first = crossing.sequence.xreplace(forward)
         l1_sequence = _tidy(_at(crossing, data.c1_projection.re / qq, first) / omega)
     stability = _stability(crossing, forms, forward)
+    compact = {}
+    if _irrational(omega) or _irrational(crossing.critical_value):
+        re, im = (sympy.cancel(sympy.S(x) / qq) for x in (data.c1_projection.re,
+                                                           data.c1_projection.im))
+        compact = {"c1": _named(crossing, re + sympy.I * im),
+                   "l1": _named(crossing, sympy.cancel(re / crossing.w)),
+                   "transversality": _named(crossing, data.slope.re)}
     q = tuple(_tidy(x.expr()).xreplace(back) for x in
               (type(data.q[0])(_at(crossing, v.re), _at(crossing, v.im)) for v in data.q))
     p = tuple(_tidy(x.expr()).xreplace(back) for x in
@@ -204,7 +226,7 @@ def _assemble(model, name, mu, choice, forms, crossing, data, forward, back):
         classification=classification, verdict=verdict, criticality_condition=condition,
         conditions=crossing.conditions, stability_conditions=stability,
         eigenvector_q=q, eigenvector_p=p, q_norm_squared=_at(crossing, qq).xreplace(back),
-        cycle=cycle, routes_agree=agree, notes=tuple(model.notes))
+        cycle=cycle, routes_agree=agree, notes=tuple(model.notes), compact=compact)
 
 
 def mu_pos_of(mu, forward):
@@ -277,8 +299,10 @@ def _stability(crossing, forms, forward):
         if crossing.crossing_sign != 1:
             out.append("roots cross to the right as tau increases: "
                        f"{crossing.crossing_indicator} > 0")
-        out.append("tau_0 is the first crossing when F(s) has no other positive root with a "
-                   "smaller critical delay (other branches: see branch=1, 2, ...)")
+        if crossing.branch_count > 1:
+            out.append(f"F(s) has {crossing.branch_count} positive roots: tau_0 is the first "
+                       "crossing only if no other frequency (branch=1, 2, ...) has a smaller "
+                       "critical delay")
     else:
         out.append("every other root of the quasi-polynomial has negative real part at the "
                    "critical value (not decided in closed form; evaluate() counts none near the "

@@ -82,6 +82,7 @@ class Crossing:
     delay_value: sympy.Expr
     to_model: dict
     to_positive: dict
+    branch_count: int = 1
 
     def at_critical(self, expr) -> sympy.Expr:
         """An internal expression (in w, T, positive symbols) at the first crossing,
@@ -265,7 +266,7 @@ def delay_crossing(model, forms, tau, branch: int = 0) -> Crossing:
                     omega.xreplace(back), theta.xreplace(back), c.xreplace(back),
                     s.xreplace(back), tau0.xreplace(back), sequence.xreplace(back),
                     indicator.xreplace(back), sign, tuple(conditions), w, T, E, None,
-                    tau0.xreplace(back), back, forward)
+                    tau0.xreplace(back), back, forward, len(roots))
 
 
 def parameter_crossing(model, forms, mu, branch: int = 0) -> Crossing:
@@ -318,7 +319,7 @@ def parameter_crossing(model, forms, mu, branch: int = 0) -> Crossing:
     return Crossing("parameter", mu, P, Q, F.xreplace(back),
                     omega0.xreplace(back), theta.xreplace(back), c.xreplace(back),
                     s.xreplace(back), mu_c.xreplace(back), sequence.xreplace(back), indicator,
-                    None, (), w, T, E, mu_w, tau.xreplace(back), back, forward)
+                    None, (), w, T, E, mu_w, tau.xreplace(back), back, forward, len(candidates))
 
 
 def derivative_in_lambda(poly, w) -> Cx:

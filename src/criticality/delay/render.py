@@ -63,6 +63,10 @@ def summary_text(r) -> str:
     for state, k in r.cycle.amplitude_coefficients.items():
         lines.append(f"    amplitude of {state}: sqrt(({_text(k)}) ({r.parameter} - "
                      f"{r.parameter}_0))")
+    if r.compact:
+        lines.append("  in terms of omega and tau_0 (the values above):")
+        for key, value in r.compact.items():
+            lines.append(f"    {key} = {sympy.sstr(value)}")
     for c in r.conditions:
         lines.append(f"  condition:            {_text(c)}")
     for c in r.stability_conditions:
@@ -175,6 +179,7 @@ def result_to_dict(r, *, point=None, digits: int = 30) -> dict:
                   "amplitude_coefficients": {s: _text(k) for s, k in
                                              r.cycle.amplitude_coefficients.items()}},
         "routes_agree": bool(r.routes_agree),
+        "in_terms_of_omega_and_tau_0": {k: sympy.sstr(v) for k, v in r.compact.items()},
         "conventions": list(r.conventions.lines()),
         "caution": _CAUTION,
     }

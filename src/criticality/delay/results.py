@@ -107,6 +107,10 @@ class DelayHopfResult:
     cycle : CyclePrediction
     routes_agree : bool
         The projection form and the Hassard-Kazarinoff-Wan procedure give the same c1.
+    compact : Mapping[str, sympy.Expr]
+        Where omega or the critical value hold radicals or acos: ``c1``, ``l1``
+        and ``transversality`` as rational functions of the symbols ``omega``
+        and ``tau_0`` (the closed forms above), which read far shorter.
     """
 
     model: object
@@ -141,6 +145,7 @@ class DelayHopfResult:
     cycle: CyclePrediction
     routes_agree: bool
     notes: tuple = ()
+    compact: Mapping = field(default_factory=dict)
     conventions: DelayConventions = DELAY_CONVENTIONS
     kind: str = "hopf_delay"
     status: str = "closed form"
