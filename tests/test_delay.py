@@ -324,3 +324,19 @@ def test_bundled_example_simulation():
     r = hopf(model, "tau", values=model.defaults())
     report = r.validate({})
     assert report.status == "confirmed", str(report)
+
+
+def test_latex_document_compiles(hutchinson, tmp_path):
+    """The delay report is a document pdflatex compiles (skips without pdflatex)."""
+    import os
+    import shutil
+    import subprocess
+    pdflatex = shutil.which("pdflatex")
+    if pdflatex is None:
+        if os.environ.get("CRITICALITY_REQUIRE_LATEX") == "1":
+            pytest.fail("pdflatex is required (CRITICALITY_REQUIRE_LATEX=1) but not installed")
+        pytest.skip("pdflatex is not installed")
+    (tmp_path / "delay.tex").write_text(hutchinson.latex_document())
+    done = subprocess.run([pdflatex, "-interaction=nonstopmode", "-halt-on-error", "delay.tex"],
+                          cwd=tmp_path, capture_output=True, text=True, timeout=180)
+    assert done.returncode == 0 and (tmp_path / "delay.pdf").exists(), done.stdout[-2000:]
