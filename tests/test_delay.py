@@ -340,3 +340,25 @@ def test_latex_document_compiles(hutchinson, tmp_path):
     done = subprocess.run([pdflatex, "-interaction=nonstopmode", "-halt-on-error", "delay.tex"],
                           cwd=tmp_path, capture_output=True, text=True, timeout=180)
     assert done.returncode == 0 and (tmp_path / "delay.pdf").exists(), done.stdout[-2000:]
+
+
+def test_numeric_mode_from_a_guess_matches_the_closed_form(wright):
+    """hopf(..., guess=...) locates Wright's Hopf point with mpmath.findroot and
+    reproduces the closed forms (alpha = pi/2, c1) to the working precision."""
+    m = Model(["y"], {"y": "-alpha*y(t - 1)*(1 + y)"}, {"alpha": "positive"})
+    n = hopf(m, "alpha", guess={"y": "0.1", "alpha": "1.4"}, digits=25)
+    assert n.status == "numeric" and n.classification == "supercritical"
+    exact = wright.evaluate({}, digits=25)
+    assert abs(n.critical_value - mpmath.pi / 2) < mpmath.mpf(10) ** -20
+    assert abs(n.c1 - exact.c1) < mpmath.mpf(10) ** -15
+    assert abs(n.amplitude_coefficients["y"] - 40 / (3 * mpmath.pi - 2)) < mpmath.mpf(10) ** -6
+
+
+def test_numeric_mode_without_a_closed_equilibrium():
+    """An equilibrium of x' = -x + k tanh(x(t - 1)) + 1/10 has no closed form; the
+    numeric mode still finds the crossing (the residual of chi vanishes)."""
+    m = Model(["x"], {"x": "-x + k*tanh(x(t - 1)) + h"}, {"k": "real", "h": {"value": "1/10"}})
+    n = hopf(m, "k", guess={"x": 0, "k": "-2.2"}, digits=20)
+    assert n.residual < mpmath.mpf(10) ** -15
+    x = n.equilibrium["x"]
+    assert abs(-x + n.critical_value * mpmath.tanh(x) + mpmath.mpf(1) / 10) < mpmath.mpf(10) ** -15

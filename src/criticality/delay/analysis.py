@@ -29,7 +29,7 @@ def hopf_delay(model, parameter: str | None = None, *, equilibrium=None,
                values: Mapping | None = None, branch: int | None = None,
                assume: Mapping | None = None, time_limit: float | None = None,
                order: int = 3, eliminate=None, guess=None, backend: str = "sympy",
-               **_ignored) -> DelayHopfResult:
+               digits: int = 30, **_ignored) -> DelayHopfResult:
     """Hopf analysis of a retarded equation with respect to ``parameter``.
 
     Parameters
@@ -51,11 +51,18 @@ def hopf_delay(model, parameter: str | None = None, *, equilibrium=None,
         Extra or changed sign assumptions of parameters, e.g. ``{"k": "positive"}``.
     time_limit : float, optional
         Wall-clock budget in seconds.
-    order, eliminate, guess, backend
+    guess : mapping, optional
+        Numeric mode (:mod:`criticality.delay.numeric`): starting values for every
+        state and the parameter (and optionally ``omega``); every other
+        parameter needs a value (``values`` or the model's defaults).  Returns a
+        :class:`~criticality.delay.numeric.NumericDelayHopf`.
+    digits : int
+        Digits of the numeric mode.
+    order, eliminate, backend
         Accepted for the interface of :func:`criticality.hopf`: only ``order=3``
         (l1) is computed for delay equations, the equilibrium is given or solved
-        (not parametrised), and the computation is exact in sympy (``backend`` is
-        not used).
+        (not parametrised), and the exact computation runs in the engine's
+        rational function field (``backend`` is not used).
 
     Examples
     --------
@@ -72,9 +79,12 @@ def hopf_delay(model, parameter: str | None = None, *, equilibrium=None,
         raise ParameterError("eliminate= is not available for delay equations; give the "
                              "equilibrium or let it be solved")
     if guess is not None:
-        raise ClosedFormUnavailableError(
-            "the numeric mode from a guess is not available for delay equations; fix parameter "
-            "values (values=...) so that the crossing has a closed form")
+        from .numeric import hopf_delay_numeric
+        name = parameter or model.bifurcation_parameter
+        if not name:
+            raise ParameterError("name the bifurcation parameter for the numeric mode")
+        with time_limit_(time_limit, "the numeric delay Hopf analysis"):
+            return hopf_delay_numeric(model, name, guess, values=values, digits=digits)
     with time_limit_(time_limit, "the delay Hopf analysis"):
         return _analyse(model, parameter, equilibrium, values, branch or 0, assume)
 
