@@ -349,9 +349,11 @@ def test_numeric_mode_from_a_guess_matches_the_closed_form(wright):
     n = hopf(m, "alpha", guess={"y": "0.1", "alpha": "1.4"}, digits=25)
     assert n.status == "numeric" and n.classification == "supercritical"
     exact = wright.evaluate({}, digits=25)
-    assert abs(n.critical_value - mpmath.pi / 2) < mpmath.mpf(10) ** -20
-    assert abs(n.c1 - exact.c1) < mpmath.mpf(10) ** -15
-    assert abs(n.amplitude_coefficients["y"] - 40 / (3 * mpmath.pi - 2)) < mpmath.mpf(10) ** -6
+    with mpmath.workdps(25):
+        assert abs(n.critical_value - mpmath.pi / 2) < mpmath.mpf(10) ** -20
+        assert abs(n.c1 - exact.c1) < mpmath.mpf(10) ** -15
+        assert abs(n.amplitude_coefficients["y"] - 40 / (3 * mpmath.pi - 2)) < \
+            mpmath.mpf(10) ** -6
 
 
 def test_numeric_mode_without_a_closed_equilibrium():
