@@ -11,7 +11,7 @@ EXPECTED = {
     "Model", "Parameter", "parse_expression", "format_expression",
     # analyses
     "hopf", "hopf_all", "HopfResult", "fold", "bautin_points", "bogdanov_takens", "analyses",
-    "time_limit",
+    "time_limit", "hopf_delay", "DelayHopfResult",
     # outputs, checks and pictures
     "latex_report", "validate", "ValidationReport", "sweep", "plot_parameter_plane",
     "plot_amplitude", "save_figure", "curve_data", "write_curve_csv",

@@ -44,6 +44,8 @@ _LAZY = {
     "bautin_points": "bifurcations.bautin",
     "bogdanov_takens": "bifurcations.bogdanov_takens",
     "time_limit": "budget",
+    "hopf_delay": "delay.analysis",
+    "DelayHopfResult": "delay.results",
 }
 
 __all__ = sorted(["__version__", *_LAZY, *_error_names])

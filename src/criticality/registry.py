@@ -7,7 +7,7 @@ listing the registry stays cheap) and the symbols it needs from the user.
 
 Examples
 --------
->>> [a.name for a in analyses()]
+>>> [a.name for a in analyses()][:4]
 ['hopf', 'fold', 'bautin', 'bogdanov_takens']
 >>> get("fold").needs
 ('parameter',)
@@ -98,3 +98,6 @@ register(Analysis("bautin", "points of the Hopf set where l1 = 0, with l2 and th
 register(Analysis("bogdanov_takens", "double zero eigenvalue in two parameters: the normal-form "
                   "coefficients a and b and the sign of a b", "bifurcations.bogdanov_takens:bogdanov_takens",
                   ("parameter", "second"), "BogdanovTakensResult"))
+register(Analysis("hopf_delay", "Hopf bifurcation of a retarded equation x' = f(x(t), "
+                  "x(t - tau), ...): critical delays, crossing direction, l1 and the verdict",
+                  "delay.analysis:hopf_delay", ("parameter",), "DelayHopfResult"))

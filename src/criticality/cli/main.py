@@ -49,13 +49,14 @@ import argparse
 import sys
 import traceback
 
-from . import analyses, checks, export, numeric
+from . import analyses, checks, delay, export, numeric
 from .options import UsageError as _UsageError
 from .options import add_analysis_options, analyse_from_args
 from .options import flags as _flags
 from .options import merge as _merge
 from .options import quiet as _quiet
 from .support import Stage, pairs, write_output
+from .delay import delay_output
 from ..errors import CriticalityError
 
 __all__ = ["main", "build_parser", "add_analysis_options", "analyse_from_args",
@@ -91,6 +92,8 @@ def _analyse(args) -> int:
     from ..outputs.text import numeric_summary, result_summary
 
     result = analyse_from_args(args)
+    if getattr(result, "kind", "") == "hopf_delay":
+        return delay_output(args, result, "text")
     text = result_summary(result, width=args.width)
     point = _merge(args.point, "--at")
     if point:
@@ -104,6 +107,8 @@ def _report(args) -> int:
     from ..outputs.latex import latex_report, result_to_latex
 
     result = analyse_from_args(args)
+    if getattr(result, "kind", "") == "hopf_delay":
+        return delay_output(args, result, "fragment" if args.fragment else "latex")
     with Stage("writing the LaTeX", quiet=_quiet(args)):
         text = result_to_latex(result) + "\n" if args.fragment else latex_report(result)
     written = write_output(text, args.output, force=args.force)
@@ -117,6 +122,8 @@ def _json(args) -> int:
     from ..outputs.json_io import result_to_json
 
     result = analyse_from_args(args)
+    if getattr(result, "kind", "") == "hopf_delay":
+        return delay_output(args, result, "json")
     point = _merge(args.point, "--at") or None
     with Stage("writing the JSON", quiet=_quiet(args)):
         text = result_to_json(result, point=point, digits=args.digits,
@@ -129,6 +136,8 @@ def _evaluate(args) -> int:
     from ..outputs.text import numeric_summary
 
     result = analyse_from_args(args)
+    if getattr(result, "kind", "") == "hopf_delay":
+        return delay_output(args, result, "evaluate")
     point = _merge(args.point, "--at")
     with Stage("numeric evaluation", quiet=_quiet(args)):
         numeric = result.evaluate(point, digits=args.digits)
@@ -171,7 +180,7 @@ def _subcommand(sub, name, handler, help_text, description, aliases=()):
 def _register_extensions(sub) -> None:
     """Subcommands of other modules: the analyses beyond Hopf, the simulation
     check and the diagrams."""
-    for module in (analyses, checks, numeric, export):
+    for module in (analyses, checks, numeric, export, delay):
         module.register(sub)
 
 

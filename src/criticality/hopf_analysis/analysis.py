@@ -83,6 +83,11 @@ def hopf(model, parameter: str | None = None, *, equilibrium=None, eliminate=Non
     >>> r.critical_value, r.l1, r.classification
     (0, -1/4, 'supercritical')
     """
+    if getattr(model, "delays", ()):
+        from ..delay.analysis import hopf_delay
+        return hopf_delay(model, parameter, equilibrium=equilibrium, values=values,
+                          branch=branch, assume=assume, time_limit=time_limit, order=order,
+                          eliminate=eliminate, guess=guess, digits=digits)
     if guess is not None:
         from .numeric_mode import hopf_numeric
         with time_limit_(time_limit, "the numeric Hopf analysis"):

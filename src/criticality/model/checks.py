@@ -16,7 +16,9 @@ from typing import Mapping
 import sympy
 
 from .syntax import _suggest
-from ..errors import ExpressionError, InvalidModelError, NameTypoWarning
+from ..errors import ExpressionError, ForbiddenExpressionError, InvalidModelError, NameTypoWarning
+from .delayed import delayed_terms
+from .delay_checks import delay_problems
 from .expressions import convert_sympy, format_expression, name_problem, parse_expression
 from .parameter import (_NUMBER_TYPES, _PARAMETER_KEYS, Parameter, _assumption_problem,
                         _constant, _name_of, _sign_problem)
@@ -194,7 +196,7 @@ class _Assembler:
                 result.append(None)
                 continue
             result.append(self.expression(given[state], f"equation for {state!r}",
-                                          ("equations", state), symbols, unknown))
+                                          ("equations", state), symbols, unknown, states))
         return result, unknown
 
     def equation_table(self, equations: object, states: list[str], symbols: dict) -> dict:
@@ -223,7 +225,7 @@ class _Assembler:
         return table
 
     def expression(self, raw: object, context: str, place: tuple, symbols: Mapping,
-                   unknown: dict | None):
+                   unknown: dict | None, delayed=None):
         """Parse text or check a sympy expression; None (and a problem) on failure."""
         def collect(name, column):
             unknown.setdefault(name, context)
@@ -231,11 +233,15 @@ class _Assembler:
         try:
             if isinstance(raw, str):
                 return parse_expression(raw, symbols, context=context, on_unknown=on_unknown,
-                                        line=self.line(*place, True))
+                                        line=self.line(*place, True), delayed=delayed)
             self.note_floats(raw, context)
             self.note_assumptions(raw)
-            return convert_sympy(raw, symbols, context=context, on_unknown=on_unknown,
-                                 line=self.line(*place))
+            value = convert_sympy(raw, symbols, context=context, on_unknown=on_unknown,
+                                  line=self.line(*place))
+            if delayed is None and delayed_terms(value):
+                raise ForbiddenExpressionError("a delayed state is allowed only in an equation",
+                                               context=context, line=self.line(*place))
+            return value
         except ExpressionError as exc:
             self.problems.append(str(exc))
             return None
@@ -367,6 +373,7 @@ class _Assembler:
         fields["state_units"] = MappingProxyType(self.state_units(units, state_names))
         fields["bifurcation_parameter"] = self.bifurcation(bifurcation_parameter,
                                                            declared + extra, state_names)
+        self.problems += delay_problems(state_names, rhs, declared + extra, self.at)
         if self.problems:
             raise error(self.problems, source=self.source)
         fields.update(states=tuple(state_names), parameters=tuple(declared + extra),

@@ -179,6 +179,13 @@ class Model:
                 out[p.name] = sympy.Symbol(p.name, real=True, **{p.assumption: True})
         return out
 
+    @property
+    def delays(self) -> tuple:
+        """The distinct delays of the equations (``x(t - tau)``), empty for an
+        ordinary differential equation."""
+        from .delayed import delays_of
+        return delays_of(self.equations)
+
     def parameter(self, name: str) -> Parameter:
         """The parameter called ``name``.
 

@@ -55,7 +55,7 @@ from __future__ import annotations
 
 import ast
 import difflib
-from typing import Callable, Mapping
+from typing import Callable, Collection, Mapping
 
 import sympy
 
@@ -68,6 +68,7 @@ from .syntax import (EXPRESSION_KEYWORDS, FUNCTIONS, MAX_DEPTH, MAX_EXPONENT,
                            _parse_chunk, _quote, _scan, _split_terms, _suggest, _Where,
                            name_problem)
 from .sympy_input import convert_sympy, format_expression
+from .delay_syntax import delayed_call
 from ..errors import (CriticalityError, ExpressionLimitError, ExpressionSyntaxError,
                      ForbiddenExpressionError, UnknownSymbolError)
 
@@ -108,8 +109,9 @@ _OPERATORS = {ast.Mod: "%", ast.FloorDiv: "//", ast.MatMult: "@", ast.LShift: "<
 class _Builder:
     """Walks a checked syntax tree and builds the sympy expression."""
 
-    def __init__(self, where: _Where, symbols, on_unknown, exact: bool):
+    def __init__(self, where: _Where, symbols, on_unknown, exact: bool, delayed=None):
         self.where, self.symbols, self.on_unknown, self.exact = where, symbols, on_unknown, exact
+        self.delayed = delayed   # state names that may be written x(t - tau), or None
         self.power_budget = _MAX_TOTAL_POWER_BITS
         self.floats = False
         self.level = 0          # functions and non-integer powers around the current node
@@ -312,6 +314,9 @@ class _Builder:
                              "calls and non-integer powers in one expression", node)
 
     def call(self, node, depth):
+        if self.delayed is not None and isinstance(node.func, ast.Name) and (
+                node.func.id in self.delayed):
+            return delayed_call(self, node)
         name = self.function_name(node)
         self.enter(node)
         try:
@@ -418,7 +423,8 @@ _METHODS: dict[type, Callable] = {
 
 def parse_expression(text: str, symbols: Mapping[str, sympy.Expr] | None = None, *,
                      context: str | None = None, line: int | None = None, exact: bool = True,
-                     on_unknown: Callable[[str, int], object] | None = None) -> sympy.Expr:
+                     on_unknown: Callable[[str, int], object] | None = None,
+                     delayed: Collection[str] | None = None) -> sympy.Expr:
     """Read one expression of the model syntax (see the module docstring).
 
     Parameters
@@ -439,6 +445,12 @@ def parse_expression(text: str, symbols: Mapping[str, sympy.Expr] | None = None,
         Called as ``on_unknown(name, column)`` for a name missing from
         ``symbols``; the name then becomes ``Symbol(name, real=True)``.  Without
         it such a name raises :class:`~criticality.errors.UnknownSymbolError`.
+    delayed : collection of str, optional
+        State names that may appear at a delayed time, ``x(t - tau)`` with
+        ``tau`` a name of ``symbols`` (or an unknown name, with
+        ``on_unknown``) or a positive number; read as
+        :class:`~criticality.model.delayed.Delayed`.  Any other call of a
+        state is refused (:mod:`criticality.model.delay_syntax`).
 
     Returns
     -------
@@ -463,7 +475,8 @@ def parse_expression(text: str, symbols: Mapping[str, sympy.Expr] | None = None,
     if not text.strip():
         raise where.error(ExpressionSyntaxError, "the expression is empty")
     tokens = _scan(text, where)
-    builder = _Builder(where, symbols, on_unknown, exact)
+    builder = _Builder(where, symbols, on_unknown, exact,
+                       None if delayed is None else frozenset(delayed))
     terms, nodes = [], 0
     for lo, hi in _split_terms(tokens):
         builder.chunk = _Chunk(tokens, lo, hi, len(text))

@@ -19,6 +19,7 @@ from sympy.core.function import AppliedUndef
 from .syntax import (_DECIMAL, _MAX_DECIMAL_EXPONENT, _NOT_FINITE, FUNCTIONS,
                            MAX_EXPONENT, NOT_ANALYTIC, _decimal_to_rational, _suggest,
                            name_problem)
+from .delayed import Delayed
 from ..errors import ExpressionLimitError, ForbiddenExpressionError, UnknownSymbolError
 
 __all__ = ["convert_sympy", "format_expression", "decimal_to_rational"]
@@ -125,10 +126,24 @@ def _check_node(node, stack, symbols, where, exact, on_unknown):
                 sympy.S.Zero, sympy.S.One, sympy.S.NegativeOne):
             raise ExpressionLimitError(f"the exponent of {_short(node)} is beyond "
                                        f"+-{MAX_EXPONENT}", **where)
+    elif isinstance(node, Delayed):
+        _check_delayed(node, where)
     elif not (node.is_Add or node.is_Mul or type(node) in _FUNCTION_CLASSES):
         raise ForbiddenExpressionError(_refusal(node), **where)
     stack.extend(node.args)
     return None
+
+
+def _check_delayed(node, where) -> None:
+    """A delayed state built with sympy: a symbol and a positive number or a symbol."""
+    state, delay = node.args
+    if not state.is_Symbol:
+        raise ForbiddenExpressionError(f"{_short(node)}: only a state symbol can be delayed",
+                                       **where)
+    if not (delay.is_Symbol or delay.is_Rational and delay.is_positive or delay is sympy.pi
+            or delay.is_Float and delay.is_positive):
+        raise ForbiddenExpressionError(f"{_short(node)}: the delay must be a parameter symbol or "
+                                       "a positive number", **where)
 
 
 def _symbol(node, symbols, where, on_unknown):
@@ -221,6 +236,8 @@ def _text(e) -> tuple[str, int]:
         return _product(e)
     if e.is_Pow:
         return _power(e)
+    if isinstance(e, Delayed):
+        return f"{_text(e.state)[0]}(t - {_wrap(*_text(e.delay), _POW)})", _ATOM
     if type(e) in _FUNCTION_CLASSES and len(e.args) == 1:
         return f"{_FUNCTION_NAMES[type(e)]}({_text(e.args[0])[0]})", _ATOM
     if e is sympy.I:

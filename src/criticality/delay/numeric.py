@@ -1,0 +1,272 @@
+"""The numeric mode of the delay analysis: a crossing located by mpmath from a guess.
+
+Pipeline place: model -> delay forms (symbolic in the states) -> **numeric
+crossing** (mpmath) -> :class:`NumericDelayHopf`.  For equilibria without a
+closed form, or crossings that solve a transcendental equation, the
+unknowns (equilibrium ``x``, the parameter ``mu``, the frequency ``omega``)
+solve ``f(x, mu) = 0``, ``Re det Delta(i omega) = 0``, ``Im det Delta(i omega)
+= 0`` by ``mpmath.findroot`` from the user's guess; c1 is the projection form
+with numeric matrices (:func:`projection_c1`, also used by ``evaluate``) and
+``d lambda/d mu`` a central difference of roots located by ``findroot``.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from itertools import permutations
+from typing import Mapping
+
+import mpmath
+import sympy
+
+from ..errors import NoHopfPointError, ParameterError
+from ..model.delayed import current_form
+
+__all__ = ["NumericDelayHopf", "hopf_delay_numeric", "delta_matrix", "null_vector",
+           "projection_c1"]
+
+
+@dataclass(frozen=True)
+class NumericDelayHopf:
+    """A Hopf point of a retarded equation located numerically (mpmath numbers).
+
+    The conventions are those of :class:`~criticality.delay.results.DelayHopfResult`
+    (c1 for ``conj(q)^T q = 1``, ``l1 = Re(c1)/omega``)."""
+
+    model: object
+    parameter: str
+    mode: str
+    values: Mapping[str, object]
+    digits: int
+    equilibrium: Mapping[str, object]
+    critical_value: object
+    omega: object
+    period: object
+    c1: object
+    l1: object
+    transversality: object
+    eigenvalue_derivative: object
+    classification: str
+    amplitude_coefficients: Mapping[str, object]
+    residual: object
+    kind: str = "hopf_delay_numeric"
+    status: str = "numeric"
+
+    def summary(self) -> str:
+        lines = [f"Hopf point of a retarded equation in {self.parameter!r}, located numerically "
+                 f"({self.digits} digits)",
+                 "  equilibrium: " + ", ".join(f"{k} = {mpmath.nstr(v, 12)}"
+                                               for k, v in self.equilibrium.items()),
+                 f"  critical value: {mpmath.nstr(self.critical_value, 15)}",
+                 f"  omega: {mpmath.nstr(self.omega, 15)}",
+                 f"  Re d lambda/d {self.parameter}: {mpmath.nstr(self.transversality, 12)}",
+                 f"  c1: {mpmath.nstr(self.c1, 12)}",
+                 f"  l1: {mpmath.nstr(self.l1, 12)} ({self.classification})",
+                 f"  residual |chi(i omega)|: {mpmath.nstr(self.residual, 3)}",
+                 "  caution: local analysis near the critical value; verify before relying on "
+                 "it and defer to applicable codes and licensed engineering practice"]
+        return "\n".join(lines)
+
+    def __str__(self):
+        return self.summary()
+
+
+def delta_matrix(mats, delays, lam):
+    """``Delta(lambda) = lambda I - A_0 - sum_k A_k exp(-lambda tau_k)`` (mpmath)."""
+    n = mats[0].rows
+    D = lam * mpmath.eye(n) - mats[0]
+    for A, tau in zip(mats[1:], delays):
+        D -= A * mpmath.exp(-lam * tau)
+    return D
+
+
+def null_vector(M):
+    """A kernel vector of a numerically singular matrix (one entry fixed to 1)."""
+    n = M.rows
+    if n == 1:
+        return mpmath.matrix([1])
+    best = None
+    for drop in range(n):
+        keep = [c for c in range(n) if c != drop]
+        for skip in range(n):
+            rows = [i for i in range(n) if i != skip]
+            A = mpmath.matrix([[M[i, c] for c in keep] for i in rows])
+            try:
+                x = mpmath.lu_solve(A, mpmath.matrix([-M[i, drop] for i in rows]))
+            except ZeroDivisionError:
+                continue
+            v = [mpmath.mpf(0)] * n
+            v[drop] = mpmath.mpf(1)
+            for c, val in zip(keep, x):
+                v[c] = val
+            v = mpmath.matrix(v)
+            err = mpmath.norm(M * v)
+            if best is None or err < best[0]:
+                best = (err, v)
+    if best is None:
+        raise ZeroDivisionError("no kernel vector found")
+    return best[1]
+
+
+def projection_c1(mats, delays, slots, second, third, omega):
+    """c1 (unit normalisation) by the projection form with numeric data.
+
+    ``second``/``third`` are per-equation dicts of mpmath derivative values on
+    the extended vector with coordinates ``slots``."""
+    lam = mpmath.mpc(0, 1) * omega
+    D = delta_matrix(mats, delays, lam)
+    q, p = null_vector(D), null_vector(D.T)
+    n = D.rows
+    Dp = mpmath.eye(n)
+    for A, tau in zip(mats[1:], delays):
+        Dp += A * (tau * mpmath.exp(-lam * tau))
+    pt = p / (p.T * Dp * q)[0]
+    fac = [mpmath.exp(-lam * tau) for tau in delays]
+
+    def ext(v, f):
+        return [v[i] if k == 0 else v[i] * f[k - 1] for i, k in slots]
+
+    def B(u, v):
+        return mpmath.matrix([sum((h * (u[a] * v[b] if a == b else u[a] * v[b] + u[b] * v[a])
+                                   for (a, b), h in table.items()), mpmath.mpf(0))
+                              for table in second])
+
+    def C(u, v, w):
+        return mpmath.matrix([sum((h * sum(u[a] * v[b] * w[c] for a, b, c in set(permutations(i)))
+                                   for i, h in table.items()), mpmath.mpf(0))
+                              for table in third])
+
+    Q = ext(q, fac)
+    Qb = ext([mpmath.conj(x) for x in q], [mpmath.conj(f) for f in fac])
+    h20 = mpmath.lu_solve(delta_matrix(mats, delays, 2 * lam), B(Q, Q))
+    h11 = mpmath.lu_solve(delta_matrix(mats, delays, 0), B(Q, Qb))
+    total = C(Q, Q, Qb) + 2 * B(Q, ext(h11, [1] * len(fac))) + B(Qb, ext(h20, [f * f for f in fac]))
+    c1 = (pt.T * total)[0] / 2
+    qq = sum(abs(x) ** 2 for x in q)
+    return c1 / qq, q, qq
+
+
+class _Problem:
+    """The model's forms as mpmath functions of (x, mu)."""
+
+    def __init__(self, model, mu, values):
+        from .linearize import delay_forms
+        fixed = {model.symbols[k]: v for k, v in values.items()}
+        self.model, self.mu = model, mu
+        states = list(model.state_symbols)
+        forms = delay_forms(model, tuple(states)).substitute(fixed)
+        self.forms = forms
+        args = states + [mu]
+        lam = lambda e: sympy.lambdify(args, e, modules="mpmath")  # noqa: E731
+        self.f = lam([current_form(e).xreplace(fixed) for e in model.equations])
+        self.mats = [lam(m.tolist()) for m in forms.matrices]
+        self.delays = [lam(d) for d in forms.delays]
+        self.second = [{k: lam(v) for k, v in t.items()} for t in forms.second]
+        self.third = [{k: lam(v) for k, v in t.items()} for t in forms.third]
+        leftover = set()
+        for e in [*model.equations, *forms.delays]:
+            leftover |= sympy.sympify(e).xreplace(fixed).free_symbols
+        leftover -= set(args)
+        leftover = {s for s in leftover if not isinstance(s, sympy.Dummy)}
+        if leftover:
+            raise ParameterError("the numeric mode needs values for "
+                                 + ", ".join(sorted(s.name for s in leftover)))
+
+    def at(self, x, mu):
+        mats = [mpmath.matrix(m(*x, mu)) for m in self.mats]
+        delays = [mpmath.mpf(d(*x, mu)) if callable(d) else mpmath.mpf(d) for d in self.delays]
+        return mats, delays
+
+    def chi(self, x, mu, lam):
+        mats, delays = self.at(x, mu)
+        return mpmath.det(delta_matrix(mats, delays, lam))
+
+
+def hopf_delay_numeric(model, parameter: str, guess: Mapping, *, values: Mapping | None = None,
+                       digits: int = 30) -> NumericDelayHopf:
+    """Locate a Hopf point of a retarded equation from ``guess`` (every state and
+    the parameter; optionally ``omega``) with every other parameter fixed by
+    ``values`` or the model's defaults, and compute c1, l1 and the crossing speed.
+    """
+    values = {**model.defaults(), **dict(values or {})}
+    mu = model.symbols[parameter]
+    values.pop(parameter, None)
+    values = {k: _number(v, k) for k, v in values.items()}
+    missing = [s for s in model.states if s not in guess] + (
+        [] if parameter in guess else [parameter])
+    if missing:
+        raise ParameterError("the guess needs starting values for " + ", ".join(missing))
+    with mpmath.workdps(digits + 10):
+        prob = _Problem(model, mu, values)
+        n = len(model.states)
+        x0 = [mpmath.mpf(str(_number(guess[s], s))) for s in model.states]
+        mu0 = mpmath.mpf(str(_number(guess[parameter], parameter)))
+        w0 = mpmath.mpf(str(_number(guess["omega"], "omega"))) if "omega" in guess else \
+            _omega_guess(prob, x0, mu0)
+
+        def G(*z):
+            x, m, w = list(z[:n]), z[n], z[n + 1]
+            chi = prob.chi(x, m, mpmath.mpc(0, w))
+            return [*prob.f(*x, m), mpmath.re(chi), mpmath.im(chi)]
+        try:
+            sol = mpmath.findroot(G, [*x0, mu0, w0])
+        except (ValueError, ZeroDivisionError) as exc:
+            raise NoHopfPointError(f"no Hopf point found near the guess ({exc}); try another "
+                                   "guess (or give omega)", reason="numeric_no_convergence") from None
+        sol = [sol[i] for i in range(n + 2)]
+        x, mu_c, omega = sol[:n], sol[n], abs(sol[n + 1])
+        mats, delays = prob.at(x, mu_c)
+        second = [{k: f(*x, mu_c) for k, f in t.items()} for t in prob.second]
+        third = [{k: f(*x, mu_c) for k, f in t.items()} for t in prob.third]
+        c1, q, qq = projection_c1(mats, delays, prob.forms.slots, second, third, omega)
+        slope = _slope(prob, x, mu_c, omega, n)
+        re_c1 = mpmath.re(c1)
+        l1 = re_c1 / omega
+        classification = ("supercritical" if l1 < 0 else "subcritical") if abs(l1) > \
+            mpmath.mpf(10) ** (-digits // 2) else "degenerate"
+        coefficients = {s: -4 * mpmath.re(slope) * abs(q[i]) ** 2 / (qq * re_c1)
+                        for i, s in enumerate(model.states)}
+        residual = abs(prob.chi(x, mu_c, mpmath.mpc(0, omega)))
+        return NumericDelayHopf(
+            model=model, parameter=parameter, mode="delay" if mu in model.delays else "parameter",
+            values=values, digits=digits,
+            equilibrium={s: +v for s, v in zip(model.states, x)}, critical_value=+mu_c,
+            omega=+omega, period=2 * mpmath.pi / omega, c1=+c1, l1=+l1,
+            transversality=+mpmath.re(slope), eigenvalue_derivative=+slope,
+            classification=classification, amplitude_coefficients=coefficients,
+            residual=residual)
+
+
+def _number(value, name):
+    from ..model.expressions import convert_sympy, parse_expression
+    if isinstance(value, str):
+        value = parse_expression(value, {}, context=f"value of {name!r}")
+    else:
+        value = convert_sympy(value, {}, context=f"value of {name!r}")
+    if value.free_symbols:
+        raise ParameterError(f"the value of {name!r} must be a number")
+    return sympy.Float(value, 40)
+
+
+def _omega_guess(prob, x, mu):
+    """The largest imaginary part among the eigenvalues of the undelayed linear part."""
+    mats, _ = prob.at(x, mu)
+    total = mats[0]
+    for A in mats[1:]:
+        total = total + A
+    eig = mpmath.eig(total, left=False, right=False)
+    if isinstance(eig, tuple):
+        eig = eig[0]
+    parts = [abs(mpmath.im(z)) for z in eig]
+    return max(parts) if parts and max(parts) > 0 else mpmath.mpf(1)
+
+
+def _slope(prob, x, mu_c, omega, n):
+    h = mpmath.mpf(10) ** (-(mpmath.mp.dps // 3))
+    roots = []
+    for m in (mu_c - h, mu_c + h):
+        xs = mpmath.findroot(lambda *z: prob.f(*z, m), x) if n > 1 else \
+            [mpmath.findroot(lambda z: prob.f(z, m)[0], x[0])]
+        xs = [xs[i] for i in range(n)]
+        roots.append(mpmath.findroot(lambda z: prob.chi(xs, m, z), mpmath.mpc(0, omega)))
+    return (roots[1] - roots[0]) / (2 * h)

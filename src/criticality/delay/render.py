@@ -1,0 +1,213 @@
+"""Text, LaTeX and JSON of a delay Hopf result.
+
+Pipeline place: result -> **outputs**.  Pure functions returning strings; the
+result's methods call them (imported on use).  JSON: every quantity as a string
+in the model syntax (``format_expression``; ``x(t - tau)`` for a delayed
+state), in the envelope ``{"schema": "criticality.hopf_delay", "version": 1,
+...}``; :func:`read_delay_json` reads the expressions back through the
+whitelisted parser.
+"""
+
+from __future__ import annotations
+
+import json
+
+import sympy
+
+from ..outputs.escape import tex_text
+from ..model.expressions import format_expression, parse_expression
+from ..outputs.latex_expr import latex_name
+
+__all__ = ["summary_text", "latex_section", "latex_document", "latex_inline", "to_json",
+           "result_to_dict", "read_delay_json", "SCHEMA", "SCHEMA_VERSION"]
+
+SCHEMA = "criticality.hopf_delay"
+SCHEMA_VERSION = 1
+_CAUTION = ("The analysis is local: valid near the critical value and near the equilibrium. A "
+            "subcritical result means an abrupt, hysteretic onset of large oscillations. Verify "
+            "before relying on it (result.validate() simulates the delay equation), and defer to "
+            "applicable codes and licensed engineering practice.")
+
+
+def _text(expr) -> str:
+    if isinstance(expr, bool) or expr is None:
+        return str(expr)
+    if isinstance(expr, sympy.logic.boolalg.BooleanAtom):
+        return str(bool(expr))
+    if isinstance(expr, sympy.core.relational.Relational):
+        return f"{_text(expr.lhs)} {expr.rel_op} {_text(expr.rhs)}"
+    try:
+        return format_expression(sympy.sympify(expr))
+    except Exception:       # Piecewise, complex values: sympy's own text
+        return sympy.sstr(expr)
+
+
+def summary_text(r) -> str:
+    mode = ("the delay is the bifurcation parameter" if r.mode == "delay"
+            else "the delays are fixed")
+    lines = [f"Hopf bifurcation of a retarded equation in {r.parameter!r} ({mode})",
+             f"  equilibrium:          " + ", ".join(f"{s} = {_text(v)}"
+                                                     for s, v in r.equilibrium.items()),
+             f"  quasi-polynomial:     {sympy.sstr(r.quasi_polynomial)}",
+             f"  frequency polynomial: F(s) = {_text(r.frequency_polynomial)}  (s = omega^2)",
+             f"  omega:                {_text(r.omega)}",
+             f"  first critical value: {r.parameter} = {_text(r.critical_value)}",
+             f"  every critical value: {r.parameter}_j = {_text(r.critical_sequence)}, "
+             "j = 0, 1, 2, ...",
+             f"  crossing direction:   {_direction(r)}",
+             f"  Re d lambda/d {r.parameter}:    {_text(r.transversality)}",
+             f"  c1:                   {sympy.sstr(r.c1)}",
+             f"  l1:                   {_text(r.l1)}",
+             f"  verdict:              {r.classification}: {r.verdict}",
+             f"  cycle:                exists {r.cycle.side} the critical value; period "
+             f"{_text(r.cycle.period)}"]
+    for state, k in r.cycle.amplitude_coefficients.items():
+        lines.append(f"    amplitude of {state}: sqrt(({_text(k)}) ({r.parameter} - "
+                     f"{r.parameter}_0))")
+    if r.compact:
+        lines.append("  in terms of omega and tau_0 (the values above):")
+        for key, value in r.compact.items():
+            lines.append(f"    {key} = {sympy.sstr(value)}")
+    for c in r.conditions:
+        lines.append(f"  condition:            {_text(c)}")
+    for c in r.stability_conditions:
+        lines.append(f"  stated:               {c}")
+    lines.append(f"  routes agree:         {r.routes_agree} (projection form, "
+                 "Hassard-Kazarinoff-Wan procedure)")
+    lines.append("  conventions:")
+    lines += [f"    - {c}" for c in r.conventions.lines()]
+    lines.append("  caution: " + _CAUTION)
+    return "\n".join(lines)
+
+
+def _direction(r) -> str:
+    if r.crossing_direction == 1:
+        return "+1 (a pair crosses to the right as the parameter increases)"
+    if r.crossing_direction == -1:
+        return "-1 (a pair crosses to the left as the parameter increases)"
+    return f"decided by the sign of {_text(r.crossing_indicator)}"
+
+
+def _latex(expr) -> str:
+    names = {}
+    for s in sympy.sympify(expr).free_symbols:
+        if isinstance(s, sympy.Symbol):
+            names[s] = latex_name(s.name)
+    return sympy.latex(expr, symbol_names=names)
+
+
+def latex_inline(r) -> str:
+    p = latex_name(r.parameter)
+    return (rf"{p}_0 = {_latex(r.critical_value)},\ \omega = {_latex(r.omega)},\ "
+            rf"\ell_1 = {_latex(r.l1)}\ (\text{{{r.classification}}})")
+
+
+def latex_section(r) -> str:
+    p = latex_name(r.parameter)
+    lam = sympy.Symbol("lambda")
+    out = [r"\section*{Hopf bifurcation of a retarded equation}",
+           r"\begin{align*}"]
+    for state, rhs in zip(r.model.states, r.model.equations):
+        out.append(rf"  \dot {latex_name(state)} &= {_latex(rhs)} \\")
+    out.append(r"\end{align*}")
+    out.append(r"Characteristic quasi-polynomial and frequency condition:")
+    out.append(r"\begin{align*}")
+    out.append(rf"  \chi(\lambda) &= {_latex(r.quasi_polynomial)} \\")
+    out.append(rf"  F(s) &= {_latex(r.frequency_polynomial)}, \quad s = \omega^2 \\")
+    out.append(rf"  \omega &= {_latex(r.omega)} \\")
+    out.append(rf"  {p}_0 &= {_latex(r.critical_value)} \\")
+    out.append(rf"  {p}_j &= {_latex(r.critical_sequence)}, \quad j = 0, 1, 2, \dots \\")
+    out.append(rf"  \operatorname{{Re}} \frac{{d\lambda}}{{d{p}}} &= {_latex(r.transversality)} \\")
+    out.append(rf"  c_1 &= {_latex(r.c1)} \\")
+    out.append(rf"  \ell_1 &= {_latex(r.l1)}")
+    out.append(r"\end{align*}")
+    out.append(rf"Verdict: {r.classification}. Cycle on the side {r.cycle.side} of the critical "
+               rf"value, period ${_latex(r.cycle.period)}$.")
+    out.append(r"\begin{itemize}")
+    for state, k in r.cycle.amplitude_coefficients.items():
+        out.append(rf"  \item amplitude of ${latex_name(state)}$: "
+                   rf"$\sqrt{{({_latex(k)})({p} - {p}_0)}}$")
+    for c in r.conventions.lines():
+        out.append(r"  \item \texttt{" + tex_text(c) + "}")
+    out.append(r"\end{itemize}")
+    out.append(tex_text(_CAUTION))
+    _ = lam
+    return "\n".join(out)
+
+
+
+def latex_document(r) -> str:
+    return "\n".join([r"\documentclass{article}", r"\usepackage{amsmath,amssymb}",
+                      r"\begin{document}", latex_section(r), r"\end{document}", ""])
+
+
+def _json_value(expr):
+    if isinstance(expr, (bool, int)) or expr is None:
+        return expr
+    return _text(expr)
+
+
+def result_to_dict(r, *, point=None, digits: int = 30) -> dict:
+    doc = {
+        "schema": SCHEMA, "version": SCHEMA_VERSION, "kind": r.kind,
+        "model": {"states": list(r.model.states),
+                  "parameters": {p.name: p.assumption for p in r.model.parameters},
+                  "equations": {s: _text(e) for s, e in zip(r.model.states, r.model.equations)},
+                  "delays": [_text(d) for d in r.delays]},
+        "parameter": r.parameter, "mode": r.mode,
+        "equilibrium": {s: _text(v) for s, v in r.equilibrium.items()},
+        "quasi_polynomial": sympy.sstr(r.quasi_polynomial),
+        "P": _text(r.P), "Q": _text(r.Q),
+        "frequency_polynomial": _text(r.frequency_polynomial),
+        "omega": _text(r.omega), "theta": _text(r.theta),
+        "critical_value": _text(r.critical_value),
+        "critical_sequence": _text(r.critical_sequence),
+        "crossing_indicator": _text(r.crossing_indicator),
+        "crossing_direction": r.crossing_direction,
+        "transversality": _text(r.transversality),
+        "c1": {"re": _text(sympy.re(r.c1)), "im": _text(sympy.im(r.c1))},
+        "l1": _text(r.l1),
+        "classification": str(r.classification), "verdict": r.verdict,
+        "criticality_condition": _json_value(r.criticality_condition),
+        "conditions": [_text(c) for c in r.conditions],
+        "stability_conditions": list(r.stability_conditions),
+        "cycle": {"side": r.cycle.side, "period": _text(r.cycle.period),
+                  "amplitude_coefficients": {s: _text(k) for s, k in
+                                             r.cycle.amplitude_coefficients.items()}},
+        "routes_agree": bool(r.routes_agree),
+        "in_terms_of_omega_and_tau_0": {k: sympy.sstr(v) for k, v in r.compact.items()},
+        "conventions": list(r.conventions.lines()),
+        "caution": _CAUTION,
+    }
+    if point is not None:
+        num = r.evaluate(point, digits=digits)
+        doc["numeric"] = {"values": {k: str(v) for k, v in num.values.items()},
+                          "critical_value": str(num.critical_value), "omega": str(num.omega),
+                          "l1": str(num.l1), "residual": str(num.residual)}
+    return doc
+
+
+def to_json(r, *, point=None, digits: int = 30) -> str:
+    return json.dumps(result_to_dict(r, point=point, digits=digits), indent=2)
+
+
+_EXPRESSION_FIELDS = ("P", "Q", "frequency_polynomial", "omega", "critical_value",
+                      "critical_sequence", "transversality", "l1")
+
+
+def read_delay_json(text: str) -> dict:
+    """The expressions of a delay result's JSON, read back through the whitelisted
+    parser (delayed states in the model's equations included)."""
+    doc = json.loads(text)
+    if doc.get("schema") != SCHEMA:
+        raise ValueError(f"not a {SCHEMA} document (schema {doc.get('schema')!r})")
+    states = doc["model"]["states"]
+    out = {}
+    for key in _EXPRESSION_FIELDS:
+        out[key] = parse_expression(doc[key], context=f"JSON field {key!r}")
+    out["equations"] = {s: parse_expression(e, context=f"JSON equation for {s!r}",
+                                            delayed=states)
+                        for s, e in doc["model"]["equations"].items()}
+    out["c1"] = (parse_expression(doc["c1"]["re"], context="JSON field 'c1.re'")
+                 + sympy.I * parse_expression(doc["c1"]["im"], context="JSON field 'c1.im'"))
+    return out
