@@ -12,6 +12,8 @@ EXPECTED = {
     # analyses
     "hopf", "hopf_all", "HopfResult", "fold", "bautin_points", "bogdanov_takens", "analyses",
     "time_limit", "hopf_delay", "DelayHopfResult",
+    "time_limit", "flip", "neimark_sacker", "validate_map",
+    "fold_hopf", "hopf_hopf", "spectrum_check",
     # outputs, checks and pictures
     "latex_report", "validate", "ValidationReport", "sweep", "plot_parameter_plane",
     "plot_amplitude", "save_figure", "curve_data", "write_curve_csv",
@@ -25,7 +27,7 @@ EXPECTED = {
     "EquilibriumNotFoundError",
     "NotAnalyticError", "NoHopfPointError", "DegenerateBifurcationError", "DegenerateHopfError",
     "ClosedFormUnavailableError", "ComputationLimitError", "MissingExtraError", "OutputError",
-    "OutputExistsError", "ValidationRunError",
+    "OutputExistsError", "ValidationRunError", "ModelKindError",
 }
 
 

@@ -46,6 +46,12 @@ _LAZY = {
     "time_limit": "budget",
     "hopf_delay": "delay.analysis",
     "DelayHopfResult": "delay.results",
+    "flip": "bifurcations.maps",
+    "neimark_sacker": "bifurcations.maps",
+    "validate_map": "checks.map_iteration",
+    "fold_hopf": "bifurcations.fold_hopf",
+    "hopf_hopf": "bifurcations.hopf_hopf",
+    "spectrum_check": "checks.spectrum",
 }
 
 __all__ = sorted(["__version__", *_LAZY, *_error_names])

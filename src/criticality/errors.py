@@ -21,6 +21,7 @@ __all__ = [
     "ModelFileError",
     "ModelFileSyntaxError",
     "InvalidModelFileError",
+    "ModelKindError",
     "ParameterError",
     "OrderError",
     "EquilibriumError",
@@ -160,6 +161,11 @@ class ModelFileSyntaxError(ModelFileError):
 class InvalidModelFileError(InvalidModelError, ModelFileError):
     """A model file is valid TOML but its content has problems (unknown keys,
     wrong types, invalid equations); all of them are listed in ``problems``."""
+
+
+class ModelKindError(ModelError):
+    """The analysis needs the other kind of model: a map (``kind="map"``,
+    the equations give the next state) or a flow (the equations give x')."""
 
 
 # --- analysis ------------------------------------------------------------

@@ -101,3 +101,17 @@ register(Analysis("bogdanov_takens", "double zero eigenvalue in two parameters: 
 register(Analysis("hopf_delay", "Hopf bifurcation of a retarded equation x' = f(x(t), "
                   "x(t - tau), ...): critical delays, crossing direction, l1 and the verdict",
                   "delay.analysis:hopf_delay", ("parameter",), "DelayHopfResult"))
+register(Analysis("flip", "period doubling of a map's fixed point (multiplier -1): critical "
+                  "value, flip coefficient, 2-cycle amplitude", "bifurcations.maps:flip_all",
+                  ("parameter",), "FlipResult"))
+register(Analysis("neimark_sacker", "Neimark-Sacker point of a map (multipliers exp(+-i theta)): "
+                  "angle, first Lyapunov coefficient of the map, invariant curve, resonances",
+                  "bifurcations.maps:neimark_sacker_all", ("parameter",), "NeimarkSackerResult"))
+register(Analysis("fold_hopf", "a zero eigenvalue and a pair +-i omega in two parameters: "
+                  "G200, G011, G110, the invariants s and theta and the scenario",
+                  "bifurcations.fold_hopf:fold_hopf_all", ("parameter", "second"),
+                  "FoldHopfResult"))
+register(Analysis("hopf_hopf", "two pairs +-i omega1, +-i omega2 in two parameters: p11, p12, "
+                  "p21, p22, theta, delta, the case and the resonances",
+                  "bifurcations.hopf_hopf:hopf_hopf_all", ("parameter", "second"),
+                  "HopfHopfResult"))

@@ -35,7 +35,7 @@ Which case applies:
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import ClassVar
 
 import sympy
@@ -45,7 +45,7 @@ from ..renderers import render
 from ..algebra.linalg import determinant, dot, kernel, matvec, solve, transpose
 from ..errors import DegenerateBifurcationError, NoHopfPointError
 
-__all__ = ["FoldResult", "fold", "fold_all", "FOLD_CONVENTIONS"]
+__all__ = ["FoldResult", "fold", "fold_all", "FOLD_CONVENTIONS", "MAP_FOLD_CONVENTIONS"]
 
 FOLD_CONVENTIONS = (
     "A q = 0, A^T p = 0, <p, q> = 1 (real vectors); x - x0 = y q + O(y^2) on the center manifold",
@@ -53,6 +53,19 @@ FOLD_CONVENTIONS = (
     "t = <p, f_mu>, d = <p, C(q, q, q) + 3 B(q, h2)>/6",
     "q -> s q scales a by s, t by 1/s, d by s^2: the signs of a t and of d are invariant",
 )
+
+
+MAP_FOLD_CONVENTIONS = (
+    "map x -> F(x): a multiplier +1 of A = DF(x0); the fixed points of F are the equilibria "
+    "of x' = F(x) - x, whose zero eigenvalue this analysis treats",
+    "A q = q, A^T p = p, <p, q> = 1 (real vectors); restricted map y -> y + t (mu - mu_c) + "
+    "lambda' (mu - mu_c) y + a y^2 + d y^3 with the formulas of the fold of flows "
+    "(F(x) - x has the same quadratic and cubic forms as F)",
+    "q -> s q scales a by s, t by 1/s, d by s^2: the signs of a t and of d are invariant",
+)
+_MAP_NOTE = ("discrete-time map x -> F(x): the critical multiplier is +1; 'eigenvalue speed' is "
+             "the speed of that multiplier, and the fixed points collide or exchange stability "
+             "as for the equilibria of a flow")
 
 
 @dataclass(frozen=True)
@@ -243,6 +256,12 @@ def _result(prep, sp, unknown):
 def fold_all(model, parameter: str, *, solve_for_name: str | None = None, equilibrium=None,
              eliminate=None, values=None, assume=None, backend: str = "flint") -> tuple:
     """Every closed-form point of ``det A = 0`` (see :func:`fold`)."""
+    if getattr(model, "kind", "flow") == "map":
+        results = fold_all(model.fixed_point_flow(), parameter, solve_for_name=solve_for_name,
+                           equilibrium=equilibrium, eliminate=eliminate, values=values,
+                           assume=assume, backend=backend)
+        return tuple(replace(r, notes=(_MAP_NOTE,) + r.notes, conventions=MAP_FOLD_CONVENTIONS)
+                     for r in results)
     prep = prepare(model, parameter, equilibrium=equilibrium, eliminate=eliminate,
                    values=values, assume=assume, order=3, backend=backend,
                    extra=lambda m, c: _f_mu(m, c, m.symbols[parameter]))

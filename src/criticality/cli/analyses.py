@@ -14,6 +14,11 @@ registry entry with ``-`` for ``_``:
     the points of the Hopf set where l1 vanishes, with l2 and the scenario
 ``bogdanov-takens``
     the double zero eigenvalue in two parameters, with a, b and the sign of ab
+``flip``, ``neimark-sacker``
+    period doubling and the Neimark-Sacker point of a map's fixed point
+    (model files with ``kind = "map"``); ``fold`` treats a map's multiplier +1
+``fold-hopf``, ``hopf-hopf``
+    a zero eigenvalue with a pair, and two pairs, in two parameters (``--second``)
 
 Each takes the model file, ``-p/--parameter`` (and ``--second`` where the
 analysis needs two symbols), the equilibrium options of the main command,
@@ -49,7 +54,7 @@ def _options(parser, analysis) -> None:
     parser.add_argument("--assume", action="append", default=[], metavar="NAME=SIGN",
                         type=lambda s: pairs([s], "--assume"),
                         help="a sign assumption, e.g. --assume x_eq=positive (repeatable)")
-    if analysis.name == "fold":
+    if analysis.name in ("fold", "flip", "neimark_sacker"):
         parser.add_argument("--solve-for", metavar="NAME",
                             help="the symbol solved from det A = 0 (default: the parameter)")
     parser.add_argument("--backend", choices=("flint", "sympy"), default="flint",

@@ -156,7 +156,8 @@ def _list(args) -> int:
         lines.append(f"  {a.name.ljust(width)}  {a.description}"
                      + (f" [needs: {needs}]" if needs else ""))
     lines.append("The Hopf analysis runs with analyse, report, json and evaluate; the others "
-                 "with the subcommand of their name (fold, bautin, bogdanov-takens).")
+                 "with the subcommand of their name ("
+                 + ", ".join(a.name.replace("_", "-") for a in rows if a.name != "hopf") + ").")
     print("\n".join(lines))
     return EXIT_OK
 

@@ -206,6 +206,9 @@ def prepare(model, parameter: str | None = None, *, equilibrium=None, eliminate=
         Bautin): it must stay free, occur in the model and not occur inside a
         transcendental function at the equilibrium.
     """
+    if getattr(model, "kind", "flow") == "map":
+        model.require_kind("flow", "this analysis", "for maps use flip(), neimark_sacker() or "
+                           "fold() (which treats a map's multiplier +1)")
     full, fixed = model, (model.value_substitution(values) if values else {})
     model, name = resolve_parameter(model, parameter, values)
     assumptions = assumption_map(model, assume)

@@ -21,7 +21,7 @@ from typing import Mapping
 import sympy
 
 from .syntax import _NOT_FINITE, _suggest
-from ..errors import ExpressionError, ParameterError
+from ..errors import ExpressionError, InvalidModelError, ParameterError
 from .checks import _Assembler
 from .expressions import convert_sympy, format_expression, parse_expression
 from .parameter import ASSUMPTIONS, Parameter, _constant, _name_of, _sign_problem
@@ -29,7 +29,19 @@ from .parameter import ASSUMPTIONS, Parameter, _constant, _name_of, _sign_proble
 __all__ = ["Model", "Parameter", "ASSUMPTIONS"]
 
 _FIELDS = ("name", "description", "states", "parameters", "equations", "equilibrium_hint",
-           "bifurcation_parameter", "notes", "lines", "source", "symbols", "state_units")
+           "bifurcation_parameter", "notes", "lines", "source", "symbols", "state_units",
+           "kind")
+
+#: what the right-hand sides mean: ``"flow"`` (x' = f(x)) or ``"map"`` (x -> F(x))
+KINDS = ("flow", "map")
+
+
+def _kind_problem(kind: object) -> str | None:
+    if isinstance(kind, str) and kind in KINDS:
+        return None
+    shown = repr(kind) if isinstance(kind, str) else f"a {type(kind).__name__}"
+    return (f"kind must be \"flow\" (the equations give x') or \"map\" (the equations give "
+            f"the next state), not {shown}")
 
 
 class Model:
@@ -56,6 +68,11 @@ class Model:
         parameters (exposed as :attr:`equilibrium_hint`).
     bifurcation_parameter : str, optional
         The parameter to vary by default.
+    kind : str, optional
+        ``"flow"`` (default): the right-hand sides give ``x'``; ``"map"``: they
+        give the next state, ``x -> F(x)`` (fixed points instead of
+        equilibria; see :func:`criticality.flip` and
+        :func:`criticality.neimark_sacker`).
 
     Raises
     ------
@@ -83,13 +100,18 @@ class Model:
     lines: Mapping[str, int]
     source: str | None
     symbols: Mapping[str, sympy.Symbol]
+    kind: str
 
     def __init__(self, states, equations, parameters=None, *, name: str | None = None,
                  description: str | None = None, equilibrium: Mapping | None = None,
-                 bifurcation_parameter: str | None = None, state_units: Mapping | None = None):
+                 bifurcation_parameter: str | None = None, state_units: Mapping | None = None,
+                 kind: str = "flow"):
+        problem = _kind_problem(kind)
+        if problem is not None:
+            raise InvalidModelError([problem])
         fields = _Assembler().run(states, equations, parameters, name, description,
                                   equilibrium, bifurcation_parameter, units=state_units)
-        self._fill(fields, {})
+        self._fill(dict(fields, kind=kind), {})
 
     def _fill(self, fields: dict, lines: Mapping[str, int]) -> None:
         fields = dict(fields, lines=MappingProxyType(dict(lines)))
@@ -142,8 +164,15 @@ class Model:
     @classmethod
     def _from_pieces(cls, pieces: dict, *, source: str, locate, problems: list,
                      lines: Mapping[str, int], error) -> "Model":
+        pieces = dict(pieces)
+        kind = pieces.pop("kind", None)
+        kind = "flow" if kind is None else kind
+        problem = _kind_problem(kind)
+        if problem is not None:
+            at = locate("kind")
+            problems.append(f"{f'line {at}: ' if at else ''}{problem}")
         assembler = _Assembler(source, locate, problems)
-        fields = assembler.run(error=error, **pieces)
+        fields = dict(assembler.run(error=error, **pieces), kind=kind)
         return cls._build(fields, {s: n for s, n in lines.items() if s in fields["states"]})
 
     # -- derived views ---------------------------------------------------------
@@ -285,6 +314,36 @@ class Model:
             symbols=MappingProxyType({k: v for k, v in self.symbols.items() if k not in fixed}))
         return Model._build(fields, self.lines)
 
+    def fixed_point_flow(self) -> "Model":
+        """For a map ``x -> F(x)``: the flow ``x' = F(x) - x``, whose
+        equilibria are the map's fixed points and whose Taylor forms are the
+        map's except for the Jacobian, shifted by ``-I``.
+
+        Raises
+        ------
+        ModelKindError
+            For a model that is not a map.
+        """
+        from ..errors import ModelKindError
+        if self.kind != "map":
+            raise ModelKindError("fixed_point_flow() needs a map (kind=\"map\"); this model "
+                                 "is a flow")
+        fields = {k: getattr(self, k) for k in _FIELDS if k != "lines"}
+        fields.update(kind="flow", equations=tuple(
+            e - s for e, s in zip(self.equations, self.state_symbols)))
+        return Model._build(fields, self.lines)
+
+    def require_kind(self, kind: str, analysis: str, hint: str = "") -> None:
+        """Raise :class:`~criticality.errors.ModelKindError` unless the model
+        is of ``kind`` (``"flow"`` or ``"map"``)."""
+        from ..errors import ModelKindError
+        if self.kind != kind:
+            what = {"map": "a map (kind=\"map\": the equations give the next state)",
+                    "flow": "a flow (the equations give x')"}[kind]
+            raise ModelKindError(f"{analysis} needs {what}, but the model "
+                                 f"{self.name + ' ' if self.name else ''}is a {self.kind}"
+                                 + (f"; {hint}" if hint else ""))
+
     def to_toml(self) -> str:
         """The model as the text of a TOML model file; :meth:`from_text` reads it
         back to an equal model."""
@@ -296,7 +355,7 @@ class Model:
     def _key(self) -> tuple:
         hint = None if self.equilibrium_hint is None else tuple(self.equilibrium_hint.items())
         return (self.name, self.description, self.states, self.parameters, self.equations,
-                hint, self.bifurcation_parameter)
+                hint, self.bifurcation_parameter, self.kind)
 
     def __eq__(self, other: object) -> bool:
         if not isinstance(other, Model):
@@ -308,12 +367,19 @@ class Model:
 
     def __repr__(self) -> str:
         head = f"{self.name!r}, " if self.name else ""
+        tail = ", kind='map'" if self.kind == "map" else ""
         return (f"Model({head}states=({', '.join(self.states)}), "
-                f"parameters=({', '.join(p.name for p in self.parameters)}))")
+                f"parameters=({', '.join(p.name for p in self.parameters)}){tail})")
 
     def __str__(self) -> str:
-        lines = [self.name or "model"]
-        lines += [f"  {s}' = {format_expression(e)}" for s, e in zip(self.states, self.equations)]
+        if self.kind == "map":
+            lines = [f"{self.name or 'model'} (map: next state from the current one)"]
+            lines += [f"  {s} -> {format_expression(e)}"
+                      for s, e in zip(self.states, self.equations)]
+        else:
+            lines = [self.name or "model"]
+            lines += [f"  {s}' = {format_expression(e)}"
+                      for s, e in zip(self.states, self.equations)]
         for p in self.parameters:
             value = "" if p.default is None else f" = {format_expression(p.default)}"
             lines.append(f"  {p.name}: {p.assumption}{value}")
@@ -323,7 +389,9 @@ class Model:
 def _restore(fields: dict, lines: dict) -> Model:
     """Rebuild a pickled model."""
     fields = dict(fields, symbols=MappingProxyType(fields["symbols"]),
-                  state_units=MappingProxyType(dict(fields.get("state_units") or {})))
+                  state_units=MappingProxyType(dict(fields.get("state_units",
+           "kind") or {})))
+    fields.setdefault("kind", "flow")
     if fields["equilibrium_hint"] is not None:
         fields["equilibrium_hint"] = MappingProxyType(fields["equilibrium_hint"])
     return Model._build(fields, lines)

@@ -28,7 +28,7 @@ __all__ = ["read_model_text", "read_model_file", "model_to_toml", "MAX_FILE_CHAR
 MAX_FILE_CHARS = 1_000_000
 #: the keys a model file may have at its top level
 TOP_KEYS = ("name", "description", "states", "bifurcation_parameter", "parameters",
-            "equations", "equilibrium", "units")
+            "equations", "equilibrium", "units", "kind")
 _BARE = r"[A-Za-z0-9_-]+"
 _PART = rf'(?:{_BARE}|"[^"]*"|\'[^\']*\')'
 _KEY = re.compile(rf"({_PART}(?:\s*\.\s*{_PART})*)\s*=")
@@ -195,6 +195,8 @@ def model_to_toml(model) -> str:
         out.append(f"name = {_string(model.name)}")
     if model.description is not None:
         out.append(f"description = {_string(model.description)}")
+    if getattr(model, "kind", "flow") != "flow":
+        out.append(f"kind = {_string(model.kind)}")
     out.append("states = [" + ", ".join(map(_string, model.states)) + "]")
     if model.bifurcation_parameter is not None:
         out.append(f"bifurcation_parameter = {_string(model.bifurcation_parameter)}")

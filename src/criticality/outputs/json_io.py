@@ -66,6 +66,7 @@ def _model(model) -> dict:
         "name": model.name,
         "description": model.description,
         "states": list(model.states),
+        "kind": getattr(model, "kind", "flow"),
         "bifurcation_parameter": model.bifurcation_parameter,
         "parameters": [{"name": p.name, "assumption": p.assumption,
                         "value": _expr(p.default) if p.default is not None else None,
