@@ -360,3 +360,46 @@ def test_degenerate_map_points_are_named():
                 kind="map")
     with pytest.raises(DegenerateBifurcationError, match=r"\+1"):
         neimark_sacker(fns, "mu", equilibrium={"x": 0, "y": 0, "z": 0})
+
+
+def test_bundled_sampled_heater_example(tmp_path, capsys):
+    """examples/sampled_heater (an invented scenario): the Neimark-Sacker gain
+    is where det J = 1, k = a/h, with cos(theta) = trace(J)/2 = 1 - a h/2
+    (common practice, no source); the predicted invariant curve is measured
+    by iterating the map in plain floating point, independently of
+    validate_map; the script and the command line run."""
+    from pathlib import Path
+    import subprocess
+    import sys
+
+    folder = Path(__file__).resolve().parent.parent / "examples"
+    model = Model.from_file(folder / "sampled_heater.toml")
+    symbolic = neimark_sacker(model, "k")
+    k_c = symbolic.critical_values["k"]
+    names = {str(s): s for s in k_c.free_symbols | symbolic.cos_angle.free_symbols}
+    a, h = names["a"], names["h"]
+    assert _eq(k_c, a / h)
+    assert _eq(symbolic.cos_angle, 1 - a * h / 2)
+    result = neimark_sacker(model, "k", values=model.defaults())
+    assert result.critical_values["k"] == 2 and result.lyapunov_sign == "negative"
+    assert result.verdict.startswith("supercritical")
+    # iterate at k = 2 + 1e-3 from near the predicted curve
+    offset = 1e-3
+    amplitude = result.amplitude_squared["T"]
+    names = {str(s): s for s in amplitude.free_symbols}
+    predicted = float(sympy.sqrt(amplitude.subs({names["k"]: 2 + sympy.Rational(1, 1000),
+                                                 names["k_c"]: 2})))
+    T, I, k = predicted / 2, 0.0, 2 + offset
+    peak = 0.0
+    for step in range(60000):
+        T, I = T + 0.5 * (-T - k * I - T ** 3), I + 0.5 * T
+        if step > 50000:
+            peak = max(peak, abs(T))
+    assert abs(peak - predicted) < 0.05 * predicted
+    done = subprocess.run([sys.executable, str(folder / "sampled_heater.py")],
+                          capture_output=True, text=True, timeout=300)
+    assert done.returncode == 0, done.stderr
+    assert "supercritical" in done.stdout
+    assert main(["neimark-sacker", str(folder / "sampled_heater.toml"), "--set", "h=1/2",
+                 "--set", "a=1", "--set", "q=1", "-q"]) == 0
+    assert "Cautions:" in capsys.readouterr().out

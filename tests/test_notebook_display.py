@@ -28,9 +28,10 @@ def example(name: str):
     return module.analyse()
 
 
-#: the delay example's result kind has its own renderers (tests/test_delay.py);
-#: the displays below belong to the ordinary-equation results
-DELAY_EXAMPLES = {"cold_store_lag"}
+#: the delay example's result kind has its own renderers (tests/test_delay.py)
+#: and the map example's result is a Neimark-Sacker point (tests/test_maps.py);
+#: the displays below belong to the Hopf results of ordinary equations
+DELAY_EXAMPLES = {"cold_store_lag", "sampled_heater"}
 
 
 @pytest.fixture(scope="module", params=sorted(p.stem for p in EXAMPLES.glob("*.py")

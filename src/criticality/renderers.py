@@ -45,6 +45,10 @@ PROVIDERS: dict = {
     "fold": ("criticality.outputs.simple", "criticality.outputs.notebook"),
     "bautin": ("criticality.outputs.simple", "criticality.outputs.notebook"),
     "bogdanov_takens": ("criticality.outputs.simple", "criticality.outputs.notebook"),
+    "flip": ("criticality.outputs.simple", "criticality.outputs.notebook"),
+    "neimark_sacker": ("criticality.outputs.simple", "criticality.outputs.notebook"),
+    "fold_hopf": ("criticality.outputs.simple", "criticality.outputs.notebook"),
+    "hopf_hopf": ("criticality.outputs.simple", "criticality.outputs.notebook"),
     "validation": ("criticality.outputs.notebook",),
 }
 

@@ -40,6 +40,7 @@ amplitude system is integrable there).
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import ClassVar
 
 import sympy
 
@@ -52,7 +53,7 @@ from ..local.eigenbasis import critical_eigenbasis
 from ..algebra.linalg import characteristic_polynomial
 from ..local.prepare import expr, prepare, sign_word, solve_for
 from ..model.expressions import convert_sympy, parse_expression
-from ..outputs.simple import render_json, render_latex, render_text
+from ..renderers import render
 from .bogdanov_takens import _solve_pair
 from .fold import _null_vectors
 
@@ -72,6 +73,8 @@ FOLD_HOPF_CONVENTIONS = (
 @dataclass(frozen=True)
 class FoldHopfResult:
     """A fold-Hopf point and its quadratic normal-form coefficients."""
+
+    result_kind: ClassVar[str] = "fold_hopf"
 
     parameters: tuple
     values: dict
@@ -106,14 +109,33 @@ class FoldHopfResult:
                 ("conditions", "conditions", self.conditions)]
 
     def summary(self) -> str:
-        return render_text(f"Fold-Hopf point in ({', '.join(self.parameters)})", self.rows(),
-                           self.notes, self.conventions)
+        """The result as plain text (a table, notes, conventions and cautions)."""
+        return render(self, "text")
+
+    def details(self) -> str:
+        """The full plain text (the same table: this kind is short)."""
+        return render(self, "details")
 
     def to_latex(self) -> str:
-        return render_latex("fold-Hopf point", self.rows())
+        """The quantities as an ``align*`` block."""
+        return render(self, "latex")
 
     def to_json(self, **kwargs) -> str:
-        return render_json("fold_hopf", self.rows(), self.notes, self.conventions, **kwargs)
+        """The result as JSON in the shared envelope."""
+        return render(self, "json", **kwargs)
+
+    def to_dict(self) -> dict:
+        """The JSON document as a dictionary."""
+        return render(self, "dict")
+
+    def _repr_html_(self) -> str:
+        return render(self, "html")
+
+    def _repr_markdown_(self) -> str:
+        return render(self, "markdown")
+
+    def _repr_latex_(self) -> str:
+        return render(self, "notebook_latex")
 
     def __str__(self):
         return self.summary()

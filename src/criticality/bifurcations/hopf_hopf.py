@@ -42,6 +42,7 @@ q2 leaves them alone).  ``Re p11 Re p22 > 0`` is the simple case,
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import ClassVar
 
 import sympy
 
@@ -53,7 +54,7 @@ from ..local.eigenbasis import critical_eigenbasis
 from ..algebra.linalg import characteristic_polynomial
 from ..local.prepare import expr, prepare, sign_word
 from ..local.projection import projection_c1
-from ..outputs.simple import render_json, render_latex, render_text
+from ..renderers import render
 from .bogdanov_takens import _solve_pair
 from .fold_hopf import _located, _names
 from .map_normal_form import solve_complex
@@ -74,6 +75,8 @@ HOPF_HOPF_CONVENTIONS = (
 @dataclass(frozen=True)
 class HopfHopfResult:
     """A Hopf-Hopf point and the coefficients of its amplitude equations."""
+
+    result_kind: ClassVar[str] = "hopf_hopf"
 
     parameters: tuple
     values: dict
@@ -106,14 +109,33 @@ class HopfHopfResult:
                 ("signs", "signs", self.signs)]
 
     def summary(self) -> str:
-        return render_text(f"Hopf-Hopf point in ({', '.join(self.parameters)})", self.rows(),
-                           self.notes, self.conventions)
+        """The result as plain text (a table, notes, conventions and cautions)."""
+        return render(self, "text")
+
+    def details(self) -> str:
+        """The full plain text (the same table: this kind is short)."""
+        return render(self, "details")
 
     def to_latex(self) -> str:
-        return render_latex("Hopf-Hopf point", self.rows())
+        """The quantities as an ``align*`` block."""
+        return render(self, "latex")
 
     def to_json(self, **kwargs) -> str:
-        return render_json("hopf_hopf", self.rows(), self.notes, self.conventions, **kwargs)
+        """The result as JSON in the shared envelope."""
+        return render(self, "json", **kwargs)
+
+    def to_dict(self) -> dict:
+        """The JSON document as a dictionary."""
+        return render(self, "dict")
+
+    def _repr_html_(self) -> str:
+        return render(self, "html")
+
+    def _repr_markdown_(self) -> str:
+        return render(self, "markdown")
+
+    def _repr_latex_(self) -> str:
+        return render(self, "notebook_latex")
 
     def __str__(self):
         return self.summary()

@@ -36,6 +36,7 @@ from __future__ import annotations
 
 import dataclasses
 from dataclasses import dataclass
+from typing import ClassVar
 
 import sympy
 
@@ -46,7 +47,7 @@ from ..local.critical import cofactor_hurwitz, find_critical_branches
 from ..algebra.linalg import characteristic_polynomial
 from ..local.prepare import expr, sign_word
 from ..local.prepare import solve_for as solve_symbol
-from ..outputs.simple import render_json, render_latex, render_text
+from ..renderers import render
 from .map_normal_form import flip_coefficients, flip_vectors, ns_coefficient, unit_circle_vectors
 from .map_setup import cayley, condition_status, inside_unit_circle, map_jacobian, prepare_map, \
     unknown_symbol
@@ -82,6 +83,8 @@ def _text_conditions(conditions):
 class FlipResult:
     """A period-doubling (flip) point of a fixed point of a map."""
 
+    result_kind: ClassVar[str] = "flip"
+
     parameter: str
     unknown: str
     critical_values: dict
@@ -114,14 +117,33 @@ class FlipResult:
                 ("conditions", "conditions", _text_conditions(self.conditions))]
 
     def summary(self) -> str:
-        return render_text(f"Flip (period doubling) of a map in '{self.parameter}'", self.rows(),
-                           self.notes, self.conventions)
+        """The result as plain text (a table, notes, conventions and cautions)."""
+        return render(self, "text")
+
+    def details(self) -> str:
+        """The full plain text (the same table: this kind is short)."""
+        return render(self, "details")
 
     def to_latex(self) -> str:
-        return render_latex("flip point of a map", self.rows())
+        """The quantities as an ``align*`` block."""
+        return render(self, "latex")
 
     def to_json(self, **kwargs) -> str:
-        return render_json("flip", self.rows(), self.notes, self.conventions, **kwargs)
+        """The result as JSON in the shared envelope."""
+        return render(self, "json", **kwargs)
+
+    def to_dict(self) -> dict:
+        """The JSON document as a dictionary."""
+        return render(self, "dict")
+
+    def _repr_html_(self) -> str:
+        return render(self, "html")
+
+    def _repr_markdown_(self) -> str:
+        return render(self, "markdown")
+
+    def _repr_latex_(self) -> str:
+        return render(self, "notebook_latex")
 
     def __str__(self):
         return self.summary()
@@ -130,6 +152,8 @@ class FlipResult:
 @dataclass(frozen=True)
 class NeimarkSackerResult:
     """A Neimark-Sacker point (multipliers exp(+-i theta)) of a map."""
+
+    result_kind: ClassVar[str] = "neimark_sacker"
 
     parameter: str
     unknown: str
@@ -172,15 +196,33 @@ class NeimarkSackerResult:
                 ("conditions", "conditions", _text_conditions(self.conditions))]
 
     def summary(self) -> str:
-        return render_text(f"Neimark-Sacker point of a map in '{self.parameter}'", self.rows(),
-                           self.notes, self.conventions)
+        """The result as plain text (a table, notes, conventions and cautions)."""
+        return render(self, "text")
+
+    def details(self) -> str:
+        """The full plain text (the same table: this kind is short)."""
+        return render(self, "details")
 
     def to_latex(self) -> str:
-        return render_latex("Neimark-Sacker point of a map", self.rows())
+        """The quantities as an ``align*`` block."""
+        return render(self, "latex")
 
     def to_json(self, **kwargs) -> str:
-        return render_json("neimark_sacker", self.rows(), self.notes, self.conventions,
-                           **kwargs)
+        """The result as JSON in the shared envelope."""
+        return render(self, "json", **kwargs)
+
+    def to_dict(self) -> dict:
+        """The JSON document as a dictionary."""
+        return render(self, "dict")
+
+    def _repr_html_(self) -> str:
+        return render(self, "html")
+
+    def _repr_markdown_(self) -> str:
+        return render(self, "markdown")
+
+    def _repr_latex_(self) -> str:
+        return render(self, "notebook_latex")
 
     def __str__(self):
         return self.summary()

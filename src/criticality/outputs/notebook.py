@@ -120,7 +120,11 @@ register_renderer("hopf", "markdown", lambda r, **kw: markdown_table(
 
 _TITLES = {"fold": lambda r: f"{r.kind.capitalize()} point in {r.parameter}",
            "bautin": lambda r: f"Bautin point on the Hopf set of {r.parameter}",
-           "bogdanov_takens": lambda r: f"Bogdanov-Takens point in ({', '.join(r.parameters)})"}
+           "bogdanov_takens": lambda r: f"Bogdanov-Takens point in ({', '.join(r.parameters)})",
+           "flip": lambda r: f"Flip (period doubling) of a map in {r.parameter}",
+           "neimark_sacker": lambda r: f"Neimark-Sacker point of a map in {r.parameter}",
+           "fold_hopf": lambda r: f"Fold-Hopf point in ({', '.join(r.parameters)})",
+           "hopf_hopf": lambda r: f"Hopf-Hopf point in ({', '.join(r.parameters)})"}
 
 
 def _listed(kind: str):

@@ -1,4 +1,6 @@
-"""Plain renderers for the fold, Bogdanov-Takens and Bautin results.
+"""Plain renderers for the results listed by rows: fold, Bautin,
+Bogdanov-Takens, the map bifurcations (flip, Neimark-Sacker), fold-Hopf and
+Hopf-Hopf.
 
 Pipeline place: result -> **text, LaTeX, JSON**.  A result lists its rows
 ``(key, label, value)``; values are sympy expressions, strings, numbers or
@@ -13,6 +15,7 @@ import sympy
 
 from .envelope import SCHEMA_VERSION, envelope
 from .escape import tex_text
+from .render import CAUTIONS
 from ..renderers import register_renderer
 
 __all__ = ["render_text", "render_latex", "render_json", "SCHEMA_VERSION"]
@@ -30,8 +33,8 @@ def _text(value) -> str:
     return str(value)
 
 
-def render_text(title: str, rows, notes=(), conventions=()) -> str:
-    """A two-column table, then notes and conventions."""
+def render_text(title: str, rows, notes=(), conventions=(), cautions=CAUTIONS) -> str:
+    """A two-column table, then notes, conventions and cautions."""
     width = max((len(label) for _, label, _ in rows), default=0)
     lines = [title, "=" * len(title)]
     lines += [f"{label.ljust(width)}  {_text(value)}" for _, label, value in rows]
@@ -39,6 +42,8 @@ def render_text(title: str, rows, notes=(), conventions=()) -> str:
         lines += ["", "Notes:"] + [f"  - {n}" for n in notes]
     if conventions:
         lines += ["", "Conventions:"] + [f"  - {c}" for c in conventions]
+    if cautions:
+        lines += ["", "Cautions:"] + [f"  - {c}" for c in cautions]
     return "\n".join(lines)
 
 
@@ -86,7 +91,7 @@ def render_json(kind: str, rows, notes=(), conventions=(), **kwargs) -> str:
     return json.dumps(doc, indent=kwargs.get("indent", 2), sort_keys=False)
 
 
-# -- the renderers of the fold, Bautin and Bogdanov-Takens results ----------------------------
+# -- the renderers of the kinds listed by rows ----------------------------
 
 _TITLES = {
     "fold": (lambda r: f"{r.kind.capitalize()} point in '{r.parameter}'",
@@ -95,6 +100,14 @@ _TITLES = {
                lambda r: "Bautin point"),
     "bogdanov_takens": (lambda r: f"Bogdanov-Takens point in ({', '.join(r.parameters)})",
                         lambda r: "Bogdanov-Takens point"),
+    "flip": (lambda r: f"Flip (period doubling) of a map in '{r.parameter}'",
+             lambda r: "flip point of a map"),
+    "neimark_sacker": (lambda r: f"Neimark-Sacker point of a map in '{r.parameter}'",
+                       lambda r: "Neimark-Sacker point of a map"),
+    "fold_hopf": (lambda r: f"Fold-Hopf point in ({', '.join(r.parameters)})",
+                  lambda r: "fold-Hopf point"),
+    "hopf_hopf": (lambda r: f"Hopf-Hopf point in ({', '.join(r.parameters)})",
+                  lambda r: "Hopf-Hopf point"),
 }
 
 
