@@ -246,18 +246,43 @@ def test_no_crossing_is_reported():
 
 def test_two_delays_have_no_closed_crossing():
     m = Model(["x"], {"x": "-x(t - tau) - x(t - 1)"}, {"tau": "positive"})
-    with pytest.raises(ClosedFormUnavailableError, match="2 distinct delays"):
+    with pytest.raises(ClosedFormUnavailableError, match="2 distinct delays.*guess="):
         hopf(m, "tau", equilibrium={"x": 0})
 
 
+def test_two_delays_in_the_numeric_mode():
+    """x' = -x(t - tau) - x(t - 1): at lambda = i omega, cos(omega tau) + cos(omega) = 0 and
+    omega = sin(omega tau) + sin(omega) (common practice, no source), so omega tau =
+    pi - omega with omega = 2 sin(omega); the numeric mode locates that crossing."""
+    m = Model(["x"], {"x": "-x(t - tau) - x(t - 1) - x^3"}, {"tau": "positive"})
+    r = hopf(m, "tau", guess={"x": 0, "tau": 0.6, "omega": 1.9})
+    with mpmath.workdps(40):
+        w = mpmath.findroot(lambda w: w - 2 * mpmath.sin(w), 1.9)
+        assert abs(r.omega - w) < 1e-25 and abs(r.critical_value - (mpmath.pi - w) / w) < 1e-25
+
+
 # -- outputs and the command line ---------------------------------------------------------------
+
+
+def test_delay_results_render_through_the_registry(hutchinson):
+    """Text, LaTeX, JSON, HTML and Markdown come from the renderers registered
+    for the kind hopf_delay; the notebook displays carry the caution."""
+    from criticality.renderers import formats_of
+    assert {"text", "latex", "report", "json", "dict", "html", "markdown"} <= set(
+        formats_of("hopf_delay"))
+    html, md = hutchinson._repr_html_(), hutchinson._repr_markdown_()
+    assert "<table>" in html and "licensed engineering practice" in html
+    assert "| frequency omega |" in md and "hysteretic" in md
+    assert hutchinson.to_dict()["analysis"] == "hopf_delay"
 
 
 def test_json_latex_and_text(hutchinson):
     from criticality.delay.render import read_delay_json
     text = hutchinson.to_json()
     doc = json.loads(text)
-    assert doc["schema"] == "criticality.hopf_delay" and doc["version"] == 1
+    assert doc["schema"] == "criticality.hopf_delay" and doc["schema_version"] == 1
+    assert list(doc)[:6] == ["schema", "schema_version", "generator", "analysis", "status",
+                             "conventions"] and doc["cautions"]
     back = read_delay_json(text)
     assert sympy.simplify(back["critical_value"] - pi / (2 * R("r"))) == 0
     assert back["equations"]["x"] == hutchinson.model.equations[0]

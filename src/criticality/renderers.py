@@ -49,6 +49,7 @@ PROVIDERS: dict = {
     "neimark_sacker": ("criticality.outputs.simple", "criticality.outputs.notebook"),
     "fold_hopf": ("criticality.outputs.simple", "criticality.outputs.notebook"),
     "hopf_hopf": ("criticality.outputs.simple", "criticality.outputs.notebook"),
+    "hopf_delay": ("criticality.delay.render",),
     "validation": ("criticality.outputs.notebook",),
 }
 

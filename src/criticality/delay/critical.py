@@ -156,7 +156,9 @@ def quasi_polynomial_parts(forms) -> tuple[sympy.Expr, sympy.Expr]:
     if len(forms.delays) != 1:
         raise ClosedFormUnavailableError(
             f"the model has {len(forms.delays)} distinct delays; the closed-form crossing covers "
-            "one delay, chi = P(lambda) + Q(lambda) exp(-lambda tau)")
+            "one delay, chi = P(lambda) + Q(lambda) exp(-lambda tau); the numeric mode handles "
+            "several: pass guess={...} with the states, the parameter and 'omega' near the "
+            "crossing")
     E = sympy.Dummy("E")
     n = forms.n
     M = LAMBDA * sympy.eye(n) - forms.matrices[0] - forms.matrices[1] * E

@@ -3,9 +3,10 @@
 Pipeline place: result -> **outputs**.  Pure functions returning strings; the
 result's methods call them (imported on use).  JSON: every quantity as a string
 in the model syntax (``format_expression``; ``x(t - tau)`` for a delayed
-state), in the envelope ``{"schema": "criticality.hopf_delay", "version": 1,
-...}``; :func:`read_delay_json` reads the expressions back through the
-whitelisted parser.
+state), in the envelope every kind shares (:mod:`criticality.outputs.envelope`,
+schema ``criticality.hopf_delay``); :func:`read_delay_json` reads the
+expressions back through the whitelisted parser.  The renderers are registered
+for the result kind ``hopf_delay`` (:mod:`criticality.renderers`).
 """
 
 from __future__ import annotations
@@ -14,7 +15,11 @@ import json
 
 import sympy
 
+from ..errors import ExpressionError, ModelFileError
+from ..outputs.envelope import envelope, read_document
 from ..outputs.escape import tex_text
+from ..outputs.notebook import html_table, markdown_table
+from ..renderers import register_renderer
 from ..model.expressions import format_expression, parse_expression
 from ..outputs.latex_expr import latex_name
 
@@ -148,8 +153,8 @@ def _json_value(expr):
 
 
 def result_to_dict(r, *, point=None, digits: int = 30) -> dict:
-    doc = {
-        "schema": SCHEMA, "version": SCHEMA_VERSION, "kind": r.kind,
+    body = {
+        "kind": r.kind,
         "model": {"states": list(r.model.states),
                   "parameters": {p.name: p.assumption for p in r.model.parameters},
                   "equations": {s: _text(e) for s, e in zip(r.model.states, r.model.equations)},
@@ -176,15 +181,16 @@ def result_to_dict(r, *, point=None, digits: int = 30) -> dict:
                                              r.cycle.amplitude_coefficients.items()}},
         "routes_agree": bool(r.routes_agree),
         "in_terms_of_omega_and_tau_0": {k: sympy.sstr(v) for k, v in r.compact.items()},
-        "conventions": list(r.conventions.lines()),
-        "caution": _CAUTION,
     }
+    tail = {}
     if point is not None:
         num = r.evaluate(point, digits=digits)
-        doc["numeric"] = {"values": {k: str(v) for k, v in num.values.items()},
-                          "critical_value": str(num.critical_value), "omega": str(num.omega),
-                          "l1": str(num.l1), "residual": str(num.residual)}
-    return doc
+        tail["numeric"] = {"values": {k: str(v) for k, v in num.values.items()},
+                           "critical_value": str(num.critical_value), "omega": str(num.omega),
+                           "l1": str(num.l1), "residual": str(num.residual)}
+    return envelope(SCHEMA, "hopf_delay", body, status=r.status,
+                    conventions=list(r.conventions.lines()), notes=r.notes,
+                    cautions=(_CAUTION,), tail=tail)
 
 
 def to_json(r, *, point=None, digits: int = 30) -> str:
@@ -197,17 +203,78 @@ _EXPRESSION_FIELDS = ("P", "Q", "frequency_polynomial", "omega", "critical_value
 
 def read_delay_json(text: str) -> dict:
     """The expressions of a delay result's JSON, read back through the whitelisted
-    parser (delayed states in the model's equations included)."""
-    doc = json.loads(text)
-    if doc.get("schema") != SCHEMA:
-        raise ValueError(f"not a {SCHEMA} document (schema {doc.get('schema')!r})")
-    states = doc["model"]["states"]
+    parser (delayed states in the model's equations included).
+
+    Raises
+    ------
+    ModelFileError
+        If the text is not a delay result's document, or a field is missing or
+        not an expression (the field is named).
+    """
+    if not isinstance(text, str):
+        raise ModelFileError(f"a delay result's JSON must be text, not {type(text).__name__}")
+    try:
+        doc = read_document(text, SCHEMA)
+    except ModelFileError:
+        raise
+    except (ValueError, RecursionError) as exc:   # not JSON at all
+        raise ModelFileError(f"not a {SCHEMA} document: {exc}") from None
+
+    def field(where, key, label):
+        value = where.get(key) if isinstance(where, dict) else None
+        if not isinstance(value, str):
+            raise ModelFileError(f"{SCHEMA} document: the field {label!r} is missing or not "
+                                 "an expression in quotes")
+        return value
+
+    model = doc.get("model")
+    states = model.get("states") if isinstance(model, dict) else None
+    equations = model.get("equations") if isinstance(model, dict) else None
+    if (not isinstance(states, list) or not all(isinstance(s, str) for s in states)
+            or not isinstance(equations, dict)):
+        raise ModelFileError(f"{SCHEMA} document: 'model' must hold 'states' (a list of "
+                             "names) and 'equations' (an object)")
     out = {}
-    for key in _EXPRESSION_FIELDS:
-        out[key] = parse_expression(doc[key], context=f"JSON field {key!r}")
-    out["equations"] = {s: parse_expression(e, context=f"JSON equation for {s!r}",
-                                            delayed=states)
-                        for s, e in doc["model"]["equations"].items()}
-    out["c1"] = (parse_expression(doc["c1"]["re"], context="JSON field 'c1.re'")
-                 + sympy.I * parse_expression(doc["c1"]["im"], context="JSON field 'c1.im'"))
+    try:
+        for key in _EXPRESSION_FIELDS:
+            out[key] = parse_expression(field(doc, key, key), context=f"JSON field {key!r}")
+        out["equations"] = {s: parse_expression(field(equations, s, f"model.equations.{s}"),
+                                                context=f"JSON equation for {s!r}",
+                                                delayed=states)
+                            for s in equations}
+        c1 = doc.get("c1")
+        out["c1"] = (parse_expression(field(c1, "re", "c1.re"), context="JSON field 'c1.re'")
+                     + sympy.I * parse_expression(field(c1, "im", "c1.im"),
+                                                  context="JSON field 'c1.im'"))
+    except ExpressionError as exc:
+        raise ModelFileError(f"{SCHEMA} document: {exc}") from None
     return out
+
+
+# -- the renderers of the result kind "hopf_delay" ----------------------------------------------
+
+def _rows(r) -> list:
+    return [(f"first critical value {r.parameter}_0", r.critical_value),
+            (f"every critical value {r.parameter}_j (j = 0, 1, ...)", r.critical_sequence),
+            ("frequency omega", r.omega), ("period 2 pi / omega", r.period),
+            (f"transversality Re d lambda / d {r.parameter}", r.transversality),
+            ("first Lyapunov coefficient l1", r.l1),
+            ("verdict", r.verdict)]
+
+
+_TITLE = "Hopf bifurcation of a retarded equation in {}"
+_SHORT_CAUTION = ("The analysis is local to the bifurcation point; a subcritical result means an "
+                  "abrupt, hysteretic onset; verify before relying on it (result.validate()), and "
+                  "defer to applicable codes and licensed engineering practice.")
+
+register_renderer("hopf_delay", "text", lambda r, **kw: summary_text(r))
+register_renderer("hopf_delay", "details", lambda r, **kw: summary_text(r))
+register_renderer("hopf_delay", "latex", lambda r, **kw: latex_section(r))
+register_renderer("hopf_delay", "report", lambda r, **kw: latex_document(r))
+register_renderer("hopf_delay", "notebook_latex", lambda r, **kw: "$" + latex_inline(r) + "$")
+register_renderer("hopf_delay", "json", lambda r, **kw: to_json(r, **kw))
+register_renderer("hopf_delay", "dict", lambda r, **kw: result_to_dict(r, **kw))
+register_renderer("hopf_delay", "html", lambda r, **kw: html_table(
+    _TITLE.format(r.parameter), _rows(r), [_SHORT_CAUTION]))
+register_renderer("hopf_delay", "markdown", lambda r, **kw: markdown_table(
+    _TITLE.format(r.parameter), _rows(r), [_SHORT_CAUTION]))

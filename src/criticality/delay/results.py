@@ -7,11 +7,12 @@ Pipeline place: normal form -> **result** -> outputs (text, LaTeX, JSON),
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import Mapping
+from typing import ClassVar, Mapping
 
 import sympy
 
 from ..hopf_analysis.results import CyclePrediction
+from ..renderers import render
 
 __all__ = ["DelayConventions", "DELAY_CONVENTIONS", "DelayHopfResult"]
 
@@ -148,6 +149,7 @@ class DelayHopfResult:
     compact: Mapping = field(default_factory=dict)
     conventions: DelayConventions = DELAY_CONVENTIONS
     kind: str = "hopf_delay"
+    result_kind: ClassVar[str] = "hopf_delay"
     status: str = "closed form"
     _details: object = field(default=None, repr=False, compare=False)
 
@@ -183,21 +185,28 @@ class DelayHopfResult:
         return evaluate_result(self, values or {}, digits)
 
     def summary(self) -> str:
-        from .render import summary_text
-        return summary_text(self)
+        """The result as plain text, with conventions and cautions."""
+        return render(self, "text")
+
+    def details(self) -> str:
+        """The full plain text (the summary holds every quantity)."""
+        return render(self, "details")
 
     def to_latex(self) -> str:
         """A LaTeX report (a complete document body fragment, see :func:`latex_document`)."""
-        from .render import latex_section
-        return latex_section(self)
+        return render(self, "latex")
 
     def latex_document(self) -> str:
-        from .render import latex_document
-        return latex_document(self)
+        """The report as a complete LaTeX document."""
+        return render(self, "report")
 
     def to_json(self, *, point: Mapping | None = None, digits: int = 30) -> str:
-        from .render import to_json
-        return to_json(self, point=point, digits=digits)
+        """The result as JSON in the shared envelope (with numbers at ``point``)."""
+        return render(self, "json", point=point, digits=digits)
+
+    def to_dict(self, *, point: Mapping | None = None, digits: int = 30) -> dict:
+        """The JSON document as a dictionary."""
+        return render(self, "dict", point=point, digits=digits)
 
     def validate(self, values: Mapping | None = None, **options):
         """Simulate the delay equation near onset (:func:`criticality.delay.validate_delay`)."""
@@ -205,7 +214,13 @@ class DelayHopfResult:
         return validate_delay(self, values or {}, **options)
 
     def _repr_latex_(self):
-        return "$" + self.to_latex_inline() + "$"
+        return render(self, "notebook_latex")
+
+    def _repr_html_(self) -> str:
+        return render(self, "html")
+
+    def _repr_markdown_(self) -> str:
+        return render(self, "markdown")
 
     def to_latex_inline(self) -> str:
         from .render import latex_inline
