@@ -246,7 +246,7 @@ def _hand_projection(equations, states, mu, others):
 
 def section_hand(quick: bool) -> None:
     print("\n## numeric mode vs a hand-written float64 projection formula\n")
-    from criticality.hopf_analysis.numeric_mode import _guess_vector, numeric_setup, run_float
+    from criticality.hopf_analysis.numeric_mode import guess_vector, numeric_setup, run_float
 
     model = Model.from_text(tanh_ring_text(8))
     guess = tanh_guess(8)
@@ -267,7 +267,7 @@ def section_hand(quick: bool) -> None:
     t_hand = clock.cpu / reps
     setup = numeric_setup(model, "g")
     system = setup.system()
-    start = _guess_vector(model, "g", guess)
+    start = guess_vector(model, "g", guess)
     pt = system.solve(start[:-1], start[-1])
     with Clock() as clock:
         for _ in range(reps):

@@ -9,6 +9,7 @@ from criticality import Model, hopf
 from criticality.bifurcations.bogdanov_takens import bogdanov_takens, bogdanov_takens_all
 from criticality.bifurcations.fold import fold
 from criticality.registry import analyses, get
+from criticality.errors import ClosedFormUnavailableError
 
 
 def test_fold_normal_form_read_off(backend):
@@ -233,3 +234,19 @@ def test_fitzhugh_nagumo_scenario_at_a_numeric_point_and_its_hopf_neighbours():
     h = hopf(m, "eps", eliminate=["I", "w"], values={"b": sympy.Rational(4, 3)})
     for v in ("0.55", "0.7", "0.9"):
         assert float(h.l1.xreplace({s: sympy.Rational(v) for s in h.l1.free_symbols})) > 0
+
+
+def test_a_parameter_inside_a_transcendental_atom_is_not_solved_as_a_polynomial():
+    """x' = x exp(r (1 - x)) - (1 + h) x (a harvested Ricker-type growth law,
+    invented): on the branch x* = 1 - log(1 + h)/r, det A = -(1 + h) r x*
+    vanishes only where log(1 + h) = r, which is transcendental in h. The
+    factor 1 + h is not a solution (the logarithm is undefined there) and
+    the transcendental factor is reported, not dropped. On the branch x = 0
+    the two branches cross at h = exp(r) - 1 (common practice, no source)."""
+    m = Model(["x"], {"x": "x*exp(r*(1 - x)) - h*x - x"}, {"r": "positive", "h": "positive"})
+    with pytest.raises(ClosedFormUnavailableError, match=r"log\(1/\(h \+ 1\)\)"):
+        fold(m, "h", equilibrium=1)
+    at_zero = fold(m, "h", equilibrium=0)
+    r = next(s for s in at_zero.critical_values["h"].free_symbols if s.name == "r")
+    assert at_zero.kind == "transcritical"
+    assert sympy.simplify(at_zero.critical_values["h"] - (sympy.exp(r) - 1)) == 0

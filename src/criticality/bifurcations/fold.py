@@ -41,9 +41,10 @@ from typing import ClassVar
 import sympy
 
 from ..local.prepare import expr, prepare, sign_word, solve_for
+from ..model.expressions import format_expression
 from ..renderers import render
 from ..algebra.linalg import determinant, dot, kernel, matvec, solve, transpose
-from ..errors import DegenerateBifurcationError, NoHopfPointError
+from ..errors import ClosedFormUnavailableError, DegenerateBifurcationError, NoHopfPointError
 
 __all__ = ["FoldResult", "fold", "fold_all", "FOLD_CONVENTIONS", "MAP_FOLD_CONVENTIONS"]
 
@@ -274,10 +275,20 @@ def fold_all(model, parameter: str, *, solve_for_name: str | None = None, equili
             results.append(_result(prep, sp, unknown))
         except DegenerateBifurcationError:
             continue
+    left = ", ".join(format_expression(u) for u in unsolved)
     if not results:
-        extra = f" (no closed form for {', '.join(map(str, unsolved))} = 0)" if unsolved else ""
+        if unsolved:
+            raise ClosedFormUnavailableError(
+                f"det A = 0 has no closed-form solution for '{unknown}': it vanishes where "
+                f"{left} = 0, which is not solved in closed form (a factor of degree above "
+                "two, or one transcendental in the parameter); fix the other parameters and "
+                "solve that equation numerically, or choose another parameter")
         raise NoHopfPointError(f"no point with a simple zero eigenvalue was found by solving "
-                               f"det A = 0 for '{unknown}'{extra}", reason="empty_critical_set")
+                               f"det A = 0 for '{unknown}'", reason="empty_critical_set")
+    if unsolved:
+        note = (f"det A = 0 also where {left} = 0, which has no closed form for "
+                f"'{unknown}'; the points listed are the closed-form ones only")
+        results = [replace(r, notes=r.notes + (note,)) for r in results]
     return tuple(results)
 
 

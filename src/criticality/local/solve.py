@@ -10,6 +10,13 @@ two roots with the square root of its discriminant adjoined, and (on request)
 each factor ``c4 s^4 + c2 s^2 + c0`` even in the symbol the roots
 ``s = +-sqrt((-c2 +- sqrt(c2^2 - 4 c4 c0)) / (2 c4))``.  Factors of higher
 degree are returned unsolved, as sympy expressions.
+
+A transcendental atom of the tower (``log(1/(h + 1))``, ``exp(E/T)``) is an
+independent generator of the field, but its definition may involve the
+symbol solved for; then a factor that contains the atom is transcendental in
+the symbol and is returned unsolved (never as a spurious polynomial factor,
+and never left out), and a value at which such an atom is undefined
+(``h = -1`` above) is not a solution.
 """
 
 from __future__ import annotations
@@ -24,7 +31,7 @@ from ..algebra.quadratic import QuadraticElement, lower
 from .sign_words import sign_word
 
 __all__ = ["LINEAR", "QUADRATIC", "BIQUADRATIC", "UNSOLVED", "closed_form_solutions",
-           "branch_values", "SolvedPoint", "solve_for"]
+           "branch_values", "SolvedPoint", "solve_for", "dependent_atoms"]
 
 LINEAR, QUADRATIC, BIQUADRATIC, UNSOLVED = "linear", "quadratic", "biquadratic", "unsolved"
 
@@ -70,13 +77,38 @@ def closed_form_solutions(tower: Tower, x, symbol, *, biquadratic: bool = False)
         return [(UNSOLVED, tower.to_sympy(x))]
     out = []
     R = tower.base.ring
+    dependent = dependent_atoms(tower, symbol)
     for c, poly in _factor_coefficients(tower, x, symbol):
+        factor = R.to_sympy(poly)
+        if dependent and factor.has(*dependent):
+            out.append((UNSOLVED, factor.xreplace(tower.atom_substitution())))
+            continue
         kind = _classify(c, biquadratic)
         if kind is not None:
             out.append(kind)
         elif len(c) > 1:
-            out.append((UNSOLVED, R.to_sympy(poly)))
+            out.append((UNSOLVED, factor))
     return out
+
+
+def dependent_atoms(tower: Tower, symbol) -> tuple:
+    """The generators of ``tower`` that stand for a transcendental function
+    of ``symbol`` (``g0`` for ``log(1/(h + 1))`` when solving for ``h``)."""
+    return tuple(a.symbol for a in tower.atoms if a.expr.has(symbol))
+
+
+def _atoms_defined(tower: Tower, target: Tower, symbol, value) -> bool:
+    """False where an atom that depends on ``symbol`` is undefined at
+    ``symbol = value`` (a logarithm of zero, a pole)."""
+    dependent = [a for a in tower.atoms if a.expr.has(symbol)]
+    if not dependent:
+        return True
+    at = target.to_sympy(value)
+    for a in dependent:
+        e = a.expr.xreplace({symbol: at})
+        if e.has(sympy.zoo, sympy.nan, sympy.oo, -sympy.oo):
+            return False
+    return True
 
 
 def branch_values(tower: Tower, symbol, solution) -> list:
@@ -143,6 +175,8 @@ def solve_for(tower: Tower, x, symbol, positive: bool = False):
     out = []
     for value, target in points + late:
         if not _may_be_real(target, value, positive):
+            continue
+        if not _atoms_defined(tower, target, symbol, value):
             continue
         images = tower.radical_images(symbol, value, target)
         out.append(SolvedPoint(symbol, value, tower, target, images))
