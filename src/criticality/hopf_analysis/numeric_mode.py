@@ -331,12 +331,15 @@ def hopf_numeric(model, parameter: str, guess: Mapping, *, digits: int = 30, ord
     check_order(order)
     if not isinstance(radius, (int, float)) or not radius > 0:
         raise ParameterError(f"radius must be a positive number, got {radius!r}")
+    base = model
     model, parameter = resolve_parameter(model, parameter, values)
-    values = None
     if len(model.states) < 2:
         raise NoHopfPointError("a Hopf bifurcation needs at least two state variables",
                                reason="empty_critical_set")
-    setup = numeric_setup(model, parameter, values, order)
+    # compiled for the model as given, with the fixed values as run-time inputs, so that
+    # a further point at other values reuses the compiled code (the result reports the
+    # model with the values applied)
+    setup = numeric_setup(base if values else model, parameter, values or None, order)
     start = guess_vector(model, parameter, guess)
     system = setup.system()
     pt = system.solve(start[:-1], start[-1], radius=float(radius))
