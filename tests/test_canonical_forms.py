@@ -119,3 +119,29 @@ def test_repeated_logarithm_is_named_once_in_text():
         assert text.count("L1 = log(1 - m/(a*e))") == 1
         assert "l1 = Re(c1)/omega           -3*L1/2" in text
         assert text.count("log(") == 1
+
+
+def test_roots_of_quotients_stay_real_where_the_quotient_is_positive():
+    """A square root of N/D with D of unknown sign is one root of the quotient:
+    sqrt(N)/sqrt(D) would be the root of two negative numbers at points where
+    both are negative. Food chain (invented): R' = R(1 - R/K) - R C,
+    C' = C (R - m) - 2 C P/(1 + C), P' = eps P (2 C/(1 + C) - d); at K = 7/2,
+    m = 9/10, d = 3/4 omega and l1 evaluate in real float arithmetic
+    (math module) to the exact values (common practice, no source)."""
+    import math
+
+    from criticality import Model, hopf
+
+    m = Model(["R", "C", "P"], {"R": "R*(1 - R/K) - R*C", "C": "C*(R - m) - 2*C*P/(1 + C)",
+                                "P": "eps*P*(2*C/(1 + C) - d)"},
+              {"K": "positive", "m": "positive", "d": "positive", "eps": "positive"})
+    r = hopf(m, "eps", equilibrium={"R": "K*(1 - d/(2 - d))", "C": "d/(2 - d)",
+                                    "P": "(K*(1 - d/(2 - d)) - m)*(1 + d/(2 - d))/2"})
+    S = m.symbols
+    args = [S["K"], S["m"], S["d"]]
+    point = (3.5, 0.9, 0.75)
+    exact = r.evaluate({"K": "7/2", "m": "9/10", "d": "3/4"}, digits=20)
+    omega = sympy.lambdify(args, r.omega, "math")(*point)
+    l1 = sympy.lambdify(args, r.l1, "math")(*point)
+    assert math.isclose(omega, float(exact.omega), rel_tol=1e-12)
+    assert math.isclose(l1, float(exact.l1), rel_tol=1e-9)

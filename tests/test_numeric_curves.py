@@ -129,6 +129,25 @@ def test_sweep_compiled_once_agrees_with_lambdify(lorenz):
     ref = sympy.lambdify([lorenz.model.symbols["sigma"]], expr, "numpy")(sigma)
     np.testing.assert_allclose(s.values, ref, rtol=1e-12)
 
+    assert s.sampled_points == 12 and s.sampled_error < 1e-12
+
+
+def test_sweep_warns_where_float64_cancels(lorenz):
+    """An expression that cancels in float64, (sigma + 10^8)^2 - sigma^2 -
+    2 10^8 sigma - 10^16 + 1 (exactly 1), is caught by the 30-digit spot check
+    (mpmath: reference library) with a PrecisionWarning and a sampled error
+    far above 1e-6."""
+    import sympy
+    from criticality.errors import PrecisionWarning
+
+    sig = lorenz.model.symbols["sigma"]
+    big = sympy.Integer(10) ** 8
+    expr = (sig + big) ** 2 - sig ** 2 - 2 * big * sig - big ** 2 + 1
+    with pytest.warns(PrecisionWarning, match="lost digits"):
+        s = sweep(lorenz, expr,
+                  {"sigma": np.linspace(4.1, 20.3, 40)}, values={"b": "8/3"}, progress=False)
+    assert s.sampled_error > 1e-6
+
 
 def _models(tmp_path):
     good = tmp_path / "good.toml"

@@ -201,6 +201,7 @@ def _factored_sqrt(fs, expr):
     if fs.sign == UNKNOWN and not fs.factors:
         return _sqrt(expr)
     outside, inside, below = [], [fs.constant.p], [fs.constant.q]
+    split = True
     for f in fs.factors:
         known = f.sign in (POSITIVE, NONNEGATIVE)
         half, odd = divmod(f.multiplicity, 2) if known else (0, f.multiplicity)
@@ -209,6 +210,13 @@ def _factored_sqrt(fs, expr):
             outside.append(f.expr ** (half * power))
         if odd:
             (below if f.in_denominator else inside).append(f.expr ** odd)
+            split = split and (known or not f.in_denominator)
+    if not split:
+        # a denominator factor of unknown sign: sqrt(N)/sqrt(D) would take the
+        # root of a negative number wherever N and D are both negative (the
+        # quotient is still positive there), so one root of the quotient is kept
+        quotient = sympy.Mul(sympy.Mul(*inside), sympy.Pow(sympy.Mul(*below), -1))
+        return _product(*outside, _sqrt(quotient))
     return _product(*outside, _sqrt(sympy.Mul(*inside)), _sqrt(sympy.Mul(*below), -1))
 
 
