@@ -20,7 +20,7 @@ Examples
 --------
 >>> "latex" in FORMATS and "html" in FORMATS
 True
->>> sorted(PROVIDERS)[:3]
+>>> sorted(PROVIDERS)[:2]
 ['bautin', 'bogdanov_takens', 'fold']
 """
 
