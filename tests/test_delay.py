@@ -389,3 +389,39 @@ def test_numeric_mode_without_a_closed_equilibrium():
     assert n.residual < mpmath.mpf(10) ** -15
     x = n.equilibrium["x"]
     assert abs(-x + n.critical_value * mpmath.tanh(x) + mpmath.mpf(1) / 10) < mpmath.mpf(10) ** -15
+
+
+def test_cli_numeric_mode_for_two_delays(tmp_path, capsys):
+    """A model with two delays runs from the command line with --guess: text,
+    JSON in the shared envelope and a LaTeX report; evaluating elsewhere is
+    refused with a parameter error (exit 4), not an internal error."""
+    from criticality.cli.main import main
+    path = tmp_path / "two.toml"
+    path.write_text('states = ["x", "y"]\n[parameters]\ntau1 = "positive"\n'
+                    'tau2 = { assume = "positive", value = "1/2" }\n'
+                    'a = { assume = "positive", value = "2" }\n[equations]\n'
+                    'x = "-x(t - tau1) + a*y - x^3"\ny = "-x(t - tau2) - y"\n'
+                    '[equilibrium]\nx = "0"\ny = "0"\n')
+    guess = ["-p", "tau1", "-q", "--guess", "x=0,y=0,tau1=0.7,omega=1.8"]
+    assert main(["analyse", str(path), *guess]) == 0
+    assert "located numerically" in capsys.readouterr().out
+    assert main(["json", str(path), *guess]) == 0
+    doc = json.loads(capsys.readouterr().out)
+    assert doc["schema"] == "criticality.hopf_delay_numeric" and doc["cautions"]
+    assert abs(float(doc["critical_value"]) - 0.651889755831243) < 1e-12
+    assert main(["report", str(path), *guess]) == 0
+    assert r"{\tau_{1}}_0 &= 0.65188975583124" in capsys.readouterr().out
+    from criticality.errors import ParameterError
+    assert main(["evaluate", str(path), *guess]) == ParameterError.exit_code
+    assert "no closed form to evaluate" in capsys.readouterr().err
+
+
+def test_latex_of_a_delay_named_with_a_subscript_compiles(tmp_path):
+    """A delay called tau1 prints as tau_{1}; its critical value is braced
+    before the subscript 0, and the report compiles."""
+    from test_latex_compile import compile_report
+    m = Model(["x"], {"x": "-k*x(t - tau1) - x^3"}, {"k": "positive", "tau1": "positive"})
+    r = hopf(m, "tau1", equilibrium={"x": 0})
+    tex = r.latex_document()
+    assert r"{\tau_{1}}_{0} &=" in tex and r"\tau_{1}_" not in tex
+    compile_report(tex, tmp_path)

@@ -18,6 +18,7 @@ from __future__ import annotations
 
 import argparse
 
+from ..errors import ParameterError
 from .support import Stage, equilibrium_choice, pairs, read_model, split_top_level, write_output
 
 __all__ = ["delay_output", "register"]
@@ -47,6 +48,10 @@ def delay_output(args, result, what: str) -> int:
     """Render a delay result for the main subcommands (text, latex, fragment, json, evaluate)."""
     point = _merged(getattr(args, "point", None))
     digits = getattr(args, "digits", 20)
+    if getattr(result, "kind", "") == "hopf_delay_numeric" and (point or what == "evaluate"):
+        raise ParameterError("a Hopf point located numerically (--guess) has no closed form to "
+                             "evaluate at other values: give the values with --set and run "
+                             "again")
     if what == "text":
         text = result.summary()
         if point:

@@ -92,7 +92,7 @@ def _analyse(args) -> int:
     from ..outputs.text import numeric_summary, result_summary
 
     result = analyse_from_args(args)
-    if getattr(result, "kind", "") == "hopf_delay":
+    if getattr(result, "kind", "") in ("hopf_delay", "hopf_delay_numeric"):
         return delay_output(args, result, "text")
     text = result_summary(result, width=args.width)
     point = _merge(args.point, "--at")
@@ -107,7 +107,7 @@ def _report(args) -> int:
     from ..outputs.latex import latex_report, result_to_latex
 
     result = analyse_from_args(args)
-    if getattr(result, "kind", "") == "hopf_delay":
+    if getattr(result, "kind", "") in ("hopf_delay", "hopf_delay_numeric"):
         return delay_output(args, result, "fragment" if args.fragment else "latex")
     with Stage("writing the LaTeX", quiet=_quiet(args)):
         text = result_to_latex(result) + "\n" if args.fragment else latex_report(result)
@@ -122,7 +122,7 @@ def _json(args) -> int:
     from ..outputs.json_io import result_to_json
 
     result = analyse_from_args(args)
-    if getattr(result, "kind", "") == "hopf_delay":
+    if getattr(result, "kind", "") in ("hopf_delay", "hopf_delay_numeric"):
         return delay_output(args, result, "json")
     point = _merge(args.point, "--at") or None
     with Stage("writing the JSON", quiet=_quiet(args)):
@@ -136,7 +136,7 @@ def _evaluate(args) -> int:
     from ..outputs.text import numeric_summary
 
     result = analyse_from_args(args)
-    if getattr(result, "kind", "") == "hopf_delay":
+    if getattr(result, "kind", "") in ("hopf_delay", "hopf_delay_numeric"):
         return delay_output(args, result, "evaluate")
     point = _merge(args.point, "--at")
     with Stage("numeric evaluation", quiet=_quiet(args)):

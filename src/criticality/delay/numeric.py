@@ -67,8 +67,68 @@ class NumericDelayHopf:
                  "it and defer to applicable codes and licensed engineering practice"]
         return "\n".join(lines)
 
+    def _numbers(self) -> list:
+        d = self.digits
+        return [("critical value", self.critical_value), ("omega", self.omega),
+                ("period", self.period),
+                (f"Re d lambda/d {self.parameter}", self.transversality),
+                ("c1", self.c1), ("l1", self.l1), ("residual |chi(i omega)|", self.residual)], d
+
+    def to_dict(self, **_ignored) -> dict:
+        """The result as a JSON document in the shared envelope (numbers as
+        decimal strings with the stated digits)."""
+        from ..outputs.envelope import envelope
+
+        d = self.digits
+        body = {"kind": self.kind, "parameter": self.parameter, "mode": self.mode,
+                "digits": d,
+                "values": {k: str(v) for k, v in self.values.items()},
+                "equilibrium": {k: mpmath.nstr(v, d) for k, v in self.equilibrium.items()},
+                "critical_value": mpmath.nstr(self.critical_value, d),
+                "omega": mpmath.nstr(self.omega, d), "period": mpmath.nstr(self.period, d),
+                "transversality": mpmath.nstr(self.transversality, d),
+                "c1": {"re": mpmath.nstr(mpmath.re(self.c1), d),
+                       "im": mpmath.nstr(mpmath.im(self.c1), d)},
+                "l1": mpmath.nstr(self.l1, d), "classification": str(self.classification),
+                "amplitude_coefficients": {k: mpmath.nstr(v, d)
+                                           for k, v in self.amplitude_coefficients.items()},
+                "residual": mpmath.nstr(self.residual, 3)}
+        return envelope("criticality.hopf_delay_numeric", self.kind, body, status=self.status,
+                        conventions=["c1 for conj(q)^T q = 1", "l1 = Re(c1)/omega",
+                                     "l1 < 0 supercritical, l1 > 0 subcritical"],
+                        cautions=[_NUMERIC_CAUTION])
+
+    def to_json(self, **_ignored) -> str:
+        import json
+        return json.dumps(self.to_dict(), indent=2)
+
+    def to_latex(self) -> str:
+        """The located point as an ``align*`` block of decimals."""
+        from ..outputs.latex_expr import latex_name
+
+        d = self.digits
+        p = latex_name(self.parameter)
+        rows = [(f"{{{p}}}_0" if "_" in p else f"{p}_0", self.critical_value), (r"\omega", self.omega),
+                (r"\operatorname{Re} \frac{d\lambda}{d" + p + "}", self.transversality),
+                (r"\ell_1", self.l1)]
+        body = " \\\\\n".join(f"  {k} &= {mpmath.nstr(v, d)}" for k, v in rows)
+        return (f"% Hopf point of a retarded equation, located numerically ({d} digits)\n"
+                f"\\begin{{align*}}\n{body}\n\\end{{align*}}\n"
+                f"Verdict: {self.classification} ($\\ell_1 = {mpmath.nstr(self.l1, 6)}$). "
+                + _NUMERIC_CAUTION + "\n")
+
+    def latex_document(self) -> str:
+        return "\n".join([r"\documentclass{article}", r"\usepackage{amsmath,amssymb}",
+                          r"\begin{document}", self.to_latex(), r"\end{document}", ""])
+
     def __str__(self):
         return self.summary()
+
+
+_NUMERIC_CAUTION = ("The analysis is local: valid near the critical value and near the "
+                    "equilibrium. A subcritical result means an abrupt, hysteretic onset. Verify "
+                    "before relying on it, and defer to applicable codes and licensed "
+                    "engineering practice.")
 
 
 def delta_matrix(mats, delays, lam):

@@ -101,9 +101,15 @@ def _latex(expr) -> str:
     return sympy.latex(expr, symbol_names=names)
 
 
+def _sub(name: str, index) -> str:
+    """``name`` with a subscript ``index``; a name that already carries one
+    (``\\tau_{1}``) is braced first, so that LaTeX sees one subscript."""
+    return f"{{{name}}}_{{{index}}}" if "_" in name else f"{name}_{index}"
+
+
 def latex_inline(r) -> str:
     p = latex_name(r.parameter)
-    return (rf"{p}_0 = {_latex(r.critical_value)},\ \omega = {_latex(r.omega)},\ "
+    return (rf"{_sub(p, 0)} = {_latex(r.critical_value)},\ \omega = {_latex(r.omega)},\ "
             rf"\ell_1 = {_latex(r.l1)}\ (\text{{{r.classification}}})")
 
 
@@ -120,8 +126,8 @@ def latex_section(r) -> str:
     out.append(rf"  \chi(\lambda) &= {_latex(r.quasi_polynomial)} \\")
     out.append(rf"  F(s) &= {_latex(r.frequency_polynomial)}, \quad s = \omega^2 \\")
     out.append(rf"  \omega &= {_latex(r.omega)} \\")
-    out.append(rf"  {p}_0 &= {_latex(r.critical_value)} \\")
-    out.append(rf"  {p}_j &= {_latex(r.critical_sequence)}, \quad j = 0, 1, 2, \dots \\")
+    out.append(rf"  {_sub(p, 0)} &= {_latex(r.critical_value)} \\")
+    out.append(rf"  {_sub(p, 'j')} &= {_latex(r.critical_sequence)}, \quad j = 0, 1, 2, \dots \\")
     out.append(rf"  \operatorname{{Re}} \frac{{d\lambda}}{{d{p}}} &= {_latex(r.transversality)} \\")
     out.append(rf"  c_1 &= {_latex(r.c1)} \\")
     out.append(rf"  \ell_1 &= {_latex(r.l1)}")
@@ -131,7 +137,7 @@ def latex_section(r) -> str:
     out.append(r"\begin{itemize}")
     for state, k in r.cycle.amplitude_coefficients.items():
         out.append(rf"  \item amplitude of ${latex_name(state)}$: "
-                   rf"$\sqrt{{({_latex(k)})({p} - {p}_0)}}$")
+                   rf"$\sqrt{{({_latex(k)})({p} - {_sub(p, 0)})}}$")
     for c in r.conventions.lines():
         out.append(r"  \item \texttt{" + tex_text(c) + "}")
     out.append(r"\end{itemize}")
