@@ -138,11 +138,12 @@ def test_notebook_latex_golden(pair):
 
 def test_latex_names_long_factors_and_states_the_condition(stage):
     """A wide denominator becomes a named factor defined after the block, l1
-    is written over omega, and the condition reads 0 < k_3."""
+    is written over omega, and the condition reads k_3 > 0 (the deciding
+    expression on the left, 0 on the right)."""
     tex = result_to_latex(stage)
     assert ("\\ell_{1} &= - \\frac{3 k_{3} \\tau^{2} \\zeta \\left(\\tau \\zeta + 1\\right)^{3}}"
             "{2 P_{1} \\omega} \\\\") in tex
-    assert "0 &< k_{3} \\\\" in tex
+    assert "k_{3} &> 0 \\\\" in tex
     where = tex.index("\\intertext{where}")
     assert tex.index("P_{1} &= ") > where
     assert "&\\qquad {}\\cdot " in tex  # the product is broken between factors

@@ -132,9 +132,19 @@ class Document:
         left and 0 on the right (``0 < lhs`` with ``zero_left``, the form of
         the quantity block)."""
         if self.zero_left:
-            op = {">": "<", "<": ">"}.get(rel.rel_op, self.relation(rel.rel_op))
-            return self.writer.align_rows("0", rel.lhs - rel.rhs, relation=op)
+            return self.aligned_relation_rows(rel.lhs - rel.rhs, self.relation(rel.rel_op))
         return self.relation_rows(rel.lhs - rel.rhs, self.relation(rel.rel_op))
+
+    def aligned_relation_rows(self, expr, relation: str) -> list:
+        """``expr &relation 0`` for the quantity block (the relation aligned
+        with the block's ``=`` signs, the deciding expression on the left);
+        an expression too long for one row is broken as in
+        :meth:`relation_rows`."""
+        w = self.writer
+        lines = w.pieces(w.shorten(expr))
+        if len(lines) == 1:
+            return [f"{lines[0]} &{relation} 0"]
+        return self.relation_rows(expr, relation)
 
     def relation_rows(self, expr, relation: str) -> list:
         """``expr relation 0`` as rows: the expression, broken as needed, then
@@ -354,7 +364,7 @@ def _section_verdict(doc: Document) -> str:
     if r.l1_zero_set is not None:
         parts.append("The first Lyapunov coefficient vanishes (Bautin points) where")
         parts.append(doc.math(doc.relation_rows(r.l1_zero_set.lhs, "=") if not doc.zero_left
-                              else doc.writer.align_rows("0", r.l1_zero_set.lhs)))
+                              else doc.aligned_relation_rows(r.l1_zero_set.lhs, "=")))
     return _section("Criticality", *parts)
 
 
