@@ -67,13 +67,6 @@ class NumericDelayHopf:
                  "it and defer to applicable codes and licensed engineering practice"]
         return "\n".join(lines)
 
-    def _numbers(self) -> list:
-        d = self.digits
-        return [("critical value", self.critical_value), ("omega", self.omega),
-                ("period", self.period),
-                (f"Re d lambda/d {self.parameter}", self.transversality),
-                ("c1", self.c1), ("l1", self.l1), ("residual |chi(i omega)|", self.residual)], d
-
     def to_dict(self, **_ignored) -> dict:
         """The result as a JSON document in the shared envelope (numbers as
         decimal strings with the stated digits)."""
