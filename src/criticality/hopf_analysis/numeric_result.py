@@ -36,7 +36,10 @@ def _c(x, digits):
 
 
 class _NumericDetails:
-    """The display-oriented parts of a numeric result."""
+    """The display-oriented parts of a numeric result (plain mpmath data, so
+    it pickles as it is)."""
+
+    portable = True
 
     def __init__(self, data, digits, model):
         self.data, self.digits, self.model = data, digits, model

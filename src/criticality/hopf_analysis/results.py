@@ -18,7 +18,8 @@ import sympy
 
 from ..renderers import render
 
-__all__ = ["Conventions", "CONVENTIONS", "CyclePrediction", "ReducedSystemView", "HopfResult"]
+__all__ = ["Conventions", "CONVENTIONS", "CyclePrediction", "ReducedSystemView", "StoredDetails",
+           "HopfResult"]
 
 
 @dataclass(frozen=True)
@@ -335,6 +336,51 @@ class HopfResult:
         return (f"HopfResult(parameter={self.parameter!r}, critical_value={self.critical_value}, "
                 f"classification={self.classification!r})")
 
+    # -- pickling: the lazy parts leave as plain sympy data --------------------------------
+    def __getstate__(self) -> dict:
+        """The instance state with the display-oriented parts built and stored
+        as sympy objects, so that no field element (a python-flint object) or
+        closure of the engine is pickled."""
+        state = dict(self.__dict__)
+        if self._details is not None and not getattr(self._details, "portable", False):
+            state["_details"] = StoredDetails.of(self)
+        return {k: v if k == "model" else _keep_shape(v) for k, v in state.items()}
+
+
+@dataclass(frozen=True)
+class StoredDetails:
+    """The display-oriented parts of a :class:`HopfResult` as plain sympy
+    data (what a pickled result carries instead of the engine's field
+    elements); the same methods as the engine's lazy builder."""
+
+    reduced: ReducedSystemView
+    jacobian_matrix: sympy.Matrix
+    charpoly: sympy.Expr
+    q: tuple
+    p: tuple
+    portable: ClassVar[bool] = True
+
+    @classmethod
+    def of(cls, result: "HopfResult") -> "StoredDetails":
+        """Build every display-oriented part of ``result`` once."""
+        return cls(result.reduced_system, result.jacobian, result.characteristic_polynomial,
+                   result.eigenvector_q, result.eigenvector_p)
+
+    def reduced_system(self) -> ReducedSystemView:
+        return self.reduced
+
+    def jacobian(self) -> sympy.Matrix:
+        return self.jacobian_matrix
+
+    def characteristic_polynomial(self) -> sympy.Expr:
+        return self.charpoly
+
+    def eigenvector_q(self) -> tuple:
+        return self.q
+
+    def eigenvector_p(self) -> tuple:
+        return self.p
+
 
 def _swap(value, sub: dict):
     """``value`` (an expression, or a container or dataclass of them) with
@@ -351,12 +397,82 @@ def _swap(value, sub: dict):
     return value
 
 
+# -- pickling expressions in the shape they were built in ---------------------------------
+# sympy pickles an expression as its class and arguments and rebuilds it with evaluation;
+# the engine builds some products and roots unevaluated (to spare sympy's assumption
+# queries), which evaluation would regroup.  These helpers store the tree node by node and
+# rebuild Add, Mul and Pow unevaluated, so that a pickled result equals the original.
+
+_UNEVALUATED = (sympy.Add, sympy.Mul, sympy.Pow)
+
+
+class _Shape:
+    """An expression tree stored node by node (pickles to a nested tuple)."""
+
+    __slots__ = ("tree",)
+
+    def __init__(self, expr: sympy.Basic):
+        self.tree = _tree(expr)
+
+    def __reduce__(self):
+        return _rebuild, (self.tree,)
+
+
+def _tree(expr):
+    """``(class, unevaluated?, argument trees)``, or the atom itself."""
+    if not isinstance(expr, sympy.Basic) or not expr.args or \
+            type(expr).__getnewargs__ is not sympy.Basic.__getnewargs__:
+        return expr
+    return (type(expr), isinstance(expr, _UNEVALUATED), tuple(_tree(a) for a in expr.args))
+
+
+def _rebuild(tree):
+    if not isinstance(tree, tuple):
+        return tree
+    cls, unevaluated, args = tree
+    args = tuple(_rebuild(a) for a in args)
+    return cls(*args, evaluate=False) if unevaluated else cls(*args)
+
+
+def _keep_shape(value):
+    """``value`` with every sympy expression (also inside containers and frozen
+    dataclasses) wrapped for a shape-preserving pickle."""
+    if isinstance(value, sympy.Basic):
+        return _Shape(value) if value.args else value
+    if isinstance(value, dict):
+        return {k: _keep_shape(v) for k, v in value.items()}
+    if isinstance(value, tuple) and not hasattr(value, "_fields"):
+        return tuple(_keep_shape(v) for v in value)
+    if is_dataclass(value) and not isinstance(value, type) and hasattr(value, "__dict__") and \
+            type(value).__reduce__ is object.__reduce__ and \
+            type(value).__reduce_ex__ is object.__reduce_ex__:
+        copy = object.__new__(type(value))
+        copy.__dict__.update({k: _keep_shape(v) for k, v in value.__dict__.items()})
+        return copy
+    return value
+
+
 class _SwappedDetails:
     """The display-oriented parts of a result, in other symbols."""
 
     def __init__(self, inner, sub: dict):
         self._inner, self._sub = inner, sub
+        self.portable = getattr(inner, "portable", False)
 
-    def __getattr__(self, name):
-        method = getattr(self._inner, name)
-        return lambda *args, **kwargs: _swap(method(*args, **kwargs), self._sub)
+    def _swapped(self, name: str):
+        return _swap(getattr(self._inner, name)(), self._sub)
+
+    def reduced_system(self) -> ReducedSystemView:
+        return self._swapped("reduced_system")
+
+    def jacobian(self) -> sympy.Matrix:
+        return self._swapped("jacobian")
+
+    def characteristic_polynomial(self) -> sympy.Expr:
+        return self._swapped("characteristic_polynomial")
+
+    def eigenvector_q(self) -> tuple:
+        return self._swapped("eigenvector_q")
+
+    def eigenvector_p(self) -> tuple:
+        return self._swapped("eigenvector_p")
