@@ -52,6 +52,15 @@ _LAZY = {
     "fold_hopf": "bifurcations.fold_hopf",
     "hopf_hopf": "bifurcations.hopf_hopf",
     "spectrum_check": "checks.spectrum",
+    # the words of verdicts, classifications and statuses (str-valued enums)
+    "Classification": "kinds",
+    "Sign": "kinds",
+    "Side": "kinds",
+    "ConditionStatus": "kinds",
+    "FoldKind": "kinds",
+    "HopfHopfCase": "kinds",
+    "PointStatus": "kinds",
+    "RunStatus": "kinds",
 }
 
 __all__ = sorted(["__version__", *_LAZY, *_error_names])

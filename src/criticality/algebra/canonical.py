@@ -19,7 +19,7 @@ from .algebraic import AlgebraicElement
 from .certified import certified_sign, is_numeric
 from .family_signs import family_sign
 from .quadratic import QuadraticElement, lower
-from .signs import NEGATIVE, POSITIVE, UNKNOWN, ZERO, FactoredSign, FactorSign, SignContext
+from .signs import NEGATIVE, POSITIVE, UNDECIDED, ZERO, FactoredSign, FactorSign, SignContext
 
 __all__ = ["factored", "canonical_expr", "larger_than", "compact"]
 
@@ -46,7 +46,7 @@ def factored(tower, x, ctx: SignContext, *, restore: bool = True) -> FactoredSig
                                 NEGATIVE)
         if sign == 0:
             return FactoredSign(sympy.Integer(0), (), ZERO)
-        return FactoredSign(sympy.Integer(1), (FactorSign(expr, 1, False, UNKNOWN),), UNKNOWN)
+        return FactoredSign(sympy.Integer(1), (FactorSign(expr, 1, False, UNDECIDED),), UNDECIDED)
     K = tower.base
     x = K(x)
     if not x:

@@ -41,6 +41,7 @@ from ..renderers import render
 from ..algebra.quadratic import lower
 from ..hopf_analysis.engine import run_engine
 from ..errors import NoHopfPointError
+from ..kinds import Sign, coerce
 
 __all__ = ["BautinPoint", "bautin_points", "BAUTIN_CONVENTIONS"]
 
@@ -64,14 +65,17 @@ class BautinPoint:
     critical_value: sympy.Expr
     omega_squared: sympy.Expr
     l2: sympy.Expr
-    l2_sign: str
+    l2_sign: Sign
     l1_slope: sympy.Expr
-    l1_slope_sign: str
+    l1_slope_sign: Sign
     fold_of_cycles_side: str
     scenario: str
     branch_index: int
     notes: tuple = ()
     conventions: tuple = BAUTIN_CONVENTIONS
+
+    def __post_init__(self) -> None:
+        coerce(self, l2_sign=Sign, l1_slope_sign=Sign)
 
     def rows(self):
         return [("second", "second parameter", self.second),

@@ -39,6 +39,7 @@ from ..local.prepare import expr, prepare, sign_word, solve_for
 from ..renderers import render
 from ..algebra.linalg import dot, kernel, matvec, solve_consistent, transpose
 from ..errors import DegenerateBifurcationError, NoHopfPointError
+from ..kinds import Sign, coerce
 from ..algebra.linalg import characteristic_polynomial
 
 __all__ = ["BogdanovTakensResult", "bogdanov_takens", "bogdanov_takens_all", "BT_CONVENTIONS"]
@@ -67,10 +68,13 @@ class BogdanovTakensResult:
     p1: tuple
     a: sympy.Expr
     b: sympy.Expr
-    ab_sign: str
+    ab_sign: Sign
     scenario: str
     notes: tuple = ()
     conventions: tuple = BT_CONVENTIONS
+
+    def __post_init__(self) -> None:
+        coerce(self, ab_sign=Sign)
 
     def rows(self):
         return [("values", "double-zero point", self.values),

@@ -40,6 +40,7 @@ from typing import ClassVar
 
 import sympy
 
+from ..kinds import FoldKind, Sign, coerce
 from ..local.prepare import expr, prepare, sign_word, solve_for
 from ..renderers import render
 from ..algebra.linalg import determinant, dot, kernel, matvec, solve, transpose
@@ -74,7 +75,7 @@ class FoldResult:
 
     result_kind: ClassVar[str] = "fold"
 
-    kind: str
+    kind: FoldKind
     parameter: str
     unknown: str
     critical_values: dict
@@ -90,6 +91,9 @@ class FoldResult:
     notes: tuple = ()
     conventions: tuple = FOLD_CONVENTIONS
     signs: dict = field(default_factory=dict)
+
+    def __post_init__(self) -> None:
+        coerce(self, kind=FoldKind)
 
     def rows(self):
         return [("kind", "kind", self.kind), ("parameter", "parameter", self.parameter),
@@ -174,14 +178,14 @@ def _is_odd(taylor) -> bool:
                for k in range(2, taylor.order + 1, 2))
 
 
-def _classify(kind_hint, a_s, t_s, d_s):
+def _classify(kind_hint, a_s: Sign, t_s: Sign, d_s: Sign) -> FoldKind:
     if kind_hint == "branch":
-        if a_s != "zero":
-            return "transcritical"
-        return "pitchfork" if d_s != "zero" else "degenerate"
-    if a_s != "zero" and t_s != "zero":
-        return "fold"
-    return "degenerate"
+        if a_s != Sign.ZERO:
+            return FoldKind.TRANSCRITICAL
+        return FoldKind.PITCHFORK if d_s != Sign.ZERO else FoldKind.DEGENERATE
+    if a_s != Sign.ZERO and t_s != Sign.ZERO:
+        return FoldKind.FOLD
+    return FoldKind.DEGENERATE
 
 
 def _verdict(kind, signs, unknown_value_name):

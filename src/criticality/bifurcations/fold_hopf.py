@@ -47,6 +47,7 @@ from ..algebra import upoly
 from ..algebra.linalg import dot
 from ..algebra.quadratic import lower
 from ..errors import DegenerateBifurcationError, NoHopfPointError, ParameterError
+from ..kinds import PointStatus, Sign, coerce
 from ..local.critical import nu_extension, pair_sum_condition
 from ..local.eigenbasis import critical_eigenbasis
 from ..algebra.linalg import characteristic_polynomial
@@ -85,12 +86,15 @@ class FoldHopfResult:
     G110: sympy.Expr
     s: object
     theta: sympy.Expr
-    theta_sign: str
-    status: str
+    theta_sign: Sign
+    status: PointStatus
     scenario: str
     conditions: tuple = ()
     notes: tuple = ()
     conventions: tuple = FOLD_HOPF_CONVENTIONS
+
+    def __post_init__(self) -> None:
+        coerce(self, theta_sign=Sign, status=PointStatus)
 
     def rows(self):
         return [("values", "fold-Hopf point", self.values),
@@ -231,11 +235,11 @@ def _point(prep, sp1, sp2, names, unfolding=None):
     sign = sign_word(target, G200 * G011, ctx)
     s = {"positive": 1, "negative": -1}.get(sign, sign)
     theta = lower(G110.a) / G200 if G200 else None
-    theta_sign = sign_word(target, theta, ctx) if theta is not None else "undefined"
-    status = "nondegenerate"
-    for word, x in (("G200_vanishes", G200), ("G011_vanishes", G011),
-                    ("theta_vanishes", lower(G110.a))):
-        if sign_word(target, x, ctx) == "zero":
+    theta_sign = sign_word(target, theta, ctx) if theta is not None else Sign.UNDEFINED
+    status = PointStatus.NONDEGENERATE
+    for word, x in ((PointStatus.G200_VANISHES, G200), (PointStatus.G011_VANISHES, G011),
+                    (PointStatus.THETA_VANISHES, lower(G110.a))):
+        if sign_word(target, x, ctx) == Sign.ZERO:
             status = word
             break
     values = {sp1.symbol.name: E(sp2.substitute(sp1.value)), sp2.symbol.name: E(sp2.value)}
@@ -249,7 +253,7 @@ def _point(prep, sp1, sp2, names, unfolding=None):
                        f"{names[1]})", sub(unfolding)))
     conds = tuple(f"{d}: {sympy.sstr(E(x))} != 0 [{_nonzero(target, x, ctx)}]"
                   for d, x in checks)
-    scenario = (fold_hopf_scenario(s, theta_sign) if status == "nondegenerate" else
+    scenario = (fold_hopf_scenario(s, theta_sign) if status == PointStatus.NONDEGENERATE else
                 f"degenerate fold-Hopf point ({status.replace('_', ' ')}): higher-order terms "
                 "decide")
     return FoldHopfResult(names, values, point, sympy.sqrt(E(W)), tuple(map(E, q0)),

@@ -49,6 +49,7 @@ from ..algebra import upoly
 from ..algebra.linalg import SingularMatrixError, determinant, dot, solve_vector
 from ..algebra.quadratic import QuadraticExtension, lower
 from ..errors import DegenerateBifurcationError, DegenerateHopfError, NoHopfPointError
+from ..kinds import HopfHopfCase, PointStatus, Sign, coerce
 from ..local.eigenbasis import critical_eigenbasis
 from ..algebra.linalg import characteristic_polynomial
 from ..local.prepare import expr, prepare, sign_word
@@ -86,13 +87,16 @@ class HopfHopfResult:
     p22: object
     theta: object
     delta: object
-    case: str
+    case: HopfHopfCase
     resonance: str
-    status: str
+    status: PointStatus
     scenario: str
     signs: dict
     notes: tuple = ()
     conventions: tuple = HOPF_HOPF_CONVENTIONS
+
+    def __post_init__(self) -> None:
+        coerce(self, case=HopfHopfCase, status=PointStatus)
 
     def rows(self):
         return [("values", "Hopf-Hopf point", self.values),
@@ -288,19 +292,19 @@ def _point(prep, sp1, sp2, names):
     K = target.top
     E = lambda x: expr(target, x, ctx)  # noqa: E731
     resonance = _resonance(target, W1, W2, ctx)
-    status = "nondegenerate"
+    status = PointStatus.NONDEGENERATE
     notes = ["the regularity of the unfolding in the two symbols is not checked; "
              "fifth-order terms (needed in the difficult case) are not computed"]
     try:
         N, N2, p11, p12, p21, p22 = _coefficients(prep, target, sub, W1, W2, ratio, K)
     except (DegenerateBifurcationError, DegenerateHopfError) as exc:
         if resonance in ("1:2",):
-            status = "resonance_1_2"
+            status = PointStatus.RESONANCE_1_2
             notes.append(f"the coefficients do not exist at the 1:2 resonance ({exc})")
             return _result(names, prep, sub, E, target, W1, W2, None, resonance, status, notes)
         raise
     if resonance != "none":
-        status = f"resonance_{resonance.replace(':', '_')}"
+        status = PointStatus(f"resonance_{resonance.replace(':', '_')}")
     return _result(names, prep, sub, E, target, W1, W2, (N, N2, p11, p12, p21, p22), resonance,
                    status, notes)
 
@@ -315,7 +319,7 @@ def _result(names, prep, sub, E, target, W1, W2, coeffs, resonance, status, note
     values.update(_symbol_values(prep, sub, E, names))
     cp = [None] * 4
     theta = delta = None
-    signs, case = {}, "undecided"
+    signs, case = {}, HopfHopfCase.UNDECIDED
     if coeffs is not None:
         N, N2, p11, p12, p21, p22 = coeffs
         cplx = lambda F, x: E(lower(F(x).a)) + E(lower(F(x).b)) * F.root  # noqa: E731
@@ -329,11 +333,11 @@ def _result(names, prep, sub, E, target, W1, W2, coeffs, resonance, status, note
             signs.update(theta=sign_word(target, th, ctx), delta=sign_word(target, de, ctx),
                          theta_delta_minus_1=sign_word(target, th * de - 1, ctx))
         prod = sign_word(target, re[0] * re[3], ctx)
-        case = {"positive": "simple", "negative": "difficult", "zero": "degenerate"}.get(
-            prod, "undecided")
-        if case == "degenerate" and status == "nondegenerate":
-            status = "Re_p11_or_Re_p22_vanishes"
-    scenario = (hopf_hopf_scenario(case, signs) if status in ("nondegenerate",) else
+        case = {Sign.POSITIVE: HopfHopfCase.SIMPLE, Sign.NEGATIVE: HopfHopfCase.DIFFICULT,
+                Sign.ZERO: HopfHopfCase.DEGENERATE}.get(prod, HopfHopfCase.UNDECIDED)
+        if case == HopfHopfCase.DEGENERATE and status == PointStatus.NONDEGENERATE:
+            status = PointStatus.RE_P11_OR_RE_P22_VANISHES
+    scenario = (hopf_hopf_scenario(case, signs) if status == PointStatus.NONDEGENERATE else
                 f"status {status}: the amplitude-equation scenario does not apply as stated"
                 + (f"; {hopf_hopf_scenario(case, signs)}" if coeffs is not None else ""))
     return HopfHopfResult(names, values, point, sympy.sqrt(E(W1)), sympy.sqrt(E(W2)), *cp,

@@ -42,6 +42,7 @@ import sympy
 from ..algebra import upoly
 from ..algebra.quadratic import lower
 from ..errors import DegenerateBifurcationError, DegenerateHopfError, NoHopfPointError
+from ..kinds import PointStatus, Sign, coerce
 from ..local.critical import cofactor_hurwitz, find_critical_branches
 from ..algebra.linalg import characteristic_polynomial
 from ..local.prepare import expr, sign_word
@@ -90,14 +91,17 @@ class FlipResult:
     p: tuple
     quadratic: sympy.Expr
     coefficient: sympy.Expr
-    coefficient_sign: str
+    coefficient_sign: Sign
     multiplier_speed: sympy.Expr
     amplitude_squared: dict
     verdict: str
-    status: str
+    status: PointStatus
     conditions: tuple = ()
     notes: tuple = ()
     conventions: tuple = FLIP_CONVENTIONS
+
+    def __post_init__(self) -> None:
+        coerce(self, coefficient_sign=Sign, status=PointStatus)
 
     def rows(self):
         return [("system", "system", "map x -> F(x) (discrete time)"),
@@ -141,15 +145,18 @@ class NeimarkSackerResult:
     q: tuple
     c1: object
     lyapunov: object
-    lyapunov_sign: str
+    lyapunov_sign: Sign
     modulus_speed: sympy.Expr
     radius_squared: object
     amplitude_squared: dict
-    status: str
+    status: PointStatus
     verdict: str
     conditions: tuple = ()
     notes: tuple = ()
     conventions: tuple = NS_CONVENTIONS
+
+    def __post_init__(self) -> None:
+        coerce(self, lyapunov_sign=Sign, status=PointStatus)
 
     def rows(self):
         return [("system", "system", "map x -> F(x) (discrete time)"),
@@ -246,8 +253,8 @@ def _flip_point(prep, sp, unknown, chi, dchi):
     target, ctx = sp.target, prep.context(sp.target)
     E = lambda x: expr(target, x, ctx)  # noqa: E731
     sign = sign_word(target, c, ctx)
-    status = "degenerate_coefficient" if sign == "zero" else (
-        "transversality_fails" if not speed else "nondegenerate")
+    status = PointStatus.DEGENERATE_COEFFICIENT if sign == Sign.ZERO else (
+        PointStatus.TRANSVERSALITY_FAILS if not speed else PointStatus.NONDEGENERATE)
     amp = {}
     if c:
         d = _delta(unknown)
@@ -341,10 +348,10 @@ _RESONANCE_REASONS = {
 
 
 def _ns_verdict(sign, status):
-    if status == "resonance_1_3":
+    if status == PointStatus.RESONANCE_1_3:
         return ("strong resonance 1:3 (theta = 2 pi/3): the normal form z -> lambda z + c1 "
                 "z|z|^2 does not exist; no invariant-curve prediction")
-    if status == "resonance_1_4":
+    if status == PointStatus.RESONANCE_1_4:
         return ("strong resonance 1:4 (theta = pi/2): c1 is computed but a further resonant "
                 "term decides the dynamics; no invariant-curve prediction")
     return {"negative": "supercritical: a stable closed invariant curve is born where the "
@@ -365,8 +372,8 @@ def _multiplier(N, W):
 
 
 def _resonance(target, W, ctx):
-    for value, name in ((1, "resonance_1_4"), (3, "resonance_1_3")):
-        if sign_word(target, W - value, ctx) == "zero":
+    for value, name in ((1, PointStatus.RESONANCE_1_4), (3, PointStatus.RESONANCE_1_3)):
+        if sign_word(target, W - value, ctx) == Sign.ZERO:
             return name
     return None
 
@@ -382,25 +389,25 @@ def _ns_point(prep, unknown, branch):
     lam = _multiplier(N, W)
     q, pbar = unit_circle_vectors(K, N, A, lam)
     qq = lower(sum((x.conjugate() * x for x in q[1:]), q[0].conjugate() * q[0]))
-    status = _resonance(target, W, ctx) or "nondegenerate"
+    status = _resonance(target, W, ctx) or PointStatus.NONDEGENERATE
     speed = 2 * branch.transversality[0] / (K.one + W)
     c1 = lyap = rho2 = None
-    sign, amp = "undecided", {}
-    if status != "resonance_1_3":
+    sign, amp = Sign.UNDECIDED, {}
+    if status != PointStatus.RESONANCE_1_3:
         c1_raw = ns_coefficient(K, N, A, taylor, q, pbar, lam)
         re = lower((lam.conjugate() * c1_raw).a)
         c1 = E(lower(c1_raw.a) / qq) + E(lower(c1_raw.b) / qq) * N.root
         lyap = E(re / qq)
         sign = sign_word(target, re, ctx)
-        if re and status == "nondegenerate":
+        if re and status == PointStatus.NONDEGENERATE:
             d = _delta(unknown)
             rho2 = E(-speed * qq / re) * d
             amp = {s: E(-4 * speed * lower((x.conjugate() * x).a) / re) * d
                    for s, x in zip(prep.model.states, q)}
-        if sign == "zero" and status == "nondegenerate":
-            status = "degenerate_lyapunov"
-    if status == "nondegenerate" and not speed:
-        status = "transversality_fails"
+        if sign == Sign.ZERO and status == PointStatus.NONDEGENERATE:
+            status = PointStatus.DEGENERATE_LYAPUNOV
+    if status == PointStatus.NONDEGENERATE and not speed:
+        status = PointStatus.TRANSVERSALITY_FAILS
     cos = (K.one - W) / (K.one + W)
     conds = [("the critical multipliers are a complex pair (tan(theta/2)^2 > 0)", W, "positive"),
              ("the modulus of the multipliers crosses 1 with nonzero speed", speed, "nonzero"),

@@ -35,6 +35,7 @@ from dataclasses import dataclass, field
 from typing import Mapping
 
 from ..errors import EquilibriumNotFoundError, MissingExtraError, ParameterError
+from ..kinds import Classification
 
 __all__ = ["HopfCurve", "CurvePoint", "hopf_curve"]
 
@@ -325,8 +326,8 @@ def _verdict(l1, status, scale=1.0):
     if status != "ok":
         return ""
     if abs(l1) <= 1e-10 * max(1.0, scale):
-        return "degenerate"
-    return "supercritical" if l1 < 0 else "subcritical"
+        return Classification.DEGENERATE
+    return Classification.SUPERCRITICAL if l1 < 0 else Classification.SUBCRITICAL
 
 
 def _crossings(points, targets):

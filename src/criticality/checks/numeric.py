@@ -19,6 +19,7 @@ import mpmath
 import sympy
 
 from ..errors import ParameterError
+from ..kinds import Classification, coerce
 from ..renderers import render
 
 __all__ = ["NumericHopfResult", "evaluate_result", "parameter_values"]
@@ -47,7 +48,7 @@ class NumericHopfResult:
     c1: object
     l1: object
     lyapunov_coefficients: tuple
-    classification: str
+    classification: Classification
     equilibrium: Mapping[str, object]
     amplitude_coefficients: Mapping[str, object]
     eigenvalues: tuple
@@ -56,6 +57,9 @@ class NumericHopfResult:
     conditions: tuple
 
     result_kind: ClassVar[str] = "hopf_numeric_point"
+
+    def __post_init__(self) -> None:
+        coerce(self, classification=Classification)
 
     def _repr_html_(self) -> str:
         return render(self, "html")
@@ -185,7 +189,8 @@ def evaluate_result(result, values: Mapping, *, digits: int = 30) -> NumericHopf
         tol = mpmath.mpf(10) ** (-(digits // 2))
         others = [e for e in eigs if abs(e - target) > tol and abs(e + target) > tol]
         conds = tuple((c.key, _num(c.expr, subs, digits + 5), c.relation) for c in result.conditions)
-        cls = "supercritical" if l1 < 0 else "subcritical" if l1 > 0 else "degenerate"
+        cls = (Classification.SUPERCRITICAL if l1 < 0 else
+               Classification.SUBCRITICAL if l1 > 0 else Classification.DEGENERATE)
         return NumericHopfResult(
             values=exact, digits=digits, critical_value=mu_c, omega_squared=omega ** 2,
             omega=omega, period=2 * mpmath.pi / omega,

@@ -33,6 +33,7 @@ import sympy
 
 from ..files import write_text_atomic
 from ..errors import ParameterError
+from ..kinds import Classification
 from .sweeps import _numpy, grid_function, sweep
 
 __all__ = ["CurveData", "StabilityGrid", "curve_data", "stability_grid", "curve_csv",
@@ -82,9 +83,9 @@ class CurveData:
         np = _numpy()
         out = np.full(self.l1.shape, "", dtype=object)
         ok = self.segment >= 0
-        out[ok & (self.l1 < 0)] = "supercritical"
-        out[ok & (self.l1 > 0)] = "subcritical"
-        out[ok & (self.l1 == 0)] = "degenerate"
+        out[ok & (self.l1 < 0)] = Classification.SUPERCRITICAL
+        out[ok & (self.l1 > 0)] = Classification.SUBCRITICAL
+        out[ok & (self.l1 == 0)] = Classification.DEGENERATE
         return out
 
 

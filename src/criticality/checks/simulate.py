@@ -22,6 +22,7 @@ import mpmath
 import sympy
 
 from ..errors import ParameterError, ValidationRunError
+from ..kinds import RunStatus, coerce
 
 __all__ = ["Setup", "LocalFrame", "RunOutcome", "prepare", "local_frame", "measure_cycle",
            "shoot_cycle", "bracket", "settle_time"]
@@ -201,12 +202,15 @@ class RunOutcome:
     Floquet multipliers.
     """
 
-    status: str
+    status: RunStatus
     time: float
     amplitudes: Mapping[str, float] | None = None
     period: float | None = None
     residual: float | None = None
     multiplier: float | None = None
+
+    def __post_init__(self) -> None:
+        coerce(self, status=RunStatus)
 
 
 def _solve(ivp, fun, jac, span, y0, method, rtol, atol, **extra):
@@ -246,7 +250,7 @@ def measure_cycle(setup: Setup, frame: LocalFrame, radius: float, *, direction: 
     first = _solve(ivp, fun, jac, (0.0, transient), y0, method, rtol, atol,
                    events=escape, t_eval=[transient])
     if first.status == 1:
-        return RunOutcome("escaped", float(first.t_events[0][0]))
+        return RunOutcome(RunStatus.ESCAPED, float(first.t_events[0][0]))
     y1 = first.y[:, -1]
     sol = _solve(ivp, fun, jac, (transient, transient + window), y1, method, rtol, atol,
                  events=_extrema_events(setup, mu), dense_output=True)
@@ -268,11 +272,11 @@ def _measurements(setup, sol, np, transient, window, radius, frame, least=4):
     if not amps or max(amps.values()) < 1e-3 * radius:
         # no state oscillates measurably: the orbit came to rest, here or elsewhere
         near = np.linalg.norm(sol.y[:, -1] - frame.x0) < 0.1 * radius
-        return RunOutcome("decayed" if near else "escaped", transient + window)
+        return RunOutcome(RunStatus.DECAYED if near else RunStatus.ESCAPED, transient + window)
     ref = max(range(len(setup.states)), key=lambda j: amps.get(setup.states[j], -1.0))
     period = _period(sol, ref, np, transient, window, setup)
     drift = max((abs(b - a) / max(abs(b), 1e-300) for a, b in halves), default=0.0)
-    return RunOutcome("measured", transient + window, amps, period, drift)
+    return RunOutcome(RunStatus.MEASURED, transient + window, amps, period, drift)
 
 
 def _period(sol, j, np, t0, window, setup):
@@ -339,17 +343,17 @@ def shoot_cycle(setup: Setup, frame: LocalFrame, radius: float, period: float, *
     for _ in range(iterations):
         step, mono = _newton_step(setup, frame, y, T, tight, np, ivp)
         if step is None or not np.all(np.isfinite(step)):
-            return RunOutcome("undecided", T)
+            return RunOutcome(RunStatus.UNDECIDED, T)
         size = float(np.linalg.norm(step[:-1]))
         if size > 0.5 * radius:
             step = step * (0.5 * radius / size)
         y, T = y + step[:-1], T + step[-1]
         if T <= 0 or frame.radius(np, y) < 0.05 * radius:
-            return RunOutcome("decayed", T)
+            return RunOutcome(RunStatus.DECAYED, T)
         if size < 1e-10 * radius and abs(step[-1]) < 1e-10 * T:
             break
     else:
-        return RunOutcome("undecided", T)
+        return RunOutcome(RunStatus.UNDECIDED, T)
     mu = frame.mu
     sol = _solve(ivp, lambda t, v: setup.rhs(mu, v), None, (0.0, 1.25 * T), y, "DOP853", tight,
                  tight * 1e-2 * radius, events=_extrema_events(setup, mu), dense_output=True)
@@ -387,9 +391,9 @@ def bracket(setup: Setup, frame: LocalFrame, radius: float, factor: float, *, ho
                  rtol * 1e-2 * radius, events=[low, high], t_eval=[horizon])
     if sol.status == 1:
         if len(sol.t_events[0]):
-            return RunOutcome("decayed", float(sol.t_events[0][0]))
-        return RunOutcome("escaped", float(sol.t_events[1][0]))
-    return RunOutcome("undecided", horizon)
+            return RunOutcome(RunStatus.DECAYED, float(sol.t_events[0][0]))
+        return RunOutcome(RunStatus.ESCAPED, float(sol.t_events[1][0]))
+    return RunOutcome(RunStatus.UNDECIDED, horizon)
 
 
 def settle_time(setup: Setup, offset: float) -> float:

@@ -37,6 +37,7 @@ from typing import Mapping, Sequence
 
 from .simulate import bracket, local_frame, measure_cycle, prepare, settle_time, shoot_cycle
 from ..errors import MissingExtraError, ParameterError, ValidationRunError
+from ..kinds import Classification, Side
 from .validation_report import BracketOutcome, CycleMeasurement, ValidationReport
 
 __all__ = ["validate", "default_offsets", "natural_scale", "ValidationReport", "CycleMeasurement",
@@ -207,8 +208,8 @@ def validate(result, values: Mapping | None = None, *, offsets: Sequence[float] 
     return ValidationReport(
         parameter=result.parameter, values=setup.values, critical_value=setup.mu_c,
         omega=setup.omega, l1=setup.l1,
-        classification="supercritical" if setup.l1 < 0 else "subcritical",
-        side="above" if sign > 0 else "below",
+        classification=Classification.SUPERCRITICAL if setup.l1 < 0 else Classification.SUBCRITICAL,
+        side=Side.ABOVE if sign > 0 else Side.BELOW,
         predicted_stable=setup.l1 < 0 and all(e.real < 0 for e in setup.others),
         states=setup.states, measurements=measurements,
         brackets=brackets, orders=orders, verdict=verdict, reasons=reasons,

@@ -21,6 +21,7 @@ from ..budget import stage
 from ..budget import time_limit as time_limit_
 from ..errors import ClosedFormUnavailableError, NoHopfPointError, ParameterError
 from ..hopf_analysis.results import CyclePrediction
+from ..kinds import Classification, Side
 
 __all__ = ["hopf_delay"]
 
@@ -245,22 +246,22 @@ def mu_pos_of(mu, forward):
 
 def _verdict(sign, l1, back):
     if sign == -1:
-        return "supercritical", "supercritical for all admissible parameters (l1 < 0)", True
+        return Classification.SUPERCRITICAL, "supercritical for all admissible parameters (l1 < 0)", True
     if sign == 1:
-        return "subcritical", "subcritical for all admissible parameters (l1 > 0)", False
+        return Classification.SUBCRITICAL, "subcritical for all admissible parameters (l1 > 0)", False
     if sign == 0:
-        return "degenerate", "l1 = 0 identically: a degenerate Hopf point", False
+        return Classification.DEGENERATE, "l1 = 0 identically: a degenerate Hopf point", False
     condition = sympy.StrictLessThan(l1.xreplace(back), 0)
-    return "depends", f"supercritical where {condition}, subcritical where it is reversed", condition
+    return Classification.DEPENDS, f"supercritical where {condition}, subcritical where it is reversed", condition
 
 
 def _cycle(model, mu_pos, mu_c, omega, data, crossing, beta1, slope_im, c1_re, c1_im, sign, back):
     degenerate = sign == 0
     k_radius = sympy.nan if degenerate else _tidy(-beta1 / c1_re)
     side_sign = None if degenerate else decide_sign(k_radius)
-    side = {1: "above", -1: "below"}.get(side_sign, "undecided")
+    side = {1: Side.ABOVE, -1: Side.BELOW}.get(side_sign, Side.UNDECIDED)
     if degenerate:
-        side = "undecided"
+        side = Side.UNDECIDED
     offset = mu_pos - mu_c
     amplitudes, coefficients = {}, {}
     qq = _at(crossing, data.qq)
@@ -271,7 +272,7 @@ def _cycle(model, mu_pos, mu_c, omega, data, crossing, beta1, slope_im, c1_re, c
     slope = sympy.nan if degenerate else _tidy(slope_im - beta1 * c1_im / c1_re)
     stable = True if sign == -1 and crossing.mode == "delay" else (False if sign == 1 else None)
     return CyclePrediction(
-        side=side, side_condition=None if side != "undecided" or degenerate else
+        side=side, side_condition=None if side != Side.UNDECIDED or degenerate else
         sympy.StrictGreaterThan(k_radius.xreplace(back), 0),
         stable=stable, radius_squared=(k_radius * offset).xreplace(back),
         amplitudes=amplitudes, amplitude_coefficients=coefficients,

@@ -22,6 +22,7 @@ import mpmath
 import sympy
 
 from ..errors import ParameterError
+from ..kinds import Classification, coerce
 from ..model.expressions import convert_sympy, parse_expression
 
 __all__ = ["NumericDelayResult", "evaluate_result"]
@@ -40,11 +41,14 @@ class NumericDelayResult:
     transversality: object
     c1: object
     l1: object
-    classification: str
+    classification: Classification
     amplitude_coefficients: Mapping[str, object]
     residual: object
     numeric_c1: object
     numeric_slope: object
+
+    def __post_init__(self) -> None:
+        coerce(self, classification=Classification)
 
     def __getitem__(self, key):
         return getattr(self, key)

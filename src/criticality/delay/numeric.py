@@ -20,6 +20,7 @@ import mpmath
 import sympy
 
 from ..errors import NoHopfPointError, ParameterError
+from ..kinds import Classification, coerce
 from ..model.delayed import current_form
 
 __all__ = ["NumericDelayHopf", "hopf_delay_numeric", "delta_matrix", "null_vector",
@@ -46,11 +47,14 @@ class NumericDelayHopf:
     l1: object
     transversality: object
     eigenvalue_derivative: object
-    classification: str
+    classification: Classification
     amplitude_coefficients: Mapping[str, object]
     residual: object
     kind: str = "hopf_delay_numeric"
     status: str = "numeric"
+
+    def __post_init__(self) -> None:
+        coerce(self, classification=Classification)
 
     def summary(self) -> str:
         lines = [f"Hopf point of a retarded equation in {self.parameter!r}, located numerically "
@@ -222,8 +226,8 @@ def hopf_delay_numeric(model, parameter: str, guess: Mapping, *, values: Mapping
         slope = _slope(prob, x, mu_c, omega, n)
         re_c1 = mpmath.re(c1)
         l1 = re_c1 / omega
-        classification = ("supercritical" if l1 < 0 else "subcritical") if abs(l1) > \
-            mpmath.mpf(10) ** (-digits // 2) else "degenerate"
+        classification = (Classification.SUPERCRITICAL if l1 < 0 else Classification.SUBCRITICAL) \
+            if abs(l1) > mpmath.mpf(10) ** (-digits // 2) else Classification.DEGENERATE
         coefficients = {s: -4 * mpmath.re(slope) * abs(q[i]) ** 2 / (qq * re_c1)
                         for i, s in enumerate(model.states)}
         residual = abs(prob.chi(x, mu_c, mpmath.mpc(0, omega)))

@@ -12,6 +12,7 @@ from typing import Mapping
 import sympy
 
 from ..hopf_analysis.results import CyclePrediction
+from ..kinds import Classification, coerce
 
 __all__ = ["DelayConventions", "DELAY_CONVENTIONS", "DelayHopfResult"]
 
@@ -134,7 +135,7 @@ class DelayHopfResult:
     c1: sympy.Expr
     l1: sympy.Expr
     l1_sequence: object
-    classification: str
+    classification: Classification
     verdict: str
     criticality_condition: object
     conditions: tuple
@@ -150,6 +151,9 @@ class DelayHopfResult:
     kind: str = "hopf_delay"
     status: str = "closed form"
     _details: object = field(default=None, repr=False, compare=False)
+
+    def __post_init__(self) -> None:
+        coerce(self, classification=Classification)
 
     @property
     def parameter_symbol(self) -> sympy.Symbol:

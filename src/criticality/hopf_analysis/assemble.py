@@ -23,22 +23,23 @@ from .classify import classify
 from ..local.critical import Condition, cofactor_hurwitz
 from ..errors import CriticalityError
 from .results import CyclePrediction, HopfResult, ReducedSystemView
-from ..algebra.signs import NEGATIVE, NONNEGATIVE, NONPOSITIVE, POSITIVE, UNKNOWN, ZERO, context_for
+from ..algebra.signs import NEGATIVE, NONNEGATIVE, NONPOSITIVE, POSITIVE, UNDECIDED, ZERO, context_for
+from ..kinds import Classification, ConditionStatus, Side
 
 __all__ = ["build_result"]
 
 
 
-def _status(fs, relation=">"):
+def _status(fs, relation=">") -> ConditionStatus:
     if relation == "!=":
         if fs.sign in (POSITIVE, NEGATIVE):
-            return "holds"
-        return "fails" if fs.sign == ZERO else "open"
+            return ConditionStatus.HOLDS
+        return ConditionStatus.FAILS if fs.sign == ZERO else ConditionStatus.OPEN
     if fs.sign == POSITIVE:
-        return "holds"
+        return ConditionStatus.HOLDS
     if fs.sign in (NEGATIVE, NONPOSITIVE, ZERO):
-        return "fails"
-    return "open"
+        return ConditionStatus.FAILS
+    return ConditionStatus.OPEN
 
 
 def _side(fs):
@@ -80,7 +81,7 @@ def _admissibility(B, mu_name, mu_assumption, value, W):
         rel = "!=" if mu_assumption == "nonzero" else ">"
         status = _status(fs_v, rel)
         if mu_assumption == "nonnegative" and fs_v.sign in (NONNEGATIVE, ZERO):
-            status = "holds"
+            status = ConditionStatus.HOLDS
         conds.append(Condition("critical_value_admissible",
                                f"the critical value respects the declared sign of '{mu_name}' "
                                f"({mu_assumption})", B.expr(x), rel, status))
@@ -97,7 +98,7 @@ def build_result(model, name, mu, choice, out, bc, assumptions, params):
     B = _Branch(bc, ctx0)
     br, eb = bc.branch, bc.eigenbasis
     conds, sides = _admissibility(B, name, assumptions.get(mu, "real"), br.value, br.W)
-    if conds[0].status == "fails":
+    if conds[0].status == ConditionStatus.FAILS:
         return None
     ctx = ctx0.with_conditions(sides)
     B = _Branch(bc, ctx)
@@ -121,7 +122,7 @@ def build_result(model, name, mu, choice, out, bc, assumptions, params):
     re_c1, im_c1_nu = lower(c1.a), lower(c1.b)
     fs_l1 = factored(tower, re_c1, ctx)
     verdict = classify(fs_l1)
-    if verdict.classification == "degenerate":
+    if verdict.classification == Classification.DEGENERATE:
         verdict = _higher_verdict(tower, ctx, bc.c_center, verdict)
     re_c1_expr = fs_l1.as_expr()
     im_c1_expr = B.expr(im_c1_nu) * omega
@@ -198,7 +199,7 @@ def _omega(B, W):
 def _factored_sqrt(fs, expr):
     """``sqrt`` of a factored expression: factors of known sign and even
     multiplicity come out, the rest stays under the root."""
-    if fs.sign == UNKNOWN and not fs.factors:
+    if fs.sign == UNDECIDED and not fs.factors:
         return _sqrt(expr)
     outside, inside, below = [], [fs.constant.p], [fs.constant.q]
     for f in fs.factors:
@@ -274,8 +275,8 @@ def _cycle(B, model, bc, omega, verdict, stab, mu):
     if j:
         k = -beta1 / R
         fs_k = _raw(B.tower, k, B.ctx)
-        side = {POSITIVE: "above", NEGATIVE: "below"}.get(fs_k.sign, "undecided")
-        side_cond = None if side != "undecided" else sympy.StrictGreaterThan(B.expr(k), 0)
+        side = {POSITIVE: Side.ABOVE, NEGATIVE: Side.BELOW}.get(fs_k.sign, Side.UNDECIDED)
+        side_cond = None if side != Side.UNDECIDED else sympy.StrictGreaterThan(B.expr(k), 0)
         lower_exact_zero = all(not c for c in bc.c_center[:j - 1])
         slope = omega * B.expr(beta_nu - beta1 * S / R) if lower_exact_zero else sympy.nan
         if j == 1:
@@ -298,10 +299,11 @@ def _cycle(B, model, bc, omega, verdict, stab, mu):
                 amps[name] = _product(_factored_sqrt(fs, fs.as_expr()),
                                       sympy.Pow(B.expr(k) * offset, sympy.Rational(1, 2 * j)))
     else:
-        side, side_cond, rho2, slope = "undecided", None, sympy.nan, sympy.nan
-    if verdict.classification == "supercritical":
-        stable = True if all(s == "holds" for s in stab) else (False if "fails" in stab else None)
-    elif verdict.classification == "subcritical":
+        side, side_cond, rho2, slope = Side.UNDECIDED, None, sympy.nan, sympy.nan
+    if verdict.classification == Classification.SUPERCRITICAL:
+        stable = True if all(s == ConditionStatus.HOLDS for s in stab) else (
+            False if ConditionStatus.FAILS in stab else None)
+    elif verdict.classification == Classification.SUBCRITICAL:
         stable = False
     else:
         stable = None

@@ -16,6 +16,7 @@ from typing import ClassVar, Mapping
 
 import sympy
 
+from ..kinds import Classification, Side, coerce
 from ..renderers import render
 
 __all__ = ["Conventions", "CONVENTIONS", "CyclePrediction", "ReducedSystemView", "StoredDetails",
@@ -54,7 +55,7 @@ class CyclePrediction:
 
     Attributes
     ----------
-    side : str
+    side : Side
         ``"above"`` (mu > mu_c), ``"below"`` (mu < mu_c) or ``"undecided"``.
     side_condition : sympy relational or None
         For ``"undecided"``: the cycle exists for mu > mu_c exactly where this
@@ -85,7 +86,7 @@ class CyclePrediction:
         when ``l_j`` decides because ``l1 = ... = l_(j-1) = 0`` identically.
     """
 
-    side: str
+    side: Side
     side_condition: object
     stable: object
     radius_squared: sympy.Expr
@@ -94,6 +95,9 @@ class CyclePrediction:
     period: sympy.Expr
     frequency_slope: sympy.Expr
     amplitude_power: int = 2
+
+    def __post_init__(self) -> None:
+        coerce(self, side=Side)
 
 
 @dataclass(frozen=True)
@@ -163,7 +167,7 @@ class HopfResult:
     l1: sympy.Expr
     planar_coefficient: sympy.Expr
     lyapunov_coefficients: tuple
-    classification: str
+    classification: Classification
     verdict: str
     supercritical_where: object
     l1_zero_set: object
@@ -181,6 +185,9 @@ class HopfResult:
     _details: object = field(default=None, repr=False, compare=False)
     #: ``(parameter record, value)`` of the parameters fixed before the analysis (``values=``)
     fixed_parameters: tuple = ()
+
+    def __post_init__(self) -> None:
+        coerce(self, classification=Classification)
 
     # -- computed on first access (display-oriented, not needed for the verdict) ----------
     @cached_property

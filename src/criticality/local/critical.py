@@ -30,6 +30,7 @@ from ..algebra.certified import is_numeric
 from ..algebra.polyops import numerator_factors, pair_resultant, rational_field, value_at
 from ..algebra.quadratic import QuadraticElement, QuadraticExtension, lower
 from ..errors import ClosedFormUnavailableError, DegenerateHopfError, NoHopfPointError
+from ..kinds import ConditionStatus, coerce
 from .linear import factor_univariate, hurwitz_determinant, hurwitz_determinants
 
 __all__ = ["Condition", "CriticalBranch", "CriticalSet", "find_critical_branches",
@@ -51,7 +52,7 @@ class Condition:
         The quantity that must be positive (or non-zero, see ``relation``).
     relation : str
         ``">"`` or ``"!="``.
-    status : str
+    status : ConditionStatus
         ``"holds"`` (proved under the assumptions), ``"fails"`` (proved false)
         or ``"open"`` (stated, not proved: the result is valid where it holds).
     """
@@ -60,7 +61,10 @@ class Condition:
     description: str
     expr: sympy.Expr
     relation: str
-    status: str
+    status: ConditionStatus
+
+    def __post_init__(self) -> None:
+        coerce(self, status=ConditionStatus)
 
     @property
     def inequality(self):

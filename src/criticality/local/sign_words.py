@@ -12,17 +12,18 @@ import sympy
 
 from ..algebra.canonical import canonical_expr, factored
 from ..algebra.quadratic import lower
-from ..algebra.signs import NEGATIVE, NONNEGATIVE, NONPOSITIVE, POSITIVE, ZERO, context_for
+from ..algebra.signs import context_for
+from ..kinds import Sign
 
 __all__ = ["sign_word", "expr"]
 
 
-def sign_word(tower, x, ctx) -> str:
+def sign_word(tower, x, ctx) -> Sign:
     """``"positive"``, ``"negative"``, ``"zero"``, ``"nonnegative"``,
-    ``"nonpositive"`` or ``"undecided"``."""
+    ``"nonpositive"`` or ``"undecided"`` (a :class:`~criticality.kinds.Sign`)."""
     x = lower(x)
     if not x:
-        return "zero"
+        return Sign.ZERO
     numeric = _numeric_sign(tower, x)
     if numeric is not None:
         return numeric
@@ -31,11 +32,10 @@ def sign_word(tower, x, ctx) -> str:
     try:
         fs = factored(tower, x, ctx)
     except Exception:  # noqa: BLE001 - radicals: no decision
-        return "undecided"
+        return Sign.UNDECIDED
     if fs.undecided:
-        return "undecided"
-    return {POSITIVE: "positive", NEGATIVE: "negative", ZERO: "zero",
-            NONNEGATIVE: "nonnegative", NONPOSITIVE: "nonpositive"}.get(fs.sign, "undecided")
+        return Sign.UNDECIDED
+    return Sign(fs.sign)
 
 
 def _numeric_sign(tower, x):
@@ -49,7 +49,7 @@ def _numeric_sign(tower, x):
     re, im = v.as_real_imag()
     if abs(im) > 1e-40 * max(1, abs(re)) or abs(re) < sympy.Float(10) ** -40:
         return None
-    return "positive" if re > 0 else "negative"
+    return Sign.POSITIVE if re > 0 else Sign.NEGATIVE
 
 
 def expr(tower, x, ctx):

@@ -28,6 +28,7 @@ from typing import Mapping, Sequence
 
 from ..files import write_bytes_atomic
 from ..errors import MissingExtraError, ParameterError
+from ..kinds import Classification
 from ..checks.plane import (CurveData, StabilityGrid, curve_data, feasibility_grid,
                             stability_grid, write_curve_csv)
 from .latex_expr import latex_name
@@ -89,11 +90,12 @@ def _runs(curve: CurveData):
         if curve.segment[i] < 0 or not math.isfinite(curve.l1[i]) or curve.l1[i] == 0:
             i += 1
             continue
-        kind = "supercritical" if curve.l1[i] < 0 else "subcritical"
+        kind = Classification.SUPERCRITICAL if curve.l1[i] < 0 else Classification.SUBCRITICAL
         key = (curve.segment[i], kind, bool(curve.others_stable[i]))
         j = i + 1
         while j < n and curve.segment[j] == key[0] and (
-                "supercritical" if curve.l1[j] < 0 else "subcritical") == kind and bool(
+                Classification.SUPERCRITICAL if curve.l1[j] < 0 else Classification.SUBCRITICAL
+        ) == kind and bool(
                 curve.others_stable[j]) == key[2]:
             j += 1
         stop = j + 1 if j < n and curve.segment[j] == key[0] else j  # join to the next run

@@ -13,6 +13,7 @@ from __future__ import annotations
 import sympy
 
 from ..errors import CriticalityError
+from ..kinds import Classification, Side
 from ..model.expressions import format_expression
 
 __all__ = ["split_complex", "model_text", "try_model_text", "wrap_expression", "CAUTIONS",
@@ -34,17 +35,17 @@ CAUTIONS = (
 )
 
 _CLASSIFICATION = {
-    "supercritical": ("Supercritical (l1 < 0): a stable limit cycle is born as the equilibrium "
+    Classification.SUPERCRITICAL: ("Supercritical (l1 < 0): a stable limit cycle is born as the equilibrium "
                       "loses stability; its amplitude grows like the square root of the distance "
                       "from the critical value (a soft, reversible onset)."),
-    "subcritical": ("Subcritical (l1 > 0): an unstable cycle surrounds the equilibrium on its "
+    Classification.SUBCRITICAL: ("Subcritical (l1 > 0): an unstable cycle surrounds the equilibrium on its "
                     "stable side and shrinks onto it at the critical value; there the equilibrium "
                     "loses stability without a small stable cycle to take over (a hard, "
                     "hysteretic onset)."),
-    "depends": ("The type depends on the parameters: supercritical (stable cycle, soft onset) "
+    Classification.DEPENDS: ("The type depends on the parameters: supercritical (stable cycle, soft onset) "
                 "where the condition below holds, subcritical (hard, hysteretic onset) where it "
                 "is reversed."),
-    "degenerate": ("Degenerate (l1 = 0): the first Lyapunov coefficient vanishes; the next "
+    Classification.DEGENERATE: ("Degenerate (l1 = 0): the first Lyapunov coefficient vanishes; the next "
                    "coefficient decides (a Bautin point)."),
 }
 
@@ -64,7 +65,7 @@ def classification_sentence(classification: str, power: int = 2) -> str:
     'Subcritical (l1 = 0 identically, l2 > 0)'
     """
     text = _CLASSIFICATION.get(classification, f"Classification: {classification}.")
-    if power > 2 and classification in ("supercritical", "subcritical"):
+    if power > 2 and classification in (Classification.SUPERCRITICAL, Classification.SUBCRITICAL):
         j = power // 2
         vanish = "l1" if j == 2 else f"l1 = ... = l{j - 1}"
         text = text.replace("(l1 <", f"({vanish} = 0 identically, l{j} <")
@@ -181,10 +182,11 @@ def transversality_sentence(result) -> str:
 
 def _unstable_side(result):
     """``">"`` or ``"<"`` from the cycle's side and the verdict, or None."""
-    side = {"above": ">", "below": "<"}.get(result.cycle.side)
-    if side is None or result.classification not in ("supercritical", "subcritical"):
+    side = {Side.ABOVE: ">", Side.BELOW: "<"}.get(result.cycle.side)
+    if side is None or result.classification not in (Classification.SUPERCRITICAL,
+                                                     Classification.SUBCRITICAL):
         return None
-    if result.classification == "supercritical":
+    if result.classification == Classification.SUPERCRITICAL:
         return side
     return "<" if side == ">" else ">"
 
