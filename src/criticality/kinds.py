@@ -30,9 +30,14 @@ __all__ = ["coerce", "Word", "Classification", "Sign", "Side", "ConditionStatus"
 class Word(str, Enum):
     """A string-valued enum that prints, formats and reprs as its plain word."""
 
-    __str__ = str.__str__
-    __format__ = str.__format__
-    __repr__ = str.__repr__
+    def __str__(self) -> str:
+        return str.__str__(self)
+
+    def __format__(self, format_spec: str) -> str:
+        return str.__format__(self, format_spec)
+
+    def __repr__(self) -> str:
+        return str.__repr__(self)
 
 
 class Classification(Word):

@@ -150,6 +150,9 @@ class AlgebraicExtension(Field):
     (True, True)
     """
 
+    #: an isolating interval of the root refined by the certified signs (a cache)
+    _refined: tuple
+
     def __init__(self, base: Field, modulus, name: str, root=None, interval=None):
         m = upoly.trim([base(c) for c in modulus])
         if len(m) < 2:

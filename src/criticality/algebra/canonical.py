@@ -50,7 +50,7 @@ def factored(tower, x, ctx: SignContext, *, restore: bool = True) -> FactoredSig
     K = tower.base
     x = K(x)
     if not x:
-        return FactoredSign(sympy.Integer(0), (), "zero")
+        return FactoredSign(sympy.Integer(0), (), ZERO)
     if isinstance(K, FlintRationalFunctionField):
         raw = ctx.from_flint(K, x.num, x.den)
     else:

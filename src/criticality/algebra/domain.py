@@ -190,7 +190,7 @@ class Tower:
         self._atom_index = {a.expr: a for a in self.atoms}
         self._gen_index = {s: g for s, g in zip(self.base.symbols, getattr(self.base, "gens", ()))}
         self._memo: dict = {}
-        self._parent = None
+        self._parent: Tower | None = None
 
     def fresh(self, drop=None) -> "Tower":
         """A tower over the same atoms, without extensions.  With ``drop`` (a

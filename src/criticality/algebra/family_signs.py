@@ -19,6 +19,7 @@ no sign is claimed.
 from __future__ import annotations
 
 from fractions import Fraction
+from typing import Any
 
 import flint
 import sympy
@@ -39,7 +40,7 @@ def family_sign(tower, x, ctx) -> int | None:
     """``1`` or ``-1`` when the sign of ``x`` (an :class:`AlgebraicElement`
     directly over the flint parameter field) is proved constant on the
     declared parameter set, else None."""
-    ext = getattr(x, "ext", None)
+    ext: Any = getattr(x, "ext", None)
     K = tower.base
     if not isinstance(x, AlgebraicElement) or ext.base is not K or tower.atoms or \
             not isinstance(K, FlintRationalFunctionField):

@@ -12,6 +12,8 @@ the linear solver uses to choose small pivots.
 
 from __future__ import annotations
 
+from typing import Any
+
 __all__ = ["Field", "PolynomialRing", "clear_denominators"]
 
 
@@ -29,8 +31,8 @@ class Field:
         ``"flint"`` or ``"sympy"``.
     """
 
-    zero: object
-    one: object
+    zero: Any  # an element of this field (each field has its own element type)
+    one: Any
     symbols: tuple = ()
     backend = "abstract"
 

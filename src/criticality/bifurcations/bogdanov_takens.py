@@ -31,16 +31,19 @@ analysis of the unfolding ``x' = y, y' = b1 + b2 x + x^2 + s x y``).
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import ClassVar
+from typing import TYPE_CHECKING, Any, ClassVar, Mapping, Sequence
 
 import sympy
 
-from ..local.prepare import expr, prepare, sign_word, solve_for
+from ..local.prepare import EquilibriumSpec, expr, prepare, sign_word, solve_for
 from ..renderers import render
 from ..algebra.linalg import dot, kernel, matvec, solve_consistent, transpose
 from ..errors import DegenerateBifurcationError, NoHopfPointError
 from ..kinds import Sign, coerce
 from ..algebra.linalg import characteristic_polynomial
+
+if TYPE_CHECKING:
+    from ..model.core import Model
 
 __all__ = ["BogdanovTakensResult", "bogdanov_takens", "bogdanov_takens_all", "BT_CONVENTIONS"]
 
@@ -76,7 +79,7 @@ class BogdanovTakensResult:
     def __post_init__(self) -> None:
         coerce(self, ab_sign=Sign)
 
-    def rows(self):
+    def rows(self) -> list[tuple[str, str, object]]:
         return [("values", "double-zero point", self.values),
                 ("equilibrium", "equilibrium", self.equilibrium),
                 ("q0", "q0", self.q0), ("q1", "q1", self.q1), ("p0", "p0", self.p0),
@@ -95,7 +98,7 @@ class BogdanovTakensResult:
         """The quantities as an ``align*`` block."""
         return render(self, "latex")
 
-    def to_json(self, **kwargs) -> str:
+    def to_json(self, **kwargs: Any) -> str:
         """The result as JSON in the shared envelope."""
         return render(self, "json", **kwargs)
 
@@ -205,8 +208,11 @@ def _point(prep, sp1, sp2, names):
                                 _scenario(sign), tuple(notes))
 
 
-def bogdanov_takens_all(model, parameter: str, second: str, *, equilibrium=None, eliminate=None,
-                        values=None, assume=None, backend: str = "flint") -> tuple:
+def bogdanov_takens_all(model: Model, parameter: str, second: str, *,
+                        equilibrium: EquilibriumSpec = None,
+                        eliminate: Sequence[str] | None = None,
+                        values: Mapping[str, object] | None = None,
+                        assume: Mapping[str, str] | None = None, backend: str = "flint") -> tuple:
     """Every closed-form Bogdanov-Takens point (see :func:`bogdanov_takens`)."""
     prep = prepare(model, parameter, equilibrium=equilibrium, eliminate=eliminate,
                    values=values, assume=assume, order=2, backend=backend)
@@ -226,8 +232,10 @@ def bogdanov_takens_all(model, parameter: str, second: str, *, equilibrium=None,
     return tuple(out)
 
 
-def bogdanov_takens(model, parameter: str, second: str, *, equilibrium=None, eliminate=None,
-                    values=None, assume=None, backend: str = "flint",
+def bogdanov_takens(model: Model, parameter: str, second: str, *,
+                    equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
+                    values: Mapping[str, object] | None = None,
+                    assume: Mapping[str, str] | None = None, backend: str = "flint",
                     branch: int = 0) -> BogdanovTakensResult:
     """Bogdanov-Takens analysis in the two symbols ``parameter`` and ``second``.
 

@@ -36,15 +36,18 @@ Which case applies:
 from __future__ import annotations
 
 from dataclasses import dataclass, field, replace
-from typing import ClassVar
+from typing import TYPE_CHECKING, Any, ClassVar, Mapping, Sequence
 
 import sympy
 
 from ..kinds import FoldKind, Sign, coerce
-from ..local.prepare import expr, prepare, sign_word, solve_for
+from ..local.prepare import EquilibriumSpec, expr, prepare, sign_word, solve_for
 from ..renderers import render
 from ..algebra.linalg import determinant, dot, kernel, matvec, solve, transpose
 from ..errors import DegenerateBifurcationError, NoHopfPointError
+
+if TYPE_CHECKING:
+    from ..model.core import Model
 
 __all__ = ["FoldResult", "fold", "fold_all", "FOLD_CONVENTIONS", "MAP_FOLD_CONVENTIONS"]
 
@@ -95,7 +98,7 @@ class FoldResult:
     def __post_init__(self) -> None:
         coerce(self, kind=FoldKind)
 
-    def rows(self):
+    def rows(self) -> list[tuple[str, str, object]]:
         return [("kind", "kind", self.kind), ("parameter", "parameter", self.parameter),
                 ("critical_values", "critical values", self.critical_values),
                 ("equilibrium", "equilibrium", self.equilibrium),
@@ -119,7 +122,7 @@ class FoldResult:
         """The quantities as an ``align*`` block."""
         return render(self, "latex")
 
-    def to_json(self, **kwargs) -> str:
+    def to_json(self, **kwargs: Any) -> str:
         """The result as JSON in the shared envelope."""
         return render(self, "json", **kwargs)
 
@@ -257,8 +260,10 @@ def _result(prep, sp, unknown):
                       signs)
 
 
-def fold_all(model, parameter: str, *, solve_for_name: str | None = None, equilibrium=None,
-             eliminate=None, values=None, assume=None, backend: str = "flint") -> tuple:
+def fold_all(model: Model, parameter: str, *, solve_for_name: str | None = None,
+             equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
+             values: Mapping[str, object] | None = None, assume: Mapping[str, str] | None = None,
+             backend: str = "flint") -> tuple:
     """Every closed-form point of ``det A = 0`` (see :func:`fold`)."""
     if getattr(model, "kind", "flow") == "map":
         results = fold_all(model.fixed_point_flow(), parameter, solve_for_name=solve_for_name,
@@ -272,17 +277,17 @@ def fold_all(model, parameter: str, *, solve_for_name: str | None = None, equili
     unknown = _unknown(prep, solve_for_name)
     det = determinant(prep.tower.top, prep.taylor.jacobian())
     points, unsolved = solve_for(prep.tower, det, unknown)
-    results = []
+    found: list = []
     for sp in points:
         try:
-            results.append(_result(prep, sp, unknown))
+            found.append(_result(prep, sp, unknown))
         except DegenerateBifurcationError:
             continue
-    if not results:
+    if not found:
         extra = f" (no closed form for {', '.join(map(str, unsolved))} = 0)" if unsolved else ""
         raise NoHopfPointError(f"no point with a simple zero eigenvalue was found by solving "
                                f"det A = 0 for '{unknown}'{extra}", reason="empty_critical_set")
-    return tuple(results)
+    return tuple(found)
 
 
 def _unknown(prep, name):
@@ -295,9 +300,10 @@ def _unknown(prep, name):
     return prep.symbol(prep.parameter)
 
 
-def fold(model, parameter: str, *, solve_for: str | None = None, equilibrium=None,
-         eliminate=None, values=None, assume=None, backend: str = "flint",
-         branch: int = 0) -> FoldResult:
+def fold(model: Model, parameter: str, *, solve_for: str | None = None,
+         equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
+         values: Mapping[str, object] | None = None, assume: Mapping[str, str] | None = None,
+         backend: str = "flint", branch: int = 0) -> FoldResult:
     """Zero-eigenvalue analysis of ``model`` in ``parameter``.
 
     Parameters

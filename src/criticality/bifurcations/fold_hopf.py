@@ -39,6 +39,8 @@ amplitude system is integrable there).
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any, Mapping, Sequence
+
 from dataclasses import dataclass
 
 import sympy
@@ -51,11 +53,14 @@ from ..kinds import PointStatus, Sign, coerce
 from ..local.critical import nu_extension, pair_sum_condition
 from ..local.eigenbasis import critical_eigenbasis
 from ..algebra.linalg import characteristic_polynomial
-from ..local.prepare import expr, prepare, sign_word, solve_for
+from ..local.prepare import EquilibriumSpec, expr, prepare, sign_word, solve_for
 from ..model.expressions import convert_sympy, parse_expression
 from ..outputs.simple import render_json, render_latex, render_text
 from .bogdanov_takens import _solve_pair
 from .fold import _null_vectors
+
+if TYPE_CHECKING:
+    from ..model.core import Model
 
 __all__ = ["FoldHopfResult", "fold_hopf", "fold_hopf_all", "FOLD_HOPF_CONVENTIONS",
            "fold_hopf_scenario"]
@@ -96,7 +101,7 @@ class FoldHopfResult:
     def __post_init__(self) -> None:
         coerce(self, theta_sign=Sign, status=PointStatus)
 
-    def rows(self):
+    def rows(self) -> list[tuple[str, str, object]]:
         return [("values", "fold-Hopf point", self.values),
                 ("equilibrium", "equilibrium", self.equilibrium),
                 ("omega", "frequency omega", self.omega),
@@ -116,7 +121,7 @@ class FoldHopfResult:
     def to_latex(self) -> str:
         return render_latex("fold-Hopf point", self.rows())
 
-    def to_json(self, **kwargs) -> str:
+    def to_json(self, **kwargs: Any) -> str:
         return render_json("fold_hopf", self.rows(), self.notes, self.conventions, **kwargs)
 
     def __str__(self):
@@ -279,8 +284,11 @@ def _names(parameters, second):
     return str(parameters), str(second)
 
 
-def fold_hopf_all(model, parameters, second=None, *, point=None, equilibrium=None,
-                  eliminate=None, values=None, assume=None, backend: str = "flint") -> tuple:
+def fold_hopf_all(model: Model, parameters: str | Sequence[str], second: str | None = None, *,
+                  point: Mapping[str, object] | None = None, equilibrium: EquilibriumSpec = None,
+                  eliminate: Sequence[str] | None = None,
+                  values: Mapping[str, object] | None = None,
+                  assume: Mapping[str, str] | None = None, backend: str = "flint") -> tuple:
     """Every closed-form fold-Hopf point (see :func:`fold_hopf`)."""
     p1, p2 = _names(parameters, second)
     model.require_kind("flow", "the fold-Hopf analysis")
@@ -308,8 +316,10 @@ def fold_hopf_all(model, parameters, second=None, *, point=None, equilibrium=Non
         f"'{p2}'" + (f" ({errors[0]})" if errors else ""), reason="empty_critical_set")
 
 
-def fold_hopf(model, parameters, second=None, *, point=None, equilibrium=None, eliminate=None,
-              values=None, assume=None, backend: str = "flint",
+def fold_hopf(model: Model, parameters: str | Sequence[str], second: str | None = None, *,
+              point: Mapping[str, object] | None = None, equilibrium: EquilibriumSpec = None,
+              eliminate: Sequence[str] | None = None, values: Mapping[str, object] | None = None,
+              assume: Mapping[str, str] | None = None, backend: str = "flint",
               branch: int = 0) -> FoldHopfResult:
     """Fold-Hopf analysis in two symbols.
 

@@ -41,6 +41,8 @@ q2 leaves them alone).  ``Re p11 Re p22 > 0`` is the simple case,
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any, Mapping, Sequence
+
 from dataclasses import dataclass
 
 import sympy
@@ -52,12 +54,15 @@ from ..errors import DegenerateBifurcationError, DegenerateHopfError, NoHopfPoin
 from ..kinds import HopfHopfCase, PointStatus, Sign, coerce
 from ..local.eigenbasis import critical_eigenbasis
 from ..algebra.linalg import characteristic_polynomial
-from ..local.prepare import expr, prepare, sign_word
+from ..local.prepare import EquilibriumSpec, expr, prepare, sign_word
 from ..local.projection import projection_c1
 from ..outputs.simple import render_json, render_latex, render_text
 from .bogdanov_takens import _solve_pair
 from .fold_hopf import _located, _names
 from .map_normal_form import solve_complex
+
+if TYPE_CHECKING:
+    from ..model.core import Model
 
 __all__ = ["HopfHopfResult", "hopf_hopf", "hopf_hopf_all", "HOPF_HOPF_CONVENTIONS",
            "hopf_hopf_scenario", "principal_subresultant"]
@@ -98,7 +103,7 @@ class HopfHopfResult:
     def __post_init__(self) -> None:
         coerce(self, case=HopfHopfCase, status=PointStatus)
 
-    def rows(self):
+    def rows(self) -> list[tuple[str, str, object]]:
         return [("values", "Hopf-Hopf point", self.values),
                 ("equilibrium", "equilibrium", self.equilibrium),
                 ("omega1", "omega1", self.omega1), ("omega2", "omega2", self.omega2),
@@ -116,7 +121,7 @@ class HopfHopfResult:
     def to_latex(self) -> str:
         return render_latex("Hopf-Hopf point", self.rows())
 
-    def to_json(self, **kwargs) -> str:
+    def to_json(self, **kwargs: Any) -> str:
         return render_json("hopf_hopf", self.rows(), self.notes, self.conventions, **kwargs)
 
     def __str__(self):
@@ -352,8 +357,11 @@ def _symbol_values(prep, sub, E, names):
     return out
 
 
-def hopf_hopf_all(model, parameters, second=None, *, point=None, equilibrium=None,
-                  eliminate=None, values=None, assume=None, backend: str = "flint") -> tuple:
+def hopf_hopf_all(model: Model, parameters: str | Sequence[str], second: str | None = None, *,
+                  point: Mapping[str, object] | None = None, equilibrium: EquilibriumSpec = None,
+                  eliminate: Sequence[str] | None = None,
+                  values: Mapping[str, object] | None = None,
+                  assume: Mapping[str, str] | None = None, backend: str = "flint") -> tuple:
     """Every closed-form Hopf-Hopf point (see :func:`hopf_hopf`)."""
     p1, p2 = _names(parameters, second)
     model.require_kind("flow", "the Hopf-Hopf analysis")
@@ -384,8 +392,10 @@ def hopf_hopf_all(model, parameters, second=None, *, point=None, equilibrium=Non
         f"and '{p2}'" + (f" ({errors[0]})" if errors else ""), reason="empty_critical_set")
 
 
-def hopf_hopf(model, parameters, second=None, *, point=None, equilibrium=None, eliminate=None,
-              values=None, assume=None, backend: str = "flint",
+def hopf_hopf(model: Model, parameters: str | Sequence[str], second: str | None = None, *,
+              point: Mapping[str, object] | None = None, equilibrium: EquilibriumSpec = None,
+              eliminate: Sequence[str] | None = None, values: Mapping[str, object] | None = None,
+              assume: Mapping[str, str] | None = None, backend: str = "flint",
               branch: int = 0) -> HopfHopfResult:
     """Hopf-Hopf analysis in two symbols; arguments as for :func:`fold_hopf`.
 

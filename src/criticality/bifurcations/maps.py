@@ -34,6 +34,8 @@ Conventions (stated on every result):
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any, Mapping, Sequence
+
 import dataclasses
 from dataclasses import dataclass
 
@@ -45,12 +47,15 @@ from ..errors import DegenerateBifurcationError, DegenerateHopfError, NoHopfPoin
 from ..kinds import PointStatus, Sign, coerce
 from ..local.critical import cofactor_hurwitz, find_critical_branches
 from ..algebra.linalg import characteristic_polynomial
-from ..local.prepare import expr, sign_word
+from ..local.prepare import EquilibriumSpec, expr, sign_word
 from ..local.prepare import solve_for as solve_symbol
 from ..outputs.simple import render_json, render_latex, render_text
 from .map_normal_form import flip_coefficients, flip_vectors, ns_coefficient, unit_circle_vectors
 from .map_setup import cayley, condition_status, inside_unit_circle, map_jacobian, prepare_map, \
     unknown_symbol
+
+if TYPE_CHECKING:
+    from ..model.core import Model
 
 __all__ = ["FlipResult", "NeimarkSackerResult", "flip", "flip_all", "neimark_sacker",
            "neimark_sacker_all", "FLIP_CONVENTIONS", "NS_CONVENTIONS"]
@@ -103,7 +108,7 @@ class FlipResult:
     def __post_init__(self) -> None:
         coerce(self, coefficient_sign=Sign, status=PointStatus)
 
-    def rows(self):
+    def rows(self) -> list[tuple[str, str, object]]:
         return [("system", "system", "map x -> F(x) (discrete time)"),
                 ("parameter", "parameter", self.parameter),
                 ("critical_values", "critical values (multiplier -1)", self.critical_values),
@@ -124,7 +129,7 @@ class FlipResult:
     def to_latex(self) -> str:
         return render_latex("flip point of a map", self.rows())
 
-    def to_json(self, **kwargs) -> str:
+    def to_json(self, **kwargs: Any) -> str:
         return render_json("flip", self.rows(), self.notes, self.conventions, **kwargs)
 
     def __str__(self):
@@ -158,7 +163,7 @@ class NeimarkSackerResult:
     def __post_init__(self) -> None:
         coerce(self, lyapunov_sign=Sign, status=PointStatus)
 
-    def rows(self):
+    def rows(self) -> list[tuple[str, str, object]]:
         return [("system", "system", "map x -> F(x) (discrete time)"),
                 ("parameter", "parameter", self.parameter),
                 ("critical_values", "critical values (|lambda| = 1)", self.critical_values),
@@ -185,7 +190,7 @@ class NeimarkSackerResult:
     def to_latex(self) -> str:
         return render_latex("Neimark-Sacker point of a map", self.rows())
 
-    def to_json(self, **kwargs) -> str:
+    def to_json(self, **kwargs: Any) -> str:
         return render_json("neimark_sacker", self.rows(), self.notes, self.conventions,
                            **kwargs)
 
@@ -271,8 +276,10 @@ def _flip_point(prep, sp, unknown, chi, dchi):
                       E(speed), amp, _flip_verdict(sign), status, conds, notes)
 
 
-def flip_all(model, parameter: str, *, solve_for: str | None = None, equilibrium=None,
-             eliminate=None, values=None, assume=None, backend: str = "flint") -> tuple:
+def flip_all(model: Model, parameter: str, *, solve_for: str | None = None,
+             equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
+             values: Mapping[str, object] | None = None, assume: Mapping[str, str] | None = None,
+             backend: str = "flint") -> tuple:
     """Every closed-form flip point (see :func:`flip`)."""
     prep = prepare_map(model, parameter, equilibrium=equilibrium, eliminate=eliminate,
                        values=values, assume=assume, order=3, backend=backend,
@@ -304,9 +311,10 @@ def flip_all(model, parameter: str, *, solve_for: str | None = None, equilibrium
 
 
 
-def flip(model, parameter: str, *, solve_for: str | None = None, equilibrium=None,
-         eliminate=None, values=None, assume=None, backend: str = "flint",
-         branch: int = 0) -> FlipResult:
+def flip(model: Model, parameter: str, *, solve_for: str | None = None,
+         equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
+         values: Mapping[str, object] | None = None, assume: Mapping[str, str] | None = None,
+         backend: str = "flint", branch: int = 0) -> FlipResult:
     """Period-doubling (flip) analysis of a map's fixed point in ``parameter``.
 
     Parameters
@@ -434,9 +442,10 @@ def _map_error(exc):
     return exc
 
 
-def neimark_sacker_all(model, parameter: str, *, solve_for: str | None = None,
-                       equilibrium=None, eliminate=None, values=None, assume=None,
-                       backend: str = "flint") -> tuple:
+def neimark_sacker_all(model: Model, parameter: str, *, solve_for: str | None = None,
+                       equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
+                       values: Mapping[str, object] | None = None,
+                       assume: Mapping[str, str] | None = None, backend: str = "flint") -> tuple:
     """Every closed-form Neimark-Sacker point (see :func:`neimark_sacker`)."""
     prep = prepare_map(model, parameter, equilibrium=equilibrium, eliminate=eliminate,
                        values=values, assume=assume, order=3, backend=backend,
@@ -480,8 +489,10 @@ def neimark_sacker_all(model, parameter: str, *, solve_for: str | None = None,
     return tuple(out)
 
 
-def neimark_sacker(model, parameter: str, *, solve_for: str | None = None, equilibrium=None,
-                   eliminate=None, values=None, assume=None, backend: str = "flint",
+def neimark_sacker(model: Model, parameter: str, *, solve_for: str | None = None,
+                   equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
+                   values: Mapping[str, object] | None = None,
+                   assume: Mapping[str, str] | None = None, backend: str = "flint",
                    branch: int = 0) -> NeimarkSackerResult:
     """Neimark-Sacker analysis of a map's fixed point in ``parameter``.
 

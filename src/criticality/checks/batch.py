@@ -86,7 +86,7 @@ def _analyse_text(text: str, source: str, options: dict):
         fields = {"status": "ok", "parameter": result.parameter,
                   "critical_value": str(result.critical_value), "omega": str(result.omega),
                   "l1": str(result.l1), "classification": str(result.classification)}
-        return fields, result.to_json()
+        return fields, result.to_json()  # type: ignore[union-attr]  # no guess: never numeric
     except CriticalityError as exc:
         return {"status": "failed", "error": f"{type(exc).__name__}: {exc}"}, None
     except (ArithmeticError, ValueError, TypeError, RecursionError, MemoryError) as exc:
@@ -132,7 +132,8 @@ def analyse_many(paths: Sequence, *, parameter: str | None = None, out_dir=None,
         raise ParameterError(f"out_dir {os.fspath(out_dir)!r} is not an existing folder")
     options = {"parameter": parameter, "order": order,
                "values": dict(values) if values else None, "time_limit": time_limit}
-    items, early = [], {}
+    items: list = []
+    early: dict = {}
     for i, path in enumerate(paths):
         try:
             with open(path, encoding="utf-8") as handle:

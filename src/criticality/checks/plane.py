@@ -27,7 +27,7 @@ from __future__ import annotations
 import math
 import os
 from dataclasses import dataclass
-from typing import Mapping
+from typing import Any, Mapping
 
 import sympy
 
@@ -67,11 +67,11 @@ class CurveData:
 
     x_name: str
     y_name: str
-    x: object
-    y: object
-    segment: object
-    l1: object
-    others_stable: object
+    x: Any
+    y: Any
+    segment: Any
+    l1: Any
+    others_stable: Any
     zeros: tuple
     mode: str
     fixed: Mapping[str, object]
@@ -283,10 +283,10 @@ class StabilityGrid:
     eigenvalues).
     """
 
-    x: object
-    y: object
-    stable: object
-    known: object
+    x: Any
+    y: Any
+    stable: Any
+    known: Any
     method: str
 
 

@@ -20,7 +20,7 @@ from __future__ import annotations
 import sys
 import time
 from dataclasses import dataclass
-from typing import Callable, Mapping
+from typing import Any, Callable, Mapping
 
 import sympy
 
@@ -73,8 +73,8 @@ class Sweep:
     quantity: str
     expression: sympy.Expr
     grid: Mapping[str, object]
-    values: object
-    admissible: object
+    values: Any
+    admissible: Any
     fixed: Mapping[str, sympy.Expr]
 
     @property
@@ -230,7 +230,7 @@ def _evaluate_block(fn, flat, report=None, offset: int = 0, total: int | None = 
     return out
 
 
-def _evaluate(np, fn, arrays, report, scheduler=None) -> object:
+def _evaluate(np, fn, arrays, report, scheduler=None) -> Any:
     flat = [a.ravel() for a in arrays]
     total = flat[0].size
     if scheduler is None:

@@ -199,7 +199,7 @@ def validate(result, values: Mapping | None = None, *, offsets: Sequence[float] 
     opts = dict(method=how, rtol=rtol, np=np, ivp=ivp)
     measure_dir, bracket_dir = _plan(setup)
     approach = {1: "forward", -1: "backward"}.get(measure_dir, "shooting" if shooting else None)
-    notes = []
+    notes: list[str] = []
     measurements = tuple(_measure(setup, sign * d, approach, window_periods, max_periods,
                                   notes, opts) for d in deltas) if approach else ()
     brackets = tuple(_bracket(setup, sign * d, bracket_dir, bracket_factors, max_periods, opts)
@@ -316,7 +316,7 @@ def _bracket(setup, offset, direction, factors, max_periods, opts) -> BracketOut
 
 
 def _orders(measurements) -> tuple:
-    out = []
+    out: list[float | None] = []
     for a, b in zip(measurements, measurements[1:]):
         ea, eb = a.worst_amplitude_error, b.worst_amplitude_error
         if not (a.measured and b.measured) or not ea or not eb:

@@ -76,7 +76,8 @@ def _confirm(args) -> int:
     point = {k: float(v) if not isinstance(v, str) else v for k, v in _merged(args.point).items()}
     offsets = [float(x) for x in args.offsets.split(",")] if args.offsets else None
     with Stage("simulating the delay equation at three offsets", quiet=quiet):
-        report = result.validate(_floats(point), offsets=offsets)
+        report = result.validate(  # type: ignore[union-attr]  # a delay model, no guess
+            _floats(point), offsets=offsets)
     write_output(str(report) + "\n", args.output, force=args.force)
     if report.status == "confirmed":
         return 0

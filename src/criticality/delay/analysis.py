@@ -8,7 +8,7 @@ hands a model with delayed states here.
 
 from __future__ import annotations
 
-from typing import Mapping
+from typing import TYPE_CHECKING, Any, Mapping, Sequence
 
 import sympy
 
@@ -23,14 +23,20 @@ from ..errors import ClosedFormUnavailableError, NoHopfPointError, ParameterErro
 from ..hopf_analysis.results import CyclePrediction
 from ..kinds import Classification, Side
 
+if TYPE_CHECKING:
+    from .numeric import NumericDelayHopf
+    from ..local.prepare import EquilibriumSpec
+    from ..model.core import Model
+
 __all__ = ["hopf_delay"]
 
 
-def hopf_delay(model, parameter: str | None = None, *, equilibrium=None,
-               values: Mapping | None = None, branch: int | None = None,
-               assume: Mapping | None = None, time_limit: float | None = None,
-               order: int = 3, eliminate=None, guess=None, backend: str = "sympy",
-               digits: int = 30, **_ignored) -> DelayHopfResult:
+def hopf_delay(model: Model, parameter: str | None = None, *, equilibrium: EquilibriumSpec = None,
+               values: Mapping[str, object] | None = None, branch: int | None = None,
+               assume: Mapping[str, str] | None = None, time_limit: float | None = None,
+               order: int = 3, eliminate: Sequence[str] | None = None,
+               guess: Mapping[str, object] | None = None, backend: str = "sympy", digits: int = 30,
+               **_ignored: Any) -> DelayHopfResult | NumericDelayHopf:
     """Hopf analysis of a retarded equation with respect to ``parameter``.
 
     Parameters

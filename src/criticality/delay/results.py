@@ -7,12 +7,16 @@ Pipeline place: normal form -> **result** -> outputs (text, LaTeX, JSON),
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import Mapping
+from typing import TYPE_CHECKING, Mapping
 
 import sympy
 
 from ..hopf_analysis.results import CyclePrediction
 from ..kinds import Classification, coerce
+
+if TYPE_CHECKING:
+    from ..model.core import Model
+    from .evaluate import NumericDelayResult
 
 __all__ = ["DelayConventions", "DELAY_CONVENTIONS", "DelayHopfResult"]
 
@@ -114,7 +118,7 @@ class DelayHopfResult:
         and ``tau_0`` (the closed forms above), which read far shorter.
     """
 
-    model: object
+    model: Model
     parameter: str
     mode: str
     delays: tuple
@@ -178,7 +182,7 @@ class DelayHopfResult:
         return tuple(sympy.simplify(self.critical_sequence.xreplace({J_INDEX: j}))
                      for j in range(count))
 
-    def evaluate(self, values: Mapping | None = None, *, digits: int = 30) -> dict:
+    def evaluate(self, values: Mapping | None = None, *, digits: int = 30) -> NumericDelayResult:
         """Every quantity at a parameter point, to ``digits`` digits (mpmath), with
         an independent check: the residual of the quasi-polynomial at ``i omega``.
 

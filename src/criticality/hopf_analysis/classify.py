@@ -70,7 +70,7 @@ def classify(fs: FactoredSign, *, coefficient: str = "l1") -> Verdict:
     zero_exprs = [f.expr for f in undecided if not f.in_denominator] + \
                  [f.expr for f in even_unknown if not f.in_denominator]
     zero_set = sympy.Eq(sympy.Mul(*zero_exprs), 0, evaluate=False) if zero_exprs else None
-    zero_words = _show(zero_set.lhs, "Z, the product in zero_set") if zero_exprs else ""
+    zero_words = _show(zero_set.lhs, "Z, the product in zero_set") if zero_set is not None else ""
     where = f" except where {zero_words} = 0" if zero_exprs else ""
     if fs.sign in (NEGATIVE, NONPOSITIVE) and not undecided:
         return Verdict(SUPERCRITICAL, "supercritical for all admissible parameters" + where,

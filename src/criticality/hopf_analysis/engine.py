@@ -141,7 +141,7 @@ def _in_range(branch, ctx, assumption) -> bool:
     return sign not in bad
 
 
-def _compute_branch(tower, taylor_mu, branch, problem, order) -> BranchComputation:
+def _compute_branch(tower, taylor_mu, branch, problem, order) -> BranchComputation | None:
     target = branch.tower
     mu, value, images = problem.mu, branch.value, branch.images
     K = target.top

@@ -215,9 +215,9 @@ def run_mp(setup: NumericSetup, system: HopfSystem, pt, dps: int, order: int,
             cs = complex_normal_form(taylor, eb, order)
         elif routes:  # the second route: complex solves on the compiled tensors
             c1 = mp_projection_c1(ct, vals, A, om, q, pbar)
-            cs = [N.element(mpmath.re(c1), mpmath.im(c1) / om)]
+            cs = (N.element(mpmath.re(c1), mpmath.im(c1) / om),)
         else:
-            cs = [c1p]
+            cs = (c1p,)
         n = ct.n
         f_mu = mpmath.matrix(n, 1)
         for i, pos in ct.layout.f_p[0]:
@@ -294,7 +294,7 @@ def guess_vector(model, parameter, guess):
     return out
 
 
-def hopf_numeric(model, parameter: str, guess: Mapping, *, digits: int = 30, order: int = 3,
+def hopf_numeric(model, parameter: str | None, guess: Mapping, *, digits: int = 30, order: int = 3,
                  values: Mapping | None = None, radius: float = 1.0):
     """Locate a Hopf point numerically from ``guess`` and analyse it.
 

@@ -12,12 +12,15 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field, fields, is_dataclass, replace
 from functools import cached_property
-from typing import ClassVar, Mapping
+from typing import TYPE_CHECKING, Any, ClassVar, Mapping
 
 import sympy
 
 from ..kinds import Classification, Side, coerce
 from ..renderers import render
+
+if TYPE_CHECKING:
+    from ..model.core import Model
 
 __all__ = ["Conventions", "CONVENTIONS", "CyclePrediction", "ReducedSystemView", "StoredDetails",
            "HopfResult"]
@@ -153,7 +156,7 @@ class HopfResult:
 
     result_kind: ClassVar[str] = "hopf"
 
-    model: object
+    model: Model
     parameter: str
     parameter_symbol: sympy.Symbol
     equilibrium: Mapping[str, sympy.Expr]
@@ -182,7 +185,7 @@ class HopfResult:
     assumptions: Mapping[str, str]
     conventions: Conventions = CONVENTIONS
     status: str = "closed form"
-    _details: object = field(default=None, repr=False, compare=False)
+    _details: Any = field(default=None, repr=False, compare=False)
     #: ``(parameter record, value)`` of the parameters fixed before the analysis (``values=``)
     fixed_parameters: tuple = ()
 

@@ -78,7 +78,9 @@ def reduce_to_center_manifold(taylor, eb, order: int) -> ReducedSystem:
     u = [{(1, 0): e1[j], (0, 1): e2[j]} for j in range(n)]
     for j in range(n):
         u[j] = {m: c for m, c in u[j].items() if c}
-    g1, g2, h = {}, {}, {}
+    g1: dict = {}
+    g2: dict = {}
+    h: dict = {}
     for k in range(2, order + 1):
         cache: dict = {}
         R = [_degree_part(taylor, i, u, k, cache) for i in range(n)]

@@ -202,7 +202,7 @@ class CompiledExpressions:
         object.__setattr__(self, "_fn", namespace["_generated"])
 
     def __call__(self, args: Sequence) -> list:
-        return self._fn(args)
+        return self._fn(args)  # type: ignore[attr-defined]  # set in __post_init__, not a field
 
     def __reduce__(self):
         return (CompiledExpressions, (self.source, self.backend, self.count, self.arity))

@@ -40,7 +40,7 @@ __all__ = ["CompiledTaylor", "compile_taylor"]
 def _derivatives(graph, f: int, i: int, n: int, order: int, out: list) -> None:
     """Append ``(i, index tuple, node)`` for f and its nonzero x-derivatives."""
     out.append((i, (), f))
-    stack = [(f, ())]
+    stack: list[tuple[int, tuple[int, ...]]] = [(f, ())]
     while stack:
         node, idx = stack.pop()
         if len(idx) >= order:
@@ -103,7 +103,7 @@ class CompiledTaylor:
             _derivatives(graph, f, i, self.n, order, entries)
         outputs = [node for _, _, node in entries]
         positions = {(i, idx): k for k, (i, idx, _) in enumerate(entries)}
-        by_degree = [[] for _ in range(order + 1)]
+        by_degree: list[list] = [[] for _ in range(order + 1)]
         for (i, idx), k in positions.items():
             by_degree[len(idx)].append((i, idx, k))
         f_p, J_p = [], []
@@ -157,7 +157,7 @@ class CompiledTaylor:
         from compiled values ``vals``, in ``field``."""
         order = self.order if order is None else order
         n = self.n
-        comps = [dict() for _ in range(n)]
+        comps: list[dict] = [dict() for _ in range(n)]
         for k in range(1, order + 1):
             for i, idx, pos in self.layout.by_degree[k]:
                 v = vals[pos]

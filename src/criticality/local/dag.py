@@ -173,9 +173,9 @@ class ExpressionGraph:
 
     def depends(self, a: int) -> frozenset:
         """The arguments node ``a`` depends on."""
-        cache = getattr(self, "_deps", None)
+        cache: dict[int, frozenset] | None = getattr(self, "_deps", None)
         if cache is None:
-            cache = self._deps = {}
+            cache = self._deps = {}  # type: ignore[var-annotated]  # typed on the line above
         hit = cache.get(a)
         if hit is not None:
             return hit

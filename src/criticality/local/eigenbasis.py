@@ -22,6 +22,8 @@ So the other eigenvalues, which usually have no closed form, are never needed.
 
 from __future__ import annotations
 
+from typing import Any
+
 from dataclasses import dataclass
 
 from ..algebra.linalg import dot, kernel, matmul, matvec, transpose
@@ -63,9 +65,9 @@ class Eigenbasis:
     pbar: list
     w: list
     wA: list
-    qq: object
-    field: object
-    nu_field: object
+    qq: Any  # an element of ``field``
+    field: Any
+    nu_field: Any  # the extension K(nu), nu^2 = -W
     gram: tuple  # ((w.e1, w.e2), (wA.e1, wA.e2), determinant)
 
     def center_coordinates(self, y):

@@ -30,6 +30,8 @@ each step gains about ``16 - log10(cond)`` digits).
 
 from __future__ import annotations
 
+from typing import Any
+
 from dataclasses import dataclass
 
 import mpmath
@@ -93,10 +95,10 @@ class MpField(FloatField):
 class HopfPoint:
     """A solution of the Hopf system (float64 numpy arrays, or mpmath lists)."""
 
-    x: object
-    mu: object
-    omega: object
-    q: object            # complex eigenvector, A q = i omega q
+    x: Any
+    mu: Any
+    omega: Any
+    q: Any               # complex eigenvector, A q = i omega q
     params: tuple        # every parameter value (the bifurcation parameter set to mu)
     iterations: int
     distance: float      # scaled max-norm distance of (x, mu) from the guess

@@ -133,7 +133,9 @@ def solve_for(tower: Tower, x, symbol, positive: bool = False):
     ``(points, unsolved)`` with ``points`` a list of :class:`SolvedPoint` and
     ``unsolved`` the sympy factors left alone.  Values proved non-real (or,
     with ``positive``, proved non-positive) are dropped."""
-    points, unsolved, late = [], [], []
+    points: list = []
+    unsolved: list = []
+    late: list = []
     for kind, data in closed_form_solutions(tower, x, symbol, biquadratic=True):
         if kind == UNSOLVED:
             unsolved.append(data)

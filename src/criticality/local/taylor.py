@@ -72,7 +72,8 @@ def raw_taylor(equations, states, equilibrium, order: int, names=None) -> RawTay
         State names, for error messages.
     """
     names = names or [str(s) for s in states]
-    polys, shifted = [], []
+    polys: list = []
+    shifted: list = []
     for i, f in enumerate(equations):
         terms = _polynomial_terms(f, states)
         if terms is not None:

@@ -230,8 +230,8 @@ class Model:
         if name in self.states:
             raise ParameterError(f"{name!r} is a state of the model, not a parameter")
         names = [p.name for p in self.parameters]
-        hint = _suggest(str(name), names)
-        hint = f"; did you mean {' or '.join(map(repr, hint))}?" if hint else ""
+        close = _suggest(str(name), names)
+        hint = f"; did you mean {' or '.join(map(repr, close))}?" if close else ""
         listing = f" (parameters: {', '.join(names)})" if names else " (it has no parameters)"
         raise ParameterError(f"the model has no parameter {str(name)[:40]!r}{hint}{listing}")
 

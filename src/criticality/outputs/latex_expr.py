@@ -331,7 +331,9 @@ class TexWriter:
         num, den = sympy.fraction(e, exact=True)
         if den != 1:
             return [self.tex(e)]
-        lines, current, used = [], [], 0.0
+        lines: list = []
+        current: list = []
+        used = 0.0
         for factor in e.as_ordered_factors():
             size = self.measure(factor) + 1.5 * factor.is_Add
             if current and used + size > width:

@@ -190,7 +190,8 @@ def formula_to_tex(text: str) -> str:
     >>> print(formula_to_tex("Re d lambda / d mu != 0"))
     \operatorname{Re} d \lambda/d \mu \neq 0
     """
-    chunks, previous = [[]], None
+    chunks: list[list] = [[]]
+    previous = None
     for token in _TOKEN.findall(text):
         if previous is not None and re.fullmatch(r"[A-Za-z0-9_.]+'?", token) and \
                 re.fullmatch(r"[A-Za-z0-9_.)]+'?", previous):
@@ -259,7 +260,7 @@ def prose_to_tex(text: str, names=()) -> str:
 
 def _pieces(text: str):
     """Known phrases (with their LaTeX) and candidate formulas, in order."""
-    found = []
+    found: list[tuple[int, int, str | None]] = []
     for phrase, tex in _PHRASES.items():
         for match in re.finditer(re.escape(phrase), text):
             if not any(s < match.end() and match.start() < e for s, e, _ in found):

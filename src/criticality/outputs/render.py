@@ -34,7 +34,7 @@ CAUTIONS = (
     "and to licensed engineering practice; this analysis does not replace them.",
 )
 
-_CLASSIFICATION = {
+_CLASSIFICATION: dict[str, str] = {
     Classification.SUPERCRITICAL: ("Supercritical (l1 < 0): a stable limit cycle is born as the equilibrium "
                       "loses stability; its amplitude grows like the square root of the distance "
                       "from the critical value (a soft, reversible onset)."),
@@ -222,7 +222,7 @@ def cycle_sentences(result, show=None) -> list:
     return out
 
 
-_SIGN_KEYWORDS = {"positive": {"positive": True}, "negative": {"negative": True},
+_SIGN_KEYWORDS: dict[str | None, dict[str, bool]] = {"positive": {"positive": True}, "negative": {"negative": True},
                   "nonnegative": {"nonnegative": True}}
 
 

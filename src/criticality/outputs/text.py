@@ -136,13 +136,13 @@ def _expr_lines(prefix: str, expr, width: int, indent: str = "    ", suffix: str
                                                              suffix, lines)
     room = max(width - len(prefix) - len(indent), 20)
     pieces = _wrapped(model_text(decimal(expr) if raw else _shown(expr)), room, lines)
-    lines = [f"{indent}{prefix}{pieces[0]}"] + [f"{indent}{' ' * len(prefix)}  {p}"
-                                                for p in pieces[1:]]
-    if suffix and len(lines[-1]) + len(suffix) + 1 <= width:
-        lines[-1] += " " + suffix
+    out = [f"{indent}{prefix}{pieces[0]}"] + [f"{indent}{' ' * len(prefix)}  {p}"
+                                              for p in pieces[1:]]
+    if suffix and len(out[-1]) + len(suffix) + 1 <= width:
+        out[-1] += " " + suffix
     elif suffix:
-        lines.append(f"{indent}{suffix}")
-    return lines
+        out.append(f"{indent}{suffix}")
+    return out
 
 
 def _header(result, width: int) -> list:
