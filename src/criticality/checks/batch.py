@@ -17,7 +17,7 @@ import csv
 import io
 import os
 from dataclasses import dataclass
-from typing import Mapping, Sequence
+from typing import Any, Mapping, Sequence
 
 from ..errors import CriticalityError, ParameterError
 
@@ -95,10 +95,11 @@ def _analyse_text(text: str, source: str, options: dict):
             None
 
 
-def analyse_many(paths: Sequence, *, parameter: str | None = None, out_dir=None,
+def analyse_many(paths: Sequence, *, parameter: str | None = None,
+                 out_dir: str | os.PathLike[str] | None = None,
                  order: int = 3, values: Mapping | None = None,
                  time_limit: float | None = None, force: bool = False,
-                 scheduler=None) -> BatchSummary:
+                 scheduler: Any = None) -> BatchSummary:
     """Hopf analysis of every model file in ``paths``.
 
     Parameters

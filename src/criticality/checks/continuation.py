@@ -31,11 +31,15 @@ from __future__ import annotations
 
 import csv
 import io
+import os
 from dataclasses import dataclass, field
-from typing import Mapping
+from typing import TYPE_CHECKING, Any, Mapping
 
 from ..errors import EquilibriumNotFoundError, MissingExtraError, ParameterError
 from ..kinds import Classification
+
+if TYPE_CHECKING:
+    from ..model.core import Model
 
 __all__ = ["HopfCurve", "CurvePoint", "hopf_curve"]
 
@@ -113,7 +117,7 @@ class HopfCurve:
         out["verdict"] = list(self.verdict)
         return out
 
-    def to_pandas(self):
+    def to_pandas(self) -> Any:
         """The table as a pandas DataFrame (needs pandas)."""
         try:
             import pandas
@@ -122,7 +126,7 @@ class HopfCurve:
                                     "pip install pandas") from exc
         return pandas.DataFrame(self.columns())
 
-    def to_csv(self, path=None, *, force: bool = False) -> str:
+    def to_csv(self, path: str | os.PathLike[str] | None = None, *, force: bool = False) -> str:
         """The table as CSV text (also written to ``path`` if given; an
         existing file is kept unless ``force``)."""
         cols = self.columns()
@@ -138,7 +142,7 @@ class HopfCurve:
             write_text_atomic(path, text, force=force)
         return text
 
-    def plot(self, ax=None):
+    def plot(self, ax: Any = None) -> Any:
         """The curve in the ``(along, parameter)`` plane, coloured by verdict,
         Bautin points and turning points marked; returns the axes."""
         try:
@@ -165,7 +169,7 @@ class HopfCurve:
         ax.set_xlabel(self.along)
         ax.set_ylabel(f"{self.parameter} at the Hopf point")
         handles, labels = ax.get_legend_handles_labels()
-        seen = {}
+        seen: dict = {}
         for h, lab in zip(handles, labels):
             seen.setdefault(lab, h)
         ax.legend(list(seen.values()), list(seen), loc="best")
@@ -409,9 +413,9 @@ def _turning(curve, points, k):
                       f"'{curve.setup.names[curve.ai]}' is extremal along the curve here")
 
 
-def hopf_curve(model, parameter: str, along: Mapping, guess: Mapping, *,
+def hopf_curve(model: Model, parameter: str, along: Mapping, guess: Mapping, *,
                values: Mapping | None = None, order: int = 3, radius: float = 1.0,
-               max_steps: int | None = None, scheduler=None) -> HopfCurve:
+               max_steps: int | None = None, scheduler: Any = None) -> HopfCurve:
     """Follow the Hopf point of ``parameter`` as another parameter moves.
 
     Parameters

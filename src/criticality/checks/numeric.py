@@ -13,7 +13,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import ClassVar, Mapping
+from typing import Any, ClassVar, Mapping
 
 import mpmath
 import sympy
@@ -40,19 +40,19 @@ class NumericHopfResult:
 
     values: Mapping[str, object]
     digits: int
-    critical_value: object
-    omega_squared: object
-    omega: object
-    period: object
-    transversality: object
-    c1: object
-    l1: object
+    critical_value: Any  # an mpmath number
+    omega_squared: Any  # an mpmath number
+    omega: Any  # an mpmath number
+    period: Any  # an mpmath number
+    transversality: Any  # an mpmath number
+    c1: Any  # an mpmath number
+    l1: Any  # an mpmath number
     lyapunov_coefficients: tuple
     classification: Classification
     equilibrium: Mapping[str, object]
-    amplitude_coefficients: Mapping[str, object]
+    amplitude_coefficients: Mapping[str, Any]
     eigenvalues: tuple
-    pair_error: object
+    pair_error: Any  # an mpmath number
     others_stable: bool
     conditions: tuple
 
@@ -67,7 +67,7 @@ class NumericHopfResult:
     def _repr_markdown_(self) -> str:
         return render(self, "markdown")
 
-    def amplitude(self, offset) -> dict:
+    def amplitude(self, offset: float) -> dict:
         """Predicted amplitude of each state at ``mu = mu_c + offset`` (on the
         side where the cycle exists, else NaN)."""
         with mpmath.workdps(self.digits):

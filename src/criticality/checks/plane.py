@@ -27,7 +27,7 @@ from __future__ import annotations
 import math
 import os
 from dataclasses import dataclass
-from typing import Any, Mapping
+from typing import TYPE_CHECKING, Any, Mapping, Sequence
 
 import sympy
 
@@ -35,6 +35,9 @@ from ..files import write_text_atomic
 from ..errors import ParameterError
 from ..kinds import Classification
 from .sweeps import _numpy, grid_function, sweep
+
+if TYPE_CHECKING:
+    from ..hopf_analysis.results import HopfResult
 
 __all__ = ["CurveData", "StabilityGrid", "curve_data", "stability_grid", "curve_csv",
            "write_curve_csv", "feasibility_grid", "state_signs"]
@@ -112,8 +115,9 @@ def _range(name, rng):
     return lo, hi
 
 
-def curve_data(result, x: str, y: str, *, values: Mapping | None = None, x_range=(0.0, 1.0),
-               y_range=(0.0, 1.0), points: int = 400) -> CurveData:
+def curve_data(result: HopfResult, x: str, y: str, *, values: Mapping | None = None,
+               x_range: Sequence[float] = (0.0, 1.0), y_range: Sequence[float] = (0.0, 1.0),
+               points: int = 400) -> CurveData:
     """The Hopf curve of ``result`` in the ``(x, y)`` parameter plane.
 
     Parameters
@@ -441,7 +445,8 @@ def curve_csv(curve: CurveData) -> str:
     return "\n".join(lines) + "\n"
 
 
-def write_curve_csv(curve: CurveData, path, *, force: bool = False) -> str:
+def write_curve_csv(curve: CurveData, path: str | os.PathLike[str], *,
+                    force: bool = False) -> str:
     """Write :func:`curve_csv` to ``path`` atomically; returns the path.
 
     Raises

@@ -250,8 +250,11 @@ def _evaluate(np, fn, arrays, report, scheduler=None) -> Any:
     return out.reshape(arrays[0].shape)
 
 
-def sweep(result, quantity, grid: Mapping, *, values: Mapping | None = None,
-          progress: bool | str | Callable = "auto", scheduler=None) -> Sweep:
+# ``result`` is a HopfResult, typed as Any: HopfResult.evaluate_many calls into this module,
+# and a type-only import back would make the two modules import each other.
+def sweep(result: Any, quantity: str | sympy.Expr, grid: Mapping, *,
+          values: Mapping | None = None, progress: bool | str | Callable = "auto",
+          scheduler: Any = None) -> Sweep:
     """Evaluate a closed form of ``result`` over a grid of parameter values.
 
     Parameters

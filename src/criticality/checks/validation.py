@@ -33,12 +33,15 @@ from __future__ import annotations
 
 import math
 import time
-from typing import Mapping, Sequence
+from typing import TYPE_CHECKING, Any, Mapping, Sequence
 
 from .simulate import bracket, local_frame, measure_cycle, prepare, settle_time, shoot_cycle
 from ..errors import MissingExtraError, ParameterError, ValidationRunError
 from ..kinds import Classification, Side
 from .validation_report import BracketOutcome, CycleMeasurement, ValidationReport
+
+if TYPE_CHECKING:
+    from ..hopf_analysis.results import HopfResult
 
 __all__ = ["validate", "default_offsets", "natural_scale", "ValidationReport", "CycleMeasurement",
            "BracketOutcome"]
@@ -130,11 +133,12 @@ def _plan(setup) -> tuple:
     return measure, brackets
 
 
-def validate(result, values: Mapping | None = None, *, offsets: Sequence[float] | None = None,
+def validate(result: HopfResult, values: Mapping | None = None, *,
+             offsets: Sequence[float] | None = None,
              tolerance: float = 0.05, method: str | None = None, rtol: float = 1e-9,
              window_periods: int = 10, max_periods: int = 4000,
              bracket_factors: tuple = (0.7, 1.3), shooting: bool = True,
-             **kwargs) -> ValidationReport:
+             **kwargs: Any) -> ValidationReport:
     """Check the predicted cycle of ``result`` by simulating the original model.
 
     Parameters

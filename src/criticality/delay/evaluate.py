@@ -53,7 +53,7 @@ class NumericDelayResult:
     def __getitem__(self, key):
         return getattr(self, key)
 
-    def amplitude(self, offset) -> dict:
+    def amplitude(self, offset: float) -> dict:
         """Predicted amplitude of each state at ``mu = mu_c + offset`` (NaN on the
         side without a cycle)."""
         with mpmath.workdps(self.digits):

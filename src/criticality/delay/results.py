@@ -7,7 +7,7 @@ Pipeline place: normal form -> **result** -> outputs (text, LaTeX, JSON),
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import TYPE_CHECKING, Mapping
+from typing import TYPE_CHECKING, Any, Mapping
 
 import sympy
 
@@ -17,6 +17,7 @@ from ..kinds import Classification, coerce
 if TYPE_CHECKING:
     from ..model.core import Model
     from .evaluate import NumericDelayResult
+    from .simulate import DelayValidation
 
 __all__ = ["DelayConventions", "DELAY_CONVENTIONS", "DelayHopfResult"]
 
@@ -207,7 +208,7 @@ class DelayHopfResult:
         from .render import to_json
         return to_json(self, point=point, digits=digits)
 
-    def validate(self, values: Mapping | None = None, **options):
+    def validate(self, values: Mapping | None = None, **options: Any) -> DelayValidation:
         """Simulate the delay equation near onset (:func:`criticality.delay.validate_delay`)."""
         from .simulate import validate_delay
         return validate_delay(self, values or {}, **options)

@@ -12,7 +12,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field, fields, is_dataclass, replace
 from functools import cached_property
-from typing import TYPE_CHECKING, Any, ClassVar, Mapping
+from typing import TYPE_CHECKING, Any, ClassVar, Mapping, Sequence
 
 import sympy
 
@@ -20,6 +20,8 @@ from ..kinds import Classification, Side, coerce
 from ..renderers import render
 
 if TYPE_CHECKING:
+    from ..checks.numeric import NumericHopfResult
+    from ..local.critical import Condition
     from ..model.core import Model
 
 __all__ = ["Conventions", "CONVENTIONS", "CyclePrediction", "ReducedSystemView", "StoredDetails",
@@ -125,7 +127,7 @@ class ReducedSystemView:
     manifold: tuple
     omega: sympy.Symbol = sympy.Symbol("omega", positive=True)
 
-    def equations(self):
+    def equations(self) -> tuple[sympy.Eq, sympy.Eq]:
         """``(x' = -omega y + f, y' = omega x + g)`` as sympy equations."""
         return (sympy.Eq(sympy.Symbol(f"{self.x}'"), -self.omega * self.y + self.f),
                 sympy.Eq(sympy.Symbol(f"{self.y}'"), self.omega * self.x + self.g))
@@ -222,7 +224,7 @@ class HopfResult:
 
     # -- derived -------------------------------------------------------------------------
     @property
-    def l2(self):
+    def l2(self) -> sympy.Expr | None:
         """The second Lyapunov coefficient, or None if not computed (use order=5)."""
         return self.lyapunov_coefficients[1] if len(self.lyapunov_coefficients) > 1 else None
 
@@ -230,7 +232,7 @@ class HopfResult:
     def period(self) -> sympy.Expr:
         return self.cycle.period
 
-    def condition(self, key: str):
+    def condition(self, key: str) -> Condition:
         """The condition with the given key (e.g. ``"omega_squared_positive"``)."""
         for c in self.conditions:
             if c.key == key:
@@ -273,7 +275,8 @@ class HopfResult:
         return replace(self, _details=_SwappedDetails(self._details, sub), **changes)
 
     # -- numeric ---------------------------------------------------------------------------
-    def evaluate(self, values: Mapping | None = None, *, digits: int = 30, **kwargs):
+    def evaluate(self, values: Mapping | None = None, *, digits: int = 30,
+                 **kwargs: object) -> NumericHopfResult:
         """Every quantity at a parameter point, to ``digits`` significant digits.
 
         Parameters are given as a mapping or as keywords (``r.evaluate(a=1)``);
@@ -285,8 +288,9 @@ class HopfResult:
         merged.update(kwargs)
         return evaluate_result(self, merged, digits=digits)
 
-    def evaluate_many(self, points: Mapping, quantities=("critical_value", "omega", "l1"),
-                      **kwargs):
+    def evaluate_many(self, points: Mapping, quantities: Sequence[str] = ("critical_value", "omega",
+                                                                         "l1"),
+                      **kwargs: Any) -> Mapping:
         """Quantities at many parameter points: arrays in, arrays out
         (float64, compiled once; see :func:`criticality.checks.sweeps.evaluate_many`)."""
         from ..checks.sweeps import evaluate_many
@@ -308,11 +312,11 @@ class HopfResult:
         """Every quantity as a LaTeX equation (an ``align``-ready block)."""
         return render(self, "latex")
 
-    def to_report(self, **options) -> str:
+    def to_report(self, **options: Any) -> str:
         """The LaTeX derivation report (``fragment=True``: no preamble)."""
         return render(self, "report", **options)
 
-    def to_json(self, **kwargs) -> str:
+    def to_json(self, **kwargs: Any) -> str:
         """The result as JSON in the documented, versioned schema."""
         return render(self, "json", **kwargs)
 

@@ -188,7 +188,7 @@ def _short(obj) -> str:
 # -- printing ----------------------------------------------------------------
 
 
-def format_expression(expr) -> str:
+def format_expression(expr: sympy.Expr | int | float) -> str:
     """Write an expression in the model syntax.
 
     ``parse_expression(format_expression(e)) == e`` for every expression of

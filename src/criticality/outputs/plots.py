@@ -24,7 +24,7 @@ import io
 import math
 import os
 from dataclasses import dataclass
-from typing import Mapping, Sequence
+from typing import TYPE_CHECKING, Any, Mapping, Sequence
 
 from ..files import write_bytes_atomic
 from ..errors import MissingExtraError, ParameterError
@@ -32,6 +32,10 @@ from ..kinds import Classification
 from ..checks.plane import (CurveData, StabilityGrid, curve_data, feasibility_grid,
                             stability_grid, write_curve_csv)
 from .latex_expr import latex_name
+
+if TYPE_CHECKING:
+    from ..checks.validation_report import ValidationReport
+    from ..hopf_analysis.results import HopfResult
 
 __all__ = ["PlaneDiagram", "AmplitudePlot", "plot_parameter_plane", "plot_amplitude",
            "save_figure", "write_curve_csv", "curve_data", "axis_label"]
@@ -163,13 +167,14 @@ def _draw_stability(ax, grid, artists, feasible=None):
     artists["equilibrium stable"] = [region, proxy]
 
 
-def plot_parameter_plane(result, x: str, y: str, *, values: Mapping | None = None,
+def plot_parameter_plane(result: HopfResult, x: str, y: str, *, values: Mapping | None = None,
                          x_range: Sequence[float] = (0.0, 1.0),
-                         y_range: Sequence[float] = (0.0, 1.0), ax=None, points: int = 400,
+                         y_range: Sequence[float] = (0.0, 1.0), ax: Any = None,
+                         points: int = 400,
                          shade: bool = True, stability: str = "closed form",
-                         shade_points: int = 200, figsize=(6.4, 4.8), dpi: int = 100,
-                         title: str | None = None, legend: bool = True,
-                         feasible=None) -> PlaneDiagram:
+                         shade_points: int = 200, figsize: tuple[float, float] = (6.4, 4.8),
+                         dpi: int = 100, title: str | None = None, legend: bool = True,
+                         feasible: Any = None) -> PlaneDiagram:
     """Draw the Hopf curve of ``result`` in the ``(x, y)`` parameter plane.
 
     Parameters
@@ -297,10 +302,11 @@ def _frequency_slope(result, num) -> float:
     return float(sympy.re(value)) if value.is_number else 0.0
 
 
-def plot_amplitude(result, values: Mapping | None = None, *, states: Sequence[str] | None = None,
-                   simulated=None, offset_range=None, ax=None, points: int = 200,
-                   figsize=(6.4, 4.8), dpi: int = 100, title: str | None = None,
-                   **kwargs) -> AmplitudePlot:
+def plot_amplitude(result: HopfResult, values: Mapping | None = None, *,
+                   states: Sequence[str] | None = None, simulated: ValidationReport | None = None,
+                   offset_range: Sequence[float] | None = None, ax: Any = None,
+                   points: int = 200, figsize: tuple[float, float] = (6.4, 4.8),
+                   dpi: int = 100, title: str | None = None, **kwargs: Any) -> AmplitudePlot:
     """Amplitude of each state against the bifurcation parameter.
 
     The predicted cycle ``sqrt(k_j (mu - mu_c))`` is drawn on the side where
@@ -393,7 +399,8 @@ def _figure_of(thing):
                          f"'figure'); got {type(thing).__name__}")
 
 
-def save_figure(figure, path, *, force: bool = False, dpi: int | None = None) -> str:
+def save_figure(figure: Any, path: str | os.PathLike[str], *, force: bool = False,
+                dpi: int | None = None) -> str:
     """Write ``figure`` to ``path`` (PNG, SVG or PDF, from the suffix) atomically.
 
     ``figure`` is a matplotlib Figure or Axes, or any plot object this
