@@ -73,6 +73,7 @@ def _same(a, b) -> bool:
     return pickle.loads(pickle.dumps(a)) == b
 
 
+@pytest.mark.slow
 def test_closed_form_hopf_result_round_trips(lorenz):
     """The Lorenz result (field elements and unevaluated roots inside) pickles,
     compares equal, keeps the shape of its expressions and its lazy parts."""
