@@ -31,7 +31,7 @@ class AlgebraicElement:
 
     __slots__ = ("c", "ext")
 
-    def __init__(self, c, ext):
+    def __init__(self, c, ext) -> None:
         self.c = c  # tuple of base elements, length ext.degree
         self.ext = ext
 
@@ -116,10 +116,10 @@ class AlgebraicElement:
             return hash(self.c[0])
         return hash(self.c)
 
-    def __bool__(self):
+    def __bool__(self) -> bool:
         return any(bool(a) for a in self.c)
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return f"[{' + '.join(f'{a!r}*{self.ext.name}^{k}' for k, a in enumerate(self.c))}]"
 
 
@@ -153,7 +153,7 @@ class AlgebraicExtension(Field):
     #: an isolating interval of the root refined by the certified signs (a cache)
     _refined: tuple
 
-    def __init__(self, base: Field, modulus, name: str, root=None, interval=None):
+    def __init__(self, base: Field, modulus, name: str, root=None, interval=None) -> None:
         m = upoly.trim([base(c) for c in modulus])
         if len(m) < 2:
             raise ValueError("the modulus of an algebraic extension must have degree >= 1")
@@ -237,7 +237,7 @@ class AlgebraicExtension(Field):
         return sympy.Add(*[self.base.to_sympy(c) * variable ** k
                            for k, c in enumerate(self.modulus)])
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return f"{self.base!r}[{self.name}]/(degree {self.degree})"
 
 
@@ -288,7 +288,7 @@ class RealAlgebraicRoot(sympy.Function):
             return True
         return None
 
-    def _eval_is_real(self):
+    def _eval_is_real(self) -> bool:
         return True
 
     def _eval_evalf(self, prec):

@@ -144,7 +144,7 @@ def algebraic_atom_rules(exprs) -> dict:
     rules = {}
     seen = set()
 
-    def walk(e):
+    def walk(e) -> None:
         if not isinstance(e, sympy.Basic) or e.is_Atom or e in seen:
             return
         seen.add(e)
@@ -178,7 +178,7 @@ class Tower:
         of a radicand that turns out to be a perfect square.
     """
 
-    def __init__(self, parameters, atoms=(), backend: str = "flint", positivity=None):
+    def __init__(self, parameters, atoms=(), backend: str = "flint", positivity=None) -> None:
         self.parameters = tuple(parameters)
         self.atoms = tuple(Atom(sympy.Dummy(f"g{k}", real=True), a, _atom_positive(a, positivity))
                            for k, a in enumerate(atoms))

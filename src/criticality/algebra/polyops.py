@@ -33,7 +33,7 @@ class NumeratorFactor:
 
     __slots__ = ("coefficients", "degrees", "_expr")
 
-    def __init__(self, coefficients, degrees, expr):
+    def __init__(self, coefficients, degrees, expr) -> None:
         self.coefficients = coefficients
         self.degrees = degrees
         self._expr = expr

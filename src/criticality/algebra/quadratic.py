@@ -31,7 +31,7 @@ class QuadraticElement:
 
     __slots__ = ("a", "b", "ext")
 
-    def __init__(self, a, b, ext):
+    def __init__(self, a, b, ext) -> None:
         self.a = a
         self.b = b
         self.ext = ext
@@ -159,10 +159,10 @@ class QuadraticElement:
     def __hash__(self):
         return hash((self.a, self.b)) if self.b else hash(self.a)
 
-    def __bool__(self):
+    def __bool__(self) -> bool:
         return bool(self.a) or bool(self.b)
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return f"[{self.a!r} + {self.b!r}*{self.ext.name}]"
 
 
@@ -204,7 +204,7 @@ class QuadraticExtension(Field):
     True
     """
 
-    def __init__(self, base: Field, radicand, name: str, root=None):
+    def __init__(self, base: Field, radicand, name: str, root=None) -> None:
         self.base = base
         self.radicand = base(radicand) if not isinstance(radicand, QuadraticElement) else radicand
         self.name = name
@@ -242,5 +242,5 @@ class QuadraticExtension(Field):
         a, b = self.components(x)
         return self.base.size(a) + self.base.size(b)
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return f"{self.base!r}({self.name}: {self.name}^2 = {self.base.to_sympy(self.radicand)})"

@@ -113,7 +113,7 @@ class SignContext:
         Polynomials known to be positive on the admissible set.
     """
 
-    def __init__(self, assumptions, side_conditions=()):
+    def __init__(self, assumptions, side_conditions=()) -> None:
         self.assumptions = dict(assumptions)
         self.side_conditions = tuple(side_conditions)
         self._symbols = sorted(self.assumptions, key=sympy.default_sort_key)

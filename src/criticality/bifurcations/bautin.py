@@ -128,7 +128,7 @@ class BautinPoint:
                 out[key] = sympy.N(e, digits)
         return out
 
-    def __str__(self):
+    def __str__(self) -> str:
         return self.summary()
 
 

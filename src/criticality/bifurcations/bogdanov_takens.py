@@ -111,7 +111,7 @@ class BogdanovTakensResult:
     def _repr_latex_(self) -> str:
         return render(self, "notebook_latex")
 
-    def __str__(self):
+    def __str__(self) -> str:
         return self.summary()
 
 
@@ -147,7 +147,7 @@ def generalised_eigenvectors(K, A):
     return q0, q1, p0, p1
 
 
-def _scenario(sign):
+def _scenario(sign) -> str:
     if sign == "negative":
         return ("a b < 0: the Hopf bifurcation emanating from the point is supercritical; the "
                 "stable cycle it creates grows and disappears in a saddle homoclinic orbit")

@@ -135,7 +135,7 @@ class FoldResult:
     def _repr_latex_(self) -> str:
         return render(self, "notebook_latex")
 
-    def __str__(self):
+    def __str__(self) -> str:
         return self.summary()
 
 
@@ -191,7 +191,7 @@ def _classify(kind_hint, a_s: Sign, t_s: Sign, d_s: Sign) -> FoldKind:
     return FoldKind.DEGENERATE
 
 
-def _verdict(kind, signs, unknown_value_name):
+def _verdict(kind, signs, unknown_value_name) -> str:
     mu = unknown_value_name
     if kind == "fold":
         at = signs["at"]

@@ -124,7 +124,7 @@ class FoldHopfResult:
     def to_json(self, **kwargs: Any) -> str:
         return render_json("fold_hopf", self.rows(), self.notes, self.conventions, **kwargs)
 
-    def __str__(self):
+    def __str__(self) -> str:
         return self.summary()
 
 

@@ -132,7 +132,7 @@ class FlipResult:
     def to_json(self, **kwargs: Any) -> str:
         return render_json("flip", self.rows(), self.notes, self.conventions, **kwargs)
 
-    def __str__(self):
+    def __str__(self) -> str:
         return self.summary()
 
 
@@ -194,7 +194,7 @@ class NeimarkSackerResult:
         return render_json("neimark_sacker", self.rows(), self.notes, self.conventions,
                            **kwargs)
 
-    def __str__(self):
+    def __str__(self) -> str:
         return self.summary()
 
 
@@ -455,7 +455,7 @@ def neimark_sacker_all(model: Model, parameter: str, *, solve_for: str | None = 
     chi = characteristic_polynomial(K, map_jacobian(prep.taylor))
     transformed = cayley(K, chi)
 
-    def accept(branch):
+    def accept(branch) -> bool:
         return sign_word(branch.tower, branch.W, prep.context(branch.tower)) not in (
             "negative", "zero", "nonpositive")
 

@@ -77,7 +77,7 @@ class NumericHopfResult:
                 out[name] = mpmath.sqrt(v) if v >= 0 else mpmath.nan
             return out
 
-    def __str__(self):
+    def __str__(self) -> str:
         rows = [("critical value", self.critical_value), ("omega", self.omega),
                 ("period", self.period), ("transversality", self.transversality),
                 ("l1", self.l1), ("classification", self.classification),

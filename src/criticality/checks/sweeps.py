@@ -174,7 +174,7 @@ def compiled_function(expr, args):
 class _First:
     """The single output of a compiled list, called with positional arrays."""
 
-    def __init__(self, fn):
+    def __init__(self, fn) -> None:
         self.fn = fn
 
     def __call__(self, *arrays):
@@ -189,7 +189,7 @@ def _admissible_expressions(result) -> list:
 class _Progress:
     """Reports a fraction done on stderr (or to a callback) after a delay."""
 
-    def __init__(self, label: str, progress):
+    def __init__(self, label: str, progress) -> None:
         self.label, self.progress = label, progress
         self.started = time.perf_counter()
         self.shown = False

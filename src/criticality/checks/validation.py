@@ -353,7 +353,7 @@ def _judge(setup, measurements, brackets, tolerance):
     return "confirmed", tuple(reasons), tuple(warnings), orders
 
 
-def _judge_measurements(ms, orders, tolerance, fails, reasons, warnings):
+def _judge_measurements(ms, orders, tolerance, fails, reasons, warnings) -> None:
     lost = [m for m in ms if not m.measured]
     for m in lost:
         what = {"escaped": "left the neighbourhood of the equilibrium",
@@ -387,7 +387,7 @@ def _judge_measurements(ms, orders, tolerance, fails, reasons, warnings):
                             f"{m.drift:.1e} within the measurement window (transient not settled)")
 
 
-def _judge_floquet(ms, predicted_stable, tolerance, fails, reasons):
+def _judge_floquet(ms, predicted_stable, tolerance, fails, reasons) -> None:
     """Compare the stability shooting finds (Floquet multipliers) with the prediction."""
     found = [m for m in ms if m.measured and m.floquet is not None]
     last = found[-1] if found else None
@@ -410,7 +410,7 @@ def _judge_floquet(ms, predicted_stable, tolerance, fails, reasons):
                        f"they {want}{detail}")
 
 
-def _judge_shrinking(ms, orders, fails, reasons):
+def _judge_shrinking(ms, orders, fails, reasons) -> None:
     bad = []
     for a, b, order in zip(ms, ms[1:], orders):
         ea, eb = a.worst_amplitude_error, b.worst_amplitude_error
@@ -427,7 +427,7 @@ def _judge_shrinking(ms, orders, fails, reasons):
                        "errors below 1e-5 count as measurement precision)")
 
 
-def _judge_brackets(brackets, fails, opens, reasons):
+def _judge_brackets(brackets, fails, opens, reasons) -> None:
     for b in brackets:
         if b.as_predicted:
             continue

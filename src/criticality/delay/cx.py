@@ -39,7 +39,7 @@ class Cx:
 
     __slots__ = ("re", "im")
 
-    def __init__(self, re, im=0):
+    def __init__(self, re, im: int=0) -> None:
         self.re, self.im = _c(re), _c(im)
 
     def __add__(self, o):
@@ -100,7 +100,7 @@ class Cx:
         """Both components converted by ``fn`` (e.g. a field's ``to_sympy``)."""
         return Cx(fn(self.re), fn(self.im))
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return f"Cx({self.re}, {self.im})"
 
 

@@ -149,7 +149,7 @@ class _Grid:
 
     __slots__ = ("rows_",)
 
-    def __init__(self, rows):
+    def __init__(self, rows) -> None:
         self.rows_ = rows
 
     def __getitem__(self, key):

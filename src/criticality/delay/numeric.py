@@ -71,7 +71,7 @@ class NumericDelayHopf:
                  "it and defer to applicable codes and licensed engineering practice"]
         return "\n".join(lines)
 
-    def __str__(self):
+    def __str__(self) -> str:
         return self.summary()
 
 
@@ -153,7 +153,7 @@ def projection_c1(mats, delays, slots, second, third, omega):
 class _Problem:
     """The model's forms as mpmath functions of (x, mu)."""
 
-    def __init__(self, model, mu, values):
+    def __init__(self, model, mu, values) -> None:
         from .linearize import delay_forms
         fixed = {model.symbols[k]: v for k, v in values.items()}
         self.model, self.mu = model, mu

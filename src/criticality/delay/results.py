@@ -223,10 +223,10 @@ class DelayHopfResult:
     def _sympystr(self, printer=None):
         return self.summary()
 
-    def __str__(self):
+    def __str__(self) -> str:
         return self.summary()
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return (f"DelayHopfResult(parameter={self.parameter!r}, mode={self.mode!r}, "
                 f"critical_value={self.critical_value}, omega={self.omega}, l1={self.l1}, "
                 f"classification={self.classification!r})")

@@ -77,7 +77,7 @@ class DelayValidation:
 class _Rhs:
     """f(x(t), x(t - tau_k)) as plain floats for one parameter value."""
 
-    def __init__(self, result, values: Mapping, mu_value: float):
+    def __init__(self, result, values: Mapping, mu_value: float) -> None:
         model = result.model
         sub = {model.symbols[k]: sympy.Float(v, 30) for k, v in values.items()}
         sub[result.parameter_symbol] = sympy.Float(mu_value, 30)
@@ -108,12 +108,12 @@ class _Rhs:
 class _History:
     """Stored values and derivatives on a uniform grid; Hermite interpolation."""
 
-    def __init__(self, t0: float, h: float):
+    def __init__(self, t0: float, h: float) -> None:
         self.t0, self.h = t0, h
         self.x: list = []
         self.dx: list = []
 
-    def append(self, x, dx):
+    def append(self, x, dx) -> None:
         self.x.append(x)
         self.dx.append(dx)
 

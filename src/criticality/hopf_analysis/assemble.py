@@ -30,7 +30,7 @@ __all__ = ["build_result"]
 
 
 
-def _status(fs, relation=">") -> ConditionStatus:
+def _status(fs, relation: str=">") -> ConditionStatus:
     if relation == "!=":
         if fs.sign in (POSITIVE, NEGATIVE):
             return ConditionStatus.HOLDS
@@ -56,7 +56,7 @@ def _raw(tower, x, ctx):
 class _Branch:
     """Helper bundling one branch's conversions."""
 
-    def __init__(self, bc, ctx):
+    def __init__(self, bc, ctx) -> None:
         self.bc = bc
         self.tower = bc.branch.tower
         self.ctx = ctx
@@ -152,7 +152,7 @@ def build_result(model, name, mu, choice, out, bc, assumptions, params):
 class _Details:
     """Builds the display-oriented parts of a result on first access."""
 
-    def __init__(self, B, bc, omega, model):
+    def __init__(self, B, bc, omega, model) -> None:
         self.B, self.bc, self.omega, self.model = B, bc, omega, model
 
     def reduced_system(self):

@@ -78,7 +78,7 @@ class NumericSetup:
     parameter symbols in order and their exact values, the bifurcation
     parameter's index, and the float values for Newton."""
 
-    def __init__(self, model, parameter: str, values, order: int, along: tuple = ()):
+    def __init__(self, model, parameter: str, values, order: int, along: tuple = ()) -> None:
         if parameter in model.states:
             raise ParameterError(f"'{parameter}' is a state variable, not a parameter")
         model.parameter(parameter)  # did-you-mean on an unknown name

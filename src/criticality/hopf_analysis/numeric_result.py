@@ -42,7 +42,7 @@ class _NumericDetails:
 
     portable = True
 
-    def __init__(self, data, digits, model):
+    def __init__(self, data, digits, model) -> None:
         self.data, self.digits, self.model = data, digits, model
 
     def reduced_system(self):
@@ -83,8 +83,9 @@ class _Amplitudes(Mapping):
     """``{state: sqrt(k_j (mu - mu_c))}``, each expression built when first
     read (building them all costs more than the numeric analysis itself)."""
 
-    def __init__(self, coeffs, offset):
-        self._coeffs, self._offset, self._built = dict(coeffs), offset, {}
+    def __init__(self, coeffs, offset) -> None:
+        self._coeffs, self._offset = dict(coeffs), offset
+        self._built: dict = {}
 
     def __getitem__(self, key):
         if key not in self._built:
@@ -94,7 +95,7 @@ class _Amplitudes(Mapping):
     def __iter__(self):
         return iter(self._coeffs)
 
-    def __len__(self):
+    def __len__(self) -> int:
         return len(self._coeffs)
 
     def __reduce__(self):
@@ -103,7 +104,7 @@ class _Amplitudes(Mapping):
     def __eq__(self, other):
         return isinstance(other, Mapping) and dict(self.items()) == dict(other.items())
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return repr(dict(self.items()))
 
 

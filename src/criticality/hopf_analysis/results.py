@@ -140,10 +140,10 @@ class ReducedSystemView:
         return (f"\\begin{{aligned}} \\dot{{{lx}}} &= {fx} \\\\ "
                 f"\\dot{{{ly}}} &= {fy} \\end{{aligned}}")
 
-    def _repr_latex_(self):
+    def _repr_latex_(self) -> str:
         return f"$${self.to_latex()}$$"
 
-    def __str__(self):
+    def __str__(self) -> str:
         return (f"{self.x}' = {sympy.sstr(-self.omega * self.y + self.f)}\n"
                 f"{self.y}' = {sympy.sstr(self.omega * self.x + self.g)}")
 
@@ -343,10 +343,10 @@ class HopfResult:
     def _sympystr(self, printer=None):
         return self.summary()
 
-    def __str__(self):
+    def __str__(self) -> str:
         return self.summary()
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return (f"HopfResult(parameter={self.parameter!r}, critical_value={self.critical_value}, "
                 f"classification={self.classification!r})")
 
@@ -425,7 +425,7 @@ class _Shape:
 
     __slots__ = ("tree",)
 
-    def __init__(self, expr: sympy.Basic):
+    def __init__(self, expr: sympy.Basic) -> None:
         self.tree = _tree(expr)
 
     def __reduce__(self):
@@ -469,7 +469,7 @@ def _keep_shape(value):
 class _SwappedDetails:
     """The display-oriented parts of a result, in other symbols."""
 
-    def __init__(self, inner, sub: dict):
+    def __init__(self, inner, sub: dict) -> None:
         self._inner, self._sub = inner, sub
         self.portable = getattr(inner, "portable", False)
 

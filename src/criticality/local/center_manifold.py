@@ -137,7 +137,7 @@ def _subtract_drift(K, stable, h, g1, g2, k, n):
     return rhs
 
 
-def _accumulate(rhs, vec, factor, p1, p2, n):
+def _accumulate(rhs, vec, factor, p1, p2, n) -> None:
     b = p2
     for t in range(n):
         if vec[t]:

@@ -96,7 +96,7 @@ _NAMESPACES = {"math": _math_namespace, "numpy": _numpy_namespace, "mpmath": _mp
 class _Printer:
     """Python source for a sympy expression over a fixed set of node types."""
 
-    def __init__(self, names: dict, backend: str):
+    def __init__(self, names: dict, backend: str) -> None:
         self.names = names          # Symbol -> generated name
         self.backend = backend
         self.constants: dict = {}   # printed constant -> generated name (mpmath only)
@@ -195,7 +195,7 @@ class CompiledExpressions:
     count: int
     arity: int
 
-    def __post_init__(self):
+    def __post_init__(self) -> None:
         namespace = dict(_NAMESPACES[self.backend]())
         # generated source only: see the module docstring on why exec is safe here
         exec(compile(self.source, "<criticality generated>", "exec"), namespace)  # noqa: S102

@@ -86,7 +86,7 @@ class CompiledTaylor:
         Highest x-derivative.
     """
 
-    def __init__(self, equations, states, parameters, active: Sequence[int], order: int):
+    def __init__(self, equations, states, parameters, active: Sequence[int], order: int) -> None:
         self.n = len(states)
         self.order = order
         self.states = tuple(states)
@@ -184,7 +184,7 @@ class CompiledTaylor:
 class _DenseIndex:
     """numpy index arrays for f, J, the derivative tensors and the mu parts."""
 
-    def __init__(self, layout: _Layout):
+    def __init__(self, layout: _Layout) -> None:
         import numpy as np
 
         self.n = layout.n

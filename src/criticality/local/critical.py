@@ -129,7 +129,7 @@ def nu_extension(tower, W):
     return QuadraticExtension(tower.top, -W, "nu", root=sympy.I * sympy.sqrt(W_expr))
 
 
-def _solutions(tower_mu, mu, d, algebraic=False):
+def _solutions(tower_mu, mu, d, algebraic: bool=False):
     """Critical values from ``d = 0``: list of ``(kind, data)`` with kind
     ``"linear"`` (value), ``"quadratic"`` ((c2, c1, c0)), ``"algebraic"``
     (the coefficients of an irreducible factor of degree >= 3, lowest first;
@@ -177,7 +177,7 @@ def linear_alternatives(tower_mu, mu, d) -> list:
     return sorted(str(s) for s in candidates or ())
 
 
-def _classify(c, expr, algebraic=False):
+def _classify(c, expr, algebraic: bool=False):
     deg = len(c) - 1
     if deg == 0:
         return None

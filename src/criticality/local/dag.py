@@ -40,7 +40,7 @@ _HALF = sympy.Rational(1, 2)
 class ExpressionGraph:
     """A hash-consed expression graph over numbered arguments ``a0, a1, ...``."""
 
-    def __init__(self):
+    def __init__(self) -> None:
         self.nodes: list = []      # node id -> key tuple
         self.index: dict = {}      # key -> node id
         self._d: dict = {}         # (node, argument) -> derivative node

@@ -76,7 +76,7 @@ class MpField(FloatField):
 
     backend = "mpmath"
 
-    def __init__(self):
+    def __init__(self) -> None:
         self.zero = mpmath.mpf(0)
         self.one = mpmath.mpf(1)
 
@@ -115,7 +115,7 @@ class HopfSystem:
     """The Hopf system of a compiled model with the bifurcation parameter at
     index ``mu_index`` of the parameter vector ``params`` (float values)."""
 
-    def __init__(self, compiled, params, mu_index: int, active_index: int = 0):
+    def __init__(self, compiled, params, mu_index: int, active_index: int = 0) -> None:
         self.ct = compiled
         self.dense = compiled.dense()
         self.params = list(params)

@@ -153,7 +153,7 @@ class TaylorForms:
         ``components[i][e]`` is the coefficient of ``u**e`` in component ``i``.
     """
 
-    def __init__(self, field, n: int, order: int, components):
+    def __init__(self, field, n: int, order: int, components) -> None:
         self.field = field
         self.n = n
         self.order = order

@@ -205,16 +205,16 @@ def _walk(doc: dict) -> list:
     """``(path, text)`` of every exact expression in a document."""
     out = []
 
-    def add(path, value):
+    def add(path, value) -> None:
         if isinstance(value, str):
             out.append((path, value))
 
-    def add_complex(path, value):
+    def add_complex(path, value) -> None:
         if isinstance(value, dict):
             add(path + ".re", value.get("re"))
             add(path + ".im", value.get("im"))
 
-    def add_relation(path, value):
+    def add_relation(path, value) -> None:
         if isinstance(value, dict):
             add(path + ".expression", value.get("expression"))
 

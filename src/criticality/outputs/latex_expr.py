@@ -89,7 +89,7 @@ class Notation:
         Placeholder name -> LaTeX, for the printer.
     """
 
-    def __init__(self, model_names):
+    def __init__(self, model_names) -> None:
         taken = {latex_name(n) for n in model_names}
         taken |= {t.split("_")[0] for t in taken}
 
@@ -114,11 +114,11 @@ class Notation:
 class _Printer(LatexPrinter):
     """sympy's LaTeX printer with collision-free symbol names."""
 
-    def __init__(self, names: dict):
+    def __init__(self, names: dict) -> None:
         super().__init__({"mul_symbol": None, "ln_notation": False})
         self._names = names
 
-    def _print_Symbol(self, expr, style="plain"):
+    def _print_Symbol(self, expr, style: str="plain"):
         known = self._names.get(expr.name)
         return known if known is not None else latex_name(expr.name)
 
@@ -148,7 +148,7 @@ class TexWriter:
         Sums wider than this inside a larger expression get a name.
     """
 
-    def __init__(self, notation: Notation, width: float = 40, threshold: float = 22):
+    def __init__(self, notation: Notation, width: float = 40, threshold: float = 22) -> None:
         self.notation = notation
         self.width = width
         self.threshold = threshold

@@ -61,7 +61,7 @@ def _named_candidates(result, bases) -> list:
 class Document:
     """Shared state of one LaTeX document for one result."""
 
-    def __init__(self, result, width: float, threshold: float, zero_left: bool = False):
+    def __init__(self, result, width: float, threshold: float, zero_left: bool = False) -> None:
         self.result = result
         self.zero_left = zero_left
         names = set(result.model.symbols) | set(result.substitutions) | {result.parameter}

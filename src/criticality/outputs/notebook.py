@@ -123,7 +123,7 @@ _TITLES = {"fold": lambda r: f"{r.kind.capitalize()} point in {r.parameter}",
            "bogdanov_takens": lambda r: f"Bogdanov-Takens point in ({', '.join(r.parameters)})"}
 
 
-def _listed(kind: str):
+def _listed(kind: str) -> None:
     title = _TITLES[kind]
 
     def rows(r):

@@ -107,7 +107,7 @@ def _runs(curve: CurveData):
         i = j
 
 
-def _draw_curve(ax, curve, artists):
+def _draw_curve(ax, curve, artists) -> None:
     for kind, others, part in _runs(curve):
         label = _LABEL[kind] + ("" if others else ", other eigenvalues unstable")
         style = dict(_STYLE[kind], alpha=1.0 if others else 0.4)
@@ -142,7 +142,7 @@ def axis_label(model, name: str) -> str:
     return text + (f" [{unit}]" if unit else "")
 
 
-def _draw_infeasible(ax, feasible, artists):
+def _draw_infeasible(ax, feasible, artists) -> None:
     from matplotlib.patches import Patch
 
     X, Y, ok = feasible
@@ -154,7 +154,7 @@ def _draw_infeasible(ax, feasible, artists):
     artists["equilibrium not feasible"] = [region, proxy]
 
 
-def _draw_stability(ax, grid, artists, feasible=None):
+def _draw_stability(ax, grid, artists, feasible=None) -> None:
     from matplotlib.patches import Patch
 
     stable = grid.stable if feasible is None else grid.stable & feasible[2]
@@ -366,7 +366,7 @@ def plot_amplitude(result: HopfResult, values: Mapping | None = None, *,
     return AmplitudePlot(fig, ax, mu, predicted, artists)
 
 
-def _draw_simulated(ax, report, chosen, artists):
+def _draw_simulated(ax, report, chosen, artists) -> None:
     for i, s in enumerate(chosen):
         pts = [(m.mu, m.measured_amplitudes[s]) for m in report.measurements
                if m.measured and s in m.measured_amplitudes]
