@@ -21,7 +21,7 @@ from fractions import Fraction
 import sympy
 
 from . import upoly
-from .field import Field
+from .field import Element, Field, RingElement
 
 __all__ = ["AlgebraicExtension", "AlgebraicElement", "RealAlgebraicRoot"]
 
@@ -48,7 +48,7 @@ class AlgebraicElement:
             return None
         return self.ext.scalar(other).c
 
-    def __add__(self, other):
+    def __add__(self, other: Element) -> "AlgebraicElement":
         c = self._coerce(other)
         if c is None:
             return other.__add__(self)
@@ -56,19 +56,19 @@ class AlgebraicElement:
 
     __radd__ = __add__
 
-    def __neg__(self):
+    def __neg__(self) -> "AlgebraicElement":
         return AlgebraicElement(tuple(-a for a in self.c), self.ext)
 
-    def __sub__(self, other):
+    def __sub__(self, other: Element) -> "AlgebraicElement":
         c = self._coerce(other)
         if c is None:
             return (-other).__add__(self)
         return AlgebraicElement(tuple(a - b for a, b in zip(self.c, c)), self.ext)
 
-    def __rsub__(self, other):
+    def __rsub__(self, other: Element) -> "AlgebraicElement":
         return (-self) + other
 
-    def __mul__(self, other):
+    def __mul__(self, other: Element) -> "AlgebraicElement":
         c = self._coerce(other)
         if c is None:
             return other.__mul__(self)
@@ -76,19 +76,19 @@ class AlgebraicElement:
 
     __rmul__ = __mul__
 
-    def inverse(self):
+    def inverse(self) -> "AlgebraicElement":
         return self.ext.inverse(self)
 
-    def __truediv__(self, other):
+    def __truediv__(self, other: Element) -> "AlgebraicElement":
         c = self._coerce(other)
         if c is None:
             return other.inverse().__mul__(self)
         return self * self.ext.inverse(AlgebraicElement(c, self.ext))
 
-    def __rtruediv__(self, other):
+    def __rtruediv__(self, other: Element) -> "AlgebraicElement":
         return self.inverse() * other
 
-    def __pow__(self, k: int):
+    def __pow__(self, k: int) -> "AlgebraicElement":
         if not isinstance(k, int):
             return NotImplemented
         if k < 0:
@@ -101,17 +101,17 @@ class AlgebraicElement:
             k >>= 1
         return result
 
-    def __eq__(self, other):
+    def __eq__(self, other: Element) -> bool:
         c = self._coerce(other)
         if c is None:
             return other.__eq__(self)
         return all(a == b for a, b in zip(self.c, c))
 
-    def __ne__(self, other):
+    def __ne__(self, other: Element) -> bool:
         r = self.__eq__(other)
         return r if r is NotImplemented else not r
 
-    def __hash__(self):
+    def __hash__(self) -> int:
         if not any(self.c[1:]):
             return hash(self.c[0])
         return hash(self.c)
@@ -172,7 +172,7 @@ class AlgebraicExtension(Field):
         self.gen = self.from_list([z, base.one])
 
     # -- construction ------------------------------------------------------------------
-    def scalar(self, value) -> AlgebraicElement:
+    def scalar(self, value: object) -> AlgebraicElement:
         z = self.base.zero
         return AlgebraicElement((self.base(value),) + (z,) * (self.degree - 1), self)
 
@@ -182,12 +182,12 @@ class AlgebraicExtension(Field):
         c = tuple(coeffs) + (z,) * (self.degree - len(coeffs))
         return AlgebraicElement(c, self)
 
-    def __call__(self, value) -> AlgebraicElement:
+    def __call__(self, value: object) -> AlgebraicElement:
         if isinstance(value, AlgebraicElement) and value.ext is self:
             return value
         return self.scalar(value)
 
-    def contains(self, x) -> bool:
+    def contains(self, x: Element) -> bool:
         return isinstance(x, AlgebraicElement) and x.ext is self
 
     # -- arithmetic kernels ---------------------------------------------------------------
@@ -224,12 +224,12 @@ class AlgebraicExtension(Field):
         return self.from_list(self.reduce([c * inv for c in s1]))
 
     # -- boundary ------------------------------------------------------------------------
-    def to_sympy(self, x) -> sympy.Expr:
+    def to_sympy(self, x: Element) -> sympy.Expr:
         x = self(x)
         return sympy.Add(*[self.base.to_sympy(a) * self.root ** k
                            for k, a in enumerate(x.c) if a])
 
-    def size(self, x) -> int:
+    def size(self, x: Element) -> int:
         x = self(x)
         return sum(self.base.size(a) for a in x.c if a) or 1
 

@@ -64,7 +64,7 @@ def conjugate(P):
     return {(l, j): c.conjugate() for (j, l), c in P.items()}
 
 
-def add_into(out, P, sign: int=1) -> None:
+def add_into(out, P, sign: int = 1) -> None:
     """``out += sign * P`` in place."""
     for m, c in P.items():
         v = c if sign == 1 else -c

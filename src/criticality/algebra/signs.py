@@ -21,6 +21,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from itertools import combinations
+from typing import Any, Iterable, Mapping
 
 import flint
 import sympy
@@ -113,7 +114,8 @@ class SignContext:
         Polynomials known to be positive on the admissible set.
     """
 
-    def __init__(self, assumptions, side_conditions=()) -> None:
+    def __init__(self, assumptions: Mapping[sympy.Symbol, str],
+                 side_conditions: Iterable[sympy.Expr] = ()) -> None:
         self.assumptions = dict(assumptions)
         self.side_conditions = tuple(side_conditions)
         self._symbols = sorted(self.assumptions, key=sympy.default_sort_key)
@@ -126,7 +128,7 @@ class SignContext:
         self._sides = None
         self._flint_signs: dict = {}
 
-    def with_conditions(self, conditions) -> "SignContext":
+    def with_conditions(self, conditions: Iterable[sympy.Expr]) -> "SignContext":
         return SignContext(self.assumptions, self.side_conditions + tuple(conditions))
 
     # -- conversion ------------------------------------------------------------------
@@ -167,7 +169,7 @@ class SignContext:
         return self.ctx.from_dict(data)
 
     # -- polynomial signs ----------------------------------------------------------------
-    def polynomial_sign(self, poly) -> Sign:
+    def polynomial_sign(self, poly: Any) -> Sign:
         """Sign of a polynomial (sympy expression or embedded flint polynomial)."""
         if isinstance(poly, sympy.Basic):
             poly = self._poly_from_sympy(sympy.expand(poly))
@@ -263,11 +265,11 @@ class SignContext:
         return UNDECIDED
 
     # -- rational functions ----------------------------------------------------------------
-    def sign(self, expr) -> Sign:
+    def sign(self, expr: sympy.Expr) -> Sign:
         """Sign of a sympy rational function of the known symbols."""
         return self.factored(expr).sign
 
-    def factored(self, expr) -> FactoredSign:
+    def factored(self, expr: sympy.Expr) -> FactoredSign:
         """Factor a sympy rational function (with flint) and decide each factor."""
         from .flint_field import FlintRationalFunctionField
 
@@ -327,7 +329,8 @@ class SignContext:
         return FactoredSign(sympy.Rational(constant), tuple(out), total)
 
 
-def context_for(parameters, assumptions, atoms=()) -> SignContext:
+def context_for(parameters: Iterable[sympy.Symbol], assumptions: Mapping[sympy.Symbol, str],
+                atoms: Iterable = ()) -> SignContext:
     """The sign context of a parameter field: declared assumptions for the
     parameters, and positivity for atoms such as ``exp(...)``."""
     known = {s: assumptions.get(s, "real") for s in parameters}
@@ -336,7 +339,7 @@ def context_for(parameters, assumptions, atoms=()) -> SignContext:
     return SignContext(known)
 
 
-def truth(sign: Sign):
+def truth(sign: Sign) -> bool | None:
     """``True`` for a proven positive sign, ``False`` for a proven negative one,
     else None."""
     return {POSITIVE: True, NEGATIVE: False}.get(sign)

@@ -37,7 +37,7 @@ __all__ = ["prepare_map", "map_jacobian", "cayley", "inside_unit_circle", "unkno
 
 
 def prepare_map(model, parameter, *, equilibrium=None, eliminate=None, values=None,
-                assume=None, order: int=3, backend: str="flint", analysis: str="this analysis"):
+                assume=None, order: int = 3, backend: str = "flint", analysis: str = "this analysis"):
     """The prepared problem of the map's fixed-point flow (see the module docstring)."""
     model.require_kind("map", analysis, "for flows use hopf(), fold(), bautin_points() or "
                        "bogdanov_takens()")
@@ -106,7 +106,7 @@ def unknown_symbol(prep, name):
     return prep.symbol(prep.parameter)
 
 
-def condition_status(tower, x, ctx, want: str="positive") -> str:
+def condition_status(tower, x, ctx, want: str = "positive") -> str:
     """``"holds"``, ``"fails"`` or ``"open"`` for ``x > 0`` (``want="positive"``)
     or ``x != 0`` (``want="nonzero"``)."""
     word = sign_word(tower, lower(x), ctx)

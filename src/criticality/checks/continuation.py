@@ -208,7 +208,7 @@ class _Curve:
         t = np.linalg.solve(M, rhs)
         return t / np.linalg.norm(t)
 
-    def correct(self, Y, c, fix=None, border=None, tol: float=1e-11, max_iter: int=12):
+    def correct(self, Y, c, fix=None, border=None, tol: float = 1e-11, max_iter: int = 12):
         """Newton on ``G = 0`` plus either ``Y[fix]`` fixed or the border row
         ``border = (t, Yp)``: ``t . (Y - Yp) = 0``."""
         np = _np()
@@ -326,7 +326,7 @@ def _row(curve, Y, c, order):
     return mu, om, l1, l2, beta, "ok"
 
 
-def _verdict(l1, status, scale: float=1.0):
+def _verdict(l1, status, scale: float = 1.0):
     if status != "ok":
         return ""
     if abs(l1) <= 1e-10 * max(1.0, scale):

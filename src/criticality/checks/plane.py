@@ -172,7 +172,7 @@ def _graph(np, result, free, t, values):
                 others_stable=stab & ok, zeros=tuple(zeros), fixed=mu_c.fixed)
 
 
-def _bisect(f, a, b, steps: int=200):
+def _bisect(f, a, b, steps: int = 200):
     fa = f(a)
     for _ in range(steps):
         m = 0.5 * (a + b)
@@ -250,7 +250,7 @@ def _level_set(np, result, x, y, xr, yr, n, values):
                                                                  result.parameter: mu0})
 
 
-def _refine(np, f, line, xs, ys, steps: int=60):
+def _refine(np, f, line, xs, ys, steps: int = 60):
     """Move contour vertices onto the level set ``f = 0`` by bisection along
     the grid edge each one lies on (contour vertices are linear interpolates)."""
     out = np.array(line, dtype=float)

@@ -257,7 +257,7 @@ def measure_cycle(setup: Setup, frame: LocalFrame, radius: float, *, direction: 
     return _measurements(setup, sol, np, transient, window, radius, frame)
 
 
-def _measurements(setup, sol, np, transient, window, radius, frame, least: int=4):
+def _measurements(setup, sol, np, transient, window, radius, frame, least: int = 4):
     amps, halves = {}, []
     mid = transient + window / 2
     for j, name in enumerate(setup.states):

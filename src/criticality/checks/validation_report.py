@@ -248,7 +248,7 @@ class ValidationReport:
 _APPROACH = {"forward": "", "backward": " (reversed time)", "shooting": " (shooting)"}
 
 
-def _g(x, digits: int=6) -> str:
+def _g(x, digits: int = 6) -> str:
     if x is None:
         return "-"
     return f"{x:.{digits}g}"
@@ -332,7 +332,7 @@ def _tex_name(name: str) -> str:
     return f"\\{name}" if name in greek else (name if len(name) == 1 else f"\\mathit{{{name}}}")
 
 
-def _tex_num(x, digits: int=6) -> str:
+def _tex_num(x, digits: int = 6) -> str:
     if x is None:
         return "--"
     text = f"{x:.{digits}g}"

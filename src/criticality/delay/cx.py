@@ -39,7 +39,7 @@ class Cx:
 
     __slots__ = ("re", "im")
 
-    def __init__(self, re, im: int=0) -> None:
+    def __init__(self, re, im: int = 0) -> None:
         self.re, self.im = _c(re), _c(im)
 
     def __add__(self, o):

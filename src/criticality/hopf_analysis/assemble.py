@@ -30,7 +30,7 @@ __all__ = ["build_result"]
 
 
 
-def _status(fs, relation: str=">") -> ConditionStatus:
+def _status(fs, relation: str = ">") -> ConditionStatus:
     if relation == "!=":
         if fs.sign in (POSITIVE, NEGATIVE):
             return ConditionStatus.HOLDS

@@ -90,7 +90,7 @@ def run_engine(problem: PreparedProblem, select: int | None = None) -> EngineOut
                                  f"{len(branches) - 1})")
         todo = [branches[select]]
     else:
-        todo = branches
+        todo = list(branches)
     computed = []
     for b in todo:
         if len(b.tower.levels) > len(tower.levels):

@@ -39,9 +39,9 @@ from .taylor import RawTaylor, TaylorForms, raw_taylor
 #: or None (the model file's equilibrium, else the only one)
 EquilibriumSpec = Union[Mapping[str, object], Sequence[object], int, str, None]
 
-__all__ = ["EquilibriumSpec", "PreparedProblem", "prepare", "prepare_system", "check_order", "resolve_parameter",
-           "assumption_map", "choose_equilibrium", "SolvedPoint", "solve_for", "sign_word",
-           "expr"]
+__all__ = ["EquilibriumSpec", "PreparedProblem", "prepare", "prepare_system", "check_order",
+           "resolve_parameter", "assumption_map", "choose_equilibrium", "SolvedPoint", "solve_for",
+           "sign_word", "expr"]
 
 def check_order(order) -> int:
     """The order of a normal form: an odd integer ``>= 3`` (3 gives ``l1``,

@@ -8,6 +8,8 @@ the verdicts of :mod:`criticality.bifurcations`.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 import sympy
 
 from ..algebra.canonical import canonical_expr, factored
@@ -15,10 +17,15 @@ from ..algebra.quadratic import lower
 from ..algebra.signs import context_for
 from ..kinds import Sign
 
+if TYPE_CHECKING:
+    from ..algebra import Tower
+    from ..algebra.field import Element
+    from ..algebra.signs import SignContext
+
 __all__ = ["sign_word", "expr"]
 
 
-def sign_word(tower, x, ctx) -> Sign:
+def sign_word(tower: Tower, x: Element, ctx: SignContext | None) -> Sign:
     """``"positive"``, ``"negative"``, ``"zero"``, ``"nonnegative"``,
     ``"nonpositive"`` or ``"undecided"`` (a :class:`~criticality.kinds.Sign`)."""
     x = lower(x)
@@ -52,6 +59,6 @@ def _numeric_sign(tower, x):
     return Sign.POSITIVE if re > 0 else Sign.NEGATIVE
 
 
-def expr(tower, x, ctx):
+def expr(tower: Tower, x: Element, ctx: SignContext) -> sympy.Expr:
     """A field element as a compact sympy expression."""
     return canonical_expr(tower, x, ctx)

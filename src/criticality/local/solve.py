@@ -15,13 +15,16 @@ degree are returned unsolved, as sympy expressions.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import sympy
 
 from ..algebra import Tower
 from ..algebra.quadratic import QuadraticElement, lower
 from .sign_words import sign_word
+
+if TYPE_CHECKING:
+    from ..algebra.field import Element
 
 __all__ = ["LINEAR", "QUADRATIC", "BIQUADRATIC", "UNSOLVED", "closed_form_solutions",
            "branch_values", "SolvedPoint", "solve_for"]
@@ -56,7 +59,8 @@ def _classify(c, biquadratic: bool):
     return None
 
 
-def closed_form_solutions(tower: Tower, x, symbol, *, biquadratic: bool = False) -> list:
+def closed_form_solutions(tower: Tower, x: Element, symbol: sympy.Symbol, *,
+                          biquadratic: bool = False) -> list:
     """The solutions of ``x = 0`` for ``symbol``, factor by factor.
 
     Returns a list of ``(kind, data)``: ``(LINEAR, value)``,
@@ -79,7 +83,7 @@ def closed_form_solutions(tower: Tower, x, symbol, *, biquadratic: bool = False)
     return out
 
 
-def branch_values(tower: Tower, symbol, solution) -> list:
+def branch_values(tower: Tower, symbol: sympy.Symbol, solution: tuple) -> list:
     """``[(value, target tower)]`` for one solution of
     :func:`closed_form_solutions`: one value for a linear factor, two (with
     the root of the discriminant adjoined, each in its own tower) for a
@@ -123,11 +127,12 @@ class SolvedPoint:
     target: Tower
     images: dict
 
-    def substitute(self, x):
+    def substitute(self, x: Element) -> Element:
         return self.source.substitute(x, self.symbol, self.value, self.target, self.images)
 
 
-def solve_for(tower: Tower, x, symbol, positive: bool = False):
+def solve_for(tower: Tower, x: Element, symbol: sympy.Symbol,
+              positive: bool = False) -> tuple[list[SolvedPoint], list[sympy.Expr]]:
     """Closed-form solutions of ``x = 0`` for ``symbol``: factors of degree
     one or two (and even factors of degree four).  Returns
     ``(points, unsolved)`` with ``points`` a list of :class:`SolvedPoint` and

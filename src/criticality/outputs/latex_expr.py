@@ -118,7 +118,7 @@ class _Printer(LatexPrinter):
         super().__init__({"mul_symbol": None, "ln_notation": False})
         self._names = names
 
-    def _print_Symbol(self, expr, style: str="plain"):
+    def _print_Symbol(self, expr, style: str = "plain"):
         known = self._names.get(expr.name)
         return known if known is not None else latex_name(expr.name)
 
