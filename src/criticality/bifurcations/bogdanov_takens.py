@@ -43,6 +43,7 @@ from ..kinds import Sign, coerce
 from ..algebra.linalg import characteristic_polynomial
 
 if TYPE_CHECKING:
+    from ..algebra.field import Element
     from ..model.core import Model
 
 __all__ = ["BogdanovTakensResult", "bogdanov_takens", "bogdanov_takens_all", "BT_CONVENTIONS"]
@@ -122,7 +123,7 @@ def _chain(K, M, top):
     return [r[0] for r in solve_consistent(K, rows, rhs)]
 
 
-def generalised_eigenvectors(K, A):
+def generalised_eigenvectors(K: Any, A: list[list[Element]]) -> tuple:
     """``(q0, q1, p0, p1)`` normalised as in the module docstring."""
     right, left = kernel(K, A), kernel(K, transpose(A))
     if len(right) != 1:

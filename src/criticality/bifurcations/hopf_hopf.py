@@ -62,6 +62,7 @@ from .fold_hopf import _located, _names
 from .map_normal_form import solve_complex
 
 if TYPE_CHECKING:
+    from ..algebra.field import Element
     from ..model.core import Model
 
 __all__ = ["HopfHopfResult", "hopf_hopf", "hopf_hopf_all", "HOPF_HOPF_CONVENTIONS",
@@ -131,7 +132,7 @@ class HopfHopfResult:
 # -- location -------------------------------------------------------------------------
 
 
-def principal_subresultant(K, f, g, j: int):
+def principal_subresultant(K: Any, f: Sequence[Element], g: Sequence[Element], j: int) -> Element:
     """``psc_j(f, g)`` (lowest coefficient first): the determinant of the
     Sylvester submatrix; ``psc_0`` is the resultant."""
     m, k = len(f) - 1, len(g) - 1

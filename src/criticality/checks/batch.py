@@ -63,7 +63,7 @@ class BatchSummary:
             writer.writerow([getattr(r, f) for f in _FIELDS])
         return buf.getvalue()
 
-    def to_pandas(self):
+    def to_pandas(self) -> Any:
         """The summary as a pandas DataFrame (needs pandas)."""
         from ..errors import MissingExtraError
         try:

@@ -17,7 +17,7 @@ return to the fixed point and one started at twice the size must leave.
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING, Mapping
+from typing import TYPE_CHECKING, Any, Callable, Mapping
 
 import math
 from dataclasses import dataclass
@@ -72,7 +72,7 @@ def _number(expr, values, what) -> float:
     return v.real
 
 
-def iterate(step, x, count: int):
+def iterate(step: Callable, x: Any, count: int) -> Any:
     """Apply ``step`` (a function of a tuple) ``count`` times; None if the
     orbit leaves every bounded region (overflow or non-finite values)."""
     for _ in range(count):

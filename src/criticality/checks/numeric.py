@@ -22,6 +22,10 @@ from ..errors import ParameterError
 from ..kinds import Classification, coerce
 from ..renderers import render
 
+#: a HopfResult, typed loosely: the result imports this module at run time, and a
+#: type-only import back would make the two modules import each other
+ResultLike = Any
+
 __all__ = ["NumericHopfResult", "evaluate_result", "parameter_values"]
 
 
@@ -89,7 +93,7 @@ class NumericHopfResult:
         return "\n".join(f"{k.ljust(width)}  {fmt(v)}" for k, v in rows)
 
 
-def parameter_values(result, values: Mapping) -> dict:
+def parameter_values(result: ResultLike, values: Mapping) -> dict:
     """Exact sympy values for the parameters of ``result`` (defaults filled in).
 
     Raises
@@ -162,7 +166,7 @@ def _num(expr, subs, digits, what=None):
     return mpmath.mpf(str(re))
 
 
-def evaluate_result(result, values: Mapping, *, digits: int = 30) -> NumericHopfResult:
+def evaluate_result(result: ResultLike, values: Mapping, *, digits: int = 30) -> NumericHopfResult:
     """Evaluate every quantity of ``result`` at ``values``."""
     if digits < 5 or digits > 10000:
         raise ParameterError(f"digits must be between 5 and 10000, got {digits}")

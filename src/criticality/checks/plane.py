@@ -80,7 +80,7 @@ class CurveData:
     fixed: Mapping[str, object]
 
     @property
-    def classification(self):
+    def classification(self) -> Any:
         """``"supercritical"``/``"subcritical"``/``"degenerate"`` per point
         (``""`` in gaps)."""
         np = _numpy()
@@ -294,9 +294,9 @@ class StabilityGrid:
     method: str
 
 
-def stability_grid(result, x: str, y: str, *, values: Mapping | None = None,
-                   x_range=(0.0, 1.0), y_range=(0.0, 1.0), points: int = 200,
-                   method: str = "closed form") -> StabilityGrid:
+def stability_grid(result: HopfResult, x: str, y: str, *, values: Mapping | None = None,
+                   x_range: Sequence[float] = (0.0, 1.0), y_range: Sequence[float] = (0.0, 1.0),
+                   points: int = 200, method: str = "closed form") -> StabilityGrid:
     """Stability of the equilibrium over the plane (see the module notes).
 
     ``method`` is ``"closed form"`` (sign of the transversality and the
@@ -349,7 +349,7 @@ _SIGN_OK = {"positive": lambda v: v > 0, "nonnegative": lambda v: v >= 0,
             "negative": lambda v: v < 0, "nonpositive": lambda v: v <= 0}
 
 
-def state_signs(result, feasible=None) -> dict:
+def state_signs(result: HopfResult, feasible: Any = None) -> dict:
     """State -> the sign its equilibrium coordinate must have.
 
     ``feasible`` is a sign word for every state (``"nonnegative"``,
@@ -372,8 +372,9 @@ def state_signs(result, feasible=None) -> dict:
     return table
 
 
-def feasibility_grid(result, x: str, y: str, *, feasible=None, values: Mapping | None = None,
-                     x_range=(0.0, 1.0), y_range=(0.0, 1.0), points: int = 200):
+def feasibility_grid(result: HopfResult, x: str, y: str, *, feasible: Any = None,
+                     values: Mapping | None = None, x_range: Sequence[float] = (0.0, 1.0),
+                     y_range: Sequence[float] = (0.0, 1.0), points: int = 200) -> tuple | None:
     """``(X, Y, ok)``: where on the plane the equilibrium has the signs of
     :func:`state_signs` (a population stays nonnegative, ...); None when no
     state has a sign to keep."""

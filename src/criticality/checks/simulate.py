@@ -16,13 +16,16 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
-from typing import Callable, Mapping
+from typing import TYPE_CHECKING, Any, Callable, Mapping
 
 import mpmath
 import sympy
 
 from ..errors import ParameterError, ValidationRunError
 from ..kinds import RunStatus, coerce
+
+if TYPE_CHECKING:
+    from ..hopf_analysis.results import HopfResult
 
 __all__ = ["Setup", "LocalFrame", "RunOutcome", "prepare", "local_frame", "measure_cycle",
            "shoot_cycle", "bracket", "settle_time"]
@@ -89,7 +92,7 @@ def _substitute(expr, by_name: Mapping) -> sympy.Expr:
     return expr.xreplace(repl)
 
 
-def prepare(result, values: Mapping, np) -> Setup:
+def prepare(result: HopfResult, values: Mapping, np: Any) -> Setup:
     """Evaluate ``result`` at ``values`` and lambdify the original model.
 
     Raises
@@ -167,15 +170,15 @@ class LocalFrame:
     q: object
     pbar: object
 
-    def start(self, np, radius: float):
+    def start(self, np: Any, radius: float) -> Any:
         """The point ``x0 + 2 radius Re(q)`` (the predicted cycle at phase 0)."""
         return self.x0 + 2.0 * radius * np.real(self.q)
 
-    def radius(self, np, y) -> float:
+    def radius(self, np: Any, y: Any) -> float:
         return float(abs(np.dot(self.pbar, np.asarray(y) - self.x0)))
 
 
-def local_frame(setup: Setup, mu: float, np) -> LocalFrame:
+def local_frame(setup: Setup, mu: float, np: Any) -> LocalFrame:
     """The :class:`LocalFrame` at ``mu`` (numeric eigenvectors from numpy)."""
     x0 = setup.equilibrium(mu)
     A = setup.jac(mu, x0)
@@ -232,8 +235,8 @@ def _escape_event(frame, np, limit):
 
 
 def measure_cycle(setup: Setup, frame: LocalFrame, radius: float, *, direction: int,
-                  transient: float, window: float, method: str, rtol: float, np,
-                  ivp) -> RunOutcome:
+                  transient: float, window: float, method: str, rtol: float, np: Any,
+                  ivp: Any) -> RunOutcome:
     """Integrate from the predicted cycle, wait ``transient``, then measure.
 
     Amplitudes (half peak-to-peak) come from the extrema of every state over
@@ -326,7 +329,7 @@ def _newton_step(setup, frame, y, period, rtol, np, ivp):
 
 
 def shoot_cycle(setup: Setup, frame: LocalFrame, radius: float, period: float, *, rtol: float,
-                np, ivp, iterations: int = 30) -> RunOutcome:
+                np: Any, ivp: Any, iterations: int = 30) -> RunOutcome:
     """Find the cycle by Newton's method on the periodic orbit (single shooting).
 
     For cycles that integration in neither time direction reaches (a
@@ -372,7 +375,7 @@ def _largest_multiplier(np, mono) -> float | None:
 
 
 def bracket(setup: Setup, frame: LocalFrame, radius: float, factor: float, *, horizon: float,
-            direction: int, method: str, rtol: float, np, ivp) -> RunOutcome:
+            direction: int, method: str, rtol: float, np: Any, ivp: Any) -> RunOutcome:
     """Start at ``factor`` times the predicted radius; say where the orbit goes.
 
     The radius is measured in the center coordinate ``|pbar . (x - x0)|``,

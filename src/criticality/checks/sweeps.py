@@ -20,7 +20,7 @@ from __future__ import annotations
 import sys
 import time
 from dataclasses import dataclass
-from typing import Any, Callable, Mapping
+from typing import Any, Callable, Mapping, Sequence
 
 import sympy
 
@@ -81,7 +81,7 @@ class Sweep:
     def shape(self) -> tuple:
         return tuple(self.values.shape)
 
-    def masked(self):
+    def masked(self) -> Any:
         """``values`` with NaN where the Hopf point does not exist."""
         np = _numpy()
         out = np.array(self.values, dtype=float if not np.iscomplexobj(self.values) else complex)
@@ -89,7 +89,7 @@ class Sweep:
         return out
 
 
-def quantity_expression(result, quantity) -> sympy.Expr:
+def quantity_expression(result: Any, quantity: str | sympy.Expr) -> sympy.Expr:
     """The closed form of ``result`` called ``quantity`` (see :data:`QUANTITIES`)."""
     if isinstance(quantity, sympy.Expr):
         return quantity
@@ -139,7 +139,8 @@ def _fixed_values(result, names, values) -> dict:
     return {k: v for k, v in exact.items() if k not in names}
 
 
-def grid_function(result, expr, names, values=None) -> tuple:
+def grid_function(result: Any, expr: sympy.Expr, names: Sequence[str],
+                  values: Mapping | None = None) -> tuple:
     """A numpy function of the grid parameters ``names`` and the fixed values.
 
     Returns ``(function, substituted expression, fixed values)``; every other
@@ -157,7 +158,7 @@ def grid_function(result, expr, names, values=None) -> tuple:
     return compiled_function(sub, args), sub, fixed
 
 
-def compiled_function(expr, args):
+def compiled_function(expr: sympy.Expr, args: Sequence[sympy.Symbol]) -> Callable:
     """``expr`` compiled once for numpy arrays, common subexpressions removed
     (:mod:`criticality.local.codegen`; the result's own sympy expression, no
     user text).  Falls back to ``sympy.lambdify`` for a node the compiler does
@@ -311,8 +312,9 @@ def sweep(result: Any, quantity: str | sympy.Expr, grid: Mapping, *,
                  fixed=fixed)
 
 
-def evaluate_many(result, points: Mapping, quantities=("critical_value", "omega", "l1"), *,
-                  values: Mapping | None = None, scheduler=None) -> Mapping:
+def evaluate_many(result: Any, points: Mapping,
+                  quantities: Sequence[str] = ("critical_value", "omega", "l1"), *,
+                  values: Mapping | None = None, scheduler: Any = None) -> Mapping:
     """Several quantities of ``result`` at many parameter points at once.
 
     ``points`` maps parameter names to arrays (broadcast together); each

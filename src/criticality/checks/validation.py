@@ -68,7 +68,7 @@ def _extras():
     return numpy, solve_ivp
 
 
-def default_offsets(result, values: Mapping | None = None, **kwargs) -> tuple:
+def default_offsets(result: HopfResult, values: Mapping | None = None, **kwargs: Any) -> tuple:
     """The offsets ``|mu - mu_c|`` :func:`validate` uses by default.
 
     The offsets are 1e-2, 4e-3 and 1.6e-3 of :func:`natural_scale` at the

@@ -246,7 +246,7 @@ def _assemble(model, name, mu, choice, forms, crossing, data, forward, back):
         cycle=cycle, routes_agree=agree, notes=tuple(model.notes), compact=compact)
 
 
-def mu_pos_of(mu, forward):
+def mu_pos_of(mu: sympy.Symbol, forward: Mapping) -> sympy.Symbol:
     return forward.get(mu, mu)
 
 

@@ -14,7 +14,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from itertools import permutations
-from typing import Mapping
+from typing import TYPE_CHECKING, Any, Mapping, Sequence
 
 import mpmath
 import sympy
@@ -22,6 +22,10 @@ import sympy
 from ..errors import NoHopfPointError, ParameterError
 from ..kinds import Classification, coerce
 from ..model.delayed import current_form
+
+if TYPE_CHECKING:
+    from ..algebra.field import Element
+    from ..model.core import Model
 
 __all__ = ["NumericDelayHopf", "hopf_delay_numeric", "delta_matrix", "null_vector",
            "projection_c1"]
@@ -34,22 +38,22 @@ class NumericDelayHopf:
     The conventions are those of :class:`~criticality.delay.results.DelayHopfResult`
     (c1 for ``conj(q)^T q = 1``, ``l1 = Re(c1)/omega``)."""
 
-    model: object
+    model: Any
     parameter: str
     mode: str
-    values: Mapping[str, object]
+    values: Mapping[str, Any]
     digits: int
-    equilibrium: Mapping[str, object]
-    critical_value: object
-    omega: object
-    period: object
-    c1: object
-    l1: object
-    transversality: object
-    eigenvalue_derivative: object
+    equilibrium: Mapping[str, Any]
+    critical_value: Any
+    omega: Any
+    period: Any
+    c1: Any
+    l1: Any
+    transversality: Any
+    eigenvalue_derivative: Any
     classification: Classification
-    amplitude_coefficients: Mapping[str, object]
-    residual: object
+    amplitude_coefficients: Mapping[str, Any]
+    residual: Any
     kind: str = "hopf_delay_numeric"
     status: str = "numeric"
 
@@ -75,7 +79,7 @@ class NumericDelayHopf:
         return self.summary()
 
 
-def delta_matrix(mats, delays, lam):
+def delta_matrix(mats: Any, delays: Sequence, lam: Element) -> Any:
     """``Delta(lambda) = lambda I - A_0 - sum_k A_k exp(-lambda tau_k)`` (mpmath)."""
     n = mats[0].rows
     D = lam * mpmath.eye(n) - mats[0]
@@ -84,7 +88,7 @@ def delta_matrix(mats, delays, lam):
     return D
 
 
-def null_vector(M):
+def null_vector(M: Any) -> Any:
     """A kernel vector of a numerically singular matrix (one entry fixed to 1)."""
     n = M.rows
     if n == 1:
@@ -112,7 +116,8 @@ def null_vector(M):
     return best[1]
 
 
-def projection_c1(mats, delays, slots, second, third, omega):
+def projection_c1(mats: Any, delays: Sequence, slots: Any, second: Any, third: Any,
+                  omega: Any) -> tuple:
     """c1 (unit normalisation) by the projection form with numeric data.
 
     ``second``/``third`` are per-equation dicts of mpmath derivative values on
@@ -186,8 +191,8 @@ class _Problem:
         return mpmath.det(delta_matrix(mats, delays, lam))
 
 
-def hopf_delay_numeric(model, parameter: str, guess: Mapping, *, values: Mapping | None = None,
-                       digits: int = 30) -> NumericDelayHopf:
+def hopf_delay_numeric(model: Model, parameter: str, guess: Mapping, *,
+                       values: Mapping | None = None, digits: int = 30) -> NumericDelayHopf:
     """Locate a Hopf point of a retarded equation from ``guess`` (every state and
     the parameter; optionally ``omega``) with every other parameter fixed by
     ``values`` or the model's defaults, and compute c1, l1 and the crossing speed.

@@ -10,6 +10,8 @@ whitelisted parser.
 
 from __future__ import annotations
 
+from typing import Any, Mapping
+
 import json
 
 import sympy
@@ -17,6 +19,10 @@ import sympy
 from ..outputs.escape import tex_text
 from ..model.expressions import format_expression, parse_expression
 from ..outputs.latex_expr import latex_name
+
+#: a DelayHopfResult, typed loosely: the result imports this module at run time, and a
+#: type-only import back would make the two modules import each other
+ResultLike = Any
 
 __all__ = ["summary_text", "latex_section", "latex_document", "latex_inline", "to_json",
            "result_to_dict", "read_delay_json", "SCHEMA", "SCHEMA_VERSION"]
@@ -42,7 +48,7 @@ def _text(expr) -> str:
         return sympy.sstr(expr)
 
 
-def summary_text(r) -> str:
+def summary_text(r: ResultLike) -> str:
     mode = ("the delay is the bifurcation parameter" if r.mode == "delay"
             else "the delays are fixed")
     lines = [f"Hopf bifurcation of a retarded equation in {r.parameter!r} ({mode})",
@@ -96,13 +102,13 @@ def _latex(expr) -> str:
     return sympy.latex(expr, symbol_names=names)
 
 
-def latex_inline(r) -> str:
+def latex_inline(r: ResultLike) -> str:
     p = latex_name(r.parameter)
     return (rf"{p}_0 = {_latex(r.critical_value)},\ \omega = {_latex(r.omega)},\ "
             rf"\ell_1 = {_latex(r.l1)}\ (\text{{{r.classification}}})")
 
 
-def latex_section(r) -> str:
+def latex_section(r: ResultLike) -> str:
     p = latex_name(r.parameter)
     lam = sympy.Symbol("lambda")
     out = [r"\section*{Hopf bifurcation of a retarded equation}",
@@ -136,7 +142,7 @@ def latex_section(r) -> str:
 
 
 
-def latex_document(r) -> str:
+def latex_document(r: ResultLike) -> str:
     return "\n".join([r"\documentclass{article}", r"\usepackage{amsmath,amssymb}",
                       r"\begin{document}", latex_section(r), r"\end{document}", ""])
 
@@ -147,7 +153,7 @@ def _json_value(expr):
     return _text(expr)
 
 
-def result_to_dict(r, *, point=None, digits: int = 30) -> dict:
+def result_to_dict(r: ResultLike, *, point: Mapping | None = None, digits: int = 30) -> dict:
     doc = {
         "schema": SCHEMA, "version": SCHEMA_VERSION, "kind": r.kind,
         "model": {"states": list(r.model.states),
@@ -187,7 +193,7 @@ def result_to_dict(r, *, point=None, digits: int = 30) -> dict:
     return doc
 
 
-def to_json(r, *, point=None, digits: int = 30) -> str:
+def to_json(r: ResultLike, *, point: Mapping | None = None, digits: int = 30) -> str:
     return json.dumps(result_to_dict(r, point=point, digits=digits), indent=2)
 
 

@@ -134,15 +134,15 @@ class DelayHopfResult:
     critical_value: sympy.Expr
     critical_sequence: sympy.Expr
     crossing_indicator: sympy.Expr
-    crossing_direction: object
+    crossing_direction: Any
     transversality: sympy.Expr
     eigenvalue_derivative: sympy.Expr
     c1: sympy.Expr
     l1: sympy.Expr
-    l1_sequence: object
+    l1_sequence: Any
     classification: Classification
     verdict: str
-    criticality_condition: object
+    criticality_condition: Any
     conditions: tuple
     stability_conditions: tuple
     eigenvector_q: tuple

@@ -11,6 +11,8 @@ canonical factored form (:mod:`criticality.algebra.canonical`).
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any, Mapping, Sequence
+
 from dataclasses import replace
 
 import sympy
@@ -25,6 +27,11 @@ from ..errors import CriticalityError
 from .results import CyclePrediction, HopfResult, ReducedSystemView
 from ..algebra.signs import NEGATIVE, NONNEGATIVE, NONPOSITIVE, POSITIVE, UNDECIDED, ZERO, context_for
 from ..kinds import Classification, ConditionStatus, Side
+
+if TYPE_CHECKING:
+    from .engine import BranchComputation
+    from ..local.equilibria import EquilibriumChoice
+    from ..model.core import Model
 
 __all__ = ["build_result"]
 
@@ -90,7 +97,9 @@ def _admissibility(B, mu_name, mu_assumption, value, W):
     return conds, sides
 
 
-def build_result(model, name, mu, choice, out, bc, assumptions, params):
+def build_result(model: Model, name: str, mu: sympy.Symbol, choice: EquilibriumChoice, out: Any,
+                 bc: BranchComputation, assumptions: Mapping[str, str],
+                 params: Sequence[sympy.Symbol]) -> HopfResult | None:
     """The :class:`HopfResult` of one computed branch, or None when the branch
     is provably not a Hopf point (omega^2 <= 0)."""
     tower = bc.branch.tower

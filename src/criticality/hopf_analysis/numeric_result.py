@@ -7,6 +7,8 @@ result is numeric and how many of its digits are correct.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 from collections.abc import Mapping
 
 import mpmath
@@ -16,6 +18,9 @@ from ..local.critical import Condition
 from ..errors import ClosedFormUnavailableError
 from ..kinds import Classification, ConditionStatus, Side
 from .results import CyclePrediction, HopfResult
+
+if TYPE_CHECKING:
+    from ..model.core import Model
 
 __all__ = ["numeric_result"]
 
@@ -123,7 +128,8 @@ def _cycle(d, digits, mu, mu_c, states, stable_others):
                            2 * sympy.pi / _f(d["omega"], digits), _f(slope, digits))
 
 
-def numeric_result(original, parameter, d, digits, correct, agreement, routes, order, how):
+def numeric_result(original: Model, parameter: str, d: dict, digits: int, correct: int,
+                   agreement: float, routes: bool, order: int, how: str) -> HopfResult:
     """Build the result; ``correct`` digits are reported, ``agreement`` is the
     raw estimate of correct digits, ``how`` the note that says how it was found."""
     model = original

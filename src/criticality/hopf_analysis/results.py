@@ -92,8 +92,8 @@ class CyclePrediction:
     """
 
     side: Side
-    side_condition: object
-    stable: object
+    side_condition: Any
+    stable: Any
     radius_squared: sympy.Expr
     amplitudes: Mapping[str, sympy.Expr]
     amplitude_coefficients: Mapping[str, sympy.Expr]
@@ -174,8 +174,8 @@ class HopfResult:
     lyapunov_coefficients: tuple
     classification: Classification
     verdict: str
-    supercritical_where: object
-    l1_zero_set: object
+    supercritical_where: Any
+    l1_zero_set: Any
     conditions: tuple
     cycle: CyclePrediction
     q_norm_squared: sympy.Expr
@@ -288,8 +288,8 @@ class HopfResult:
         merged.update(kwargs)
         return evaluate_result(self, merged, digits=digits)
 
-    def evaluate_many(self, points: Mapping, quantities: Sequence[str] = ("critical_value", "omega",
-                                                                         "l1"),
+    def evaluate_many(self, points: Mapping,
+                      quantities: Sequence[str] = ("critical_value", "omega", "l1"),
                       **kwargs: Any) -> Mapping:
         """Quantities at many parameter points: arrays in, arrays out
         (float64, compiled once; see :func:`criticality.checks.sweeps.evaluate_many`)."""

@@ -132,7 +132,7 @@ def solve_equilibria(model: Model, equations: Sequence[sympy.Expr] | None = None
                                            sympy.default_sort_key(p)))
 
 
-def select_equilibrium(model: Model, candidates: Sequence, choice: int | str | None,
+def select_equilibrium(model: Model, candidates: Sequence, choice: Any,
                        sign_context: SignContext) -> EquilibriumChoice:
     """Pick one of ``candidates`` by index or by a sign condition."""
     listing = "; ".join(f"[{k}] " + ", ".join(f"{s} = {v}" for s, v in zip(model.states, p))

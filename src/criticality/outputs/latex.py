@@ -79,7 +79,7 @@ def _with_definitions(doc: Document, rows: list, environment: str) -> list:
     return rows + ["&\\text{where}"] + definitions
 
 
-def result_to_latex(result, width: float = 40) -> str:
+def result_to_latex(result: HopfResult, width: float = 40) -> str:
     """Every quantity of ``result`` as a row of one ``align*`` block.
 
     Parameters
@@ -108,7 +108,7 @@ def result_to_latex(result, width: float = 40) -> str:
     return doc.block(rows)
 
 
-def result_to_notebook_latex(result, width: float = 70) -> str:
+def result_to_notebook_latex(result: HopfResult, width: float = 70) -> str:
     """A compact ``$$\\begin{aligned} ... \\end{aligned}$$`` block for
     Jupyter (``_repr_latex_``): the critical value, the frequency, ``l1``
     and the verdict."""

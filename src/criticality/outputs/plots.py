@@ -34,6 +34,7 @@ from ..checks.plane import (CurveData, StabilityGrid, curve_data, feasibility_gr
 from .latex_expr import latex_name
 
 if TYPE_CHECKING:
+    from ..model.core import Model
     from ..checks.validation_report import ValidationReport
     from ..hopf_analysis.results import HopfResult
 
@@ -125,7 +126,7 @@ def _math(name: str) -> str:
     return "$" + latex_name(name) + "$"
 
 
-def axis_label(model, name: str) -> str:
+def axis_label(model: Model, name: str) -> str:
     """An axis label from the model: the description, the name in math and
     the unit (``"sinking loss rate $v$ [1/day]"``); the bare name when the
     model gives neither."""

@@ -17,6 +17,8 @@ quotes or one that is not also a short English word.
 
 from __future__ import annotations
 
+from typing import Iterable, Sequence
+
 import re
 
 from .escape import tex_text
@@ -217,7 +219,7 @@ def _is_formula(span: str, names: frozenset, quoted: bool) -> bool:
     return False
 
 
-def prose_to_tex(text: str, names=()) -> str:
+def prose_to_tex(text: str, names: Iterable[str] = ()) -> str:
     r"""Prose made LaTeX: formulas in math mode, the rest escaped.
 
     Parameters

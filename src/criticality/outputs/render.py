@@ -10,11 +10,16 @@ verdict, the cycle and the cautions, so that every output says the same thing.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any
+
 import sympy
 
 from ..errors import CriticalityError
 from ..kinds import Classification, Side
 from ..model.expressions import format_expression
+
+if TYPE_CHECKING:
+    from ..hopf_analysis.results import HopfResult, ReducedSystemView
 
 __all__ = ["split_complex", "model_text", "try_model_text", "wrap_expression", "CAUTIONS",
            "classification_sentence", "cycle_sentences", "transversality_sentence",
@@ -74,7 +79,7 @@ def classification_sentence(classification: str, power: int = 2) -> str:
     return text
 
 
-def split_complex(expr) -> tuple:
+def split_complex(expr: sympy.Expr) -> tuple:
     """``(re, im)`` of an expression built as ``re + I*im`` with real parts.
 
     The results build complex quantities exactly so (``c1``, ``d lambda/d mu``,
@@ -100,7 +105,7 @@ def split_complex(expr) -> tuple:
     return re, im
 
 
-def try_model_text(expr):
+def try_model_text(expr: sympy.Expr) -> str | None:
     """The expression in the model syntax, or None where the syntax cannot
     express it (the imaginary unit, ``Abs``, infinities, ``nan``)."""
     try:
@@ -109,7 +114,7 @@ def try_model_text(expr):
         return None
 
 
-def model_text(expr) -> str:
+def model_text(expr: sympy.Expr) -> str:
     """The expression in the model syntax where possible, else in sympy's own
     notation (marked ``[sympy]``), so that a display never fails.
 
@@ -162,7 +167,7 @@ def wrap_expression(text: str, width: int) -> list:
     return lines
 
 
-def transversality_sentence(result) -> str:
+def transversality_sentence(result: HopfResult) -> str:
     """Which side of the critical value the equilibrium is unstable on."""
     sign = _sign(result.transversality, result.assumptions)
     name = result.parameter
@@ -191,7 +196,7 @@ def _unstable_side(result):
     return "<" if side == ">" else ">"
 
 
-def cycle_sentences(result, show=None) -> list:
+def cycle_sentences(result: HopfResult, show: Any = None) -> list:
     """The predicted cycle in words (side, stability, period); ``show``
     writes an expression (default: :func:`model_text`)."""
     show = model_text if show is None else show
@@ -249,7 +254,7 @@ def _sign(expr, assumptions=None) -> int:
     return 0
 
 
-def reduced_system_or_none(result):
+def reduced_system_or_none(result: HopfResult) -> ReducedSystemView | None:
     """The reduced system of a result, or None where it is not available
     (the numeric mode does not build it)."""
     try:
@@ -260,7 +265,7 @@ def reduced_system_or_none(result):
         return None
 
 
-def per_offset(result, expr):
+def per_offset(result: HopfResult, expr: sympy.Expr) -> sympy.Expr:
     """``K`` such that ``expr = K*(mu - mu_c)`` (the radius and amplitudes of
     the cycle have this shape), or None when ``expr`` is not of it."""
     offset = result.parameter_symbol - result.critical_value
