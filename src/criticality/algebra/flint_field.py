@@ -149,10 +149,10 @@ class RationalFunction:
     def __hash__(self) -> int:
         return hash((str(self.num), str(self.den)))
 
-    def __bool__(self):
+    def __bool__(self) -> bool:
         return not self.num.is_zero()
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         if self.den.is_one():
             return f"({self.num})"
         return f"({self.num})/({self.den})"
@@ -278,7 +278,7 @@ class FlintRationalFunctionField(Field):
             buckets.setdefault(k, {})[rest] = coeff
         return {k: self.ctx.from_dict(d) for k, d in buckets.items()}
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return f"QQ({', '.join(map(str, self.symbols))})[flint]"
 
 
@@ -327,7 +327,7 @@ class FlintRationalField(Field):
     def derivative(self, x: Element, symbol: sympy.Symbol) -> Element:
         raise ValueError(f"{symbol} is not a generator of QQ")
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return "QQ[flint]"
 
 
@@ -446,7 +446,7 @@ class FlintPolynomialRing(PolynomialRing):
         r = a.resultant(b, str(self.symbols[-1]))
         return self.split(r).get(0, self.base.zero)
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return f"ZZ[{', '.join(map(str, self.symbols))}][flint]"
 
 

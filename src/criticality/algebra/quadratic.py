@@ -100,7 +100,7 @@ class QuadraticElement:
 
     __rmul__ = __mul__
 
-    def norm(self):
+    def norm(self) -> Element:
         """``a**2 - b**2 d``, an element of the base field."""
         return self.a * self.a - self.b * self.b * self.ext.radicand
 
@@ -166,7 +166,7 @@ class QuadraticElement:
         return f"[{self.a!r} + {self.b!r}*{self.ext.name}]"
 
 
-def lower(x):
+def lower(x: Element) -> Element:
     """``x`` in the smallest field of its tower that contains it: strips
     extension levels whose generator has a zero coefficient (quadratic
     extensions and the algebraic extensions of :mod:`criticality.algebra.algebraic`)."""
@@ -228,7 +228,7 @@ class QuadraticExtension(Field):
     def contains(self, x: Element) -> bool:
         return isinstance(x, QuadraticElement) and x.ext is self
 
-    def components(self, x: Element):
+    def components(self, x: Element) -> tuple[Element, Element]:
         """``(a, b)`` with ``x = a + b*t``; base elements give ``(x, 0)``."""
         if self.contains(x):
             return x.a, x.b

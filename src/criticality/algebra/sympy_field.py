@@ -114,7 +114,7 @@ class SympyRationalFunctionField(Field):
         i = self.symbols.index(symbol)
         return x.diff(self.gens[i])
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return f"QQ({', '.join(map(str, self.symbols))})[sympy]"
 
 
@@ -257,6 +257,6 @@ class SympyPolynomialRing(PolynomialRing):
             r = self.base._ring.from_dict(dict(r.terms())) if r else self.base._ring.zero
         return r
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return f"ZZ[{', '.join(map(str, self.symbols))}][sympy]"
 

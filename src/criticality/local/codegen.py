@@ -26,7 +26,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
-from typing import Sequence
+from typing import Any, Sequence
 
 import sympy
 
@@ -204,11 +204,11 @@ class CompiledExpressions:
     def __call__(self, args: Sequence) -> list:
         return self._fn(args)  # type: ignore[attr-defined]  # set in __post_init__, not a field
 
-    def __reduce__(self):
+    def __reduce__(self) -> tuple:
         return (CompiledExpressions, (self.source, self.backend, self.count, self.arity))
 
 
-def operation_count(exprs) -> int:
+def operation_count(exprs: Any) -> int:
     """Operations in ``exprs`` as sympy counts them (a size measure)."""
     return int(sum(sympy.count_ops(e) for e in exprs))
 

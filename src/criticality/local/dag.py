@@ -22,6 +22,8 @@ no user text is involved), for the back ends of :mod:`criticality.local.codegen`
 
 from __future__ import annotations
 
+from typing import Any
+
 import sympy
 
 from .codegen import UnsupportedExpression
@@ -56,13 +58,13 @@ class ExpressionGraph:
             self.index[key] = k
         return k
 
-    def const(self, value) -> int:
+    def const(self, value: Any) -> int:
         return self._node(("c", sympy.sympify(value)))
 
     def arg(self, k: int) -> int:
         return self._node(("a", k))
 
-    def value(self, a):
+    def value(self, a: Any) -> Any:
         key = self.nodes[a]
         return key[1] if key[0] == "c" else None
 
@@ -91,7 +93,7 @@ class ExpressionGraph:
     def neg(self, a: int) -> int:
         return self.mul(self.const(-1), a)
 
-    def power(self, a: int, e) -> int:
+    def power(self, a: int, e: Any) -> int:
         """``a ** e`` for a sympy number ``e`` (an integer or a rational)."""
         e = sympy.sympify(e)
         va = self.value(a)
@@ -118,7 +120,7 @@ class ExpressionGraph:
         return self._node(("f", name, a))
 
     # -- from sympy -----------------------------------------------------------------------
-    def from_sympy(self, expr, args: dict, cache: dict | None = None) -> int:
+    def from_sympy(self, expr: Any, args: dict, cache: dict | None = None) -> int:
         """The node of a sympy expression; ``args`` maps symbols to argument numbers."""
         cache = {} if cache is None else cache
         hit = cache.get(expr)
@@ -252,7 +254,7 @@ class ExpressionGraph:
         raise UnsupportedExpression(f"no derivative rule for {name}")
 
     # -- code -------------------------------------------------------------------------------
-    def source(self, outputs, n_args: int, backend: str) -> str:
+    def source(self, outputs: Any, n_args: int, backend: str) -> str:
         """Python source of ``_generated(args)`` returning the output nodes."""
         need = set()
         stack = list(outputs)

@@ -160,7 +160,7 @@ class TaylorForms:
         ``components[i][e]`` is the coefficient of ``u**e`` in component ``i``.
     """
 
-    def __init__(self, field, n: int, order: int, components) -> None:
+    def __init__(self, field: Any, n: int, order: int, components: Any) -> None:
         self.field = field
         self.n = n
         self.order = order
@@ -171,7 +171,7 @@ class TaylorForms:
         ]
 
     @classmethod
-    def from_raw(cls, raw: RawTaylor, equilibrium, convert, field) -> "TaylorForms":
+    def from_raw(cls, raw: RawTaylor, equilibrium: Any, convert: Any, field: Any) -> "TaylorForms":
         """Convert ``raw`` into ``field`` (``convert`` maps sympy -> element),
         shifting polynomial components by ``equilibrium`` (field elements)."""
         comps = []
