@@ -16,6 +16,8 @@ numbers) and, over QQ, an isolating interval with rational end points which
 
 from __future__ import annotations
 
+from typing import Any, Sequence
+
 from fractions import Fraction
 
 import sympy
@@ -31,7 +33,7 @@ class AlgebraicElement:
 
     __slots__ = ("c", "ext")
 
-    def __init__(self, c, ext) -> None:
+    def __init__(self, c: Sequence[Element], ext: AlgebraicExtension) -> None:
         self.c = c  # tuple of base elements, length ext.degree
         self.ext = ext
 
@@ -153,7 +155,8 @@ class AlgebraicExtension(Field):
     #: an isolating interval of the root refined by the certified signs (a cache)
     _refined: tuple
 
-    def __init__(self, base: Field, modulus, name: str, root=None, interval=None) -> None:
+    def __init__(self, base: Field, modulus: Sequence[Element], name: str,
+                 root: sympy.Expr | None = None, interval: tuple | None = None) -> None:
         m = upoly.trim([base(c) for c in modulus])
         if len(m) < 2:
             raise ValueError("the modulus of an algebraic extension must have degree >= 1")
@@ -176,7 +179,7 @@ class AlgebraicExtension(Field):
         z = self.base.zero
         return AlgebraicElement((self.base(value),) + (z,) * (self.degree - 1), self)
 
-    def from_list(self, coeffs) -> AlgebraicElement:
+    def from_list(self, coeffs: Sequence[Element]) -> AlgebraicElement:
         """An element from coefficients (lowest first) of degree < n."""
         z = self.base.zero
         c = tuple(coeffs) + (z,) * (self.degree - len(coeffs))
@@ -191,7 +194,7 @@ class AlgebraicExtension(Field):
         return isinstance(x, AlgebraicElement) and x.ext is self
 
     # -- arithmetic kernels ---------------------------------------------------------------
-    def reduce(self, p):
+    def reduce(self, p: list[Element]) -> list[Element]:
         """``p mod m`` for a coefficient list ``p``."""
         n, m = self.degree, self.modulus
         p = list(p)
@@ -233,7 +236,7 @@ class AlgebraicExtension(Field):
         x = self(x)
         return sum(self.base.size(a) for a in x.c if a) or 1
 
-    def modulus_expr(self, variable) -> sympy.Expr:
+    def modulus_expr(self, variable: sympy.Symbol) -> sympy.Expr:
         return sympy.Add(*[self.base.to_sympy(c) * variable ** k
                            for k, c in enumerate(self.modulus)])
 
@@ -280,7 +283,7 @@ class RealAlgebraicRoot(sympy.Function):
         return roots[int(k)]
 
     @property
-    def free_symbols(self):
+    def free_symbols(self) -> set:
         return self.args[0].free_symbols
 
     def _eval_is_positive(self):
@@ -316,7 +319,7 @@ def prec_to_dps(prec: int) -> int:
     return max(1, int(prec * 0.30103))
 
 
-def as_fraction(x) -> Fraction:
+def as_fraction(x: Any) -> Fraction:
     """A rational number of any of the engine's QQ types as a Fraction."""
     return Fraction(int(x.numerator), int(x.denominator)) if hasattr(x, "numerator") else \
         Fraction(int(x.p), int(x.q))

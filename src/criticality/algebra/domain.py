@@ -16,7 +16,7 @@ by an element of another tower (:meth:`Tower.substitute`).
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Any, Iterable, Sequence, Union
+from typing import Any, Callable, Iterable, Sequence, Union
 
 import sympy
 
@@ -185,7 +185,9 @@ class Tower:
         of a radicand that turns out to be a perfect square.
     """
 
-    def __init__(self, parameters, atoms=(), backend: str = "flint", positivity=None) -> None:
+    def __init__(self, parameters: Sequence[sympy.Symbol], atoms: Sequence[Atom] = (),
+                 backend: str = "flint",
+                 positivity: Callable[[sympy.Expr], bool | None] | None = None) -> None:
         self.parameters = tuple(parameters)
         self.atoms = tuple(Atom(sympy.Dummy(f"g{k}", real=True), a, _atom_positive(a, positivity))
                            for k, a in enumerate(atoms))
@@ -443,8 +445,9 @@ class Tower:
             return a + b * level_map[x.ext]
         return _substitute_base(self.base, self.base(x), symbol, value, target)
 
-    def radical_images(self, symbol, value, target: "Tower", value_expr=None,
-                       zeros=()) -> dict:
+    def radical_images(self, symbol: sympy.Symbol, value: Element, target: "Tower",
+                       value_expr: sympy.Expr | None = None,
+                       zeros: Iterable[Element] = ()) -> dict:
         """Adjoin to ``target`` the images of this tower's radicals under
         ``symbol -> value`` and return the map extension -> image.
 

@@ -15,7 +15,7 @@ from __future__ import annotations
 from typing import TYPE_CHECKING, Any
 
 if TYPE_CHECKING:
-    from typing import Sequence
+    from typing import Iterable, Sequence
 
     import sympy
 
@@ -129,7 +129,7 @@ class PolynomialRing:
         raise NotImplementedError
 
 
-def clear_denominators(K, xs):
+def clear_denominators(K: Any, xs: Iterable[Element]) -> tuple:
     """``(D, [n_1, ...])`` in ``K.ring`` with ``x_i = n_i / D`` and ``D`` the
     least common multiple of the denominators."""
     R = K.ring

@@ -15,7 +15,7 @@ Both fields implement the protocol of :mod:`criticality.algebra.field`.
 from __future__ import annotations
 
 from fractions import Fraction
-from typing import Sequence
+from typing import Any, Sequence
 
 import flint
 import sympy
@@ -37,7 +37,7 @@ class RationalFunction:
 
     __slots__ = ("num", "den", "field")
 
-    def __init__(self, num: RingElement, den: RingElement, field) -> None:
+    def __init__(self, num: RingElement, den: RingElement, field: Any) -> None:
         # callers guarantee: gcd(num, den) == 1 and den normalised
         self.num = num
         self.den = den
@@ -347,7 +347,7 @@ class FlintPolynomialRing(PolynomialRing):
 
     backend = "flint"
 
-    def __init__(self, symbols: Sequence[sympy.Symbol], base=None) -> None:
+    def __init__(self, symbols: Sequence[sympy.Symbol], base: Any = None) -> None:
         self.symbols = tuple(symbols)
         self.base = base
         self.ctx = flint.fmpz_mpoly_ctx.get(tuple(str(s) for s in self.symbols), "degrevlex")

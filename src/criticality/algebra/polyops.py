@@ -35,7 +35,7 @@ class NumeratorFactor:
 
     __slots__ = ("coefficients", "degrees", "_expr")
 
-    def __init__(self, coefficients, degrees, expr) -> None:
+    def __init__(self, coefficients: Any, degrees: Any, expr: Any) -> None:
         self.coefficients = coefficients
         self.degrees = degrees
         self._expr = expr

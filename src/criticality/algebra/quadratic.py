@@ -31,7 +31,7 @@ class QuadraticElement:
 
     __slots__ = ("a", "b", "ext")
 
-    def __init__(self, a, b, ext) -> None:
+    def __init__(self, a: Element, b: Element, ext: QuadraticExtension) -> None:
         self.a = a
         self.b = b
         self.ext = ext
@@ -204,7 +204,8 @@ class QuadraticExtension(Field):
     True
     """
 
-    def __init__(self, base: Field, radicand, name: str, root=None) -> None:
+    def __init__(self, base: Field, radicand: Element, name: str,
+                 root: sympy.Expr | None = None) -> None:
         self.base = base
         self.radicand = base(radicand) if not isinstance(radicand, QuadraticElement) else radicand
         self.name = name
@@ -221,7 +222,7 @@ class QuadraticExtension(Field):
             return value
         return QuadraticElement(self.base(value), self.base.zero, self)
 
-    def element(self, a, b) -> QuadraticElement:
+    def element(self, a: Element, b: Element) -> QuadraticElement:
         """``a + b*t`` from two elements of the base field."""
         return QuadraticElement(self.base(a), self.base(b), self)
 

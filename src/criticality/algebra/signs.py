@@ -153,7 +153,7 @@ class SignContext:
             data[tuple(e)] = flint.fmpq(int(c.p), int(c.q))
         return self.ctx.from_dict(data)
 
-    def poly_from_flint(self, poly, field_symbols):
+    def poly_from_flint(self, poly: Any, field_symbols: Any) -> Any:
         """Embed an ``fmpz_mpoly`` over ``field_symbols`` (None if a symbol is unknown)."""
         try:
             idx = [self._index[s] for s in field_symbols]
@@ -281,7 +281,7 @@ class SignContext:
         x = K.from_sympy(expr)
         return self.from_flint(K, x.num, x.den)
 
-    def from_flint(self, K, num, den) -> FactoredSign:
+    def from_flint(self, K: Any, num: Any, den: Any) -> FactoredSign:
         """Factored sign of ``num/den`` (``fmpz_mpoly`` of the field ``K``)."""
         cn, fn = num.factor()
         cd, fd = den.factor()
@@ -303,7 +303,7 @@ class SignContext:
             decided.append((K.poly_to_sympy(f), m, in_den, s))
         return self.assemble(constant, decided, oriented=True)
 
-    def assemble(self, constant, decided, *, oriented: bool = False) -> FactoredSign:
+    def assemble(self, constant: Any, decided: Any, *, oriented: bool = False) -> FactoredSign:
         """Combine ``(expr, multiplicity, in_denominator, sign)`` factors.
 
         With ``oriented=True`` the factors are already non-negative where

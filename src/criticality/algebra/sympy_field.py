@@ -127,7 +127,7 @@ class SympyPolynomialRing(PolynomialRing):
     backend = "sympy"
 
     def __init__(self, symbols: Sequence[sympy.Symbol], ring: PolyRing | None = None,
-                 base=None) -> None:
+                 base: Any = None) -> None:
         self.symbols = tuple(symbols)
         self.base = base
         self._ring: Any = ring if ring is not None or not self.symbols else \
@@ -155,7 +155,7 @@ class SympyPolynomialRing(PolynomialRing):
             return int(expr)
         return self._ring.from_expr(expr)
 
-    def primitive(self, p: RingElement):
+    def primitive(self, p: RingElement) -> tuple:
         """``(c, p / c)`` with integer coefficients of content one (sign
         kept), for a polynomial with rational coefficients."""
         if self._ring is None:

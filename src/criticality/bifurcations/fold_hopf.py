@@ -128,7 +128,7 @@ class FoldHopfResult:
         return self.summary()
 
 
-def fold_hopf_scenario(s, theta_sign: str) -> str:
+def fold_hopf_scenario(s: int | str, theta_sign: str) -> str:
     """The unfolding in words for ``s`` (+1, -1 or a word) and the sign of theta."""
     if s not in (1, -1) or theta_sign not in ("positive", "negative"):
         return ("s and the sign of theta are not both decided; the four cases are s theta > 0 "
