@@ -16,6 +16,8 @@ shell only.
 
 from __future__ import annotations
 
+from typing import Any
+
 import argparse
 
 from .support import Stage, equilibrium_choice, pairs, read_model, split_top_level, write_output
@@ -43,7 +45,7 @@ def _numeric_text(num) -> str:
     return "\n".join(lines)
 
 
-def delay_output(args, result, what: str) -> int:
+def delay_output(args: argparse.Namespace, result: Any, what: str) -> int:
     """Render a delay result for the main subcommands (text, latex, fragment, json, evaluate)."""
     point = _merged(getattr(args, "point", None))
     digits = getattr(args, "digits", 20)
@@ -94,7 +96,7 @@ def _floats(point: dict) -> dict:
     return out
 
 
-def register(subparsers) -> None:
+def register(subparsers: Any) -> None:
     """Add the ``delay-confirm`` subcommand."""
     p = subparsers.add_parser(
         "delay-confirm", help="simulate a delay equation near onset and compare with the "

@@ -10,6 +10,7 @@ there.  No mathematics here.
 
 from __future__ import annotations
 
+import argparse
 import json
 import os
 from importlib.resources import files
@@ -64,7 +65,7 @@ def _write_files(result, text: str, folder: str, force: bool) -> list:
     return out
 
 
-def run_demo(args, *, quiet: bool = False) -> int:
+def run_demo(args: argparse.Namespace, *, quiet: bool = False) -> int:
     """Print the demo; returns the exit status."""
     from ..hopf_analysis.analysis import hopf
     from ..outputs.latex import result_to_latex
