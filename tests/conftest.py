@@ -4,7 +4,8 @@ import builtins
 
 import pytest
 
-from criticality import Model, hopf
+from criticality import hopf
+from models import LORENZ, LORENZ_EQUILIBRIUM
 
 
 @pytest.fixture
@@ -35,8 +36,4 @@ def backend(request):
 def lorenz():
     """The Hopf analysis of the Lorenz system in r at its positive equilibrium
     (a frozen result, computed once and shared)."""
-    m = Model(states=["x", "y", "z"],
-              equations={"x": "sigma*(y - x)", "y": "r*x - y - x*z", "z": "x*y - b*z"},
-              parameters={"sigma": "positive", "b": "positive", "r": "positive"})
-    return hopf(m, "r", equilibrium={"x": "sqrt(b*(r - 1))", "y": "sqrt(b*(r - 1))",
-                                     "z": "r - 1"})
+    return hopf(LORENZ, "r", equilibrium=LORENZ_EQUILIBRIUM)

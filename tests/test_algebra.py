@@ -33,6 +33,7 @@ def rational_functions(draw):
     return num / den
 
 
+@pytest.mark.slow
 @settings(max_examples=60, deadline=None)
 @given(x=rational_functions(), y=rational_functions())
 @example(x=sympy.Integer(-1), y=1 / (b ** 2 - b * c ** 2))  # a denominator read with a negative sign
@@ -49,6 +50,7 @@ def test_flint_field_matches_sympy_stand_in(x, y):
     assert F.derivative(fx, a) == F.from_sympy(sympy.diff(x, a))
 
 
+@pytest.mark.slow
 @settings(max_examples=80, deadline=None)
 @given(x=rational_functions())
 def test_flint_to_sympy_builds_sympys_own_canonical_form(x):
@@ -82,6 +84,7 @@ def test_quadratic_extension_arithmetic():
     assert (z.conjugate() * z).b == 0  # the norm is real
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("backend", ["flint", "sympy"])
 def test_linear_solve_and_kernel_against_sympy(backend):
     rng = random.Random(3)
@@ -136,6 +139,7 @@ def test_hurwitz_determinants_of_a_cubic():
     assert sympy.expand(d[2] - a3 * (a1 * a2 - a3)) == 0
 
 
+@pytest.mark.slow
 def test_tower_substitution_and_derivative_with_radicals():
     """d sqrt(b(r-1))/dr and the substitution r -> r_c carry the radical along."""
     r = sympy.Symbol("r", real=True)
@@ -159,6 +163,7 @@ def test_perfect_square_radicand_becomes_rational():
     assert T.to_sympy(x) == 2 * a
 
 
+@pytest.mark.slow
 @settings(max_examples=40, deadline=None)
 @given(x=rational_functions())
 def test_ring_view_agrees_on_both_fields_and_with_sympy(x):
@@ -204,6 +209,7 @@ def test_ring_view_resultant_and_coefficients_against_sympy(backend):
     assert R.evaluate(p, [2, 3, 5]) == 2 ** 2 * 3 + 3 * 2 * 5 - 3 + 7
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("backend", ["flint", "sympy"])
 def test_closed_form_solver_finds_linear_quadratic_and_biquadratic_roots(backend):
     """solve_for on (a - 2b)(a^2 - b)(a^4 - 5a^2 + 4) finds every root that

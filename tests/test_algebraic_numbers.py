@@ -68,6 +68,7 @@ def test_certified_signs_of_numbers_with_radicals():
     assert certified_sign(t * t * t - 3 * t + 1) == 0
 
 
+@pytest.mark.slow
 def test_cube_root_critical_value_in_the_reactor_family():
     """The invented autocatalytic reactor with q = 1/10 has its Hopf point
     where b^3 = a^2 (a cube root, once refused as 'no closed form').  Its l1
@@ -91,6 +92,7 @@ def test_cube_root_critical_value_in_the_reactor_family():
         assert e.pair_error < 1e-20
 
 
+@pytest.mark.slow
 def test_irrational_cube_root_at_numeric_values_is_decided():
     """At a = 2 the critical value is the real cube root of 4 (CRootOf); the
     verdict is decided (no open conditions), and the value, l1 and the
@@ -122,6 +124,7 @@ def _planar(T):
                  parameters={"mu": "real"})
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("T,roots", [
     ("(mu^3 - 3*mu + 1)", 3),     # casus irreducibilis: three real roots, no real radicals
     ("(mu^4 - 5*mu^2 + 5)", 4),   # a quartic that is quadratic in mu^2
@@ -197,6 +200,7 @@ def test_radical_of_the_parameter_with_a_quadratic_critical_value():
 SELKOV = {"x": "-x + a*y + x^2*y", "y": "b - a*y - x^2*y"}
 
 
+@pytest.mark.slow
 def test_selkov_glycolysis_quartic_critical_set():
     """Sel'kov's glycolysis model in dimensionless form (Sel'kov, Eur. J.
     Biochem. 4 (1968) 79-86; as in Strogatz, Nonlinear Dynamics and Chaos,
@@ -235,6 +239,7 @@ def test_selkov_glycolysis_quartic_critical_set():
 WATT_BETA = {"x": "y", "y": "z^2*sin(x)*cos(x) - sin(x) - eps*y", "z": "alpha*(cos(x) - beta)"}
 
 
+@pytest.mark.slow
 def test_watt_governor_without_reparametrisation():
     """The Watt governor as written by Sotomayor, Mello and Braga
     ("Bifurcation analysis of the Watt governor system", Comput. Appl. Math.
@@ -286,6 +291,7 @@ def _random_critical_model(seed):
     return Model(states=["x", "y"], equations=eqs, parameters={"mu": "real"}), poly
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("seed", [1, 3, 4, 7])
 def test_random_critical_sets_of_degree_two_to_four(seed):
     """On random models with critical sets of degree 2 to 4 both arithmetic

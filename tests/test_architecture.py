@@ -37,8 +37,19 @@ def _room(module: str, modules) -> str:
     return parts[0]
 
 
+_IMPORTS: dict = {}
+
+
 def _imports(modules):
-    """``[(module, imported module, name or None, at module level)]``."""
+    """``[(module, imported module, name or None, at module level)]`` (parsed
+    once per set of modules and shared by the tests)."""
+    key = tuple(sorted(modules))
+    if key not in _IMPORTS:
+        _IMPORTS[key] = _parse_imports(modules)
+    return _IMPORTS[key]
+
+
+def _parse_imports(modules):
     out = []
     for module, (path, package) in modules.items():
         tree = ast.parse(path.read_text())

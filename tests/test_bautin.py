@@ -21,6 +21,7 @@ def _normal_form(s):
     return Model(["x", "y"], eqs, parameters={"mu": "real", "k": "real"})
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("s,sign,side", [(-1, "negative", "k >"), (1, "positive", "k <")])
 def test_bautin_normal_form(s, sign, side, backend):
     """The Bautin point of the normal form is k = 0 with l2 = 4 s (the 2^k
@@ -80,6 +81,7 @@ def _watt_bautin(b):
                          values={"b": b})
 
 
+@pytest.mark.slow
 def test_watt_governor_second_coefficient_takes_both_signs():
     """On the curve l1 = 0 of the Watt governor, l2 is positive at b = 9/10 and
     negative at b = 24/25: a codimension-three point lies between, and where
@@ -92,6 +94,7 @@ def test_watt_governor_second_coefficient_takes_both_signs():
     assert high[0].fold_of_cycles_side.startswith("alpha <")
 
 
+@pytest.mark.slow
 def test_watt_governor_l2_agrees_with_the_numeric_mode():
     """At the Bautin point for b = 24/25 the numeric mode (mpmath, from a
     guess) finds l1 = 0 to the accuracy of the given alpha and the same l2."""

@@ -46,6 +46,7 @@ def _jump_at(monkeypatch, clock, prefix):
     monkeypatch.setattr(engine, "stage", stage)
 
 
+@pytest.mark.slow
 def test_a_spent_budget_names_the_stage_the_root_and_the_linear_parameter(monkeypatch):
     clock = _Clock()
     monkeypatch.setattr(budget, "_clock", clock)

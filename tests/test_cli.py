@@ -85,6 +85,7 @@ def test_set_fixes_values_before_the_analysis(model_file, capsys):
     assert "supercritical for all admissible parameters" in out
 
 
+@pytest.mark.slow
 def test_report_writes_a_document_atomically_and_never_overwrites(model_file, tmp_path, capsys):
     """The report is a standalone document; a second run refuses to overwrite
     without --force and leaves no temporary file behind."""
@@ -142,6 +143,7 @@ def test_list_comes_from_the_registry(capsys):
         assert a.name in out
 
 
+@pytest.mark.slow
 def test_demo_shows_every_output(tmp_path, capsys):
     """The demo needs no model file and shows summary, LaTeX, JSON and numbers;
     with --output-dir it writes three files and then refuses to overwrite."""
@@ -242,6 +244,7 @@ def _script():
                                   "sys.exit(main())"]
 
 
+@pytest.mark.slow
 def test_installed_script_reads_stdin_and_reports_errors(model_file):
     """The console script works end to end, with stdin and exit codes."""
     done = subprocess.run(_script() + ["analyse", "-", "-q"], input=STAGE, text=True,
@@ -255,6 +258,7 @@ def test_installed_script_reads_stdin_and_reports_errors(model_file):
     assert done.returncode == 0 and "criticality" in done.stdout
 
 
+@pytest.mark.slow
 def test_installed_script_demo():
     done = subprocess.run(_script() + ["demo", "-q"], text=True, capture_output=True,
                           timeout=180)

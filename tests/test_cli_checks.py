@@ -67,6 +67,7 @@ def model_file(tmp_path):
     return path
 
 
+@pytest.mark.slow
 def test_confirm_prints_the_report(model_file, capsys):
     code = run(["confirm", model_file, "--offsets", "0.08", "0.04"])
     out = capsys.readouterr().out
@@ -75,6 +76,7 @@ def test_confirm_prints_the_report(model_file, capsys):
     assert "Verdict: confirmed" in out
 
 
+@pytest.mark.slow
 def test_confirm_writes_latex_and_refuses_to_overwrite(model_file, tmp_path, capsys):
     target = tmp_path / "report.tex"
     argv = ["confirm", model_file, "--offsets", "0.08", "--at", "a=1/2", "--format", "latex",
@@ -86,6 +88,7 @@ def test_confirm_writes_latex_and_refuses_to_overwrite(model_file, tmp_path, cap
     assert run(argv + ["--force"]) == 0
 
 
+@pytest.mark.slow
 def test_confirm_reports_a_poor_prediction_by_its_exit_status(model_file, capsys):
     """Far from onset (offset 30 at a = 1) the check does not confirm."""
     code = run(["confirm", model_file, "--offsets", "30", "--max-periods", "400"])
@@ -93,6 +96,7 @@ def test_confirm_reports_a_poor_prediction_by_its_exit_status(model_file, capsys
     assert "not confirmed" in capsys.readouterr().out
 
 
+@pytest.mark.slow
 def test_plane_writes_png_and_csv(model_file, tmp_path, capsys):
     png, table = tmp_path / "plane.png", tmp_path / "curve.csv"
     code = run(["plane", model_file, "--x", "a", "--x-range", "-12", "4", "--y-range", "-5",
@@ -106,6 +110,7 @@ def test_plane_writes_png_and_csv(model_file, tmp_path, capsys):
     assert len(lines) == 81
 
 
+@pytest.mark.slow
 def test_equilibrium_option_and_standard_input(tmp_path, monkeypatch, capsys):
     """An equilibrium with a comma-free function call, and the model from stdin."""
     monkeypatch.setattr("sys.stdin", io.StringIO(LORENZ))
@@ -128,6 +133,7 @@ def test_bad_input_gives_the_package_error(model_file, tmp_path, capsys):
     assert not (tmp_path / "p.png").exists()
 
 
+@pytest.mark.slow
 def test_survey_writes_every_file(model_file, tmp_path, capsys):
     out = tmp_path / "survey"
     code = run(["survey", model_file, "--x", "a", "--x-range", "-12", "4", "--y-range", "-5",

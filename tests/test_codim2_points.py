@@ -66,6 +66,7 @@ def test_fold_hopf_coefficients_of_the_truncated_normal_form():
     assert "no invariant torus" in r.scenario
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("coeffs, s, theta", [((1, -2, 3, 1), -1, sympy.Rational(3, 2)),
                                               ((-1, -1, 1, 2), 1, sympy.Rational(-1, 2))])
 def test_fold_hopf_invariants_survive_coordinate_changes(coeffs, s, theta):
@@ -127,6 +128,7 @@ def _hopf_hopf_form(P, w1=5, w2=2):
             "x2": m2 * x2 - w2 * y2 + g2 * x2, "y2": w2 * x2 + m2 * y2 + g2 * y2}
 
 
+@pytest.mark.slow
 def test_hopf_hopf_coefficients_of_the_truncated_normal_form():
     """With <q_k, q_k> = 1, |w_k|^2 = 2 |z_k|^2: p_jk = 2 P_jk, theta = P12/P22, delta =
     P21/P11 (common practice, no source)."""
@@ -139,6 +141,7 @@ def test_hopf_hopf_coefficients_of_the_truncated_normal_form():
     assert r.resonance == "none"
 
 
+@pytest.mark.slow
 def test_hopf_hopf_cases_and_sub_cases():
     """Chosen coefficients give the simple case with theta delta > 1 (bistability) and the
     difficult case."""
@@ -154,6 +157,7 @@ def test_hopf_hopf_cases_and_sub_cases():
     assert hard.case == "difficult" and "difficult" in hard.scenario
 
 
+@pytest.mark.slow
 def test_hopf_hopf_invariants_survive_coordinate_changes():
     """Under x = T (y + Q(y)) the invariants theta and delta and the signs of Re p11 and Re
     p22 are unchanged (common practice, no source)."""
@@ -238,6 +242,7 @@ def test_spectrum_check_confirms_the_located_points():
     assert spectrum_check(hopf_hopf(h, ("m1", "m2"), equilibrium=0), h).agrees
 
 
+@pytest.mark.slow
 def test_latex_of_the_new_results_compiles(tmp_path):
     """The align* blocks of flip, Neimark-Sacker, fold-Hopf and Hopf-Hopf results compile
     with pdflatex (skipped without pdflatex unless CRITICALITY_REQUIRE_LATEX=1)."""

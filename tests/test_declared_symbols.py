@@ -7,11 +7,11 @@ from __future__ import annotations
 import sympy
 
 from criticality import Model, hopf
+from models import BRUSSELATOR
 
 
 def _brusselator():
-    return Model(["x", "y"], {"x": "A - (B + 1)*x + x^2*y", "y": "B*x - x^2*y"},
-                 {"A": "positive", "B": "positive"})
+    return BRUSSELATOR
 
 
 def test_results_use_model_symbols():

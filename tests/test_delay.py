@@ -24,6 +24,7 @@ from criticality import Model, hopf, format_expression, parse_expression
 from criticality.errors import (ClosedFormUnavailableError, ForbiddenExpressionError,
                                 InvalidModelError, NoHopfPointError)
 from criticality.model.delayed import Delayed
+from models import WRIGHT
 
 pi = sympy.pi
 
@@ -34,8 +35,7 @@ def R(name, **kw):
 
 @pytest.fixture(scope="module")
 def wright():
-    m = Model(["y"], {"y": "-alpha*y(t - 1)*(1 + y)"}, {"alpha": "positive"})
-    return hopf(m, "alpha", equilibrium={"y": 0})
+    return hopf(WRIGHT, "alpha", equilibrium={"y": 0})
 
 
 @pytest.fixture(scope="module")
@@ -153,6 +153,7 @@ def test_cooke_van_den_driessche_sign_matches_findroot(hutchinson):
     assert hutchinson.crossing_indicator == 1 and num.transversality > 0
 
 
+@pytest.mark.slow
 def test_mackey_glass_published_hopf_condition():
     """Mackey-Glass x' = beta x_tau/(1 + x_tau^n) - gamma x with beta = 2 gamma,
     n = 10 (equilibrium x = 1): the linearisation lambda + gamma + b
@@ -206,6 +207,7 @@ def _c1_at_zero_delay(model, mu_name, mu_c, omega):
 _coef = st.integers(-3, 3)
 
 
+@pytest.mark.slow
 @settings(max_examples=8, deadline=None)
 @given(a=_coef, b=_coef, c=_coef, e=_coef)
 def test_delay_zero_gives_the_ordinary_result(a, b, c, e):
@@ -220,6 +222,7 @@ def test_delay_zero_gives_the_ordinary_result(a, b, c, e):
     assert sympy.simplify(re_c1 - ref.l1 * ref.omega) == 0
 
 
+@pytest.mark.slow
 @settings(max_examples=6, deadline=None)
 @given(k=st.sampled_from([2, 5, 10]), b=_coef, c=_coef, d=st.integers(-2, 2))
 def test_two_routes_agree_on_random_delay_models(k, b, c, d):
@@ -291,6 +294,7 @@ def test_json_latex_and_text(hutchinson):
     assert "supercritical" in str(hutchinson) and "local" in str(hutchinson)
 
 
+@pytest.mark.slow
 def test_cli_runs_a_delay_model(tmp_path, capsys):
     from criticality.cli.main import main
     path = tmp_path / "lag.toml"
@@ -329,6 +333,7 @@ def test_hutchinson_simulation_in_the_delay(hutchinson):
     assert all(row["period_error"] < 0.01 for row in report.rows)
 
 
+@pytest.mark.slow
 def test_bundled_example_runs():
     """examples/cold_store_lag.py prints its verdict (an invented scenario)."""
     import subprocess

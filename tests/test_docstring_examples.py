@@ -12,6 +12,7 @@ import criticality
 MODULES = sorted(name for _, name, _ in pkgutil.walk_packages(criticality.__path__, "criticality."))
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("name", MODULES)
 def test_docstring_examples(name):
     module = importlib.import_module(name)

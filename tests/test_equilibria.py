@@ -6,24 +6,20 @@ import sympy
 
 from criticality import EquilibriumNotFoundError, Model, hopf
 
+from models import BRUSSELATOR, LORENZ, LORENZ_EQUILIBRIUM
 from reference_numeric import numeric_first_lyapunov
-
-LORENZ = dict(states=["x", "y", "z"],
-              equations={"x": "sigma*(y - x)", "y": "r*x - y - x*z", "z": "x*y - b*z"},
-              parameters={"sigma": "positive", "b": "positive", "r": "positive"})
 
 
 def test_solved_equilibrium_when_unique():
     """The Brusselator has one equilibrium; the engine finds it."""
-    m = Model(states=["x", "y"], equations={"x": "A - (B + 1)*x + x^2*y", "y": "B*x - x^2*y"},
-              parameters={"A": "positive", "B": "positive"})
+    m = BRUSSELATOR
     r = hopf(m, "B")
     assert r.equilibrium == {"x": m.symbols["A"], "y": m.symbols["B"] / m.symbols["A"]}
     assert r.equilibrium_how == "solved"
 
 
 def test_several_equilibria_are_listed_and_chosen_by_index():
-    m = Model(**LORENZ)
+    m = LORENZ
     with pytest.raises(EquilibriumNotFoundError, match="3 equilibria"):
         hopf(m, "r")
     r1, r2 = hopf(m, "r", equilibrium=1), hopf(m, "r", equilibrium=2)
@@ -35,9 +31,9 @@ def test_several_equilibria_are_listed_and_chosen_by_index():
 
 def test_values_fix_parameters_named_in_a_given_equilibrium():
     """The equilibrium may name a parameter that values= fixes."""
-    m = Model(**LORENZ)
+    m = LORENZ
     r = hopf(m, "r", values={"b": "8/3"},
-             equilibrium={"x": "sqrt(b*(r - 1))", "y": "sqrt(b*(r - 1))", "z": "r - 1"})
+             equilibrium=LORENZ_EQUILIBRIUM)
     s = m.symbols["sigma"]
     assert sympy.cancel(r.critical_value - s * (3 * s + 17) / (3 * s - 11)) == 0
 
@@ -64,6 +60,7 @@ def test_parametrised_family():
         assert abs(r.evaluate(x_eq=x_eq).l1 - l1) < 1e-25
 
 
+@pytest.mark.slow
 def test_disguised_algebraic_atoms_are_recognised():
     """A solved equilibrium with atanh written as a logarithm makes the
     tanh term an algebraic function of the equilibrium; the engine must see

@@ -35,6 +35,7 @@ def test_every_example_has_a_model_file_and_a_script():
         assert (EXAMPLES / f"{name}.toml").is_file() and (EXAMPLES / f"{name}.py").is_file()
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("name", NAMES)
 def test_scripts_run_and_print_the_verdict(name):
     done = subprocess.run([sys.executable, str(EXAMPLES / f"{name}.py")], capture_output=True,
@@ -43,6 +44,7 @@ def test_scripts_run_and_print_the_verdict(name):
     assert "supercritical" in done.stdout or "subcritical" in done.stdout
 
 
+@pytest.mark.slow
 def test_plankton_grazer_is_supercritical_wherever_grazers_can_persist(results):
     """Supercritical exactly where e*g > m, the condition for a positive
     diatom steady state P = m*s/(e*g - m)."""
@@ -54,6 +56,7 @@ def test_plankton_grazer_is_supercritical_wherever_grazers_can_persist(results):
     assert r.evaluate({}).classification == "supercritical"
 
 
+@pytest.mark.slow
 def test_firing_rate_unit_is_supercritical(results):
     r = results["firing_rate_unit"]
     assert r.classification == "supercritical"

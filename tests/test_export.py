@@ -12,6 +12,7 @@ import mpmath
 import pytest
 
 from criticality import Model, hopf
+from models import LORENZ, LORENZ_EQUILIBRIUM
 from criticality.cli.main import main
 
 CASES = {
@@ -20,11 +21,7 @@ CASES = {
                           {"A": "positive", "B": "positive"}, name="Brusselator"),
                     dict(parameter="B"), lambda rnd: {"A": rnd.uniform(0.3, 3)}),
     # the convection model with its radical equilibrium (sigma > b + 1 on the Hopf set)
-    "convection": (Model(["x", "y", "z"], {"x": "sigma*(y - x)", "y": "r*x - y - x*z",
-                                           "z": "x*y - b*z"},
-                         {"sigma": "positive", "b": "positive", "r": "positive"}),
-                   dict(parameter="r", equilibrium={"x": "sqrt(b*(r - 1))",
-                                                    "y": "sqrt(b*(r - 1))", "z": "r - 1"}),
+    "convection": (LORENZ, dict(parameter="r", equilibrium=LORENZ_EQUILIBRIUM),
                    lambda rnd: (lambda b: {"b": b, "sigma": b + 1 + rnd.uniform(0.5, 10)})(
                        rnd.uniform(0.5, 4))),
 }
@@ -52,6 +49,7 @@ def _close(a, b):
     return abs(a - b) <= 1e-9 * max(1.0, abs(b))
 
 
+@pytest.mark.slow
 def test_numpy_module_matches_evaluate(case, tmp_path):
     """The generated module imports with numpy only and agrees with
     evaluate() at random points."""
@@ -77,6 +75,7 @@ def test_numpy_module_matches_evaluate(case, tmp_path):
         assert module.transversality(grid).shape == (4,)
 
 
+@pytest.mark.slow
 @pytest.mark.skipif(shutil.which("cc") is None and shutil.which("gcc") is None,
                     reason="no C compiler on this machine")
 def test_c_code_compiles_and_matches_evaluate(case, tmp_path):

@@ -113,6 +113,7 @@ def test_on_unknown_collects_every_unknown_name_with_its_column():
     assert value == R("a") * x + R("b") - lam
 
 
+@pytest.mark.slow
 def test_long_sums_and_chains_do_not_hit_recursion_limits():
     """A sum of 3200 terms (beyond what Python's parser takes in one piece) and a
     bracketed chain of 1500 terms parse."""
@@ -362,6 +363,7 @@ def _numeric_radicals(expr) -> int:
                 if p.base.is_number and not p.exp.is_Integer})
 
 
+@pytest.mark.slow
 @settings(max_examples=300, deadline=None)
 @given(EXPRESSIONS)
 @example(x**n / (K**n + x**n))

@@ -63,6 +63,7 @@ def test_imaginary_parts_of_the_normal_form():
     assert sympy.simplify(tower.to_sympy(c2.b) * w - 4 * b2) == 0
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("n,seed,symbolic", [(2, 1, False), (3, 2, False), (4, 3, True),
                                               (3, 7, True), (5, 4, False)])
 def test_normalization_method_equals_center_manifold_route(n, seed, symbolic):
@@ -76,6 +77,7 @@ def test_normalization_method_equals_center_manifold_route(n, seed, symbolic):
     assert bc.routes_agree
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("n,seed,symbolic", [(2, 5, False), (3, 6, True), (4, 8, False),
                                               (5, 11, False)])
 def test_published_formula_for_c2_agrees(n, seed, symbolic):

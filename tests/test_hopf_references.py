@@ -10,6 +10,8 @@ import sympy
 
 from criticality import Model, hopf
 
+from models import (BRUSSELATOR, BRUSSELATOR_EQUILIBRIUM, LORENZ, LORENZ_EQUILIBRIUM,
+                    ORIGIN_2D, VAN_DER_POL)
 from reference_numeric import numeric_first_lyapunov
 
 
@@ -48,9 +50,8 @@ def test_planar_formula_of_guckenheimer_holmes(backend):
 def test_van_der_pol_type_amplitude(backend):
     """x' = y, y' = -x + mu y - x^2 y: supercritical, cycle amplitude 2 sqrt(mu)
     in x (common practice, no source)."""
-    m = Model(states=["x", "y"], equations={"x": "y", "y": "-x + mu*y - x^2*y"},
-              parameters={"mu": "real"})
-    r = hopf(m, "mu", equilibrium={"x": 0, "y": 0}, backend=backend)
+    m = VAN_DER_POL
+    r = hopf(m, "mu", equilibrium=ORIGIN_2D, backend=backend)
     mu = m.symbols["mu"]
     assert r.critical_value == 0 and r.omega == 1
     assert r.classification == "supercritical"
@@ -63,9 +64,8 @@ def test_brusselator(backend):
     """Brusselator x' = A - (B+1) x + x^2 y, y' = B x - x^2 y: Hopf at B = 1 + A^2
     with omega = A (Strogatz, Nonlinear Dynamics and Chaos, 1994, Exercise 8.3.1,
     from memory); supercritical for every A > 0 (from memory)."""
-    m = Model(states=["x", "y"], equations={"x": "A - (B + 1)*x + x^2*y", "y": "B*x - x^2*y"},
-              parameters={"A": "positive", "B": "positive"})
-    r = hopf(m, "B", equilibrium={"x": "A", "y": "B/A"}, backend=backend)
+    m = BRUSSELATOR
+    r = hopf(m, "B", equilibrium=BRUSSELATOR_EQUILIBRIUM, backend=backend)
     A = m.symbols["A"]
     assert sympy.expand(r.critical_value - (1 + A ** 2)) == 0
     assert r.omega == A
@@ -78,11 +78,8 @@ def test_lorenz(backend):
     """Lorenz system: r_H = sigma (sigma + b + 3)/(sigma - b - 1), and the Hopf
     bifurcation is subcritical (Strogatz, Nonlinear Dynamics and Chaos, 1994,
     Section 9.2; Sparrow, The Lorenz Equations, 1982)."""
-    m = Model(states=["x", "y", "z"],
-              equations={"x": "sigma*(y - x)", "y": "r*x - y - x*z", "z": "x*y - b*z"},
-              parameters={"sigma": "positive", "b": "positive", "r": "positive"})
-    r = hopf(m, "r", equilibrium={"x": "sqrt(b*(r - 1))", "y": "sqrt(b*(r - 1))", "z": "r - 1"},
-             backend=backend)
+    m = LORENZ
+    r = hopf(m, "r", equilibrium=LORENZ_EQUILIBRIUM, backend=backend)
     s, b = m.symbols["sigma"], m.symbols["b"]
     assert sympy.cancel(r.critical_value - s * (s + b + 3) / (s - b - 1)) == 0
     assert r.classification == "subcritical"
@@ -93,6 +90,7 @@ def test_lorenz(backend):
     assert n.pair_error < 1e-25 and n.others_stable
 
 
+@pytest.mark.slow
 def test_rosenzweig_macarthur_paradox_of_enrichment(backend):
     """Predator-prey with Holling type II response x' = x(1 - x/K) - x y/(1 + x),
     y' = y(e x/(1 + x) - d): the equilibrium loses stability at

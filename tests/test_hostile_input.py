@@ -122,6 +122,7 @@ def _toml_string(text: str) -> str:
     return '"' + "".join(c if 32 <= ord(c) != 127 else f"\\u{ord(c):04X}" for c in escaped) + '"'
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("text", HOSTILE, ids=[f"h{i}" for i in range(len(HOSTILE))])
 def test_hostile_text_directly(text, canary):
     """Each hostile text gives an expression or a package error, quickly."""
@@ -131,6 +132,7 @@ def test_hostile_text_directly(text, canary):
     _survives(parse_expression, text, {"x": sympy.Symbol("x", real=True)})
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("text", HOSTILE, ids=[f"h{i}" for i in range(len(HOSTILE))])
 def test_hostile_text_in_models(text, canary):
     """The same texts inside Python-built models and model files are handled alike."""
@@ -173,6 +175,7 @@ _TOKEN_TEXT = st.lists(_ALPHABET, max_size=60).map("".join)
 _FUZZ = settings(max_examples=400, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 
 
+@pytest.mark.slow
 @_FUZZ
 @given(st.one_of(st.text(max_size=200), _TOKEN_TEXT))
 def test_fuzz_parse_expression(text):
@@ -182,6 +185,7 @@ def test_fuzz_parse_expression(text):
         assert not result.has(sympy.I, sympy.zoo, sympy.nan)
 
 
+@pytest.mark.slow
 @_FUZZ
 @given(_TOKEN_TEXT, st.sampled_from(["equations", "value", "equilibrium", "state", "whole"]))
 def test_fuzz_model_files(text, where):

@@ -62,6 +62,7 @@ def test_names_that_look_like_macros_compile(tmp_path):
     assert "Overfull \\hbox" not in log
 
 
+@pytest.mark.slow
 def test_radicals_and_long_coefficients_compile(tmp_path):
     """A three-state model with a radical equilibrium and long Lyapunov
     coefficients (named factors, broken sums, the reduced system) compiles."""
@@ -82,6 +83,7 @@ def test_radicals_and_long_coefficients_compile(tmp_path):
     assert log.count("Overfull \\hbox") <= 2
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("name, options", [
     ("plankton_grazer", {}), ("firing_rate_unit", {}), ("lagged_oscillator", {}),
     ("cooled_reactor", {"eliminate": ["k", "T0"],
@@ -93,6 +95,7 @@ def test_example_reports_compile(name, options, tmp_path):
     compile_report(latex_report(result), tmp_path, name)
 
 
+@pytest.mark.slow
 def test_demo_report_compiles(tmp_path):
     from criticality.cli.demo import demo_text
 

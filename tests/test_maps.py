@@ -11,9 +11,9 @@ from criticality.bifurcations.maps import flip_all
 from criticality.cli.main import main
 from criticality.errors import InvalidModelError, ModelKindError, NoHopfPointError
 
-LOGISTIC = Model(["x"], {"x": "r*x*(1 - x)"}, {"r": "positive"}, kind="map")
-DELAYED_LOGISTIC = Model(["x", "y"], {"x": "r*x*(1 - y)", "y": "x"}, kind="map")
-HENON = Model(["x", "y"], {"x": "1 - a*x^2 + y", "y": "b*x"}, kind="map")
+from models import DELAYED_LOGISTIC_MAP as DELAYED_LOGISTIC
+from models import HENON_MAP as HENON
+from models import LOGISTIC_MAP as LOGISTIC
 
 
 def _eq(a, b):
@@ -240,6 +240,7 @@ def test_neimark_sacker_curve_is_invariant_under_linear_changes():
 # -- degenerate cases, fold, outputs, command line --------------------------------------------
 
 
+@pytest.mark.slow
 def test_strong_resonances_are_named():
     """At theta = pi/2 the status is resonance_1_4 (c1 still given); at theta = 2 pi/3 it is
     resonance_1_3 and no c1 exists."""
@@ -310,6 +311,7 @@ def test_subcritical_invariant_curve_bracketed_by_iteration():
 from hypothesis import given, settings, strategies as st  # noqa: E402
 
 
+@pytest.mark.slow
 @settings(max_examples=8, deadline=None)
 @given(st.integers(-3, 3), st.integers(-3, 3), st.integers(-3, 3), st.integers(-3, 3))
 def test_flip_sign_and_two_cycle_invariant_under_random_linear_changes(a, b, c, d):

@@ -42,6 +42,7 @@ def result(request):
     return example(request.param)
 
 
+@pytest.mark.slow
 def test_print_is_short_and_details_are_full(result):
     """print(result) shows at most 40 lines (verdict, critical value,
     frequency, l1, conventions, cautions); details() holds every convention."""

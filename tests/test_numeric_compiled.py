@@ -37,6 +37,7 @@ def _secant_point(stages, hill):
     return z * (1 + s), mpmath.tan(mpmath.pi / stages), z
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("stages,hill,digits", [(3, 12, 25), (30, 2, 12)])
 def test_goodwin_secant_condition(stages, hill, digits):
     """Goodwin's oscillator with a steep Hill repression loses stability where
@@ -65,6 +66,7 @@ def _case_model(case):
                  parameters={p.name: kind for p, kind in case.parameters.items()})
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("name", [n for n in CASE_NAMES if not n.endswith(("_20", "_30"))])
 def test_numeric_mode_agrees_with_exact_engine_on_benchmark_cases(name):
     """On every benchmark case, at a sampled admissible point, the numeric mode
@@ -179,6 +181,7 @@ def test_compiled_expressions_match_sympy_on_every_backend():
     assert issubclass(UnsupportedExpression, ParameterError)
 
 
+@pytest.mark.slow
 def test_graph_derivatives_match_sympy():
     """Derivatives taken on the expression graph equal sympy's, numerically,
     up to the third order on random expressions (common practice, no source)."""

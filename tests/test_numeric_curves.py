@@ -175,6 +175,7 @@ def test_analyse_many_records_failures(tmp_path):
     assert (out / "summary.csv").read_text().count("\n") == 4
 
 
+@pytest.mark.slow
 def test_cli_curve_and_batch(tmp_path, capsys):
     """The curve and batch subcommands run the library and write their files."""
     model = tmp_path / "fhn.toml"
@@ -202,6 +203,7 @@ def cluster():
             yield client
 
 
+@pytest.mark.slow
 def test_cluster_runs_equal_serial_runs(cluster, tmp_path, lorenz):
     """Sweep, Hopf curve and batch analysis on two worker processes give
     exactly the serial results."""

@@ -40,6 +40,7 @@ def test_hodgkin_huxley_subcritical_onset_near_9_78():
     assert r.routes_agree and r.l2 is not None
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("n,seed", [(2, 3), (3, 4), (4, 9)])
 def test_numeric_mode_agrees_with_exact_engine(n, seed):
     """On random polynomial models the numeric mode, started away from the
@@ -62,6 +63,7 @@ def test_numeric_mode_agrees_with_exact_engine(n, seed):
             tol * max(1, abs(e.lyapunov_coefficients[1]))
 
 
+@pytest.mark.slow
 def test_hill_function_with_symbolic_exponent():
     """A Goodwin-type loop with repression a/(1 + z^p), p symbolic: the exact
     engine, with the family parametrised by the equilibrium, agrees with the
@@ -84,6 +86,7 @@ def test_hill_function_with_symbolic_exponent():
     assert abs(float(num.equilibrium["z"]) - 1) < 1e-15
 
 
+@pytest.mark.slow
 def test_exothermic_reactor_with_exponential_rate():
     """An exothermic stirred-tank reactor u' = -u + Da (1 - u) e^T,
     T' = -(1 + beta) T + B Da (1 - u) e^T (the large-activation-energy limit):

@@ -243,14 +243,14 @@ def test_verdict_words_do_not_spell_out_huge_factors():
     it: the verdict's words then name the factor, and the relation itself is
     still kept whole in supercritical_where and zero_set."""
     from criticality.hopf_analysis.classify import classify
-    from criticality.algebra.signs import UNKNOWN, FactoredSign, FactorSign
+    from criticality.algebra.signs import UNDECIDED, FactoredSign, FactorSign
 
     x, y = sympy.symbols("x y", real=True)
     big = sympy.Add(*(x ** i * y ** (i % 7) for i in range(300)))
-    fs = FactoredSign(sympy.Integer(-1), (FactorSign(big, 1, False, UNKNOWN),), UNKNOWN)
+    fs = FactoredSign(sympy.Integer(-1), (FactorSign(big, 1, False, UNDECIDED),), UNDECIDED)
     v = classify(fs)
     assert v.classification == "depends"
     assert "not spelled out" in v.text and "supercritical_where" in v.text
     assert v.supercritical_where.lhs == big and v.zero_set.lhs == big
-    small = FactoredSign(sympy.Integer(-1), (FactorSign(x - y, 1, False, UNKNOWN),), UNKNOWN)
+    small = FactoredSign(sympy.Integer(-1), (FactorSign(x - y, 1, False, UNDECIDED),), UNDECIDED)
     assert "x - y > 0" in classify(small).text

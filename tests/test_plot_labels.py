@@ -71,6 +71,7 @@ def test_infeasible_region_is_shaded_apart_and_never_stable(plankton):
         feasibility_grid(plankton, "m", "v", feasible={"Q": "positive"}, **window)
 
 
+@pytest.mark.slow
 def test_save_figure_takes_every_plot_object(plankton, tmp_path):
     """save_figure accepts a PlaneDiagram, an AmplitudePlot, an Axes and a Figure."""
     d = plot_parameter_plane(plankton, "m", "v", values={}, x_range=(0.02, 0.2),

@@ -58,6 +58,7 @@ def test_plane_png_and_svg_have_the_expected_size(lorenz, tmp_path):
     assert d.ax.get_xlabel() == "sigma" and d.ax.get_ylabel() == "r"
 
 
+@pytest.mark.slow
 def test_files_are_not_overwritten_without_force(lorenz, tmp_path):
     d = plot_parameter_plane(lorenz, "sigma", "r", values={"b": "8/3"}, x_range=(4, 30),
                              y_range=(0, 100), shade=False, points=50)
@@ -164,6 +165,7 @@ def test_axis_errors(lorenz):
         curve_data(lorenz, "sigma", "r", values={"b": 1}, x_range=(3, 2))
 
 
+@pytest.mark.slow
 def test_amplitude_plot_with_simulated_points(tmp_path):
     """The predicted sqrt law and the simulated points of a quick check on
     x' = y, y' = -x + mu y - x^2 y (amplitude 2 sqrt(mu); common practice,

@@ -14,6 +14,9 @@ EXPECTED = {
     "time_limit", "hopf_delay", "DelayHopfResult",
     "time_limit", "flip", "neimark_sacker", "validate_map",
     "fold_hopf", "hopf_hopf", "spectrum_check",
+    # the words of verdicts, classifications and statuses
+    "Classification", "Sign", "Side", "ConditionStatus", "FoldKind", "HopfHopfCase",
+    "PointStatus", "RunStatus",
     # outputs, checks and pictures
     "latex_report", "validate", "ValidationReport", "sweep", "plot_parameter_plane",
     "plot_amplitude", "save_figure", "curve_data", "write_curve_csv",

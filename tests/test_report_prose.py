@@ -43,6 +43,7 @@ def report(request):
     return request.param, result, latex_report(result)
 
 
+@pytest.mark.slow
 def test_no_code_syntax_in_the_text(report):
     """Outside math mode no report contains escaped code: no *, _, ^, <, >,
     no l1 or omega spelled in letters."""
@@ -53,6 +54,7 @@ def test_no_code_syntax_in_the_text(report):
     assert found == {}, (name, found)
 
 
+@pytest.mark.slow
 def test_quantities_are_named_in_words(report):
     """The report names the first Lyapunov coefficient, the frequency and the
     transversality in words."""
@@ -61,6 +63,7 @@ def test_quantities_are_named_in_words(report):
         assert words in tex
 
 
+@pytest.mark.slow
 def test_fixed_parameters_are_listed(tmp_path):
     """A parameter fixed with values= appears in the parameter table with its
     value, in the text summary and in the JSON."""
@@ -86,6 +89,7 @@ MINIMAL = ("\\documentclass{article}\n\\usepackage{amsmath}\n\\usepackage{amssym
            "More text.\n\\end{document}\n")
 
 
+@pytest.mark.slow
 def test_fragments_compile_inside_a_minimal_article(tmp_path):
     """latex_report(fragment=True) and the equation block drop into an
     existing article (amsmath, amssymb, booktabs) and compile."""

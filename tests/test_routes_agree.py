@@ -53,6 +53,7 @@ def random_hopf_model(n, seed, symbolic=False):
     return model, {str(x): 0 for x in xs}
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("n,seed", [(2, 1), (3, 2), (3, 7), (4, 3), (5, 4), (5, 11)])
 def test_routes_agree_and_match_mpmath(n, seed):
     """Exact agreement of the two routes, and agreement with mpmath at 30 digits."""
@@ -70,6 +71,7 @@ def test_routes_agree_and_match_mpmath(n, seed):
         assert abs(mpmath.im(c1) - mpmath.im(n_res.c1)) < 1e-24 * max(1, abs(c1))
 
 
+@pytest.mark.slow
 @settings(max_examples=12, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(n=st.integers(2, 5), seed=st.integers(0, 10 ** 6))
 def test_routes_agree_on_random_models(n, seed):
@@ -78,6 +80,7 @@ def test_routes_agree_on_random_models(n, seed):
     assert hopf(model, "mu", equilibrium=origin).routes_agree
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("n,seed", [(2, 5), (3, 6), (4, 8)])
 def test_routes_agree_on_symbolic_models(n, seed):
     """Exact agreement with a symbolic parameter in the nonlinear terms, and the

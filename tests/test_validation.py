@@ -216,6 +216,7 @@ def quick_report():
     return validate(_quintic(), offsets=[0.05, 0.03])
 
 
+@pytest.mark.slow
 def test_report_prints_a_table(quick_report):
     """str(report) is a table with one row per state and offset, and the verdict."""
     text = str(quick_report)

@@ -16,6 +16,10 @@ from importlib import import_module
 from .errors import *  # noqa: F401,F403  (small module, no heavy imports)
 from .errors import __all__ as _error_names
 
+TYPE_CHECKING = False  # typing.TYPE_CHECKING without importing typing (kept out of import time)
+if TYPE_CHECKING:
+    from typing import Any
+
 __version__ = "0.1.0"
 
 # public name -> submodule that defines it
@@ -52,12 +56,21 @@ _LAZY = {
     "fold_hopf": "bifurcations.fold_hopf",
     "hopf_hopf": "bifurcations.hopf_hopf",
     "spectrum_check": "checks.spectrum",
+    # the words of verdicts, classifications and statuses (str-valued enums)
+    "Classification": "kinds",
+    "Sign": "kinds",
+    "Side": "kinds",
+    "ConditionStatus": "kinds",
+    "FoldKind": "kinds",
+    "HopfHopfCase": "kinds",
+    "PointStatus": "kinds",
+    "RunStatus": "kinds",
 }
 
 __all__ = sorted(["__version__", *_LAZY, *_error_names])
 
 
-def __getattr__(name: str):
+def __getattr__(name: str) -> Any:
     module = _LAZY.get(name)
     if module is None:
         raise AttributeError(f"module 'criticality' has no attribute {name!r}")
@@ -66,5 +79,5 @@ def __getattr__(name: str):
     return value
 
 
-def __dir__():
+def __dir__() -> list[str]:
     return __all__

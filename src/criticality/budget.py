@@ -26,6 +26,7 @@ from __future__ import annotations
 import time
 from contextlib import contextmanager
 from contextvars import ContextVar
+from typing import Iterator
 from dataclasses import dataclass, field
 
 from .errors import ComputationLimitError, ParameterError
@@ -47,7 +48,7 @@ _clock = time.monotonic  # replaceable in tests
 
 
 @contextmanager
-def time_limit(seconds, what: str = "the analysis"):
+def time_limit(seconds: float | None, what: str = "the analysis") -> Iterator[None]:
     """Run the enclosed computation within ``seconds`` of wall-clock time
     (``None``: no limit).  Budgets do not nest: an inner one is ignored."""
     if seconds is None or _current.get() is not None:

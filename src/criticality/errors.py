@@ -9,6 +9,10 @@ line prints the message as one paragraph and exits with the class's
 
 from __future__ import annotations
 
+TYPE_CHECKING = False  # typing.TYPE_CHECKING without importing typing (kept out of import time)
+if TYPE_CHECKING:
+    from typing import Any, Iterable
+
 __all__ = [
     "CriticalityError",
     "ModelError",
@@ -72,7 +76,7 @@ class ExpressionError(ModelError):
     """
 
     def __init__(self, message: str, *, context: str | None = None, line: int | None = None,
-                 column: int | None = None, piece: str | None = None):
+                 column: int | None = None, piece: str | None = None) -> None:
         self.context = context
         self.line = line
         self.column = column
@@ -112,7 +116,8 @@ class UnknownSymbolError(ExpressionError):
         Known names that are spelled alike (may be empty).
     """
 
-    def __init__(self, message: str, *, name: str = "", suggestions=(), **where):
+    def __init__(self, message: str, *, name: str = "", suggestions: Iterable[str] = (),
+                 **where: Any) -> None:
         self.name = name
         self.suggestions = tuple(suggestions)
         super().__init__(message, **where)
@@ -127,7 +132,7 @@ class InvalidModelError(ModelError):
         One sentence per problem.
     """
 
-    def __init__(self, problems, *, source: str | None = None):
+    def __init__(self, problems: Iterable[str], *, source: str | None = None) -> None:
         self.problems = tuple(problems)
         self.source = source
         head = f"the model{f' in {source}' if source else ''} has "
@@ -151,7 +156,7 @@ class ModelFileSyntaxError(ModelFileError):
     """
 
     def __init__(self, message: str, *, source: str | None = None, line: int | None = None,
-                 column: int | None = None):
+                 column: int | None = None) -> None:
         self.source = source
         self.line = line
         self.column = column
@@ -214,7 +219,7 @@ class NoHopfPointError(CriticalityError):
 
     exit_code = 6
 
-    def __init__(self, message: str, *, reason: str = "no_hopf_point"):
+    def __init__(self, message: str, *, reason: str = "no_hopf_point") -> None:
         self.reason = reason
         super().__init__(message)
 
@@ -231,7 +236,7 @@ class DegenerateBifurcationError(CriticalityError):
 
     exit_code = 6
 
-    def __init__(self, message: str, *, reason: str = "degenerate"):
+    def __init__(self, message: str, *, reason: str = "degenerate") -> None:
         self.reason = reason
         super().__init__(message)
 

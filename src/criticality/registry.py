@@ -17,6 +17,10 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from importlib import import_module
+from typing import TYPE_CHECKING, Any, Callable
+
+if TYPE_CHECKING:
+    from .model.core import Model
 
 __all__ = ["Analysis", "register", "analyses", "get"]
 
@@ -47,12 +51,12 @@ class Analysis:
     result: str = ""
 
     @property
-    def function(self):
+    def function(self) -> Callable[..., Any]:
         """The computing function (imported on first access)."""
         module, _, attr = self.target.partition(":")
         return getattr(import_module(f"criticality.{module}"), attr)
 
-    def __call__(self, model, *symbols, **options):
+    def __call__(self, model: Model, *symbols: str, **options: Any) -> Any:
         if len(symbols) != len(self.needs):
             raise TypeError(f"analysis '{self.name}' needs {len(self.needs)} symbol(s) "
                             f"({', '.join(self.needs)}), got {len(symbols)}")

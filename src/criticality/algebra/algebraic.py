@@ -16,12 +16,14 @@ numbers) and, over QQ, an isolating interval with rational end points which
 
 from __future__ import annotations
 
+from typing import Any, Sequence
+
 from fractions import Fraction
 
 import sympy
 
 from . import upoly
-from .field import Field
+from .field import Element, Field, RingElement
 
 __all__ = ["AlgebraicExtension", "AlgebraicElement", "RealAlgebraicRoot"]
 
@@ -31,7 +33,7 @@ class AlgebraicElement:
 
     __slots__ = ("c", "ext")
 
-    def __init__(self, c, ext):
+    def __init__(self, c: Sequence[Element], ext: AlgebraicExtension) -> None:
         self.c = c  # tuple of base elements, length ext.degree
         self.ext = ext
 
@@ -48,7 +50,7 @@ class AlgebraicElement:
             return None
         return self.ext.scalar(other).c
 
-    def __add__(self, other):
+    def __add__(self, other: Element) -> "AlgebraicElement":
         c = self._coerce(other)
         if c is None:
             return other.__add__(self)
@@ -56,19 +58,19 @@ class AlgebraicElement:
 
     __radd__ = __add__
 
-    def __neg__(self):
+    def __neg__(self) -> "AlgebraicElement":
         return AlgebraicElement(tuple(-a for a in self.c), self.ext)
 
-    def __sub__(self, other):
+    def __sub__(self, other: Element) -> "AlgebraicElement":
         c = self._coerce(other)
         if c is None:
             return (-other).__add__(self)
         return AlgebraicElement(tuple(a - b for a, b in zip(self.c, c)), self.ext)
 
-    def __rsub__(self, other):
+    def __rsub__(self, other: Element) -> "AlgebraicElement":
         return (-self) + other
 
-    def __mul__(self, other):
+    def __mul__(self, other: Element) -> "AlgebraicElement":
         c = self._coerce(other)
         if c is None:
             return other.__mul__(self)
@@ -76,19 +78,19 @@ class AlgebraicElement:
 
     __rmul__ = __mul__
 
-    def inverse(self):
+    def inverse(self) -> "AlgebraicElement":
         return self.ext.inverse(self)
 
-    def __truediv__(self, other):
+    def __truediv__(self, other: Element) -> "AlgebraicElement":
         c = self._coerce(other)
         if c is None:
             return other.inverse().__mul__(self)
         return self * self.ext.inverse(AlgebraicElement(c, self.ext))
 
-    def __rtruediv__(self, other):
+    def __rtruediv__(self, other: Element) -> "AlgebraicElement":
         return self.inverse() * other
 
-    def __pow__(self, k: int):
+    def __pow__(self, k: int) -> "AlgebraicElement":
         if not isinstance(k, int):
             return NotImplemented
         if k < 0:
@@ -101,25 +103,25 @@ class AlgebraicElement:
             k >>= 1
         return result
 
-    def __eq__(self, other):
+    def __eq__(self, other: Element) -> bool:
         c = self._coerce(other)
         if c is None:
             return other.__eq__(self)
         return all(a == b for a, b in zip(self.c, c))
 
-    def __ne__(self, other):
+    def __ne__(self, other: Element) -> bool:
         r = self.__eq__(other)
         return r if r is NotImplemented else not r
 
-    def __hash__(self):
+    def __hash__(self) -> int:
         if not any(self.c[1:]):
             return hash(self.c[0])
         return hash(self.c)
 
-    def __bool__(self):
+    def __bool__(self) -> bool:
         return any(bool(a) for a in self.c)
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return f"[{' + '.join(f'{a!r}*{self.ext.name}^{k}' for k, a in enumerate(self.c))}]"
 
 
@@ -150,7 +152,11 @@ class AlgebraicExtension(Field):
     (True, True)
     """
 
-    def __init__(self, base: Field, modulus, name: str, root=None, interval=None):
+    #: an isolating interval of the root refined by the certified signs (a cache)
+    _refined: tuple
+
+    def __init__(self, base: Field, modulus: Sequence[Element], name: str,
+                 root: sympy.Expr | None = None, interval: tuple | None = None) -> None:
         m = upoly.trim([base(c) for c in modulus])
         if len(m) < 2:
             raise ValueError("the modulus of an algebraic extension must have degree >= 1")
@@ -169,26 +175,26 @@ class AlgebraicExtension(Field):
         self.gen = self.from_list([z, base.one])
 
     # -- construction ------------------------------------------------------------------
-    def scalar(self, value) -> AlgebraicElement:
+    def scalar(self, value: object) -> AlgebraicElement:
         z = self.base.zero
         return AlgebraicElement((self.base(value),) + (z,) * (self.degree - 1), self)
 
-    def from_list(self, coeffs) -> AlgebraicElement:
+    def from_list(self, coeffs: Sequence[Element]) -> AlgebraicElement:
         """An element from coefficients (lowest first) of degree < n."""
         z = self.base.zero
         c = tuple(coeffs) + (z,) * (self.degree - len(coeffs))
         return AlgebraicElement(c, self)
 
-    def __call__(self, value) -> AlgebraicElement:
+    def __call__(self, value: object) -> AlgebraicElement:
         if isinstance(value, AlgebraicElement) and value.ext is self:
             return value
         return self.scalar(value)
 
-    def contains(self, x) -> bool:
+    def contains(self, x: Element) -> bool:
         return isinstance(x, AlgebraicElement) and x.ext is self
 
     # -- arithmetic kernels ---------------------------------------------------------------
-    def reduce(self, p):
+    def reduce(self, p: list[Element]) -> list[Element]:
         """``p mod m`` for a coefficient list ``p``."""
         n, m = self.degree, self.modulus
         p = list(p)
@@ -221,20 +227,20 @@ class AlgebraicExtension(Field):
         return self.from_list(self.reduce([c * inv for c in s1]))
 
     # -- boundary ------------------------------------------------------------------------
-    def to_sympy(self, x) -> sympy.Expr:
+    def to_sympy(self, x: Element) -> sympy.Expr:
         x = self(x)
         return sympy.Add(*[self.base.to_sympy(a) * self.root ** k
                            for k, a in enumerate(x.c) if a])
 
-    def size(self, x) -> int:
+    def size(self, x: Element) -> int:
         x = self(x)
         return sum(self.base.size(a) for a in x.c if a) or 1
 
-    def modulus_expr(self, variable) -> sympy.Expr:
+    def modulus_expr(self, variable: sympy.Symbol) -> sympy.Expr:
         return sympy.Add(*[self.base.to_sympy(c) * variable ** k
                            for k, c in enumerate(self.modulus)])
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return f"{self.base!r}[{self.name}]/(degree {self.degree})"
 
 
@@ -277,7 +283,7 @@ class RealAlgebraicRoot(sympy.Function):
         return roots[int(k)]
 
     @property
-    def free_symbols(self):
+    def free_symbols(self) -> set:
         return self.args[0].free_symbols
 
     def _eval_is_positive(self):
@@ -285,7 +291,7 @@ class RealAlgebraicRoot(sympy.Function):
             return True
         return None
 
-    def _eval_is_real(self):
+    def _eval_is_real(self) -> bool:
         return True
 
     def _eval_evalf(self, prec):
@@ -313,7 +319,7 @@ def prec_to_dps(prec: int) -> int:
     return max(1, int(prec * 0.30103))
 
 
-def as_fraction(x) -> Fraction:
+def as_fraction(x: Any) -> Fraction:
     """A rational number of any of the engine's QQ types as a Fraction."""
     return Fraction(int(x.numerator), int(x.denominator)) if hasattr(x, "numerator") else \
         Fraction(int(x.p), int(x.q))

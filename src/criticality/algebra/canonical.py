@@ -12,6 +12,8 @@ the sign of the whole is then visible at a glance.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Iterable
+
 import sympy
 
 from .flint_field import FlintRationalFunctionField
@@ -19,12 +21,17 @@ from .algebraic import AlgebraicElement
 from .certified import certified_sign, is_numeric
 from .family_signs import family_sign
 from .quadratic import QuadraticElement, lower
-from .signs import NEGATIVE, POSITIVE, UNKNOWN, ZERO, FactoredSign, FactorSign, SignContext
+from .signs import NEGATIVE, POSITIVE, UNDECIDED, ZERO, FactoredSign, FactorSign, SignContext
+
+if TYPE_CHECKING:
+    from .domain import Tower
+    from .field import Element
 
 __all__ = ["factored", "canonical_expr", "larger_than", "compact"]
 
 
-def factored(tower, x, ctx: SignContext, *, restore: bool = True) -> FactoredSign:
+def factored(tower: Tower, x: Element, ctx: SignContext, *,
+             restore: bool = True) -> FactoredSign:
     """Factor an element with signs; an element with radicals or roots is one
     factor, of certified sign when it is a number
     (:mod:`criticality.algebra.certified`), else undecided.  With
@@ -46,11 +53,11 @@ def factored(tower, x, ctx: SignContext, *, restore: bool = True) -> FactoredSig
                                 NEGATIVE)
         if sign == 0:
             return FactoredSign(sympy.Integer(0), (), ZERO)
-        return FactoredSign(sympy.Integer(1), (FactorSign(expr, 1, False, UNKNOWN),), UNKNOWN)
+        return FactoredSign(sympy.Integer(1), (FactorSign(expr, 1, False, UNDECIDED),), UNDECIDED)
     K = tower.base
     x = K(x)
     if not x:
-        return FactoredSign(sympy.Integer(0), (), "zero")
+        return FactoredSign(sympy.Integer(0), (), ZERO)
     if isinstance(K, FlintRationalFunctionField):
         raw = ctx.from_flint(K, x.num, x.den)
     else:
@@ -79,7 +86,7 @@ def _restore(tower, fs: FactoredSign) -> FactoredSign:
         for f in fs.factors), fs.sign)
 
 
-def canonical_expr(tower, x, ctx: SignContext) -> sympy.Expr:
+def canonical_expr(tower: Tower, x: Element, ctx: SignContext) -> sympy.Expr:
     """The element as a compact sympy expression (factored where possible)."""
     x = lower(x)
     if isinstance(x, QuadraticElement):
@@ -90,7 +97,7 @@ def canonical_expr(tower, x, ctx: SignContext) -> sympy.Expr:
     return factored(tower, x, ctx).as_expr()
 
 
-def larger_than(exprs, nodes: int) -> bool:
+def larger_than(exprs: Iterable[sympy.Expr], nodes: int) -> bool:
     """Whether the expressions together have more than ``nodes`` nodes
     (counting stops there, so the test is cheap on huge expressions).  Used
     to keep large results away from sympy's printing and flattening."""
@@ -160,7 +167,7 @@ def _compact_product(e):
     return c, sympy.Mul(*factors)
 
 
-def compact(expr):
+def compact(expr: sympy.Expr) -> sympy.Expr:
     """``expr`` in the compact display shape: a rational function as
     ``c * N / D`` with one fraction bar, ``N`` and ``D`` products of primitive
     integer polynomials with positive leading coefficients, the sign and the
@@ -179,7 +186,8 @@ def compact(expr):
     if expr.is_Relational:
         return expr.func(compact(expr.lhs), compact(expr.rhs), evaluate=False)
     if expr.has(sympy.I):
-        re, im = [], []
+        re: list = []
+        im: list = []
         for term in sympy.Add.make_args(expr):
             (im if term.has(sympy.I) else re).append(term)
         if re and im:

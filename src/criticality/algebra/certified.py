@@ -17,10 +17,12 @@ is, which the caller checks first.
 from __future__ import annotations
 
 from fractions import Fraction
+from typing import Any
 
 import flint
 
 from .algebraic import AlgebraicElement, AlgebraicExtension, as_fraction
+from .field import Element
 from .quadratic import QuadraticElement
 
 __all__ = ["is_numeric", "certified_sign", "enclosure"]
@@ -28,12 +30,12 @@ __all__ = ["is_numeric", "certified_sign", "enclosure"]
 _START, _STOP = 64, 1 << 14
 
 
-def is_numeric(tower) -> bool:
+def is_numeric(tower: Any) -> bool:  # a Tower (domain imports this module)
     """Whether every element of the tower is a number (no parameter, no atom)."""
     return not tower.base.symbols
 
 
-def certified_sign(x) -> int | None:
+def certified_sign(x: Element) -> int | None:
     """``1``, ``-1`` or ``0`` for a real algebraic number of a tower over QQ;
     None where the precision cap is reached (a zero divisor, or a value that
     is not real)."""
@@ -52,7 +54,7 @@ def certified_sign(x) -> int | None:
     return None
 
 
-def enclosure(x, prec: int):
+def enclosure(x: Element, prec: int) -> Any:
     """A ball (``acb``) that contains the value of ``x``."""
     if isinstance(x, AlgebraicElement):
         t = _root_ball(x.ext, prec)

@@ -16,6 +16,7 @@ by an element of another tower (:meth:`Tower.substitute`).
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Any, Callable, Iterable, Sequence, Union
 
 import sympy
 
@@ -24,6 +25,7 @@ from .flint_field import FlintRationalField, FlintRationalFunctionField
 from .algebraic import AlgebraicElement, AlgebraicExtension
 from .quadratic import QuadraticElement, QuadraticExtension, lower
 from .sympy_field import SympyRationalFunctionField
+from .field import Element
 
 __all__ = ["Tower", "Atom", "make_base_field", "collect_atoms", "algebraic_atom_rules"]
 
@@ -32,7 +34,11 @@ _ANALYTIC = (sympy.exp, sympy.log, sympy.sin, sympy.cos, sympy.tan, sympy.sinh, 
              sympy.atanh, sympy.erf)
 
 
-def make_base_field(symbols, backend: str = "flint"):
+#: the parameter field of a tower, on either backend
+BaseField = Union[FlintRationalFunctionField, FlintRationalField, SympyRationalFunctionField]
+
+
+def make_base_field(symbols: Sequence[sympy.Symbol], backend: str = "flint") -> BaseField:
     """The parameter field QQ(symbols) on the chosen backend."""
     symbols = tuple(symbols)
     if backend == "flint":
@@ -78,7 +84,8 @@ def _is_radical_power(expr) -> bool:
     return expr.is_Pow and expr.exp.is_Rational and expr.exp.q == 2
 
 
-def collect_atoms(exprs, parameter_symbols, state_symbols=()):
+def collect_atoms(exprs: Iterable[sympy.Expr], parameter_symbols: Iterable[sympy.Symbol],
+                  state_symbols: Iterable[sympy.Symbol] = ()) -> list:
     """Transcendental atoms of ``exprs`` (in a deterministic order).
 
     Raises
@@ -131,7 +138,7 @@ def collect_atoms(exprs, parameter_symbols, state_symbols=()):
     return sorted(found, key=sympy.default_sort_key)
 
 
-def algebraic_atom_rules(exprs) -> dict:
+def algebraic_atom_rules(exprs: Iterable[sympy.Expr]) -> dict:
     """Rewrite rules for transcendental atoms that are algebraic in disguise.
 
     A solved equilibrium can put a function of a logarithm into the field, e.g.
@@ -144,7 +151,7 @@ def algebraic_atom_rules(exprs) -> dict:
     rules = {}
     seen = set()
 
-    def walk(e):
+    def walk(e) -> None:
         if not isinstance(e, sympy.Basic) or e.is_Atom or e in seen:
             return
         seen.add(e)
@@ -178,21 +185,23 @@ class Tower:
         of a radicand that turns out to be a perfect square.
     """
 
-    def __init__(self, parameters, atoms=(), backend: str = "flint", positivity=None):
+    def __init__(self, parameters: Sequence[sympy.Symbol], atoms: Sequence[Atom] = (),
+                 backend: str = "flint",
+                 positivity: Callable[[sympy.Expr], bool | None] | None = None) -> None:
         self.parameters = tuple(parameters)
         self.atoms = tuple(Atom(sympy.Dummy(f"g{k}", real=True), a, _atom_positive(a, positivity))
                            for k, a in enumerate(atoms))
         self.backend = backend
         self.positivity = positivity
         self.base = make_base_field(self.parameters + tuple(a.symbol for a in self.atoms), backend)
-        self.levels: list[QuadraticExtension] = []
+        self.levels: list[Any] = []  # QuadraticExtension and AlgebraicExtension levels
         self._radicals: list[tuple[object, object]] = []  # (radicand, element)
         self._atom_index = {a.expr: a for a in self.atoms}
         self._gen_index = {s: g for s, g in zip(self.base.symbols, getattr(self.base, "gens", ()))}
         self._memo: dict = {}
-        self._parent = None
+        self._parent: Tower | None = None
 
-    def fresh(self, drop=None) -> "Tower":
+    def fresh(self, drop: sympy.Symbol | None = None) -> "Tower":
         """A tower over the same atoms, without extensions.  With ``drop`` (a
         parameter about to be substituted) the new base field has one
         generator fewer, so that, e.g., a numeric model becomes QQ itself and
@@ -214,7 +223,7 @@ class Tower:
         other._gen_index = dict(zip(other.base.symbols, getattr(other.base, "gens", ())))
         return other
 
-    def project(self, x):
+    def project(self, x: Element) -> Element:
         """An element of the parent tower's base field that does not involve
         the dropped generator, as an element of this tower's base field."""
         parent = getattr(self, "_parent", None)
@@ -232,16 +241,16 @@ class Tower:
 
         # -- structure ---------------------------------------------------------------------
     @property
-    def top(self):
+    def top(self) -> Any:  # the top field: a base field or an extension
         return self.levels[-1] if self.levels else self.base
 
-    def gen(self, symbol):
+    def gen(self, symbol: sympy.Symbol) -> Element:
         return self._gen_index[symbol]
 
     def atom_substitution(self) -> dict:
         return {a.symbol: a.expr for a in self.atoms}
 
-    def sqrt(self, radicand, root_expr=None):
+    def sqrt(self, radicand: Element, root_expr: sympy.Expr | None = None) -> Element:
         """The element ``sqrt(radicand)``: an existing radical, the root of a
         perfect square, or the generator of a new quadratic extension."""
         radicand = self.top(radicand)
@@ -297,7 +306,8 @@ class Tower:
                 return q / element
         return None
 
-    def adjoin_root(self, modulus, root_expr, interval=None):
+    def adjoin_root(self, modulus: Sequence[Element], root_expr: sympy.Expr | None,
+                    interval: tuple | None = None) -> Element:
         """Adjoin a root of the irreducible polynomial ``modulus`` (coefficients
         in the top field, lowest first) as a new level and return it (the
         generator of ``top[t]/(modulus)``; see :mod:`criticality.algebra.algebraic`)."""
@@ -306,7 +316,7 @@ class Tower:
         self.levels.append(ext)
         return ext.gen
 
-    def square_root(self, x):
+    def square_root(self, x: Element) -> Element | None:
         """The principal root of ``x`` when ``x`` is a square in K, else None."""
         x = lower(x)
         if isinstance(x, AlgebraicElement):
@@ -344,7 +354,7 @@ class Tower:
             "equilibrium without the absolute value (choose the branch explicitly).")
 
     # -- conversion ------------------------------------------------------------------------
-    def convert(self, expr):
+    def convert(self, expr: sympy.Expr) -> Element:
         """A sympy expression in the parameters and atoms as a tower element."""
         expr = sympy.sympify(expr)
         try:
@@ -395,7 +405,7 @@ class Tower:
             return self._gen_index[self._atom_index[atom].symbol] ** power
         raise CriticalityError(f"internal: {e} was not registered as an atom")
 
-    def to_sympy(self, x) -> sympy.Expr:
+    def to_sympy(self, x: Element) -> sympy.Expr:
         """A tower element as a sympy expression (atoms restored)."""
         out = self._to_sympy(x)
         return out.xreplace(self.atom_substitution()) if self.atoms else out
@@ -409,7 +419,7 @@ class Tower:
         return self.base.to_sympy(self.base(x))
 
     # -- maps ---------------------------------------------------------------------------------
-    def derivative(self, x, symbol):
+    def derivative(self, x: Element, symbol: sympy.Symbol) -> Element:
         """``dx/d symbol`` with ``d sqrt(G) = G' / (2 sqrt(G))``."""
         if isinstance(x, QuadraticElement):
             ext = x.ext
@@ -420,7 +430,8 @@ class Tower:
             return QuadraticElement(ext.base(da), ext.base(coeff), ext)
         return self.base.derivative(self.base(x), symbol)
 
-    def substitute(self, x, symbol, value, target: "Tower", level_map: dict):
+    def substitute(self, x: Element, symbol: sympy.Symbol, value: Element, target: "Tower",
+                   level_map: dict) -> Element:
         """Image of ``x`` under ``symbol -> value`` in ``target``.
 
         ``level_map`` maps each of this tower's extensions to the image of its
@@ -434,8 +445,9 @@ class Tower:
             return a + b * level_map[x.ext]
         return _substitute_base(self.base, self.base(x), symbol, value, target)
 
-    def radical_images(self, symbol, value, target: "Tower", value_expr=None,
-                       zeros=()) -> dict:
+    def radical_images(self, symbol: sympy.Symbol, value: Element, target: "Tower",
+                       value_expr: sympy.Expr | None = None,
+                       zeros: Iterable[Element] = ()) -> dict:
         """Adjoin to ``target`` the images of this tower's radicals under
         ``symbol -> value`` and return the map extension -> image.
 
@@ -461,7 +473,7 @@ class Tower:
             images[ext] = root if root is not None else target.sqrt(radicand, root_expr)
         return images
 
-    def principal(self, r):
+    def principal(self, r: Element) -> Element:
         """``r`` or ``-r``: the one that is the principal square root of
         ``r**2`` (positive for a positive radicand)."""
         from .certified import certified_sign, is_numeric

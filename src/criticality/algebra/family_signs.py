@@ -19,6 +19,7 @@ no sign is claimed.
 from __future__ import annotations
 
 from fractions import Fraction
+from typing import Any
 
 import flint
 import sympy
@@ -35,11 +36,11 @@ _SAMPLE = (Fraction(3, 2), Fraction(5, 3), Fraction(7, 4), Fraction(11, 5), Frac
            Fraction(17, 7), Fraction(19, 8), Fraction(23, 9))
 
 
-def family_sign(tower, x, ctx) -> int | None:
+def family_sign(tower: Any, x: Any, ctx: Any) -> int | None:
     """``1`` or ``-1`` when the sign of ``x`` (an :class:`AlgebraicElement`
     directly over the flint parameter field) is proved constant on the
     declared parameter set, else None."""
-    ext = getattr(x, "ext", None)
+    ext: Any = getattr(x, "ext", None)
     K = tower.base
     if not isinstance(x, AlgebraicElement) or ext.base is not K or tower.atoms or \
             not isinstance(K, FlintRationalFunctionField):

@@ -12,7 +12,21 @@ the linear solver uses to choose small pivots.
 
 from __future__ import annotations
 
-__all__ = ["Field", "PolynomialRing", "clear_denominators"]
+from typing import TYPE_CHECKING, Any
+
+if TYPE_CHECKING:
+    from typing import Iterable, Sequence
+
+    import sympy
+
+__all__ = ["Field", "PolynomialRing", "clear_denominators", "Element", "RingElement"]
+
+#: an element of a :class:`Field`; its class depends on the field (a python-flint
+#: number, a fraction of python-flint polynomials, a sympy expression, an extension's
+#: element), so it is typed loosely
+Element = Any
+#: an element of a :class:`PolynomialRing` (a python-flint or sympy polynomial)
+RingElement = Any
 
 
 class Field:
@@ -29,31 +43,31 @@ class Field:
         ``"flint"`` or ``"sympy"``.
     """
 
-    zero: object
-    one: object
+    zero: Any  # an element of this field (each field has its own element type)
+    one: Any
     symbols: tuple = ()
     backend = "abstract"
 
-    def __call__(self, value):  # pragma: no cover - documented protocol
+    def __call__(self, value: object) -> Element:  # pragma: no cover - documented protocol
         """Coerce an int, a Fraction, a sympy Rational or an element of a
         subfield into this field."""
         raise NotImplementedError
 
-    def from_sympy(self, expr):  # pragma: no cover - documented protocol
+    def from_sympy(self, expr: sympy.Expr) -> Element:  # pragma: no cover - documented protocol
         """Convert a sympy expression that is a rational function of the
         generators."""
         raise NotImplementedError
 
-    def to_sympy(self, x):  # pragma: no cover - documented protocol
+    def to_sympy(self, x: Element) -> sympy.Expr:  # pragma: no cover - documented protocol
         """Convert an element back to a sympy expression."""
         raise NotImplementedError
 
-    def size(self, x) -> int:  # pragma: no cover - documented protocol
+    def size(self, x: Element) -> int:  # pragma: no cover - documented protocol
         """A measure of an element's size (number of terms, bits), used for
         pivoting."""
         raise NotImplementedError
 
-    def is_zero(self, x) -> bool:
+    def is_zero(self, x: Element) -> bool:
         return not x
 
 
@@ -78,23 +92,23 @@ class PolynomialRing:
     symbols: tuple = ()
     backend = "abstract"
 
-    def factor(self, p):  # pragma: no cover - documented protocol
+    def factor(self, p: RingElement) -> tuple:  # pragma: no cover - documented protocol
         """``(content, [(irreducible factor, multiplicity)])``."""
         raise NotImplementedError
 
-    def coefficients_in(self, p, symbol) -> dict:  # pragma: no cover - documented protocol
+    def coefficients_in(self, p: RingElement, symbol: sympy.Symbol) -> dict:  # pragma: no cover
         """``{k: coefficient of symbol**k}`` (ring elements free of ``symbol``)."""
         raise NotImplementedError
 
-    def degrees(self, p) -> dict:  # pragma: no cover - documented protocol
+    def degrees(self, p: RingElement) -> dict:  # pragma: no cover - documented protocol
         """``{symbol: degree}``."""
         raise NotImplementedError
 
-    def evaluate(self, p, point) -> int:  # pragma: no cover - documented protocol
+    def evaluate(self, p: RingElement, point: Sequence[int]) -> int:  # pragma: no cover
         """The integer value at integer values of all generators."""
         raise NotImplementedError
 
-    def to_sympy(self, p):  # pragma: no cover - documented protocol
+    def to_sympy(self, p: RingElement) -> sympy.Expr:  # pragma: no cover - documented protocol
         raise NotImplementedError
 
     def extend(self, name: str) -> "PolynomialRing":  # pragma: no cover - documented protocol
@@ -102,20 +116,20 @@ class PolynomialRing:
         :meth:`split` and :meth:`resultant` work in that variable."""
         raise NotImplementedError
 
-    def from_coefficients(self, coeffs):  # pragma: no cover - documented protocol
+    def from_coefficients(self, coeffs: Sequence[RingElement]) -> RingElement:  # pragma: no cover
         """``sum coeffs[k] * t**k`` (``coeffs`` in :attr:`base`) in an extended ring."""
         raise NotImplementedError
 
-    def split(self, p) -> dict:  # pragma: no cover - documented protocol
+    def split(self, p: RingElement) -> dict:  # pragma: no cover - documented protocol
         """``{k: coefficient of t**k in base}`` in an extended ring."""
         raise NotImplementedError
 
-    def resultant(self, a, b):  # pragma: no cover - documented protocol
+    def resultant(self, a: RingElement, b: RingElement) -> RingElement:  # pragma: no cover
         """The resultant in the extension variable, an element of :attr:`base`."""
         raise NotImplementedError
 
 
-def clear_denominators(K, xs):
+def clear_denominators(K: Any, xs: Iterable[Element]) -> tuple:
     """``(D, [n_1, ...])`` in ``K.ring`` with ``x_i = n_i / D`` and ``D`` the
     least common multiple of the denominators."""
     R = K.ring

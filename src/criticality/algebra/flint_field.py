@@ -15,13 +15,14 @@ Both fields implement the protocol of :mod:`criticality.algebra.field`.
 from __future__ import annotations
 
 from fractions import Fraction
+from typing import Any, Sequence
 
 import flint
 import sympy
 from sympy.core.add import _addsort
 from sympy.core.mul import _mulsort
 
-from .field import Field, PolynomialRing
+from .field import Element, Field, PolynomialRing, RingElement
 
 __all__ = ["FlintRationalFunctionField", "FlintRationalField", "RationalFunction",
            "FlintPolynomialRing"]
@@ -36,7 +37,7 @@ class RationalFunction:
 
     __slots__ = ("num", "den", "field")
 
-    def __init__(self, num, den, field):
+    def __init__(self, num: RingElement, den: RingElement, field: Any) -> None:
         # callers guarantee: gcd(num, den) == 1 and den normalised
         self.num = num
         self.den = den
@@ -51,7 +52,7 @@ class RationalFunction:
         return None
 
     # -- arithmetic ------------------------------------------------------------
-    def __add__(self, other):
+    def __add__(self, other: Element) -> "RationalFunction":
         other = self._coerce(other)
         if other is None:
             return NotImplemented
@@ -76,22 +77,22 @@ class RationalFunction:
 
     __radd__ = __add__
 
-    def __neg__(self):
+    def __neg__(self) -> "RationalFunction":
         return RationalFunction(-self.num, self.den, self.field)
 
-    def __sub__(self, other):
+    def __sub__(self, other: Element) -> "RationalFunction":
         other = self._coerce(other)
         if other is None:
             return NotImplemented
         return self + (-other)
 
-    def __rsub__(self, other):
+    def __rsub__(self, other: Element) -> "RationalFunction":
         other = self._coerce(other)
         if other is None:
             return NotImplemented
         return other + (-self)
 
-    def __mul__(self, other):
+    def __mul__(self, other: Element) -> "RationalFunction":
         other = self._coerce(other)
         if other is None:
             return NotImplemented
@@ -110,24 +111,24 @@ class RationalFunction:
 
     __rmul__ = __mul__
 
-    def inverse(self):
+    def inverse(self) -> "RationalFunction":
         if self.num.is_zero():
             raise ZeroDivisionError("division by zero in the parameter field")
         return self.field._normalised(self.den, self.num, reduced=True)
 
-    def __truediv__(self, other):
+    def __truediv__(self, other: Element) -> "RationalFunction":
         other = self._coerce(other)
         if other is None:
             return NotImplemented
         return self * other.inverse()
 
-    def __rtruediv__(self, other):
+    def __rtruediv__(self, other: Element) -> "RationalFunction":
         other = self._coerce(other)
         if other is None:
             return NotImplemented
         return other * self.inverse()
 
-    def __pow__(self, k: int):
+    def __pow__(self, k: int) -> "RationalFunction":
         if not isinstance(k, int):
             return NotImplemented
         if k < 0:
@@ -135,23 +136,23 @@ class RationalFunction:
         return RationalFunction(self.num ** k, self.den ** k, self.field)
 
     # -- comparison ------------------------------------------------------------
-    def __eq__(self, other):
+    def __eq__(self, other: Element) -> bool:
         other = self._coerce(other)
         if other is None:
             return NotImplemented
         return self.num == other.num and self.den == other.den
 
-    def __ne__(self, other):
+    def __ne__(self, other: Element) -> bool:
         result = self.__eq__(other)
         return result if result is NotImplemented else not result
 
-    def __hash__(self):
+    def __hash__(self) -> int:
         return hash((str(self.num), str(self.den)))
 
-    def __bool__(self):
+    def __bool__(self) -> bool:
         return not self.num.is_zero()
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         if self.den.is_one():
             return f"({self.num})"
         return f"({self.num})/({self.den})"
@@ -177,7 +178,7 @@ class FlintRationalFunctionField(Field):
 
     backend = "flint"
 
-    def __init__(self, symbols):
+    def __init__(self, symbols: Sequence[sympy.Symbol]) -> None:
         symbols = tuple(symbols)
         if not symbols:
             raise ValueError("use FlintRationalField for a field without generators")
@@ -200,7 +201,7 @@ class FlintRationalFunctionField(Field):
             num, den = -num, -den
         return RationalFunction(num, den, self)
 
-    def __call__(self, value) -> RationalFunction:
+    def __call__(self, value: object) -> RationalFunction:
         if isinstance(value, RationalFunction):
             return value
         if isinstance(value, (int, _fmpz)):
@@ -212,13 +213,13 @@ class FlintRationalFunctionField(Field):
             return RationalFunction(num, den, self)
         raise TypeError(f"cannot convert {value!r} into {self}")
 
-    def from_polynomials(self, num, den) -> RationalFunction:
+    def from_polynomials(self, num: RingElement, den: RingElement) -> RationalFunction:
         """Element ``num/den`` from two ``fmpz_mpoly`` of this field's context."""
         if den.is_zero():
             raise ZeroDivisionError("zero denominator")
         return self._normalised(num, den)
 
-    def from_sympy(self, expr) -> RationalFunction:
+    def from_sympy(self, expr: sympy.Expr) -> RationalFunction:
         num, den = sympy.fraction(sympy.together(sympy.sympify(expr)))
         return self._from_sympy_poly(num) / self._from_sympy_poly(den)
 
@@ -233,18 +234,18 @@ class FlintRationalFunctionField(Field):
         return self._normalised(num, self._one_poly * int(denominator))
 
     # -- conversion back --------------------------------------------------------------
-    def poly_to_sympy(self, poly) -> sympy.Expr:
+    def poly_to_sympy(self, poly: RingElement) -> sympy.Expr:
         """A ``fmpz_mpoly`` of this context as a sympy expression (one Add)."""
         return self.ring.to_sympy(poly)
 
     # -- the polynomial-ring view --------------------------------------------------------
-    def numerator(self, x: RationalFunction):
+    def numerator(self, x: RationalFunction) -> RingElement:
         return x.num
 
-    def denominator(self, x: RationalFunction):
+    def denominator(self, x: RationalFunction) -> RingElement:
         return x.den
 
-    def from_ring(self, num, den=None) -> RationalFunction:
+    def from_ring(self, num: RingElement, den: RingElement | None = None) -> RationalFunction:
         if den is None or den.is_one():
             return RationalFunction(num, self._one_poly, self)
         return self.from_polynomials(num, den)
@@ -259,7 +260,7 @@ class FlintRationalFunctionField(Field):
     def size(self, x: RationalFunction) -> int:
         return len(x.num) + len(x.den)
 
-    def derivative(self, x: RationalFunction, symbol) -> RationalFunction:
+    def derivative(self, x: RationalFunction, symbol: sympy.Symbol) -> RationalFunction:
         i = self.symbols.index(symbol)
         dn = x.num.derivative(i)
         if x.den.is_one():
@@ -267,7 +268,7 @@ class FlintRationalFunctionField(Field):
         dd = x.den.derivative(i)
         return self._normalised(dn * x.den - x.num * dd, x.den * x.den)
 
-    def coefficients_in(self, poly, symbol) -> dict[int, object]:
+    def coefficients_in(self, poly: RingElement, symbol: sympy.Symbol) -> dict[int, object]:
         """Split an ``fmpz_mpoly`` as ``{k: coefficient of symbol**k}`` (polys)."""
         i = self.symbols.index(symbol)
         buckets: dict[int, dict] = {}
@@ -277,7 +278,7 @@ class FlintRationalFunctionField(Field):
             buckets.setdefault(k, {})[rest] = coeff
         return {k: self.ctx.from_dict(d) for k, d in buckets.items()}
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return f"QQ({', '.join(map(str, self.symbols))})[flint]"
 
 
@@ -288,22 +289,22 @@ class FlintRationalField(Field):
     symbols: tuple = ()
     gens: tuple = ()
 
-    def __init__(self):
+    def __init__(self) -> None:
         self.zero = _fmpq(0)
         self.one = _fmpq(1)
         self.ring = FlintPolynomialRing(())
 
-    def numerator(self, x):
+    def numerator(self, x: Element) -> RingElement:
         return self.ring(int(x.p))
 
-    def denominator(self, x):
+    def denominator(self, x: Element) -> RingElement:
         return self.ring(int(x.q))
 
-    def from_ring(self, num, den=None):
+    def from_ring(self, num: RingElement, den: RingElement | None = None) -> Element:
         value = _fmpq(self.ring.constant(num))
         return value if den is None else value / self.ring.constant(den)
 
-    def __call__(self, value):
+    def __call__(self, value: object) -> Element:
         if isinstance(value, _fmpq):
             return value
         if isinstance(value, (int, _fmpz)):
@@ -312,21 +313,21 @@ class FlintRationalField(Field):
             return _fmpq(int(value.numerator), int(value.denominator))
         raise TypeError(f"cannot convert {value!r} into QQ")
 
-    def from_sympy(self, expr):
+    def from_sympy(self, expr: sympy.Expr) -> Element:
         if not getattr(expr, "is_Rational", False):
             raise ValueError(f"{expr} is not a rational number")
         return _fmpq(int(expr.p), int(expr.q))
 
-    def to_sympy(self, x):
+    def to_sympy(self, x: Element) -> sympy.Expr:
         return sympy.Rational(int(x.p), int(x.q))
 
-    def size(self, x) -> int:
+    def size(self, x: Element) -> int:
         return int(x.p).bit_length() + int(x.q).bit_length()
 
-    def derivative(self, x, symbol):
+    def derivative(self, x: Element, symbol: sympy.Symbol) -> Element:
         raise ValueError(f"{symbol} is not a generator of QQ")
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return "QQ[flint]"
 
 
@@ -346,7 +347,7 @@ class FlintPolynomialRing(PolynomialRing):
 
     backend = "flint"
 
-    def __init__(self, symbols, base=None):
+    def __init__(self, symbols: Sequence[sympy.Symbol], base: Any = None) -> None:
         self.symbols = tuple(symbols)
         self.base = base
         self.ctx = flint.fmpz_mpoly_ctx.get(tuple(str(s) for s in self.symbols), "degrevlex")
@@ -355,38 +356,38 @@ class FlintPolynomialRing(PolynomialRing):
         self._sympy_cache: dict = {}
         self._extensions: dict = {}
 
-    def __call__(self, n: int):
+    def __call__(self, n: int) -> RingElement:
         return self.one * int(n)
 
-    def from_dict(self, data: dict):
+    def from_dict(self, data: dict) -> RingElement:
         return self.ctx.from_dict(data) if data else self.zero
 
-    def to_dict(self, p) -> dict:
+    def to_dict(self, p: RingElement) -> dict:
         return {tuple(m): int(c) for m, c in p.to_dict().items()}
 
-    def from_sympy(self, expr):
+    def from_sympy(self, expr: sympy.Expr) -> RingElement:
         poly = sympy.Poly(expr, *self.symbols, domain="ZZ") if self.symbols else None
         if poly is None:
             return self(int(expr))
         return self.from_dict({m: int(c) for m, c in poly.terms()})
 
-    def exquo(self, a, b):
+    def exquo(self, a: RingElement, b: RingElement) -> RingElement:
         return a / b
 
-    def gcd(self, a, b):
+    def gcd(self, a: RingElement, b: RingElement) -> RingElement:
         return a.gcd(b)
 
-    def is_one(self, p) -> bool:
+    def is_one(self, p: RingElement) -> bool:
         return p.is_one()
 
-    def factor(self, p):
+    def factor(self, p: RingElement) -> tuple:
         content, factors = p.factor()
         return int(content), [(f, int(m)) for f, m in factors]
 
-    def degrees(self, p) -> dict:
+    def degrees(self, p: RingElement) -> dict:
         return dict(zip(self.symbols, p.degrees())) if not p.is_zero() else {}
 
-    def coefficients_in(self, p, symbol) -> dict:
+    def coefficients_in(self, p: RingElement, symbol: sympy.Symbol) -> dict:
         if symbol not in self.symbols:
             return {0: p} if not p.is_zero() else {}
         i = self.symbols.index(symbol)
@@ -396,17 +397,17 @@ class FlintPolynomialRing(PolynomialRing):
             buckets.setdefault(monom[i], {})[rest] = coeff
         return {k: self.ctx.from_dict(d) for k, d in buckets.items()}
 
-    def evaluate(self, p, point) -> int:
+    def evaluate(self, p: RingElement, point: Sequence[int]) -> int:
         return int(p(*point)) if self.symbols else self.constant(p)
 
-    def constant(self, p) -> int:
+    def constant(self, p: RingElement) -> int:
         if p.is_zero():
             return 0
         if not p.is_constant():
             raise ValueError(f"{p} is not a constant")
         return int(p.coeffs()[0])
 
-    def to_sympy(self, p) -> sympy.Expr:
+    def to_sympy(self, p: RingElement) -> sympy.Expr:
         """As a sympy expression (one Add); conversions are cached, since the
         same factor occurs in many results."""
         key = str(p)
@@ -415,7 +416,7 @@ class FlintPolynomialRing(PolynomialRing):
             hit = self._sympy_cache[key] = _poly_to_sympy(self.symbols, p)
         return hit
 
-    def project(self, p, ring: "FlintPolynomialRing"):
+    def project(self, p: RingElement, ring: "FlintPolynomialRing") -> RingElement:
         """``p`` (free of the generators ``ring`` lacks) as an element of ``ring``."""
         keep = [self.symbols.index(s) for s in ring.symbols]
         return ring.from_dict({tuple(m[i] for i in keep): c for m, c in p.to_dict().items()})
@@ -427,25 +428,25 @@ class FlintPolynomialRing(PolynomialRing):
                 self.symbols + (sympy.Symbol(name),), base=self)
         return hit
 
-    def from_coefficients(self, coeffs):
+    def from_coefficients(self, coeffs: Sequence[RingElement]) -> RingElement:
         data = {}
         for k, c in enumerate(coeffs):
             for monom, v in c.to_dict().items():
                 data[tuple(monom) + (k,)] = v
         return self.from_dict(data)
 
-    def split(self, p) -> dict:
+    def split(self, p: RingElement) -> dict:
         n = len(self.symbols) - 1
         out: dict = {}
         for monom, v in p.to_dict().items():
             out.setdefault(monom[n], {})[tuple(monom[:n])] = v
         return {k: self.base.from_dict(d) for k, d in out.items()}
 
-    def resultant(self, a, b):
+    def resultant(self, a: RingElement, b: RingElement) -> RingElement:
         r = a.resultant(b, str(self.symbols[-1]))
         return self.split(r).get(0, self.base.zero)
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return f"ZZ[{', '.join(map(str, self.symbols))}][flint]"
 
 

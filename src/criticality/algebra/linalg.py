@@ -11,14 +11,23 @@ where the field has one.
 
 from __future__ import annotations
 
+from typing import Sequence
+
 import flint
 
 from ..budget import checkpoint
 from ..errors import CriticalityError
 from . import upoly
-from .field import clear_denominators
+from .field import Element, Field, clear_denominators
 from .flint_field import FlintRationalField
 from .quadratic import QuadraticElement, lower
+
+#: a matrix over a field, as the functions return it: a list of rows
+Matrix = list[list[Element]]
+#: what the functions accept for a matrix: any sequence of rows
+MatrixLike = Sequence[Sequence[Element]]
+#: a vector over a field
+Vector = Sequence[Element]
 
 __all__ = [
     "SingularMatrixError",
@@ -42,15 +51,15 @@ class SingularMatrixError(CriticalityError, ZeroDivisionError):
     """A linear system that should have a unique solution is singular."""
 
 
-def identity(K, n: int):
+def identity(K: Field, n: int) -> Matrix:
     return [[K.one if i == j else K.zero for j in range(n)] for i in range(n)]
 
 
-def transpose(M):
+def transpose(M: MatrixLike) -> Matrix:
     return [list(col) for col in zip(*M)]
 
 
-def matmul(K, A, B):
+def matmul(K: Field, A: MatrixLike, B: MatrixLike) -> Matrix:
     """``A @ B`` skipping zero entries of ``A``."""
     cols = len(B[0]) if B else 0
     out = []
@@ -68,7 +77,7 @@ def matmul(K, A, B):
     return out
 
 
-def dot(K, a, b):
+def dot(K: Field, a: Vector, b: Vector) -> Element:
     """``sum a_i b_i`` (no conjugation), skipping zero entries."""
     acc = K.zero
     for x, y in zip(a, b):
@@ -77,7 +86,7 @@ def dot(K, a, b):
     return acc
 
 
-def matvec(K, A, v):
+def matvec(K: Field, A: MatrixLike, v: Vector) -> list[Element]:
     out = []
     for row in A:
         acc = K.zero
@@ -148,7 +157,7 @@ def _eliminate(K, M, ncols_pivot: int):
     return pivots
 
 
-def solve(K, A, B):
+def solve(K: Field, A: MatrixLike, B: MatrixLike) -> Matrix:
     """Solve ``A X = B`` for square, non-singular ``A``; ``B`` is a list of rows.
 
     Raises
@@ -173,13 +182,13 @@ def solve(K, A, B):
     return [row[n:n + m] for row in M]
 
 
-def solve_vector(K, A, b):
+def solve_vector(K: Field, A: MatrixLike, b: Vector) -> list[Element]:
     """Solve ``A x = b`` for one right-hand side vector ``b``."""
     X = solve(K, A, [[x] for x in b])
     return [row[0] for row in X]
 
 
-def rank_and_pivots(K, A):
+def rank_and_pivots(K: Field, A: MatrixLike) -> tuple[int, list[int], Matrix]:
     M = [list(r) for r in A]
     if _is_qq(K) and M:
         R, rank = _to_fmpq_mat(M).rref()
@@ -192,7 +201,7 @@ def rank_and_pivots(K, A):
     return len(pivots), pivots, M
 
 
-def kernel(K, A):
+def kernel(K: Field, A: MatrixLike) -> list[list[Element]]:
     """A basis of the null space of ``A`` (list of column vectors)."""
     ncols = len(A[0])
     rank, pivots, R = rank_and_pivots(K, A)
@@ -209,11 +218,11 @@ def kernel(K, A):
     return basis
 
 
-def inverse(K, A):
+def inverse(K: Field, A: MatrixLike) -> Matrix:
     return solve(K, A, identity(K, len(A)))
 
 
-def determinant(K, A):
+def determinant(K: Field, A: MatrixLike) -> Element:
     """Determinant by elimination over the field (size-aware pivots)."""
     n = len(A)
     if _is_qq(K):
@@ -243,7 +252,7 @@ def determinant(K, A):
     return det
 
 
-def solve_consistent(K, A, B):
+def solve_consistent(K: Field, A: MatrixLike, B: MatrixLike) -> Matrix:
     """Solve ``A X = B`` for a full-column-rank ``A`` with at least as many
     rows as columns, when the system is known to be consistent (e.g. a square
     singular operator bordered by normalisation rows).
@@ -270,7 +279,7 @@ def solve_consistent(K, A, B):
     return [M[i][cols:cols + m] for i in range(cols)]
 
 
-def characteristic_polynomial(K, A):
+def characteristic_polynomial(K: Field, A: MatrixLike) -> list[Element]:
     """Coefficients (lowest degree first, monic) of ``det(lambda I - A)``.
 
     Berkowitz's division-free algorithm (Berkowitz, Information Processing

@@ -11,10 +11,12 @@ point.  Each function works on the python-flint field (fast paths with
 from __future__ import annotations
 
 from fractions import Fraction
+from typing import Any, Sequence
 
 import flint
 import sympy
 
+from .field import Element
 from .flint_field import FlintRationalField, FlintRationalFunctionField
 
 __all__ = ["NumeratorFactor", "numerator_factors", "pair_resultant", "value_at"]
@@ -33,7 +35,7 @@ class NumeratorFactor:
 
     __slots__ = ("coefficients", "degrees", "_expr")
 
-    def __init__(self, coefficients, degrees, expr):
+    def __init__(self, coefficients: Any, degrees: Any, expr: Any) -> None:
         self.coefficients = coefficients
         self.degrees = degrees
         self._expr = expr
@@ -43,7 +45,7 @@ class NumeratorFactor:
         return self._expr()
 
 
-def numerator_factors(K, x, symbol) -> list:
+def numerator_factors(K: Any, x: Element, symbol: sympy.Symbol) -> list:
     """The irreducible factors of the numerator of ``x`` (an element of ``K``)
     as polynomials in ``symbol``."""
     x = K(x)
@@ -67,7 +69,7 @@ def numerator_factors(K, x, symbol) -> list:
     return out
 
 
-def pair_resultant(K, coeffs):
+def pair_resultant(K: Any, coeffs: Sequence[Element]) -> Element | None:
     """``Res_s(E, O)`` for ``f(l) = E(l^2) + l O(l^2)`` with coefficients in
     ``K``, by python-flint's multivariate resultant; None on a field without
     that fast path (the caller uses the Hurwitz determinant)."""
@@ -97,7 +99,7 @@ def pair_resultant(K, coeffs):
     return K.from_polynomials(K.ctx.from_dict(data), K.one.num) if data else K.zero
 
 
-def value_at(K, x, point):
+def value_at(K: Any, x: Element, point: Sequence[int]) -> Element | None:
     """``x`` at integer values of the generators (in ``K.symbols`` order), as
     an element of QQ on the same backend; ``ZeroDivisionError`` at a pole;
     None where the field cannot evaluate cheaply."""
@@ -108,6 +110,6 @@ def value_at(K, x, point):
     return None
 
 
-def rational_field(K):
+def rational_field(K: Any) -> FlintRationalField | None:
     """QQ on the backend of ``K``."""
     return FlintRationalField() if isinstance(K, FlintRationalFunctionField) else None

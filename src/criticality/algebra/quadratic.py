@@ -21,7 +21,7 @@ from fractions import Fraction
 
 import sympy
 
-from .field import Field
+from .field import Element, Field, RingElement
 
 __all__ = ["QuadraticExtension", "QuadraticElement", "lower"]
 
@@ -31,7 +31,7 @@ class QuadraticElement:
 
     __slots__ = ("a", "b", "ext")
 
-    def __init__(self, a, b, ext):
+    def __init__(self, a: Element, b: Element, ext: QuadraticExtension) -> None:
         self.a = a
         self.b = b
         self.ext = ext
@@ -56,7 +56,7 @@ class QuadraticElement:
 
     # Python does not try the reflected method when both operands have the same
     # type, so an operand of a higher extension is handed over explicitly.
-    def __add__(self, other):
+    def __add__(self, other: Element) -> "QuadraticElement":
         c = self._coerce(other)
         if c is None:
             return other.__add__(self)
@@ -67,10 +67,10 @@ class QuadraticElement:
 
     __radd__ = __add__
 
-    def __neg__(self):
+    def __neg__(self) -> "QuadraticElement":
         return QuadraticElement(-self.a, -self.b, self.ext)
 
-    def __sub__(self, other):
+    def __sub__(self, other: Element) -> "QuadraticElement":
         c = self._coerce(other)
         if c is None:
             return (-other).__add__(self)
@@ -79,10 +79,10 @@ class QuadraticElement:
             return QuadraticElement(self.a - a, self.b, self.ext)
         return QuadraticElement(self.a - a, self.b - b, self.ext)
 
-    def __rsub__(self, other):
+    def __rsub__(self, other: Element) -> "QuadraticElement":
         return (-self) + other
 
-    def __mul__(self, other):
+    def __mul__(self, other: Element) -> "QuadraticElement":
         c = self._coerce(other)
         if c is None:
             return other.__mul__(self)
@@ -100,15 +100,15 @@ class QuadraticElement:
 
     __rmul__ = __mul__
 
-    def norm(self):
+    def norm(self) -> Element:
         """``a**2 - b**2 d``, an element of the base field."""
         return self.a * self.a - self.b * self.b * self.ext.radicand
 
-    def conjugate(self):
+    def conjugate(self) -> "QuadraticElement":
         """``a - b*t`` (for ``nu = i*omega`` this is complex conjugation)."""
         return QuadraticElement(self.a, -self.b, self.ext)
 
-    def inverse(self):
+    def inverse(self) -> "QuadraticElement":
         if not self.b:
             return QuadraticElement(1 / self.a, self.b, self.ext)
         n = self.norm()
@@ -117,7 +117,7 @@ class QuadraticElement:
         inv = 1 / n
         return QuadraticElement(self.a * inv, -self.b * inv, self.ext)
 
-    def __truediv__(self, other):
+    def __truediv__(self, other: Element) -> "QuadraticElement":
         c = self._coerce(other)
         if c is None:
             return other.inverse().__mul__(self)
@@ -127,10 +127,10 @@ class QuadraticElement:
             return QuadraticElement(self.a * inv, self.b * inv, self.ext)
         return self * QuadraticElement(a, b, self.ext).inverse()
 
-    def __rtruediv__(self, other):
+    def __rtruediv__(self, other: Element) -> "QuadraticElement":
         return self.inverse() * other
 
-    def __pow__(self, k: int):
+    def __pow__(self, k: int) -> "QuadraticElement":
         if not isinstance(k, int):
             return NotImplemented
         if k < 0:
@@ -143,7 +143,7 @@ class QuadraticElement:
             k >>= 1
         return result
 
-    def __eq__(self, other):
+    def __eq__(self, other: Element) -> bool:
         c = self._coerce(other)
         if c is None:
             return other.__eq__(self)
@@ -152,21 +152,21 @@ class QuadraticElement:
             return not self.b and self.a == a
         return self.a == a and self.b == b
 
-    def __ne__(self, other):
+    def __ne__(self, other: Element) -> bool:
         r = self.__eq__(other)
         return r if r is NotImplemented else not r
 
-    def __hash__(self):
+    def __hash__(self) -> int:
         return hash((self.a, self.b)) if self.b else hash(self.a)
 
-    def __bool__(self):
+    def __bool__(self) -> bool:
         return bool(self.a) or bool(self.b)
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return f"[{self.a!r} + {self.b!r}*{self.ext.name}]"
 
 
-def lower(x):
+def lower(x: Element) -> Element:
     """``x`` in the smallest field of its tower that contains it: strips
     extension levels whose generator has a zero coefficient (quadratic
     extensions and the algebraic extensions of :mod:`criticality.algebra.algebraic`)."""
@@ -204,7 +204,8 @@ class QuadraticExtension(Field):
     True
     """
 
-    def __init__(self, base: Field, radicand, name: str, root=None):
+    def __init__(self, base: Field, radicand: Element, name: str,
+                 root: sympy.Expr | None = None) -> None:
         self.base = base
         self.radicand = base(radicand) if not isinstance(radicand, QuadraticElement) else radicand
         self.name = name
@@ -216,31 +217,31 @@ class QuadraticExtension(Field):
         self.one = QuadraticElement(base.one, base.zero, self)
         self.gen = QuadraticElement(base.zero, base.one, self)
 
-    def __call__(self, value) -> QuadraticElement:
+    def __call__(self, value: object) -> QuadraticElement:
         if isinstance(value, QuadraticElement) and value.ext is self:
             return value
         return QuadraticElement(self.base(value), self.base.zero, self)
 
-    def element(self, a, b) -> QuadraticElement:
+    def element(self, a: Element, b: Element) -> QuadraticElement:
         """``a + b*t`` from two elements of the base field."""
         return QuadraticElement(self.base(a), self.base(b), self)
 
-    def contains(self, x) -> bool:
+    def contains(self, x: Element) -> bool:
         return isinstance(x, QuadraticElement) and x.ext is self
 
-    def components(self, x):
+    def components(self, x: Element) -> tuple[Element, Element]:
         """``(a, b)`` with ``x = a + b*t``; base elements give ``(x, 0)``."""
         if self.contains(x):
             return x.a, x.b
         return self.base(x), self.base.zero
 
-    def to_sympy(self, x) -> sympy.Expr:
+    def to_sympy(self, x: Element) -> sympy.Expr:
         a, b = self.components(x)
         return self.base.to_sympy(a) + self.base.to_sympy(b) * self.root
 
-    def size(self, x) -> int:
+    def size(self, x: Element) -> int:
         a, b = self.components(x)
         return self.base.size(a) + self.base.size(b)
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return f"{self.base!r}({self.name}: {self.name}^2 = {self.base.to_sympy(self.radicand)})"

@@ -9,12 +9,14 @@ compute with these functions.
 
 from __future__ import annotations
 
+from typing import Any, Container, Sequence
+
 from ..budget import checkpoint
 
 __all__ = ["mul", "compose", "compose_degree", "conjugate", "add_into", "derivative"]
 
 
-def compose(K, part: dict, polys, order: int, cache: dict):
+def compose(K: Any, part: dict, polys: Sequence[dict], order: int, cache: dict) -> dict:
     """``P(u)`` for ``u_j = polys[j]`` (bivariate dicts ``{(a, b): c}``),
     truncated at total degree ``order``.  ``cache`` memoises powers of the
     ``polys`` between calls."""
@@ -37,7 +39,8 @@ def _power(polys, j, k, order, cache):
     return cache[key]
 
 
-def mul(p: dict, q: dict, order: int, exact: bool = False, keep=None) -> dict:
+def mul(p: dict, q: dict, order: int, exact: bool = False,
+        keep: Container[tuple[int, int]] | None = None) -> dict:
     """Product of two bivariate dicts truncated at total degree ``order``.
 
     With ``exact`` only the terms of total degree ``order`` are formed, and
@@ -58,20 +61,20 @@ def mul(p: dict, q: dict, order: int, exact: bool = False, keep=None) -> dict:
     return out
 
 
-def conjugate(P):
+def conjugate(P: dict) -> dict:
     """The series of ``conj(P)`` in ``(z, conj z)``: exponents swapped,
     coefficients conjugated."""
     return {(l, j): c.conjugate() for (j, l), c in P.items()}
 
 
-def add_into(out, P, sign=1):
+def add_into(out: dict, P: dict, sign: int = 1) -> None:
     """``out += sign * P`` in place."""
     for m, c in P.items():
         v = c if sign == 1 else -c
         out[m] = out[m] + v if m in out else v
 
 
-def derivative(P, var: int) -> dict:
+def derivative(P: dict, var: int) -> dict:
     """``dP/dz`` (``var = 0``) or ``dP/d conj(z)`` (``var = 1``)."""
     out = {}
     for (j, l), c in P.items():
@@ -81,7 +84,8 @@ def derivative(P, var: int) -> dict:
     return out
 
 
-def compose_degree(G, H, Hb, order, keep=None):
+def compose_degree(G: dict, H: dict, Hb: dict, order: int,
+                   keep: Container[tuple[int, int]] | None = None) -> dict:
     """The terms of total degree ``order`` of ``G(H, Hb)`` (only the monomials
     in ``keep``, if given).  ``H`` starts at degree one, so ``H^j`` is only
     needed up to degree ``order - l`` when it is to be multiplied by

@@ -11,7 +11,7 @@ fails, the admissibility conditions of the Hopf set are used the way one does
 by hand: a condition ``sigma - b - 1 > 0`` that is linear in ``sigma`` becomes
 the substitution ``sigma = b + 1 + t`` with ``t > 0``, after which a factor
 often is a sum of positive terms.  Nothing is guessed: what cannot be proved
-is reported as ``"unknown"``.
+is reported as ``"undecided"`` (:attr:`criticality.kinds.Sign.UNDECIDED`).
 
 All polynomial work is done with python-flint in one context over every known
 symbol (plus two slack variables for the substitutions).
@@ -21,30 +21,34 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from itertools import combinations
+from typing import Any, Iterable, Mapping
 
 import flint
 import sympy
 
 from ..budget import checkpoint
+from ..kinds import Sign
 
-__all__ = ["POSITIVE", "NEGATIVE", "NONNEGATIVE", "NONPOSITIVE", "ZERO", "UNKNOWN",
+__all__ = ["POSITIVE", "NEGATIVE", "NONNEGATIVE", "NONPOSITIVE", "ZERO", "UNDECIDED",
            "SignContext", "FactorSign", "FactoredSign", "context_for", "truth"]
 
-POSITIVE, NEGATIVE, NONNEGATIVE, NONPOSITIVE, ZERO, UNKNOWN = (
-    "positive", "negative", "nonnegative", "nonpositive", "zero", "unknown")
+POSITIVE, NEGATIVE, NONNEGATIVE, NONPOSITIVE, ZERO, UNDECIDED = (
+    Sign.POSITIVE, Sign.NEGATIVE, Sign.NONNEGATIVE, Sign.NONPOSITIVE, Sign.ZERO, Sign.UNDECIDED)
+#: the former name of UNDECIDED (whose word was "unknown"), for code written against it
+UNKNOWN = UNDECIDED
 
 _NEG = {POSITIVE: NEGATIVE, NEGATIVE: POSITIVE, NONNEGATIVE: NONPOSITIVE,
-        NONPOSITIVE: NONNEGATIVE, ZERO: ZERO, UNKNOWN: UNKNOWN}
+        NONPOSITIVE: NONNEGATIVE, ZERO: ZERO, UNDECIDED: UNDECIDED}
 _VALUE = {POSITIVE: 1, NEGATIVE: -1, NONNEGATIVE: 1, NONPOSITIVE: -1}
 _SLACK = 2
 
 
-def mul_sign(s: str, t: str) -> str:
+def mul_sign(s: Sign, t: Sign) -> Sign:
     """Sign of a product from the signs of the factors."""
     if ZERO in (s, t):
         return ZERO
-    if UNKNOWN in (s, t):
-        return UNKNOWN
+    if UNDECIDED in (s, t):
+        return UNDECIDED
     neg = (s in (NEGATIVE, NONPOSITIVE)) != (t in (NEGATIVE, NONPOSITIVE))
     if s in (POSITIVE, NEGATIVE) and t in (POSITIVE, NEGATIVE):
         return NEGATIVE if neg else POSITIVE
@@ -58,7 +62,7 @@ class FactorSign:
     expr: sympy.Expr
     multiplicity: int
     in_denominator: bool
-    sign: str
+    sign: Sign
 
 
 @dataclass(frozen=True)
@@ -71,12 +75,12 @@ class FactoredSign:
 
     constant: sympy.Rational
     factors: tuple
-    sign: str
+    sign: Sign
 
     @property
     def undecided(self) -> tuple:
         """The factors whose sign decides the whole (odd multiplicity, unknown)."""
-        return tuple(f for f in self.factors if f.sign == UNKNOWN and f.multiplicity % 2)
+        return tuple(f for f in self.factors if f.sign == UNDECIDED and f.multiplicity % 2)
 
     def as_expr(self) -> sympy.Expr:
         """``constant * prod`` built in one go, known-sign factors first."""
@@ -94,7 +98,7 @@ class FactoredSign:
         product of the undecided factors and ``s`` = +1 or -1."""
         rest = 1 if self.constant > 0 else -1
         for f in self.factors:
-            if f.sign != UNKNOWN:
+            if f.sign != UNDECIDED:
                 rest *= _VALUE.get(f.sign, 1) ** f.multiplicity
         return rest, sympy.Mul(*[f.expr for f in self.undecided])
 
@@ -110,7 +114,8 @@ class SignContext:
         Polynomials known to be positive on the admissible set.
     """
 
-    def __init__(self, assumptions, side_conditions=()):
+    def __init__(self, assumptions: Mapping[sympy.Symbol, str],
+                 side_conditions: Iterable[sympy.Expr] = ()) -> None:
         self.assumptions = dict(assumptions)
         self.side_conditions = tuple(side_conditions)
         self._symbols = sorted(self.assumptions, key=sympy.default_sort_key)
@@ -123,7 +128,7 @@ class SignContext:
         self._sides = None
         self._flint_signs: dict = {}
 
-    def with_conditions(self, conditions) -> "SignContext":
+    def with_conditions(self, conditions: Iterable[sympy.Expr]) -> "SignContext":
         return SignContext(self.assumptions, self.side_conditions + tuple(conditions))
 
     # -- conversion ------------------------------------------------------------------
@@ -148,7 +153,7 @@ class SignContext:
             data[tuple(e)] = flint.fmpq(int(c.p), int(c.q))
         return self.ctx.from_dict(data)
 
-    def poly_from_flint(self, poly, field_symbols):
+    def poly_from_flint(self, poly: Any, field_symbols: Any) -> Any:
         """Embed an ``fmpz_mpoly`` over ``field_symbols`` (None if a symbol is unknown)."""
         try:
             idx = [self._index[s] for s in field_symbols]
@@ -164,19 +169,19 @@ class SignContext:
         return self.ctx.from_dict(data)
 
     # -- polynomial signs ----------------------------------------------------------------
-    def polynomial_sign(self, poly) -> str:
+    def polynomial_sign(self, poly: Any) -> Sign:
         """Sign of a polynomial (sympy expression or embedded flint polynomial)."""
         if isinstance(poly, sympy.Basic):
             poly = self._poly_from_sympy(sympy.expand(poly))
             if poly is None:
-                return UNKNOWN
+                return UNDECIDED
         s = self._plain_sign(poly)
-        if s != UNKNOWN:
+        if s != UNDECIDED:
             return s
         s = self._side_condition_multiple(poly)
-        return s if s != UNKNOWN else self._sign_with_conditions(poly)
+        return s if s != UNDECIDED else self._sign_with_conditions(poly)
 
-    def _plain_sign(self, p) -> str:
+    def _plain_sign(self, p) -> Sign:
         if p.is_zero():
             return ZERO
         degrees = p.degrees()
@@ -203,7 +208,7 @@ class SignContext:
         coeffs = p.coeffs()
         positive = coeffs[0] > 0
         if any((c > 0) != positive for c in coeffs):
-            return UNKNOWN
+            return UNDECIDED
         if strict_vars or _has_constant(p):
             return POSITIVE if positive else NEGATIVE
         return NONNEGATIVE if positive else NONPOSITIVE
@@ -214,13 +219,13 @@ class SignContext:
             self._sides = [p for p in polys if p is not None and not p.is_zero()]
         return self._sides
 
-    def _side_condition_multiple(self, p) -> str:
+    def _side_condition_multiple(self, p) -> Sign:
         """``p`` is a constant multiple of a polynomial known to be positive."""
         for g in self._side_polys():
             lp, lg = p.coeffs()[0], g.coeffs()[0]
             if p * lg == g * lp:
                 return POSITIVE if lp / lg > 0 else NEGATIVE
-        return UNKNOWN
+        return UNDECIDED
 
     def _substitutions(self):
         """``(var index, rest, c)`` for side conditions ``c v + rest > 0`` linear
@@ -238,7 +243,7 @@ class SignContext:
             self._subs = subs
         return self._subs
 
-    def _sign_with_conditions(self, p) -> str:
+    def _sign_with_conditions(self, p) -> Sign:
         """Substitute ``v = (t - rest)/c`` (``t > 0``) from one or two side
         conditions and try the plain test again on ``c^d p``."""
         subs = self._substitutions()
@@ -255,16 +260,16 @@ class SignContext:
                     if d % 2 and self._plain_sign(c) == NEGATIVE:
                         sign = -sign
                 s = self._plain_sign(q)
-                if s != UNKNOWN:
+                if s != UNDECIDED:
                     return s if sign == 1 else _NEG[s]
-        return UNKNOWN
+        return UNDECIDED
 
     # -- rational functions ----------------------------------------------------------------
-    def sign(self, expr) -> str:
+    def sign(self, expr: sympy.Expr) -> Sign:
         """Sign of a sympy rational function of the known symbols."""
         return self.factored(expr).sign
 
-    def factored(self, expr) -> FactoredSign:
+    def factored(self, expr: sympy.Expr) -> FactoredSign:
         """Factor a sympy rational function (with flint) and decide each factor."""
         from .flint_field import FlintRationalFunctionField
 
@@ -276,7 +281,7 @@ class SignContext:
         x = K.from_sympy(expr)
         return self.from_flint(K, x.num, x.den)
 
-    def from_flint(self, K, num, den) -> FactoredSign:
+    def from_flint(self, K: Any, num: Any, den: Any) -> FactoredSign:
         """Factored sign of ``num/den`` (``fmpz_mpoly`` of the field ``K``)."""
         cn, fn = num.factor()
         cd, fd = den.factor()
@@ -290,15 +295,15 @@ class SignContext:
             if s is None:
                 emb = self.poly_from_flint(f, K.symbols)
                 s = self._flint_signs[key] = self.polynomial_sign(emb) if emb is not None \
-                    else UNKNOWN
+                    else UNDECIDED
             # Orient the factor here, on the flint polynomial: negating a large
             # sympy Add (as assemble would) costs a full re-flattening.
-            if s in (NEGATIVE, NONPOSITIVE) or (s == UNKNOWN and _leading_negative(K, f)):
+            if s in (NEGATIVE, NONPOSITIVE) or (s == UNDECIDED and _leading_negative(K, f)):
                 f, constant, s = -f, constant * (-1) ** m, _NEG.get(s, s)
             decided.append((K.poly_to_sympy(f), m, in_den, s))
         return self.assemble(constant, decided, oriented=True)
 
-    def assemble(self, constant, decided, *, oriented: bool = False) -> FactoredSign:
+    def assemble(self, constant: Any, decided: Any, *, oriented: bool = False) -> FactoredSign:
         """Combine ``(expr, multiplicity, in_denominator, sign)`` factors.
 
         With ``oriented=True`` the factors are already non-negative where
@@ -317,14 +322,15 @@ class SignContext:
                 pass
             elif s in (NEGATIVE, NONPOSITIVE):
                 f, constant, s = -f, constant * (-1) ** m, _NEG[s]
-            elif s == UNKNOWN and f.could_extract_minus_sign():
+            elif s == UNDECIDED and f.could_extract_minus_sign():
                 f, constant = -f, constant * (-1) ** m  # print with a leading +
             out.append(FactorSign(f, m, in_den, s))
-        out.sort(key=lambda f: (f.sign == UNKNOWN, f.in_denominator, len(f.expr.args)))
+        out.sort(key=lambda f: (f.sign == UNDECIDED, f.in_denominator, len(f.expr.args)))
         return FactoredSign(sympy.Rational(constant), tuple(out), total)
 
 
-def context_for(parameters, assumptions, atoms=()) -> SignContext:
+def context_for(parameters: Iterable[sympy.Symbol], assumptions: Mapping[sympy.Symbol, str],
+                atoms: Iterable = ()) -> SignContext:
     """The sign context of a parameter field: declared assumptions for the
     parameters, and positivity for atoms such as ``exp(...)``."""
     known = {s: assumptions.get(s, "real") for s in parameters}
@@ -333,7 +339,7 @@ def context_for(parameters, assumptions, atoms=()) -> SignContext:
     return SignContext(known)
 
 
-def truth(sign: str):
+def truth(sign: Sign) -> bool | None:
     """``True`` for a proven positive sign, ``False`` for a proven negative one,
     else None."""
     return {POSITIVE: True, NEGATIVE: False}.get(sign)
@@ -383,9 +389,9 @@ def _substitute_linear(p, i, numerator, c):
     return out, d
 
 
-def _square_sign(p) -> str:
+def _square_sign(p) -> Sign:
     """Nonnegative (nonpositive) when the polynomial is a constant times a square."""
     content, factors = p.factor()
     if factors and all(int(m) % 2 == 0 for _, m in factors):
         return NONNEGATIVE if content > 0 else NONPOSITIVE
-    return UNKNOWN
+    return UNDECIDED

@@ -9,13 +9,14 @@ computations and compares the results.
 from __future__ import annotations
 
 from fractions import Fraction
+from typing import Any, Sequence
 
 import sympy
 from sympy.polys.domains import QQ
 from sympy.polys.fields import FracElement, field
 from sympy.polys.rings import PolyRing
 
-from .field import Field, PolynomialRing
+from .field import Element, Field, PolynomialRing, RingElement
 
 __all__ = ["SympyRationalFunctionField", "SympyPolynomialRing"]
 
@@ -34,7 +35,7 @@ class SympyRationalFunctionField(Field):
 
     backend = "sympy"
 
-    def __init__(self, symbols):
+    def __init__(self, symbols: Sequence[sympy.Symbol]) -> None:
         self.symbols = tuple(symbols)
         if self.symbols:
             self._field, *gens = field(list(self.symbols), QQ)
@@ -47,7 +48,7 @@ class SympyRationalFunctionField(Field):
         self.ring = SympyPolynomialRing(self.symbols,
                                         self._field.ring if self.symbols else None)
 
-    def __call__(self, value):
+    def __call__(self, value: object) -> Element:
         if self.symbols and isinstance(value, FracElement):
             return value
         if isinstance(value, (Fraction, sympy.Rational)):
@@ -60,7 +61,7 @@ class SympyRationalFunctionField(Field):
             raise TypeError(f"cannot convert {value!r} into QQ")
         return self._field.field_new(value) if hasattr(self._field, "field_new") else self._field(value)
 
-    def from_sympy(self, expr):
+    def from_sympy(self, expr: sympy.Expr) -> Element:
         expr = sympy.sympify(expr)
         if not self.symbols:
             if not expr.is_Rational:
@@ -72,23 +73,23 @@ class SympyRationalFunctionField(Field):
         # unequal; new() cancels and fixes the sign.
         return self._field.new(x.numer, x.denom)
 
-    def to_sympy(self, x):
+    def to_sympy(self, x: Element) -> sympy.Expr:
         if not self.symbols:
             return QQ.to_sympy(x)
         return x.as_expr()
 
-    def size(self, x) -> int:
+    def size(self, x: Element) -> int:
         if not self.symbols:
             return int(x.numerator).bit_length() + int(x.denominator).bit_length()
         return len(x.numer) + len(x.denom)
 
     # -- the polynomial-ring view ---------------------------------------------------------
-    def numerator(self, x):
+    def numerator(self, x: Element) -> RingElement:
         if not self.symbols:
             return int(x.numerator)
         return self._integral(x)[0]
 
-    def denominator(self, x):
+    def denominator(self, x: Element) -> RingElement:
         if not self.symbols:
             return int(x.denominator)
         return self._integral(x)[1]
@@ -100,20 +101,20 @@ class SympyRationalFunctionField(Field):
         r = cn / cd
         return n * int(r.numerator), d * int(r.denominator)
 
-    def from_ring(self, num, den=None):
+    def from_ring(self, num: RingElement, den: RingElement | None = None) -> Element:
         if not self.symbols:
             value = QQ(int(num))
             return value if den is None else value / QQ(int(den))
         value = self._field.new(num)
         return value if den is None else value / self._field.new(den)
 
-    def derivative(self, x, symbol):
+    def derivative(self, x: Element, symbol: sympy.Symbol) -> Element:
         if not self.symbols:
             raise ValueError(f"{symbol} is not a generator of QQ")
         i = self.symbols.index(symbol)
         return x.diff(self.gens[i])
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return f"QQ({', '.join(map(str, self.symbols))})[sympy]"
 
 
@@ -125,35 +126,36 @@ class SympyPolynomialRing(PolynomialRing):
 
     backend = "sympy"
 
-    def __init__(self, symbols, ring=None, base=None):
+    def __init__(self, symbols: Sequence[sympy.Symbol], ring: PolyRing | None = None,
+                 base: Any = None) -> None:
         self.symbols = tuple(symbols)
         self.base = base
-        self._ring = ring if ring is not None or not self.symbols else \
+        self._ring: Any = ring if ring is not None or not self.symbols else \
             PolyRing(self.symbols, QQ)
         self.zero = self(0)
         self.one = self(1)
         self._extensions: dict = {}
 
-    def __call__(self, n: int):
+    def __call__(self, n: int) -> RingElement:
         return self._ring(int(n)) if self._ring is not None else int(n)
 
-    def from_dict(self, data: dict):
+    def from_dict(self, data: dict) -> RingElement:
         if self._ring is None:
             return int(data.get((), 0))
         return self._ring.from_dict({m: QQ(int(c)) for m, c in data.items()}) if data \
             else self._ring.zero
 
-    def to_dict(self, p) -> dict:
+    def to_dict(self, p: RingElement) -> dict:
         if self._ring is None:
             return {(): int(p)} if p else {}
         return {tuple(m): int(c) for m, c in p.terms()}
 
-    def from_sympy(self, expr):
+    def from_sympy(self, expr: sympy.Expr) -> RingElement:
         if self._ring is None:
             return int(expr)
         return self._ring.from_expr(expr)
 
-    def primitive(self, p):
+    def primitive(self, p: RingElement) -> tuple:
         """``(c, p / c)`` with integer coefficients of content one (sign
         kept), for a polynomial with rational coefficients."""
         if self._ring is None:
@@ -167,19 +169,19 @@ class SympyPolynomialRing(PolynomialRing):
         c = QQ(num, den)
         return c, p.quo_ground(c)
 
-    def exquo(self, a, b):
+    def exquo(self, a: RingElement, b: RingElement) -> RingElement:
         return a.exquo(b) if self._ring is not None else a // b
 
-    def gcd(self, a, b):
+    def gcd(self, a: RingElement, b: RingElement) -> RingElement:
         if self._ring is None:
             from math import gcd
             return gcd(a, b)
         return self.primitive(a.gcd(b))[1]
 
-    def is_one(self, p) -> bool:
+    def is_one(self, p: RingElement) -> bool:
         return p == 1
 
-    def factor(self, p):
+    def factor(self, p: RingElement) -> tuple:
         if self._ring is None:
             return int(p), []
         content, factors = p.factor_list()
@@ -190,12 +192,12 @@ class SympyPolynomialRing(PolynomialRing):
             out.append((f, int(m)))
         return content, out
 
-    def degrees(self, p) -> dict:
+    def degrees(self, p: RingElement) -> dict:
         if self._ring is None or not p:
             return {}
         return dict(zip(self.symbols, p.degrees()))
 
-    def coefficients_in(self, p, symbol) -> dict:
+    def coefficients_in(self, p: RingElement, symbol: sympy.Symbol) -> dict:
         if symbol not in self.symbols:
             return {0: p} if p else {}
         i = self.symbols.index(symbol)
@@ -205,25 +207,25 @@ class SympyPolynomialRing(PolynomialRing):
             buckets.setdefault(monom[i], {})[rest] = coeff
         return {k: self._ring.from_dict(d) for k, d in buckets.items()}
 
-    def evaluate(self, p, point) -> int:
+    def evaluate(self, p: RingElement, point: Sequence[int]) -> int:
         if self._ring is None:
             return int(p)
         v = p(*point) if len(self.symbols) > 1 else p(point[0])
         return int(v)
 
-    def constant(self, p) -> int:
+    def constant(self, p: RingElement) -> int:
         if self._ring is None:
             return int(p)
         if not p.is_ground:
             raise ValueError(f"{p} is not a constant")
         return int(p.LC) if p else 0
 
-    def to_sympy(self, p) -> sympy.Expr:
+    def to_sympy(self, p: RingElement) -> sympy.Expr:
         if self._ring is None:
             return sympy.Integer(int(p))
         return p.as_expr()
 
-    def project(self, p, ring: "SympyPolynomialRing"):
+    def project(self, p: RingElement, ring: "SympyPolynomialRing") -> RingElement:
         keep = [self.symbols.index(s) for s in ring.symbols]
         return ring.from_dict({tuple(m[i] for i in keep): c for m, c in self.to_dict(p).items()})
 
@@ -234,20 +236,20 @@ class SympyPolynomialRing(PolynomialRing):
                 (sympy.Symbol(name),) + self.symbols, base=self)
         return hit
 
-    def from_coefficients(self, coeffs):
+    def from_coefficients(self, coeffs: Sequence[RingElement]) -> RingElement:
         data = {}
         for k, c in enumerate(coeffs):
             for monom, v in self.base.to_dict(c).items():
                 data[(k,) + tuple(monom)] = v
         return self.from_dict(data)
 
-    def split(self, p) -> dict:
+    def split(self, p: RingElement) -> dict:
         out: dict = {}
         for monom, v in p.terms():
             out.setdefault(monom[0], {})[tuple(monom[1:])] = int(v)
         return {k: self.base.from_dict(d) for k, d in out.items()}
 
-    def resultant(self, a, b):
+    def resultant(self, a: RingElement, b: RingElement) -> RingElement:
         r = a.resultant(b)
         if self.base._ring is None:
             return int(r.LC) if hasattr(r, "LC") else int(r)
@@ -255,6 +257,6 @@ class SympyPolynomialRing(PolynomialRing):
             r = self.base._ring.from_dict(dict(r.terms())) if r else self.base._ring.zero
         return r
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return f"ZZ[{', '.join(map(str, self.symbols))}][sympy]"
 

@@ -3,22 +3,31 @@ degree first, without trailing zeros (the zero polynomial is ``[]``)."""
 
 from __future__ import annotations
 
+from typing import Callable, Sequence
+
+from .field import Element
+
+#: a dense univariate polynomial: its coefficients, lowest degree first
+UPoly = list[Element]
+#: what the functions accept for one (any sequence of coefficients)
+UPolyLike = Sequence[Element]
+
 __all__ = ["trim", "degree", "add", "sub", "mul", "scale", "divmod_", "gcd", "monic",
            "evaluate", "derivative", "map_coeffs", "even_odd_parts"]
 
 
-def trim(p):
+def trim(p: UPolyLike) -> UPoly:
     p = list(p)
     while p and not p[-1]:
         p.pop()
     return p
 
 
-def degree(p) -> int:
+def degree(p: UPolyLike) -> int:
     return len(p) - 1
 
 
-def add(p, q):
+def add(p: UPolyLike, q: UPolyLike) -> UPoly:
     n = max(len(p), len(q))
     out = []
     for i in range(n):
@@ -28,15 +37,15 @@ def add(p, q):
     return trim(out)
 
 
-def sub(p, q):
+def sub(p: UPolyLike, q: UPolyLike) -> UPoly:
     return add(p, [-c for c in q])
 
 
-def scale(p, c):
+def scale(p: UPolyLike, c: Element) -> UPoly:
     return trim([a * c for a in p])
 
 
-def mul(p, q):
+def mul(p: UPolyLike, q: UPolyLike) -> UPoly:
     if not p or not q:
         return []
     out = [None] * (len(p) + len(q) - 1)
@@ -52,7 +61,7 @@ def mul(p, q):
     return trim([zero if c is None else c for c in out])
 
 
-def divmod_(p, q):
+def divmod_(p: UPolyLike, q: UPolyLike) -> tuple[UPoly, UPoly]:
     """Quotient and remainder of ``p`` by non-zero ``q``."""
     q = trim(q)
     if not q:
@@ -74,7 +83,7 @@ def divmod_(p, q):
     return trim([zero if c is None else c for c in quot]), trim(r[:len(q) - 1])
 
 
-def monic(p):
+def monic(p: UPolyLike) -> UPoly:
     p = trim(p)
     if not p:
         return p
@@ -82,7 +91,7 @@ def monic(p):
     return [c * inv for c in p]
 
 
-def gcd(p, q):
+def gcd(p: UPolyLike, q: UPolyLike) -> UPoly:
     """Monic gcd by Euclid's algorithm (fine for the small degrees here)."""
     a, b = trim(p), trim(q)
     while b:
@@ -91,21 +100,21 @@ def gcd(p, q):
     return monic(a)
 
 
-def evaluate(p, x, zero):
+def evaluate(p: UPolyLike, x: Element, zero: Element) -> Element:
     acc = zero
     for c in reversed(p):
         acc = acc * x + c
     return acc
 
 
-def derivative(p):
+def derivative(p: UPolyLike) -> UPoly:
     return trim([c * k for k, c in enumerate(p)][1:])
 
 
-def map_coeffs(p, fn):
+def map_coeffs(p: UPolyLike, fn: Callable[[Element], Element]) -> UPoly:
     return trim([fn(c) for c in p])
 
 
-def even_odd_parts(p):
+def even_odd_parts(p: UPolyLike) -> tuple[UPoly, UPoly]:
     """``p(x) = E(x**2) + x O(x**2)``: returns ``(E, O)``."""
     return trim(p[0::2]), trim(p[1::2])

@@ -31,16 +31,20 @@ opposite to ``l2``:
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import ClassVar, Mapping
+from typing import TYPE_CHECKING, Any, ClassVar, Mapping, Sequence
 
 import mpmath
 import sympy
 
-from ..local.prepare import expr, prepare, sign_word, solve_for
+from ..local.prepare import EquilibriumSpec, expr, prepare, sign_word, solve_for
 from ..renderers import render
 from ..algebra.quadratic import lower
 from ..hopf_analysis.engine import run_engine
 from ..errors import NoHopfPointError
+from ..kinds import Sign, coerce
+
+if TYPE_CHECKING:
+    from ..model.core import Model
 
 __all__ = ["BautinPoint", "bautin_points", "BAUTIN_CONVENTIONS"]
 
@@ -64,16 +68,19 @@ class BautinPoint:
     critical_value: sympy.Expr
     omega_squared: sympy.Expr
     l2: sympy.Expr
-    l2_sign: str
+    l2_sign: Sign
     l1_slope: sympy.Expr
-    l1_slope_sign: str
+    l1_slope_sign: Sign
     fold_of_cycles_side: str
     scenario: str
     branch_index: int
     notes: tuple = ()
     conventions: tuple = BAUTIN_CONVENTIONS
 
-    def rows(self):
+    def __post_init__(self) -> None:
+        coerce(self, l2_sign=Sign, l1_slope_sign=Sign)
+
+    def rows(self) -> list[tuple[str, str, object]]:
         return [("second", "second parameter", self.second),
                 ("second_value", f"{self.second} at the Bautin point", self.second_value),
                 ("critical_value", f"{self.parameter} at the Bautin point", self.critical_value),
@@ -95,7 +102,7 @@ class BautinPoint:
         """The quantities as an ``align*`` block."""
         return render(self, "latex")
 
-    def to_json(self, **kwargs) -> str:
+    def to_json(self, **kwargs: Any) -> str:
         """The result as JSON in the shared envelope."""
         return render(self, "json", **kwargs)
 
@@ -121,7 +128,7 @@ class BautinPoint:
                 out[key] = sympy.N(e, digits)
         return out
 
-    def __str__(self):
+    def __str__(self) -> str:
         return self.summary()
 
 
@@ -176,8 +183,10 @@ def _points_on_branch(prep, bc, second, index):
     return out, unsolved
 
 
-def bautin_points(model, parameter: str, second: str, *, equilibrium=None, eliminate=None,
-                  values=None, assume=None, backend: str = "flint") -> tuple:
+def bautin_points(model: Model, parameter: str, second: str, *,
+                  equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
+                  values: Mapping[str, object] | None = None,
+                  assume: Mapping[str, str] | None = None, backend: str = "flint") -> tuple:
     """Bautin points of the Hopf set of ``parameter``, solved for ``second``.
 
     Parameters

@@ -31,15 +31,20 @@ analysis of the unfolding ``x' = y, y' = b1 + b2 x + x^2 + s x y``).
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import ClassVar
+from typing import TYPE_CHECKING, Any, ClassVar, Mapping, Sequence
 
 import sympy
 
-from ..local.prepare import expr, prepare, sign_word, solve_for
+from ..local.prepare import EquilibriumSpec, expr, prepare, sign_word, solve_for
 from ..renderers import render
 from ..algebra.linalg import dot, kernel, matvec, solve_consistent, transpose
 from ..errors import DegenerateBifurcationError, NoHopfPointError
+from ..kinds import Sign, coerce
 from ..algebra.linalg import characteristic_polynomial
+
+if TYPE_CHECKING:
+    from ..algebra.field import Element
+    from ..model.core import Model
 
 __all__ = ["BogdanovTakensResult", "bogdanov_takens", "bogdanov_takens_all", "BT_CONVENTIONS"]
 
@@ -67,12 +72,15 @@ class BogdanovTakensResult:
     p1: tuple
     a: sympy.Expr
     b: sympy.Expr
-    ab_sign: str
+    ab_sign: Sign
     scenario: str
     notes: tuple = ()
     conventions: tuple = BT_CONVENTIONS
 
-    def rows(self):
+    def __post_init__(self) -> None:
+        coerce(self, ab_sign=Sign)
+
+    def rows(self) -> list[tuple[str, str, object]]:
         return [("values", "double-zero point", self.values),
                 ("equilibrium", "equilibrium", self.equilibrium),
                 ("q0", "q0", self.q0), ("q1", "q1", self.q1), ("p0", "p0", self.p0),
@@ -91,7 +99,7 @@ class BogdanovTakensResult:
         """The quantities as an ``align*`` block."""
         return render(self, "latex")
 
-    def to_json(self, **kwargs) -> str:
+    def to_json(self, **kwargs: Any) -> str:
         """The result as JSON in the shared envelope."""
         return render(self, "json", **kwargs)
 
@@ -104,7 +112,7 @@ class BogdanovTakensResult:
     def _repr_latex_(self) -> str:
         return render(self, "notebook_latex")
 
-    def __str__(self):
+    def __str__(self) -> str:
         return self.summary()
 
 
@@ -115,7 +123,7 @@ def _chain(K, M, top):
     return [r[0] for r in solve_consistent(K, rows, rhs)]
 
 
-def generalised_eigenvectors(K, A):
+def generalised_eigenvectors(K: Any, A: list[list[Element]]) -> tuple:
     """``(q0, q1, p0, p1)`` normalised as in the module docstring."""
     right, left = kernel(K, A), kernel(K, transpose(A))
     if len(right) != 1:
@@ -140,7 +148,7 @@ def generalised_eigenvectors(K, A):
     return q0, q1, p0, p1
 
 
-def _scenario(sign):
+def _scenario(sign) -> str:
     if sign == "negative":
         return ("a b < 0: the Hopf bifurcation emanating from the point is supercritical; the "
                 "stable cycle it creates grows and disappears in a saddle homoclinic orbit")
@@ -201,8 +209,11 @@ def _point(prep, sp1, sp2, names):
                                 _scenario(sign), tuple(notes))
 
 
-def bogdanov_takens_all(model, parameter: str, second: str, *, equilibrium=None, eliminate=None,
-                        values=None, assume=None, backend: str = "flint") -> tuple:
+def bogdanov_takens_all(model: Model, parameter: str, second: str, *,
+                        equilibrium: EquilibriumSpec = None,
+                        eliminate: Sequence[str] | None = None,
+                        values: Mapping[str, object] | None = None,
+                        assume: Mapping[str, str] | None = None, backend: str = "flint") -> tuple:
     """Every closed-form Bogdanov-Takens point (see :func:`bogdanov_takens`)."""
     prep = prepare(model, parameter, equilibrium=equilibrium, eliminate=eliminate,
                    values=values, assume=assume, order=2, backend=backend)
@@ -222,8 +233,10 @@ def bogdanov_takens_all(model, parameter: str, second: str, *, equilibrium=None,
     return tuple(out)
 
 
-def bogdanov_takens(model, parameter: str, second: str, *, equilibrium=None, eliminate=None,
-                    values=None, assume=None, backend: str = "flint",
+def bogdanov_takens(model: Model, parameter: str, second: str, *,
+                    equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
+                    values: Mapping[str, object] | None = None,
+                    assume: Mapping[str, str] | None = None, backend: str = "flint",
                     branch: int = 0) -> BogdanovTakensResult:
     """Bogdanov-Takens analysis in the two symbols ``parameter`` and ``second``.
 

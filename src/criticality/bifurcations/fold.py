@@ -36,15 +36,19 @@ Which case applies:
 from __future__ import annotations
 
 from dataclasses import dataclass, field, replace
-from typing import ClassVar
+from typing import TYPE_CHECKING, Any, ClassVar, Mapping, Sequence
 
 import sympy
 
-from ..local.prepare import expr, prepare, sign_word, solve_for
+from ..kinds import FoldKind, Sign, coerce
+from ..local.prepare import EquilibriumSpec, expr, prepare, sign_word, solve_for
 from ..model.expressions import format_expression
 from ..renderers import render
 from ..algebra.linalg import determinant, dot, kernel, matvec, solve, transpose
 from ..errors import ClosedFormUnavailableError, DegenerateBifurcationError, NoHopfPointError
+
+if TYPE_CHECKING:
+    from ..model.core import Model
 
 __all__ = ["FoldResult", "fold", "fold_all", "FOLD_CONVENTIONS", "MAP_FOLD_CONVENTIONS"]
 
@@ -75,7 +79,7 @@ class FoldResult:
 
     result_kind: ClassVar[str] = "fold"
 
-    kind: str
+    kind: FoldKind
     parameter: str
     unknown: str
     critical_values: dict
@@ -92,7 +96,10 @@ class FoldResult:
     conventions: tuple = FOLD_CONVENTIONS
     signs: dict = field(default_factory=dict)
 
-    def rows(self):
+    def __post_init__(self) -> None:
+        coerce(self, kind=FoldKind)
+
+    def rows(self) -> list[tuple[str, str, object]]:
         return [("kind", "kind", self.kind), ("parameter", "parameter", self.parameter),
                 ("critical_values", "critical values", self.critical_values),
                 ("equilibrium", "equilibrium", self.equilibrium),
@@ -116,7 +123,7 @@ class FoldResult:
         """The quantities as an ``align*`` block."""
         return render(self, "latex")
 
-    def to_json(self, **kwargs) -> str:
+    def to_json(self, **kwargs: Any) -> str:
         """The result as JSON in the shared envelope."""
         return render(self, "json", **kwargs)
 
@@ -129,7 +136,7 @@ class FoldResult:
     def _repr_latex_(self) -> str:
         return render(self, "notebook_latex")
 
-    def __str__(self):
+    def __str__(self) -> str:
         return self.summary()
 
 
@@ -175,17 +182,17 @@ def _is_odd(taylor) -> bool:
                for k in range(2, taylor.order + 1, 2))
 
 
-def _classify(kind_hint, a_s, t_s, d_s):
+def _classify(kind_hint, a_s: Sign, t_s: Sign, d_s: Sign) -> FoldKind:
     if kind_hint == "branch":
-        if a_s != "zero":
-            return "transcritical"
-        return "pitchfork" if d_s != "zero" else "degenerate"
-    if a_s != "zero" and t_s != "zero":
-        return "fold"
-    return "degenerate"
+        if a_s != Sign.ZERO:
+            return FoldKind.TRANSCRITICAL
+        return FoldKind.PITCHFORK if d_s != Sign.ZERO else FoldKind.DEGENERATE
+    if a_s != Sign.ZERO and t_s != Sign.ZERO:
+        return FoldKind.FOLD
+    return FoldKind.DEGENERATE
 
 
-def _verdict(kind, signs, unknown_value_name):
+def _verdict(kind, signs, unknown_value_name) -> str:
     mu = unknown_value_name
     if kind == "fold":
         at = signs["at"]
@@ -254,8 +261,10 @@ def _result(prep, sp, unknown):
                       signs)
 
 
-def fold_all(model, parameter: str, *, solve_for_name: str | None = None, equilibrium=None,
-             eliminate=None, values=None, assume=None, backend: str = "flint") -> tuple:
+def fold_all(model: Model, parameter: str, *, solve_for_name: str | None = None,
+             equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
+             values: Mapping[str, object] | None = None, assume: Mapping[str, str] | None = None,
+             backend: str = "flint") -> tuple:
     """Every closed-form point of ``det A = 0`` (see :func:`fold`)."""
     if getattr(model, "kind", "flow") == "map":
         results = fold_all(model.fixed_point_flow(), parameter, solve_for_name=solve_for_name,
@@ -269,14 +278,14 @@ def fold_all(model, parameter: str, *, solve_for_name: str | None = None, equili
     unknown = _unknown(prep, solve_for_name)
     det = determinant(prep.tower.top, prep.taylor.jacobian())
     points, unsolved = solve_for(prep.tower, det, unknown)
-    results = []
+    found: list = []
     for sp in points:
         try:
-            results.append(_result(prep, sp, unknown))
+            found.append(_result(prep, sp, unknown))
         except DegenerateBifurcationError:
             continue
     left = ", ".join(format_expression(u) for u in unsolved)
-    if not results:
+    if not found:
         if unsolved:
             raise ClosedFormUnavailableError(
                 f"det A = 0 has no closed-form solution for '{unknown}': it vanishes where "
@@ -288,8 +297,8 @@ def fold_all(model, parameter: str, *, solve_for_name: str | None = None, equili
     if unsolved:
         note = (f"det A = 0 also where {left} = 0, which has no closed form for "
                 f"'{unknown}'; the points listed are the closed-form ones only")
-        results = [replace(r, notes=r.notes + (note,)) for r in results]
-    return tuple(results)
+        found = [replace(r, notes=r.notes + (note,)) for r in found]
+    return tuple(found)
 
 
 def _unknown(prep, name):
@@ -302,9 +311,10 @@ def _unknown(prep, name):
     return prep.symbol(prep.parameter)
 
 
-def fold(model, parameter: str, *, solve_for: str | None = None, equilibrium=None,
-         eliminate=None, values=None, assume=None, backend: str = "flint",
-         branch: int = 0) -> FoldResult:
+def fold(model: Model, parameter: str, *, solve_for: str | None = None,
+         equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
+         values: Mapping[str, object] | None = None, assume: Mapping[str, str] | None = None,
+         backend: str = "flint", branch: int = 0) -> FoldResult:
     """Zero-eigenvalue analysis of ``model`` in ``parameter``.
 
     Parameters

@@ -39,8 +39,9 @@ amplitude system is integrable there).
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any, ClassVar, Mapping, Sequence
+
 from dataclasses import dataclass
-from typing import ClassVar
 
 import sympy
 
@@ -48,14 +49,18 @@ from ..algebra import upoly
 from ..algebra.linalg import dot
 from ..algebra.quadratic import lower
 from ..errors import DegenerateBifurcationError, NoHopfPointError, ParameterError
+from ..kinds import PointStatus, Sign, coerce
 from ..local.critical import nu_extension, pair_sum_condition
 from ..local.eigenbasis import critical_eigenbasis
 from ..algebra.linalg import characteristic_polynomial
-from ..local.prepare import expr, prepare, sign_word, solve_for
+from ..local.prepare import EquilibriumSpec, expr, prepare, sign_word, solve_for
 from ..model.expressions import convert_sympy, parse_expression
 from ..renderers import render
 from .bogdanov_takens import _solve_pair
 from .fold import _null_vectors
+
+if TYPE_CHECKING:
+    from ..model.core import Model
 
 __all__ = ["FoldHopfResult", "fold_hopf", "fold_hopf_all", "FOLD_HOPF_CONVENTIONS",
            "fold_hopf_scenario"]
@@ -88,14 +93,17 @@ class FoldHopfResult:
     G110: sympy.Expr
     s: object
     theta: sympy.Expr
-    theta_sign: str
-    status: str
+    theta_sign: Sign
+    status: PointStatus
     scenario: str
     conditions: tuple = ()
     notes: tuple = ()
     conventions: tuple = FOLD_HOPF_CONVENTIONS
 
-    def rows(self):
+    def __post_init__(self) -> None:
+        coerce(self, theta_sign=Sign, status=PointStatus)
+
+    def rows(self) -> list[tuple[str, str, object]]:
         return [("values", "fold-Hopf point", self.values),
                 ("equilibrium", "equilibrium", self.equilibrium),
                 ("omega", "frequency omega", self.omega),
@@ -120,7 +128,7 @@ class FoldHopfResult:
         """The quantities as an ``align*`` block."""
         return render(self, "latex")
 
-    def to_json(self, **kwargs) -> str:
+    def to_json(self, **kwargs: Any) -> str:
         """The result as JSON in the shared envelope."""
         return render(self, "json", **kwargs)
 
@@ -137,11 +145,11 @@ class FoldHopfResult:
     def _repr_latex_(self) -> str:
         return render(self, "notebook_latex")
 
-    def __str__(self):
+    def __str__(self) -> str:
         return self.summary()
 
 
-def fold_hopf_scenario(s, theta_sign: str) -> str:
+def fold_hopf_scenario(s: int | str, theta_sign: str) -> str:
     """The unfolding in words for ``s`` (+1, -1 or a word) and the sign of theta."""
     if s not in (1, -1) or theta_sign not in ("positive", "negative"):
         return ("s and the sign of theta are not both decided; the four cases are s theta > 0 "
@@ -253,11 +261,11 @@ def _point(prep, sp1, sp2, names, unfolding=None):
     sign = sign_word(target, G200 * G011, ctx)
     s = {"positive": 1, "negative": -1}.get(sign, sign)
     theta = lower(G110.a) / G200 if G200 else None
-    theta_sign = sign_word(target, theta, ctx) if theta is not None else "undefined"
-    status = "nondegenerate"
-    for word, x in (("G200_vanishes", G200), ("G011_vanishes", G011),
-                    ("theta_vanishes", lower(G110.a))):
-        if sign_word(target, x, ctx) == "zero":
+    theta_sign = sign_word(target, theta, ctx) if theta is not None else Sign.UNDEFINED
+    status = PointStatus.NONDEGENERATE
+    for word, x in ((PointStatus.G200_VANISHES, G200), (PointStatus.G011_VANISHES, G011),
+                    (PointStatus.THETA_VANISHES, lower(G110.a))):
+        if sign_word(target, x, ctx) == Sign.ZERO:
             status = word
             break
     values = {sp1.symbol.name: E(sp2.substitute(sp1.value)), sp2.symbol.name: E(sp2.value)}
@@ -271,7 +279,7 @@ def _point(prep, sp1, sp2, names, unfolding=None):
                        f"{names[1]})", sub(unfolding)))
     conds = tuple(f"{d}: {sympy.sstr(E(x))} != 0 [{_nonzero(target, x, ctx)}]"
                   for d, x in checks)
-    scenario = (fold_hopf_scenario(s, theta_sign) if status == "nondegenerate" else
+    scenario = (fold_hopf_scenario(s, theta_sign) if status == PointStatus.NONDEGENERATE else
                 f"degenerate fold-Hopf point ({status.replace('_', ' ')}): higher-order terms "
                 "decide")
     return FoldHopfResult(names, values, point, sympy.sqrt(E(W)), tuple(map(E, q0)),
@@ -297,8 +305,11 @@ def _names(parameters, second):
     return str(parameters), str(second)
 
 
-def fold_hopf_all(model, parameters, second=None, *, point=None, equilibrium=None,
-                  eliminate=None, values=None, assume=None, backend: str = "flint") -> tuple:
+def fold_hopf_all(model: Model, parameters: str | Sequence[str], second: str | None = None, *,
+                  point: Mapping[str, object] | None = None, equilibrium: EquilibriumSpec = None,
+                  eliminate: Sequence[str] | None = None,
+                  values: Mapping[str, object] | None = None,
+                  assume: Mapping[str, str] | None = None, backend: str = "flint") -> tuple:
     """Every closed-form fold-Hopf point (see :func:`fold_hopf`)."""
     p1, p2 = _names(parameters, second)
     model.require_kind("flow", "the fold-Hopf analysis")
@@ -326,8 +337,10 @@ def fold_hopf_all(model, parameters, second=None, *, point=None, equilibrium=Non
         f"'{p2}'" + (f" ({errors[0]})" if errors else ""), reason="empty_critical_set")
 
 
-def fold_hopf(model, parameters, second=None, *, point=None, equilibrium=None, eliminate=None,
-              values=None, assume=None, backend: str = "flint",
+def fold_hopf(model: Model, parameters: str | Sequence[str], second: str | None = None, *,
+              point: Mapping[str, object] | None = None, equilibrium: EquilibriumSpec = None,
+              eliminate: Sequence[str] | None = None, values: Mapping[str, object] | None = None,
+              assume: Mapping[str, str] | None = None, backend: str = "flint",
               branch: int = 0) -> FoldHopfResult:
     """Fold-Hopf analysis in two symbols.
 

@@ -41,8 +41,9 @@ q2 leaves them alone).  ``Re p11 Re p22 > 0`` is the simple case,
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any, ClassVar, Mapping, Sequence
+
 from dataclasses import dataclass
-from typing import ClassVar
 
 import sympy
 
@@ -50,14 +51,19 @@ from ..algebra import upoly
 from ..algebra.linalg import SingularMatrixError, determinant, dot, solve_vector
 from ..algebra.quadratic import QuadraticExtension, lower
 from ..errors import DegenerateBifurcationError, DegenerateHopfError, NoHopfPointError
+from ..kinds import HopfHopfCase, PointStatus, Sign, coerce
 from ..local.eigenbasis import critical_eigenbasis
 from ..algebra.linalg import characteristic_polynomial
-from ..local.prepare import expr, prepare, sign_word
+from ..local.prepare import EquilibriumSpec, expr, prepare, sign_word
 from ..local.projection import projection_c1
 from ..renderers import render
 from .bogdanov_takens import _solve_pair
 from .fold_hopf import _located, _names
 from .map_normal_form import solve_complex
+
+if TYPE_CHECKING:
+    from ..algebra.field import Element
+    from ..model.core import Model
 
 __all__ = ["HopfHopfResult", "hopf_hopf", "hopf_hopf_all", "HOPF_HOPF_CONVENTIONS",
            "hopf_hopf_scenario", "principal_subresultant"]
@@ -89,15 +95,18 @@ class HopfHopfResult:
     p22: object
     theta: object
     delta: object
-    case: str
+    case: HopfHopfCase
     resonance: str
-    status: str
+    status: PointStatus
     scenario: str
     signs: dict
     notes: tuple = ()
     conventions: tuple = HOPF_HOPF_CONVENTIONS
 
-    def rows(self):
+    def __post_init__(self) -> None:
+        coerce(self, case=HopfHopfCase, status=PointStatus)
+
+    def rows(self) -> list[tuple[str, str, object]]:
         return [("values", "Hopf-Hopf point", self.values),
                 ("equilibrium", "equilibrium", self.equilibrium),
                 ("omega1", "omega1", self.omega1), ("omega2", "omega2", self.omega2),
@@ -120,7 +129,7 @@ class HopfHopfResult:
         """The quantities as an ``align*`` block."""
         return render(self, "latex")
 
-    def to_json(self, **kwargs) -> str:
+    def to_json(self, **kwargs: Any) -> str:
         """The result as JSON in the shared envelope."""
         return render(self, "json", **kwargs)
 
@@ -137,14 +146,14 @@ class HopfHopfResult:
     def _repr_latex_(self) -> str:
         return render(self, "notebook_latex")
 
-    def __str__(self):
+    def __str__(self) -> str:
         return self.summary()
 
 
 # -- location -------------------------------------------------------------------------
 
 
-def principal_subresultant(K, f, g, j: int):
+def principal_subresultant(K: Any, f: Sequence[Element], g: Sequence[Element], j: int) -> Element:
     """``psc_j(f, g)`` (lowest coefficient first): the determinant of the
     Sylvester submatrix; ``psc_0`` is the resultant."""
     m, k = len(f) - 1, len(g) - 1
@@ -310,19 +319,19 @@ def _point(prep, sp1, sp2, names):
     K = target.top
     E = lambda x: expr(target, x, ctx)  # noqa: E731
     resonance = _resonance(target, W1, W2, ctx)
-    status = "nondegenerate"
+    status = PointStatus.NONDEGENERATE
     notes = ["the regularity of the unfolding in the two symbols is not checked; "
              "fifth-order terms (needed in the difficult case) are not computed"]
     try:
         N, N2, p11, p12, p21, p22 = _coefficients(prep, target, sub, W1, W2, ratio, K)
     except (DegenerateBifurcationError, DegenerateHopfError) as exc:
         if resonance in ("1:2",):
-            status = "resonance_1_2"
+            status = PointStatus.RESONANCE_1_2
             notes.append(f"the coefficients do not exist at the 1:2 resonance ({exc})")
             return _result(names, prep, sub, E, target, W1, W2, None, resonance, status, notes)
         raise
     if resonance != "none":
-        status = f"resonance_{resonance.replace(':', '_')}"
+        status = PointStatus(f"resonance_{resonance.replace(':', '_')}")
     return _result(names, prep, sub, E, target, W1, W2, (N, N2, p11, p12, p21, p22), resonance,
                    status, notes)
 
@@ -337,7 +346,7 @@ def _result(names, prep, sub, E, target, W1, W2, coeffs, resonance, status, note
     values.update(_symbol_values(prep, sub, E, names))
     cp = [None] * 4
     theta = delta = None
-    signs, case = {}, "undecided"
+    signs, case = {}, HopfHopfCase.UNDECIDED
     if coeffs is not None:
         N, N2, p11, p12, p21, p22 = coeffs
         cplx = lambda F, x: E(lower(F(x).a)) + E(lower(F(x).b)) * F.root  # noqa: E731
@@ -351,11 +360,11 @@ def _result(names, prep, sub, E, target, W1, W2, coeffs, resonance, status, note
             signs.update(theta=sign_word(target, th, ctx), delta=sign_word(target, de, ctx),
                          theta_delta_minus_1=sign_word(target, th * de - 1, ctx))
         prod = sign_word(target, re[0] * re[3], ctx)
-        case = {"positive": "simple", "negative": "difficult", "zero": "degenerate"}.get(
-            prod, "undecided")
-        if case == "degenerate" and status == "nondegenerate":
-            status = "Re_p11_or_Re_p22_vanishes"
-    scenario = (hopf_hopf_scenario(case, signs) if status in ("nondegenerate",) else
+        case = {Sign.POSITIVE: HopfHopfCase.SIMPLE, Sign.NEGATIVE: HopfHopfCase.DIFFICULT,
+                Sign.ZERO: HopfHopfCase.DEGENERATE}.get(prod, HopfHopfCase.UNDECIDED)
+        if case == HopfHopfCase.DEGENERATE and status == PointStatus.NONDEGENERATE:
+            status = PointStatus.RE_P11_OR_RE_P22_VANISHES
+    scenario = (hopf_hopf_scenario(case, signs) if status == PointStatus.NONDEGENERATE else
                 f"status {status}: the amplitude-equation scenario does not apply as stated"
                 + (f"; {hopf_hopf_scenario(case, signs)}" if coeffs is not None else ""))
     return HopfHopfResult(names, values, point, sympy.sqrt(E(W1)), sympy.sqrt(E(W2)), *cp,
@@ -370,8 +379,11 @@ def _symbol_values(prep, sub, E, names):
     return out
 
 
-def hopf_hopf_all(model, parameters, second=None, *, point=None, equilibrium=None,
-                  eliminate=None, values=None, assume=None, backend: str = "flint") -> tuple:
+def hopf_hopf_all(model: Model, parameters: str | Sequence[str], second: str | None = None, *,
+                  point: Mapping[str, object] | None = None, equilibrium: EquilibriumSpec = None,
+                  eliminate: Sequence[str] | None = None,
+                  values: Mapping[str, object] | None = None,
+                  assume: Mapping[str, str] | None = None, backend: str = "flint") -> tuple:
     """Every closed-form Hopf-Hopf point (see :func:`hopf_hopf`)."""
     p1, p2 = _names(parameters, second)
     model.require_kind("flow", "the Hopf-Hopf analysis")
@@ -402,8 +414,10 @@ def hopf_hopf_all(model, parameters, second=None, *, point=None, equilibrium=Non
         f"and '{p2}'" + (f" ({errors[0]})" if errors else ""), reason="empty_critical_set")
 
 
-def hopf_hopf(model, parameters, second=None, *, point=None, equilibrium=None, eliminate=None,
-              values=None, assume=None, backend: str = "flint",
+def hopf_hopf(model: Model, parameters: str | Sequence[str], second: str | None = None, *,
+              point: Mapping[str, object] | None = None, equilibrium: EquilibriumSpec = None,
+              eliminate: Sequence[str] | None = None, values: Mapping[str, object] | None = None,
+              assume: Mapping[str, str] | None = None, backend: str = "flint",
               branch: int = 0) -> HopfHopfResult:
     """Hopf-Hopf analysis in two symbols; arguments as for :func:`fold_hopf`.
 

@@ -36,10 +36,16 @@ with ``sigma = alpha + beta nu`` becomes one real block system.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any, Sequence
+
 from ..algebra.linalg import SingularMatrixError, dot, kernel, matmul, matvec, solve, \
     solve_vector, transpose
 from ..algebra.quadratic import lower
 from ..errors import DegenerateBifurcationError
+
+if TYPE_CHECKING:
+    from ..algebra.field import Element
+    from ..local.taylor import TaylorForms
 
 __all__ = ["flip_vectors", "flip_coefficients", "unit_circle_vectors", "ns_coefficient",
            "solve_complex"]
@@ -50,7 +56,7 @@ def _shifted(K, A, sigma):
     return [[(sigma if i == j else K.zero) - A[i][j] for j in range(n)] for i in range(n)]
 
 
-def flip_vectors(K, A):
+def flip_vectors(K: Any, A: list[list[Element]]) -> tuple[list[Element], list[Element]]:
     """``(q, p)`` with ``A q = -q``, ``A^T p = -p``, ``<p, q> = 1``."""
     M = _shifted(K, A, -K.one)
     right, left = kernel(K, M), kernel(K, transpose(M))
@@ -67,7 +73,8 @@ def flip_vectors(K, A):
     return q, [x / s for x in p]
 
 
-def flip_coefficients(K, A, taylor, q, p):
+def flip_coefficients(K: Any, A: list[list[Element]], taylor: TaylorForms, q: Sequence[Element],
+                      p: Sequence[Element]) -> tuple[Element, Element]:
     """``(a, c)``: the quadratic coefficient ``a = <p, B(q, q)>/2`` of the
     restricted map and the flip coefficient ``c`` (module docstring)."""
     Bqq = taylor.form(2, q, q)
@@ -82,7 +89,8 @@ def flip_coefficients(K, A, taylor, q, p):
     return a, third + dot(K, p, taylor.form(2, q, h)) / 2
 
 
-def unit_circle_vectors(K, N, A, lam):
+def unit_circle_vectors(K: Any, N: Any, A: list[list[Element]],
+                        lam: Element) -> tuple[list[Element], list[Element]]:
     """``(q, pbar)``: ``A q = lambda q`` and ``A^T pbar = lambda pbar`` with
     ``pbar^T q = 1`` (``pbar = conj(p)``), from the real kernels of
     ``A^2 - 2 cos(theta) A + I``; no eigenvalue of ``A`` is computed."""
@@ -112,7 +120,8 @@ def unit_circle_vectors(K, N, A, lam):
     return q, [x * inv for x in pbar]
 
 
-def solve_complex(K, N, A, sigma, r):
+def solve_complex(K: Any, N: Any, A: list[list[Element]], sigma: Element,
+                  r: Sequence[Element]) -> list[Element]:
     """``h`` with ``(sigma I - A) h = r`` for ``sigma`` and ``r`` in ``N = K(nu)``,
     as one real block system of size 2n."""
     n = len(A)
@@ -126,7 +135,8 @@ def solve_complex(K, N, A, sigma, r):
     return [N.element(sol[i][0], sol[n + i][0]) for i in range(n)]
 
 
-def ns_coefficient(K, N, A, taylor, q, pbar, lam):
+def ns_coefficient(K: Any, N: Any, A: list[list[Element]], taylor: TaylorForms,
+                   q: Sequence[Element], pbar: Sequence[Element], lam: Element) -> Element:
     """``c1`` of the Neimark-Sacker normal form for the eigenvector ``q``
     (not normalised; ``c1`` scales like ``|q|^2``)."""
     qbar = [x.conjugate() for x in q]

@@ -26,18 +26,32 @@ the unit circle (common practice, no source).
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any, Mapping, Sequence
+
 from ..algebra import upoly
 from ..algebra.linalg import identity
 from ..algebra.quadratic import lower
 from ..local.linear import hurwitz_determinants
 from ..local.prepare import prepare, sign_word
 
+if TYPE_CHECKING:
+    import sympy
+
+    from ..algebra.domain import Tower
+    from ..algebra.field import Element
+    from ..algebra.signs import SignContext
+    from ..local.prepare import EquilibriumSpec, PreparedProblem
+    from ..local.taylor import TaylorForms
+    from ..model.core import Model
+
 __all__ = ["prepare_map", "map_jacobian", "cayley", "inside_unit_circle", "unknown_symbol",
            "condition_status"]
 
 
-def prepare_map(model, parameter, *, equilibrium=None, eliminate=None, values=None,
-                assume=None, order=3, backend="flint", analysis="this analysis"):
+def prepare_map(model: Model, parameter: str, *, equilibrium: EquilibriumSpec = None,
+                eliminate: Sequence[str] | None = None, values: Mapping | None = None,
+                assume: Mapping[str, str] | None = None, order: int = 3, backend: str = "flint",
+                analysis: str = "this analysis") -> PreparedProblem:
     """The prepared problem of the map's fixed-point flow (see the module docstring)."""
     model.require_kind("map", analysis, "for flows use hopf(), fold(), bautin_points() or "
                        "bogdanov_takens()")
@@ -46,7 +60,7 @@ def prepare_map(model, parameter, *, equilibrium=None, eliminate=None, values=No
                    backend=backend)
 
 
-def map_jacobian(taylor):
+def map_jacobian(taylor: TaylorForms) -> list[list[Element]]:
     """``DF(x0)`` from the Taylor forms of ``F(x) - x``."""
     K = taylor.field
     A = taylor.jacobian()
@@ -61,7 +75,7 @@ def _binomial_power(K, p, k):
     return out
 
 
-def cayley(K, chi):
+def cayley(K: Any, chi: Sequence[Element]) -> list[Element]:
     """Coefficients (lowest first, monic) of ``(1 - s)^n chi((1 + s)/(1 - s))``.
 
     The degree drops by the multiplicity of the multiplier -1; an identically
@@ -69,7 +83,7 @@ def cayley(K, chi):
     """
     n = len(chi) - 1
     plus, minus = [K.one, K.one], [K.one, -K.one]
-    acc = []
+    acc: list = []
     for k, a in enumerate(chi):
         if not a:
             continue
@@ -78,7 +92,7 @@ def cayley(K, chi):
     return upoly.monic(upoly.trim(acc))
 
 
-def inside_unit_circle(K, poly):
+def inside_unit_circle(K: Any, poly: Sequence[Element]) -> list[Element]:
     """Elements that are all positive iff every root of ``poly`` (a polynomial
     in the multiplier, lowest coefficient first) lies inside the unit circle:
     the Hurwitz determinants of its Cayley transform, and the transform's
@@ -94,7 +108,7 @@ def inside_unit_circle(K, poly):
     return out
 
 
-def unknown_symbol(prep, name):
+def unknown_symbol(prep: PreparedProblem, name: str | None) -> sympy.Symbol:
     """The symbol solved for: ``name``, else the parameter if still free, else
     the first free fixed-point coordinate of a parametrised family."""
     if name is not None:
@@ -106,7 +120,7 @@ def unknown_symbol(prep, name):
     return prep.symbol(prep.parameter)
 
 
-def condition_status(tower, x, ctx, want="positive") -> str:
+def condition_status(tower: Tower, x: Any, ctx: SignContext | None, want: str = "positive") -> str:
     """``"holds"``, ``"fails"`` or ``"open"`` for ``x > 0`` (``want="positive"``)
     or ``x != 0`` (``want="nonzero"``)."""
     word = sign_word(tower, lower(x), ctx)

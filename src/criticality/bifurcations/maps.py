@@ -34,23 +34,28 @@ Conventions (stated on every result):
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any, ClassVar, Mapping, Sequence
+
 import dataclasses
 from dataclasses import dataclass
-from typing import ClassVar
 
 import sympy
 
 from ..algebra import upoly
 from ..algebra.quadratic import lower
 from ..errors import DegenerateBifurcationError, DegenerateHopfError, NoHopfPointError
+from ..kinds import PointStatus, Sign, coerce
 from ..local.critical import cofactor_hurwitz, find_critical_branches
 from ..algebra.linalg import characteristic_polynomial
-from ..local.prepare import expr, sign_word
+from ..local.prepare import EquilibriumSpec, expr, sign_word
 from ..local.prepare import solve_for as solve_symbol
 from ..renderers import render
 from .map_normal_form import flip_coefficients, flip_vectors, ns_coefficient, unit_circle_vectors
 from .map_setup import cayley, condition_status, inside_unit_circle, map_jacobian, prepare_map, \
     unknown_symbol
+
+if TYPE_CHECKING:
+    from ..model.core import Model
 
 __all__ = ["FlipResult", "NeimarkSackerResult", "flip", "flip_all", "neimark_sacker",
            "neimark_sacker_all", "FLIP_CONVENTIONS", "NS_CONVENTIONS"]
@@ -93,16 +98,19 @@ class FlipResult:
     p: tuple
     quadratic: sympy.Expr
     coefficient: sympy.Expr
-    coefficient_sign: str
+    coefficient_sign: Sign
     multiplier_speed: sympy.Expr
     amplitude_squared: dict
     verdict: str
-    status: str
+    status: PointStatus
     conditions: tuple = ()
     notes: tuple = ()
     conventions: tuple = FLIP_CONVENTIONS
 
-    def rows(self):
+    def __post_init__(self) -> None:
+        coerce(self, coefficient_sign=Sign, status=PointStatus)
+
+    def rows(self) -> list[tuple[str, str, object]]:
         return [("system", "system", "map x -> F(x) (discrete time)"),
                 ("parameter", "parameter", self.parameter),
                 ("critical_values", "critical values (multiplier -1)", self.critical_values),
@@ -128,7 +136,7 @@ class FlipResult:
         """The quantities as an ``align*`` block."""
         return render(self, "latex")
 
-    def to_json(self, **kwargs) -> str:
+    def to_json(self, **kwargs: Any) -> str:
         """The result as JSON in the shared envelope."""
         return render(self, "json", **kwargs)
 
@@ -145,7 +153,7 @@ class FlipResult:
     def _repr_latex_(self) -> str:
         return render(self, "notebook_latex")
 
-    def __str__(self):
+    def __str__(self) -> str:
         return self.summary()
 
 
@@ -165,17 +173,20 @@ class NeimarkSackerResult:
     q: tuple
     c1: object
     lyapunov: object
-    lyapunov_sign: str
+    lyapunov_sign: Sign
     modulus_speed: sympy.Expr
     radius_squared: object
     amplitude_squared: dict
-    status: str
+    status: PointStatus
     verdict: str
     conditions: tuple = ()
     notes: tuple = ()
     conventions: tuple = NS_CONVENTIONS
 
-    def rows(self):
+    def __post_init__(self) -> None:
+        coerce(self, lyapunov_sign=Sign, status=PointStatus)
+
+    def rows(self) -> list[tuple[str, str, object]]:
         return [("system", "system", "map x -> F(x) (discrete time)"),
                 ("parameter", "parameter", self.parameter),
                 ("critical_values", "critical values (|lambda| = 1)", self.critical_values),
@@ -207,7 +218,7 @@ class NeimarkSackerResult:
         """The quantities as an ``align*`` block."""
         return render(self, "latex")
 
-    def to_json(self, **kwargs) -> str:
+    def to_json(self, **kwargs: Any) -> str:
         """The result as JSON in the shared envelope."""
         return render(self, "json", **kwargs)
 
@@ -224,7 +235,7 @@ class NeimarkSackerResult:
     def _repr_latex_(self) -> str:
         return render(self, "notebook_latex")
 
-    def __str__(self):
+    def __str__(self) -> str:
         return self.summary()
 
 
@@ -288,8 +299,8 @@ def _flip_point(prep, sp, unknown, chi, dchi):
     target, ctx = sp.target, prep.context(sp.target)
     E = lambda x: expr(target, x, ctx)  # noqa: E731
     sign = sign_word(target, c, ctx)
-    status = "degenerate_coefficient" if sign == "zero" else (
-        "transversality_fails" if not speed else "nondegenerate")
+    status = PointStatus.DEGENERATE_COEFFICIENT if sign == Sign.ZERO else (
+        PointStatus.TRANSVERSALITY_FAILS if not speed else PointStatus.NONDEGENERATE)
     amp = {}
     if c:
         d = _delta(unknown)
@@ -306,8 +317,10 @@ def _flip_point(prep, sp, unknown, chi, dchi):
                       E(speed), amp, _flip_verdict(sign), status, conds, notes)
 
 
-def flip_all(model, parameter: str, *, solve_for: str | None = None, equilibrium=None,
-             eliminate=None, values=None, assume=None, backend: str = "flint") -> tuple:
+def flip_all(model: Model, parameter: str, *, solve_for: str | None = None,
+             equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
+             values: Mapping[str, object] | None = None, assume: Mapping[str, str] | None = None,
+             backend: str = "flint") -> tuple:
     """Every closed-form flip point (see :func:`flip`)."""
     prep = prepare_map(model, parameter, equilibrium=equilibrium, eliminate=eliminate,
                        values=values, assume=assume, order=3, backend=backend,
@@ -339,9 +352,10 @@ def flip_all(model, parameter: str, *, solve_for: str | None = None, equilibrium
 
 
 
-def flip(model, parameter: str, *, solve_for: str | None = None, equilibrium=None,
-         eliminate=None, values=None, assume=None, backend: str = "flint",
-         branch: int = 0) -> FlipResult:
+def flip(model: Model, parameter: str, *, solve_for: str | None = None,
+         equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
+         values: Mapping[str, object] | None = None, assume: Mapping[str, str] | None = None,
+         backend: str = "flint", branch: int = 0) -> FlipResult:
     """Period-doubling (flip) analysis of a map's fixed point in ``parameter``.
 
     Parameters
@@ -383,10 +397,10 @@ _RESONANCE_REASONS = {
 
 
 def _ns_verdict(sign, status):
-    if status == "resonance_1_3":
+    if status == PointStatus.RESONANCE_1_3:
         return ("strong resonance 1:3 (theta = 2 pi/3): the normal form z -> lambda z + c1 "
                 "z|z|^2 does not exist; no invariant-curve prediction")
-    if status == "resonance_1_4":
+    if status == PointStatus.RESONANCE_1_4:
         return ("strong resonance 1:4 (theta = pi/2): c1 is computed but a further resonant "
                 "term decides the dynamics; no invariant-curve prediction")
     return {"negative": "supercritical: a stable closed invariant curve is born where the "
@@ -407,8 +421,8 @@ def _multiplier(N, W):
 
 
 def _resonance(target, W, ctx):
-    for value, name in ((1, "resonance_1_4"), (3, "resonance_1_3")):
-        if sign_word(target, W - value, ctx) == "zero":
+    for value, name in ((1, PointStatus.RESONANCE_1_4), (3, PointStatus.RESONANCE_1_3)):
+        if sign_word(target, W - value, ctx) == Sign.ZERO:
             return name
     return None
 
@@ -424,25 +438,25 @@ def _ns_point(prep, unknown, branch):
     lam = _multiplier(N, W)
     q, pbar = unit_circle_vectors(K, N, A, lam)
     qq = lower(sum((x.conjugate() * x for x in q[1:]), q[0].conjugate() * q[0]))
-    status = _resonance(target, W, ctx) or "nondegenerate"
+    status = _resonance(target, W, ctx) or PointStatus.NONDEGENERATE
     speed = 2 * branch.transversality[0] / (K.one + W)
     c1 = lyap = rho2 = None
-    sign, amp = "undecided", {}
-    if status != "resonance_1_3":
+    sign, amp = Sign.UNDECIDED, {}
+    if status != PointStatus.RESONANCE_1_3:
         c1_raw = ns_coefficient(K, N, A, taylor, q, pbar, lam)
         re = lower((lam.conjugate() * c1_raw).a)
         c1 = E(lower(c1_raw.a) / qq) + E(lower(c1_raw.b) / qq) * N.root
         lyap = E(re / qq)
         sign = sign_word(target, re, ctx)
-        if re and status == "nondegenerate":
+        if re and status == PointStatus.NONDEGENERATE:
             d = _delta(unknown)
             rho2 = E(-speed * qq / re) * d
             amp = {s: E(-4 * speed * lower((x.conjugate() * x).a) / re) * d
                    for s, x in zip(prep.model.states, q)}
-        if sign == "zero" and status == "nondegenerate":
-            status = "degenerate_lyapunov"
-    if status == "nondegenerate" and not speed:
-        status = "transversality_fails"
+        if sign == Sign.ZERO and status == PointStatus.NONDEGENERATE:
+            status = PointStatus.DEGENERATE_LYAPUNOV
+    if status == PointStatus.NONDEGENERATE and not speed:
+        status = PointStatus.TRANSVERSALITY_FAILS
     cos = (K.one - W) / (K.one + W)
     conds = [("the critical multipliers are a complex pair (tan(theta/2)^2 > 0)", W, "positive"),
              ("the modulus of the multipliers crosses 1 with nonzero speed", speed, "nonzero"),
@@ -469,9 +483,10 @@ def _map_error(exc):
     return exc
 
 
-def neimark_sacker_all(model, parameter: str, *, solve_for: str | None = None,
-                       equilibrium=None, eliminate=None, values=None, assume=None,
-                       backend: str = "flint") -> tuple:
+def neimark_sacker_all(model: Model, parameter: str, *, solve_for: str | None = None,
+                       equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
+                       values: Mapping[str, object] | None = None,
+                       assume: Mapping[str, str] | None = None, backend: str = "flint") -> tuple:
     """Every closed-form Neimark-Sacker point (see :func:`neimark_sacker`)."""
     prep = prepare_map(model, parameter, equilibrium=equilibrium, eliminate=eliminate,
                        values=values, assume=assume, order=3, backend=backend,
@@ -481,7 +496,7 @@ def neimark_sacker_all(model, parameter: str, *, solve_for: str | None = None,
     chi = characteristic_polynomial(K, map_jacobian(prep.taylor))
     transformed = cayley(K, chi)
 
-    def accept(branch):
+    def accept(branch) -> bool:
         return sign_word(branch.tower, branch.W, prep.context(branch.tower)) not in (
             "negative", "zero", "nonpositive")
 
@@ -515,8 +530,10 @@ def neimark_sacker_all(model, parameter: str, *, solve_for: str | None = None,
     return tuple(out)
 
 
-def neimark_sacker(model, parameter: str, *, solve_for: str | None = None, equilibrium=None,
-                   eliminate=None, values=None, assume=None, backend: str = "flint",
+def neimark_sacker(model: Model, parameter: str, *, solve_for: str | None = None,
+                   equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
+                   values: Mapping[str, object] | None = None,
+                   assume: Mapping[str, str] | None = None, backend: str = "flint",
                    branch: int = 0) -> NeimarkSackerResult:
     """Neimark-Sacker analysis of a map's fixed point in ``parameter``.
 

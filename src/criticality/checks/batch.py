@@ -17,7 +17,7 @@ import csv
 import io
 import os
 from dataclasses import dataclass
-from typing import Mapping, Sequence
+from typing import Any, Mapping, Sequence
 
 from ..errors import CriticalityError, ParameterError
 
@@ -63,7 +63,7 @@ class BatchSummary:
             writer.writerow([getattr(r, f) for f in _FIELDS])
         return buf.getvalue()
 
-    def to_pandas(self):
+    def to_pandas(self) -> Any:
         """The summary as a pandas DataFrame (needs pandas)."""
         from ..errors import MissingExtraError
         try:
@@ -95,10 +95,11 @@ def _analyse_text(text: str, source: str, options: dict):
             None
 
 
-def analyse_many(paths: Sequence, *, parameter: str | None = None, out_dir=None,
+def analyse_many(paths: Sequence, *, parameter: str | None = None,
+                 out_dir: str | os.PathLike[str] | None = None,
                  order: int = 3, values: Mapping | None = None,
                  time_limit: float | None = None, force: bool = False,
-                 scheduler=None) -> BatchSummary:
+                 scheduler: Any = None) -> BatchSummary:
     """Hopf analysis of every model file in ``paths``.
 
     Parameters
@@ -132,7 +133,8 @@ def analyse_many(paths: Sequence, *, parameter: str | None = None, out_dir=None,
         raise ParameterError(f"out_dir {os.fspath(out_dir)!r} is not an existing folder")
     options = {"parameter": parameter, "order": order,
                "values": dict(values) if values else None, "time_limit": time_limit}
-    items, early = [], {}
+    items: list = []
+    early: dict = {}
     for i, path in enumerate(paths):
         try:
             with open(path, encoding="utf-8") as handle:

@@ -13,14 +13,14 @@ is imported.
 
 from __future__ import annotations
 
-from typing import Callable, Sequence
+from typing import Any, Callable, Sequence
 
 from ..errors import MissingExtraError, ParameterError
 
 __all__ = ["map_tasks", "client_for"]
 
 
-def client_for(scheduler):
+def client_for(scheduler: Any) -> Any:
     """``(client, owned)`` for a Client or an address (``owned``: close it after)."""
     if hasattr(scheduler, "submit") and hasattr(scheduler, "gather"):
         return scheduler, False
@@ -39,7 +39,7 @@ def client_for(scheduler):
         raise ParameterError(f"cannot reach the dask scheduler at {scheduler!r}: {exc}") from exc
 
 
-def map_tasks(scheduler, fn: Callable, items: Sequence[tuple]) -> list:
+def map_tasks(scheduler: Any, fn: Callable, items: Sequence[tuple]) -> list:
     """``[fn(*item) for item in items]``, each call a task on the cluster, in order."""
     client, owned = client_for(scheduler)
     try:

@@ -31,10 +31,15 @@ from __future__ import annotations
 
 import csv
 import io
+import os
 from dataclasses import dataclass, field
-from typing import Mapping
+from typing import TYPE_CHECKING, Any, Mapping
 
 from ..errors import EquilibriumNotFoundError, MissingExtraError, ParameterError
+from ..kinds import Classification
+
+if TYPE_CHECKING:
+    from ..model.core import Model
 
 __all__ = ["HopfCurve", "CurvePoint", "hopf_curve"]
 
@@ -112,7 +117,7 @@ class HopfCurve:
         out["verdict"] = list(self.verdict)
         return out
 
-    def to_pandas(self):
+    def to_pandas(self) -> Any:
         """The table as a pandas DataFrame (needs pandas)."""
         try:
             import pandas
@@ -121,7 +126,7 @@ class HopfCurve:
                                     "pip install pandas") from exc
         return pandas.DataFrame(self.columns())
 
-    def to_csv(self, path=None, *, force: bool = False) -> str:
+    def to_csv(self, path: str | os.PathLike[str] | None = None, *, force: bool = False) -> str:
         """The table as CSV text (also written to ``path`` if given; an
         existing file is kept unless ``force``)."""
         cols = self.columns()
@@ -137,7 +142,7 @@ class HopfCurve:
             write_text_atomic(path, text, force=force)
         return text
 
-    def plot(self, ax=None):
+    def plot(self, ax: Any = None) -> Any:
         """The curve in the ``(along, parameter)`` plane, coloured by verdict,
         Bautin points and turning points marked; returns the axes."""
         try:
@@ -164,7 +169,7 @@ class HopfCurve:
         ax.set_xlabel(self.along)
         ax.set_ylabel(f"{self.parameter} at the Hopf point")
         handles, labels = ax.get_legend_handles_labels()
-        seen = {}
+        seen: dict = {}
         for h, lab in zip(handles, labels):
             seen.setdefault(lab, h)
         ax.legend(list(seen.values()), list(seen), loc="best")
@@ -177,7 +182,7 @@ class _Curve:
     """The Hopf system with the second parameter as an unknown:
     ``Y = (x, mu, omega, v_r, v_i, a)``."""
 
-    def __init__(self, setup):
+    def __init__(self, setup) -> None:
         from ..local.numeric_hopf import HopfSystem
 
         self.setup = setup
@@ -203,7 +208,7 @@ class _Curve:
         t = np.linalg.solve(M, rhs)
         return t / np.linalg.norm(t)
 
-    def correct(self, Y, c, fix=None, border=None, tol=1e-11, max_iter=12):
+    def correct(self, Y, c, fix=None, border=None, tol: float = 1e-11, max_iter: int = 12):
         """Newton on ``G = 0`` plus either ``Y[fix]`` fixed or the border row
         ``border = (t, Yp)``: ``t . (Y - Yp) = 0``."""
         np = _np()
@@ -321,12 +326,12 @@ def _row(curve, Y, c, order):
     return mu, om, l1, l2, beta, "ok"
 
 
-def _verdict(l1, status, scale=1.0):
+def _verdict(l1, status, scale: float = 1.0):
     if status != "ok":
         return ""
     if abs(l1) <= 1e-10 * max(1.0, scale):
-        return "degenerate"
-    return "supercritical" if l1 < 0 else "subcritical"
+        return Classification.DEGENERATE
+    return Classification.SUPERCRITICAL if l1 < 0 else Classification.SUBCRITICAL
 
 
 def _crossings(points, targets):
@@ -408,9 +413,9 @@ def _turning(curve, points, k):
                       f"'{curve.setup.names[curve.ai]}' is extremal along the curve here")
 
 
-def hopf_curve(model, parameter: str, along: Mapping, guess: Mapping, *,
+def hopf_curve(model: Model, parameter: str, along: Mapping, guess: Mapping, *,
                values: Mapping | None = None, order: int = 3, radius: float = 1.0,
-               max_steps: int | None = None, scheduler=None) -> HopfCurve:
+               max_steps: int | None = None, scheduler: Any = None) -> HopfCurve:
     """Follow the Hopf point of ``parameter`` as another parameter moves.
 
     Parameters

@@ -17,12 +17,18 @@ return to the fixed point and one started at twice the size must leave.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any, Callable, Mapping
+
 import math
 from dataclasses import dataclass
 
 import sympy
 
 from ..errors import ParameterError, ValidationRunError
+
+if TYPE_CHECKING:
+    from ..bifurcations.maps import FlipResult, NeimarkSackerResult
+    from ..model.core import Model
 
 __all__ = ["MapValidation", "validate_map", "iterate"]
 
@@ -66,7 +72,7 @@ def _number(expr, values, what) -> float:
     return v.real
 
 
-def iterate(step, x, count: int):
+def iterate(step: Callable, x: Any, count: int) -> Any:
     """Apply ``step`` (a function of a tuple) ``count`` times; None if the
     orbit leaves every bounded region (overflow or non-finite values)."""
     for _ in range(count):
@@ -123,7 +129,9 @@ def _measure(step, x, analysis, window):
     return [(max(p[j] for p in pts) - min(p[j] for p in pts)) / 2 for j in range(n)]
 
 
-def validate_map(result, model, values=None, *, offset: float = 1e-3, steps: int | None = None,
+def validate_map(result: FlipResult | NeimarkSackerResult, model: Model,
+                 values: Mapping[str, object] | None = None, *, offset: float = 1e-3,
+                 steps: int | None = None,
                  tolerance: float = 0.1) -> MapValidation:
     """Iterate the original map near onset and compare with ``result``.
 

@@ -13,13 +13,18 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import ClassVar, Mapping
+from typing import Any, ClassVar, Mapping
 
 import mpmath
 import sympy
 
 from ..errors import ParameterError
+from ..kinds import Classification, coerce
 from ..renderers import render
+
+#: a HopfResult, typed loosely: the result imports this module at run time, and a
+#: type-only import back would make the two modules import each other
+ResultLike = Any
 
 __all__ = ["NumericHopfResult", "evaluate_result", "parameter_values"]
 
@@ -39,23 +44,26 @@ class NumericHopfResult:
 
     values: Mapping[str, object]
     digits: int
-    critical_value: object
-    omega_squared: object
-    omega: object
-    period: object
-    transversality: object
-    c1: object
-    l1: object
+    critical_value: Any  # an mpmath number
+    omega_squared: Any  # an mpmath number
+    omega: Any  # an mpmath number
+    period: Any  # an mpmath number
+    transversality: Any  # an mpmath number
+    c1: Any  # an mpmath number
+    l1: Any  # an mpmath number
     lyapunov_coefficients: tuple
-    classification: str
+    classification: Classification
     equilibrium: Mapping[str, object]
-    amplitude_coefficients: Mapping[str, object]
+    amplitude_coefficients: Mapping[str, Any]
     eigenvalues: tuple
-    pair_error: object
+    pair_error: Any  # an mpmath number
     others_stable: bool
     conditions: tuple
 
     result_kind: ClassVar[str] = "hopf_numeric_point"
+
+    def __post_init__(self) -> None:
+        coerce(self, classification=Classification)
 
     def _repr_html_(self) -> str:
         return render(self, "html")
@@ -63,7 +71,7 @@ class NumericHopfResult:
     def _repr_markdown_(self) -> str:
         return render(self, "markdown")
 
-    def amplitude(self, offset) -> dict:
+    def amplitude(self, offset: float) -> dict:
         """Predicted amplitude of each state at ``mu = mu_c + offset`` (on the
         side where the cycle exists, else NaN)."""
         with mpmath.workdps(self.digits):
@@ -73,7 +81,7 @@ class NumericHopfResult:
                 out[name] = mpmath.sqrt(v) if v >= 0 else mpmath.nan
             return out
 
-    def __str__(self):
+    def __str__(self) -> str:
         rows = [("critical value", self.critical_value), ("omega", self.omega),
                 ("period", self.period), ("transversality", self.transversality),
                 ("l1", self.l1), ("classification", self.classification),
@@ -85,7 +93,7 @@ class NumericHopfResult:
         return "\n".join(f"{k.ljust(width)}  {fmt(v)}" for k, v in rows)
 
 
-def parameter_values(result, values: Mapping) -> dict:
+def parameter_values(result: ResultLike, values: Mapping) -> dict:
     """Exact sympy values for the parameters of ``result`` (defaults filled in).
 
     Raises
@@ -158,7 +166,7 @@ def _num(expr, subs, digits, what=None):
     return mpmath.mpf(str(re))
 
 
-def evaluate_result(result, values: Mapping, *, digits: int = 30) -> NumericHopfResult:
+def evaluate_result(result: ResultLike, values: Mapping, *, digits: int = 30) -> NumericHopfResult:
     """Evaluate every quantity of ``result`` at ``values``."""
     if digits < 5 or digits > 10000:
         raise ParameterError(f"digits must be between 5 and 10000, got {digits}")
@@ -185,7 +193,8 @@ def evaluate_result(result, values: Mapping, *, digits: int = 30) -> NumericHopf
         tol = mpmath.mpf(10) ** (-(digits // 2))
         others = [e for e in eigs if abs(e - target) > tol and abs(e + target) > tol]
         conds = tuple((c.key, _num(c.expr, subs, digits + 5), c.relation) for c in result.conditions)
-        cls = "supercritical" if l1 < 0 else "subcritical" if l1 > 0 else "degenerate"
+        cls = (Classification.SUPERCRITICAL if l1 < 0 else
+               Classification.SUBCRITICAL if l1 > 0 else Classification.DEGENERATE)
         return NumericHopfResult(
             values=exact, digits=digits, critical_value=mu_c, omega_squared=omega ** 2,
             omega=omega, period=2 * mpmath.pi / omega,

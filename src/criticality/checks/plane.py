@@ -27,13 +27,17 @@ from __future__ import annotations
 import math
 import os
 from dataclasses import dataclass
-from typing import Mapping
+from typing import TYPE_CHECKING, Any, Mapping, Sequence
 
 import sympy
 
 from ..files import write_text_atomic
 from ..errors import ParameterError
+from ..kinds import Classification
 from .sweeps import _numpy, grid_function, sweep
+
+if TYPE_CHECKING:
+    from ..hopf_analysis.results import HopfResult
 
 __all__ = ["CurveData", "StabilityGrid", "curve_data", "stability_grid", "curve_csv",
            "write_curve_csv", "feasibility_grid", "state_signs"]
@@ -66,25 +70,25 @@ class CurveData:
 
     x_name: str
     y_name: str
-    x: object
-    y: object
-    segment: object
-    l1: object
-    others_stable: object
+    x: Any
+    y: Any
+    segment: Any
+    l1: Any
+    others_stable: Any
     zeros: tuple
     mode: str
     fixed: Mapping[str, object]
 
     @property
-    def classification(self):
+    def classification(self) -> Any:
         """``"supercritical"``/``"subcritical"``/``"degenerate"`` per point
         (``""`` in gaps)."""
         np = _numpy()
         out = np.full(self.l1.shape, "", dtype=object)
         ok = self.segment >= 0
-        out[ok & (self.l1 < 0)] = "supercritical"
-        out[ok & (self.l1 > 0)] = "subcritical"
-        out[ok & (self.l1 == 0)] = "degenerate"
+        out[ok & (self.l1 < 0)] = Classification.SUPERCRITICAL
+        out[ok & (self.l1 > 0)] = Classification.SUBCRITICAL
+        out[ok & (self.l1 == 0)] = Classification.DEGENERATE
         return out
 
 
@@ -111,8 +115,9 @@ def _range(name, rng):
     return lo, hi
 
 
-def curve_data(result, x: str, y: str, *, values: Mapping | None = None, x_range=(0.0, 1.0),
-               y_range=(0.0, 1.0), points: int = 400) -> CurveData:
+def curve_data(result: HopfResult, x: str, y: str, *, values: Mapping | None = None,
+               x_range: Sequence[float] = (0.0, 1.0), y_range: Sequence[float] = (0.0, 1.0),
+               points: int = 400) -> CurveData:
     """The Hopf curve of ``result`` in the ``(x, y)`` parameter plane.
 
     Parameters
@@ -167,7 +172,7 @@ def _graph(np, result, free, t, values):
                 others_stable=stab & ok, zeros=tuple(zeros), fixed=mu_c.fixed)
 
 
-def _bisect(f, a, b, steps=200):
+def _bisect(f, a, b, steps: int = 200):
     fa = f(a)
     for _ in range(steps):
         m = 0.5 * (a + b)
@@ -245,7 +250,7 @@ def _level_set(np, result, x, y, xr, yr, n, values):
                                                                  result.parameter: mu0})
 
 
-def _refine(np, f, line, xs, ys, steps=60):
+def _refine(np, f, line, xs, ys, steps: int = 60):
     """Move contour vertices onto the level set ``f = 0`` by bisection along
     the grid edge each one lies on (contour vertices are linear interpolates)."""
     out = np.array(line, dtype=float)
@@ -282,16 +287,16 @@ class StabilityGrid:
     eigenvalues).
     """
 
-    x: object
-    y: object
-    stable: object
-    known: object
+    x: Any
+    y: Any
+    stable: Any
+    known: Any
     method: str
 
 
-def stability_grid(result, x: str, y: str, *, values: Mapping | None = None,
-                   x_range=(0.0, 1.0), y_range=(0.0, 1.0), points: int = 200,
-                   method: str = "closed form") -> StabilityGrid:
+def stability_grid(result: HopfResult, x: str, y: str, *, values: Mapping | None = None,
+                   x_range: Sequence[float] = (0.0, 1.0), y_range: Sequence[float] = (0.0, 1.0),
+                   points: int = 200, method: str = "closed form") -> StabilityGrid:
     """Stability of the equilibrium over the plane (see the module notes).
 
     ``method`` is ``"closed form"`` (sign of the transversality and the
@@ -344,7 +349,7 @@ _SIGN_OK = {"positive": lambda v: v > 0, "nonnegative": lambda v: v >= 0,
             "negative": lambda v: v < 0, "nonpositive": lambda v: v <= 0}
 
 
-def state_signs(result, feasible=None) -> dict:
+def state_signs(result: HopfResult, feasible: Any = None) -> dict:
     """State -> the sign its equilibrium coordinate must have.
 
     ``feasible`` is a sign word for every state (``"nonnegative"``,
@@ -367,8 +372,9 @@ def state_signs(result, feasible=None) -> dict:
     return table
 
 
-def feasibility_grid(result, x: str, y: str, *, feasible=None, values: Mapping | None = None,
-                     x_range=(0.0, 1.0), y_range=(0.0, 1.0), points: int = 200):
+def feasibility_grid(result: HopfResult, x: str, y: str, *, feasible: Any = None,
+                     values: Mapping | None = None, x_range: Sequence[float] = (0.0, 1.0),
+                     y_range: Sequence[float] = (0.0, 1.0), points: int = 200) -> tuple | None:
     """``(X, Y, ok)``: where on the plane the equilibrium has the signs of
     :func:`state_signs` (a population stays nonnegative, ...); None when no
     state has a sign to keep."""
@@ -440,7 +446,8 @@ def curve_csv(curve: CurveData) -> str:
     return "\n".join(lines) + "\n"
 
 
-def write_curve_csv(curve: CurveData, path, *, force: bool = False) -> str:
+def write_curve_csv(curve: CurveData, path: str | os.PathLike[str], *,
+                    force: bool = False) -> str:
     """Write :func:`curve_csv` to ``path`` atomically; returns the path.
 
     Raises

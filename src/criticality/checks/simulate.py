@@ -16,12 +16,16 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
-from typing import Callable, Mapping
+from typing import TYPE_CHECKING, Any, Callable, Mapping
 
 import mpmath
 import sympy
 
 from ..errors import ParameterError, ValidationRunError
+from ..kinds import RunStatus, coerce
+
+if TYPE_CHECKING:
+    from ..hopf_analysis.results import HopfResult
 
 __all__ = ["Setup", "LocalFrame", "RunOutcome", "prepare", "local_frame", "measure_cycle",
            "shoot_cycle", "bracket", "settle_time"]
@@ -88,7 +92,7 @@ def _substitute(expr, by_name: Mapping) -> sympy.Expr:
     return expr.xreplace(repl)
 
 
-def prepare(result, values: Mapping, np) -> Setup:
+def prepare(result: HopfResult, values: Mapping, np: Any) -> Setup:
     """Evaluate ``result`` at ``values`` and lambdify the original model.
 
     Raises
@@ -166,15 +170,15 @@ class LocalFrame:
     q: object
     pbar: object
 
-    def start(self, np, radius: float):
+    def start(self, np: Any, radius: float) -> Any:
         """The point ``x0 + 2 radius Re(q)`` (the predicted cycle at phase 0)."""
         return self.x0 + 2.0 * radius * np.real(self.q)
 
-    def radius(self, np, y) -> float:
+    def radius(self, np: Any, y: Any) -> float:
         return float(abs(np.dot(self.pbar, np.asarray(y) - self.x0)))
 
 
-def local_frame(setup: Setup, mu: float, np) -> LocalFrame:
+def local_frame(setup: Setup, mu: float, np: Any) -> LocalFrame:
     """The :class:`LocalFrame` at ``mu`` (numeric eigenvectors from numpy)."""
     x0 = setup.equilibrium(mu)
     A = setup.jac(mu, x0)
@@ -201,12 +205,15 @@ class RunOutcome:
     Floquet multipliers.
     """
 
-    status: str
+    status: RunStatus
     time: float
     amplitudes: Mapping[str, float] | None = None
     period: float | None = None
     residual: float | None = None
     multiplier: float | None = None
+
+    def __post_init__(self) -> None:
+        coerce(self, status=RunStatus)
 
 
 def _solve(ivp, fun, jac, span, y0, method, rtol, atol, **extra):
@@ -228,8 +235,8 @@ def _escape_event(frame, np, limit):
 
 
 def measure_cycle(setup: Setup, frame: LocalFrame, radius: float, *, direction: int,
-                  transient: float, window: float, method: str, rtol: float, np,
-                  ivp) -> RunOutcome:
+                  transient: float, window: float, method: str, rtol: float, np: Any,
+                  ivp: Any) -> RunOutcome:
     """Integrate from the predicted cycle, wait ``transient``, then measure.
 
     Amplitudes (half peak-to-peak) come from the extrema of every state over
@@ -246,14 +253,14 @@ def measure_cycle(setup: Setup, frame: LocalFrame, radius: float, *, direction: 
     first = _solve(ivp, fun, jac, (0.0, transient), y0, method, rtol, atol,
                    events=escape, t_eval=[transient])
     if first.status == 1:
-        return RunOutcome("escaped", float(first.t_events[0][0]))
+        return RunOutcome(RunStatus.ESCAPED, float(first.t_events[0][0]))
     y1 = first.y[:, -1]
     sol = _solve(ivp, fun, jac, (transient, transient + window), y1, method, rtol, atol,
                  events=_extrema_events(setup, mu), dense_output=True)
     return _measurements(setup, sol, np, transient, window, radius, frame)
 
 
-def _measurements(setup, sol, np, transient, window, radius, frame, least=4):
+def _measurements(setup, sol, np, transient, window, radius, frame, least: int = 4):
     amps, halves = {}, []
     mid = transient + window / 2
     for j, name in enumerate(setup.states):
@@ -268,11 +275,11 @@ def _measurements(setup, sol, np, transient, window, radius, frame, least=4):
     if not amps or max(amps.values()) < 1e-3 * radius:
         # no state oscillates measurably: the orbit came to rest, here or elsewhere
         near = np.linalg.norm(sol.y[:, -1] - frame.x0) < 0.1 * radius
-        return RunOutcome("decayed" if near else "escaped", transient + window)
+        return RunOutcome(RunStatus.DECAYED if near else RunStatus.ESCAPED, transient + window)
     ref = max(range(len(setup.states)), key=lambda j: amps.get(setup.states[j], -1.0))
     period = _period(sol, ref, np, transient, window, setup)
     drift = max((abs(b - a) / max(abs(b), 1e-300) for a, b in halves), default=0.0)
-    return RunOutcome("measured", transient + window, amps, period, drift)
+    return RunOutcome(RunStatus.MEASURED, transient + window, amps, period, drift)
 
 
 def _period(sol, j, np, t0, window, setup):
@@ -322,7 +329,7 @@ def _newton_step(setup, frame, y, period, rtol, np, ivp):
 
 
 def shoot_cycle(setup: Setup, frame: LocalFrame, radius: float, period: float, *, rtol: float,
-                np, ivp, iterations: int = 30) -> RunOutcome:
+                np: Any, ivp: Any, iterations: int = 30) -> RunOutcome:
     """Find the cycle by Newton's method on the periodic orbit (single shooting).
 
     For cycles that integration in neither time direction reaches (a
@@ -339,17 +346,17 @@ def shoot_cycle(setup: Setup, frame: LocalFrame, radius: float, period: float, *
     for _ in range(iterations):
         step, mono = _newton_step(setup, frame, y, T, tight, np, ivp)
         if step is None or not np.all(np.isfinite(step)):
-            return RunOutcome("undecided", T)
+            return RunOutcome(RunStatus.UNDECIDED, T)
         size = float(np.linalg.norm(step[:-1]))
         if size > 0.5 * radius:
             step = step * (0.5 * radius / size)
         y, T = y + step[:-1], T + step[-1]
         if T <= 0 or frame.radius(np, y) < 0.05 * radius:
-            return RunOutcome("decayed", T)
+            return RunOutcome(RunStatus.DECAYED, T)
         if size < 1e-10 * radius and abs(step[-1]) < 1e-10 * T:
             break
     else:
-        return RunOutcome("undecided", T)
+        return RunOutcome(RunStatus.UNDECIDED, T)
     mu = frame.mu
     sol = _solve(ivp, lambda t, v: setup.rhs(mu, v), None, (0.0, 1.25 * T), y, "DOP853", tight,
                  tight * 1e-2 * radius, events=_extrema_events(setup, mu), dense_output=True)
@@ -368,7 +375,7 @@ def _largest_multiplier(np, mono) -> float | None:
 
 
 def bracket(setup: Setup, frame: LocalFrame, radius: float, factor: float, *, horizon: float,
-            direction: int, method: str, rtol: float, np, ivp) -> RunOutcome:
+            direction: int, method: str, rtol: float, np: Any, ivp: Any) -> RunOutcome:
     """Start at ``factor`` times the predicted radius; say where the orbit goes.
 
     The radius is measured in the center coordinate ``|pbar . (x - x0)|``,
@@ -387,9 +394,9 @@ def bracket(setup: Setup, frame: LocalFrame, radius: float, factor: float, *, ho
                  rtol * 1e-2 * radius, events=[low, high], t_eval=[horizon])
     if sol.status == 1:
         if len(sol.t_events[0]):
-            return RunOutcome("decayed", float(sol.t_events[0][0]))
-        return RunOutcome("escaped", float(sol.t_events[1][0]))
-    return RunOutcome("undecided", horizon)
+            return RunOutcome(RunStatus.DECAYED, float(sol.t_events[0][0]))
+        return RunOutcome(RunStatus.ESCAPED, float(sol.t_events[1][0]))
+    return RunOutcome(RunStatus.UNDECIDED, horizon)
 
 
 def settle_time(setup: Setup, offset: float) -> float:

@@ -15,12 +15,17 @@ eigenvalues.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any, Mapping
+
 from dataclasses import dataclass
 
 import mpmath
 import sympy
 
 from ..errors import ParameterError
+
+if TYPE_CHECKING:
+    from ..model.core import Model
 
 __all__ = ["SpectrumCheck", "spectrum_check"]
 
@@ -75,7 +80,8 @@ def _resolved(result, model, values):
     return table
 
 
-def spectrum_check(result, model, values=None, *, digits: int = 30) -> SpectrumCheck:
+def spectrum_check(result: Any, model: Model, values: Mapping[str, object] | None = None, *,
+                   digits: int = 30) -> SpectrumCheck:
     """Evaluate the Jacobian (flows) or ``DF`` (maps) of ``model`` at the point of
     ``result`` and compare its spectrum with the critical eigenvalues.
 

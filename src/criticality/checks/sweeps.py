@@ -29,7 +29,7 @@ import sys
 import time
 import warnings
 from dataclasses import dataclass
-from typing import Callable, Mapping
+from typing import Any, Callable, Mapping, Sequence
 
 import sympy
 
@@ -93,8 +93,8 @@ class Sweep:
     quantity: str
     expression: sympy.Expr
     grid: Mapping[str, object]
-    values: object
-    admissible: object
+    values: Any
+    admissible: Any
     fixed: Mapping[str, sympy.Expr]
     sampled_error: float | None = None
     sampled_points: int = 0
@@ -103,7 +103,7 @@ class Sweep:
     def shape(self) -> tuple:
         return tuple(self.values.shape)
 
-    def masked(self):
+    def masked(self) -> Any:
         """``values`` with NaN where the Hopf point does not exist."""
         np = _numpy()
         out = np.array(self.values, dtype=float if not np.iscomplexobj(self.values) else complex)
@@ -111,7 +111,7 @@ class Sweep:
         return out
 
 
-def quantity_expression(result, quantity) -> sympy.Expr:
+def quantity_expression(result: Any, quantity: str | sympy.Expr) -> sympy.Expr:
     """The closed form of ``result`` called ``quantity`` (see :data:`QUANTITIES`)."""
     if isinstance(quantity, sympy.Expr):
         return quantity
@@ -165,7 +165,8 @@ def _fixed_values(result, names, values) -> dict:
     return {k: v for k, v in exact.items() if k not in names}
 
 
-def grid_function(result, expr, names, values=None) -> tuple:
+def grid_function(result: Any, expr: sympy.Expr, names: Sequence[str],
+                  values: Mapping | None = None) -> tuple:
     """A numpy function of the grid parameters ``names`` and the fixed values.
 
     Returns ``(function, substituted expression, fixed values)``; every other
@@ -183,7 +184,7 @@ def grid_function(result, expr, names, values=None) -> tuple:
     return compiled_function(sub, args), sub, fixed
 
 
-def compiled_function(expr, args):
+def compiled_function(expr: sympy.Expr, args: Sequence[sympy.Symbol]) -> Callable:
     """``expr`` compiled once for numpy arrays, common subexpressions removed
     (:mod:`criticality.local.codegen`; the result's own sympy expression, no
     user text).  Falls back to ``sympy.lambdify`` for a node the compiler does
@@ -200,7 +201,7 @@ def compiled_function(expr, args):
 class _First:
     """The single output of a compiled list, called with positional arrays."""
 
-    def __init__(self, fn):
+    def __init__(self, fn) -> None:
         self.fn = fn
 
     def __call__(self, *arrays):
@@ -215,7 +216,7 @@ def _admissible_expressions(result) -> list:
 class _Progress:
     """Reports a fraction done on stderr (or to a callback) after a delay."""
 
-    def __init__(self, label: str, progress):
+    def __init__(self, label: str, progress) -> None:
         self.label, self.progress = label, progress
         self.started = time.perf_counter()
         self.shown = False
@@ -256,7 +257,7 @@ def _evaluate_block(fn, flat, report=None, offset: int = 0, total: int | None = 
     return out
 
 
-def _evaluate(np, fn, arrays, report, scheduler=None) -> object:
+def _evaluate(np, fn, arrays, report, scheduler=None) -> Any:
     flat = [a.ravel() for a in arrays]
     total = flat[0].size
     if scheduler is None:
@@ -276,8 +277,11 @@ def _evaluate(np, fn, arrays, report, scheduler=None) -> object:
     return out.reshape(arrays[0].shape)
 
 
-def sweep(result, quantity, grid: Mapping, *, values: Mapping | None = None,
-          progress: bool | str | Callable = "auto", scheduler=None) -> Sweep:
+# ``result`` is a HopfResult, typed as Any: HopfResult.evaluate_many calls into this module,
+# and a type-only import back would make the two modules import each other.
+def sweep(result: Any, quantity: str | sympy.Expr, grid: Mapping, *,
+          values: Mapping | None = None, progress: bool | str | Callable = "auto",
+          scheduler: Any = None) -> Sweep:
     """Evaluate a closed form of ``result`` over a grid of parameter values.
 
     Parameters
@@ -375,8 +379,9 @@ def _sampled_error(np, expr, names, arrays, out, ok) -> tuple:
     return worst, int(picks.size)
 
 
-def evaluate_many(result, points: Mapping, quantities=("critical_value", "omega", "l1"), *,
-                  values: Mapping | None = None, scheduler=None) -> Mapping:
+def evaluate_many(result: Any, points: Mapping,
+                  quantities: Sequence[str] = ("critical_value", "omega", "l1"), *,
+                  values: Mapping | None = None, scheduler: Any = None) -> Mapping:
     """Several quantities of ``result`` at many parameter points at once.
 
     ``points`` maps parameter names to arrays (broadcast together); each

@@ -33,11 +33,15 @@ from __future__ import annotations
 
 import math
 import time
-from typing import Mapping, Sequence
+from typing import TYPE_CHECKING, Any, Mapping, Sequence
 
 from .simulate import bracket, local_frame, measure_cycle, prepare, settle_time, shoot_cycle
 from ..errors import MissingExtraError, ParameterError, ValidationRunError
+from ..kinds import Classification, Side
 from .validation_report import BracketOutcome, CycleMeasurement, ValidationReport
+
+if TYPE_CHECKING:
+    from ..hopf_analysis.results import HopfResult
 
 __all__ = ["validate", "default_offsets", "natural_scale", "ValidationReport", "CycleMeasurement",
            "BracketOutcome"]
@@ -64,7 +68,7 @@ def _extras():
     return numpy, solve_ivp
 
 
-def default_offsets(result, values: Mapping | None = None, **kwargs) -> tuple:
+def default_offsets(result: HopfResult, values: Mapping | None = None, **kwargs: Any) -> tuple:
     """The offsets ``|mu - mu_c|`` :func:`validate` uses by default.
 
     The offsets are 1e-2, 4e-3 and 1.6e-3 of :func:`natural_scale` at the
@@ -129,11 +133,12 @@ def _plan(setup) -> tuple:
     return measure, brackets
 
 
-def validate(result, values: Mapping | None = None, *, offsets: Sequence[float] | None = None,
+def validate(result: HopfResult, values: Mapping | None = None, *,
+             offsets: Sequence[float] | None = None,
              tolerance: float = 0.05, method: str | None = None, rtol: float = 1e-9,
              window_periods: int = 10, max_periods: int = 4000,
              bracket_factors: tuple = (0.7, 1.3), shooting: bool = True,
-             **kwargs) -> ValidationReport:
+             **kwargs: Any) -> ValidationReport:
     """Check the predicted cycle of ``result`` by simulating the original model.
 
     Parameters
@@ -198,7 +203,7 @@ def validate(result, values: Mapping | None = None, *, offsets: Sequence[float] 
     opts = dict(method=how, rtol=rtol, np=np, ivp=ivp)
     measure_dir, bracket_dir = _plan(setup)
     approach = {1: "forward", -1: "backward"}.get(measure_dir, "shooting" if shooting else None)
-    notes = []
+    notes: list[str] = []
     measurements = tuple(_measure(setup, sign * d, approach, window_periods, max_periods,
                                   notes, opts) for d in deltas) if approach else ()
     brackets = tuple(_bracket(setup, sign * d, bracket_dir, bracket_factors, max_periods, opts)
@@ -207,8 +212,8 @@ def validate(result, values: Mapping | None = None, *, offsets: Sequence[float] 
     return ValidationReport(
         parameter=result.parameter, values=setup.values, critical_value=setup.mu_c,
         omega=setup.omega, l1=setup.l1,
-        classification="supercritical" if setup.l1 < 0 else "subcritical",
-        side="above" if sign > 0 else "below",
+        classification=Classification.SUPERCRITICAL if setup.l1 < 0 else Classification.SUBCRITICAL,
+        side=Side.ABOVE if sign > 0 else Side.BELOW,
         predicted_stable=setup.l1 < 0 and all(e.real < 0 for e in setup.others),
         states=setup.states, measurements=measurements,
         brackets=brackets, orders=orders, verdict=verdict, reasons=reasons,
@@ -315,7 +320,7 @@ def _bracket(setup, offset, direction, factors, max_periods, opts) -> BracketOut
 
 
 def _orders(measurements) -> tuple:
-    out = []
+    out: list[float | None] = []
     for a, b in zip(measurements, measurements[1:]):
         ea, eb = a.worst_amplitude_error, b.worst_amplitude_error
         if not (a.measured and b.measured) or not ea or not eb:
@@ -348,7 +353,7 @@ def _judge(setup, measurements, brackets, tolerance):
     return "confirmed", tuple(reasons), tuple(warnings), orders
 
 
-def _judge_measurements(ms, orders, tolerance, fails, reasons, warnings):
+def _judge_measurements(ms, orders, tolerance, fails, reasons, warnings) -> None:
     lost = [m for m in ms if not m.measured]
     for m in lost:
         what = {"escaped": "left the neighbourhood of the equilibrium",
@@ -382,7 +387,7 @@ def _judge_measurements(ms, orders, tolerance, fails, reasons, warnings):
                             f"{m.drift:.1e} within the measurement window (transient not settled)")
 
 
-def _judge_floquet(ms, predicted_stable, tolerance, fails, reasons):
+def _judge_floquet(ms, predicted_stable, tolerance, fails, reasons) -> None:
     """Compare the stability shooting finds (Floquet multipliers) with the prediction."""
     found = [m for m in ms if m.measured and m.floquet is not None]
     last = found[-1] if found else None
@@ -405,7 +410,7 @@ def _judge_floquet(ms, predicted_stable, tolerance, fails, reasons):
                        f"they {want}{detail}")
 
 
-def _judge_shrinking(ms, orders, fails, reasons):
+def _judge_shrinking(ms, orders, fails, reasons) -> None:
     bad = []
     for a, b, order in zip(ms, ms[1:], orders):
         ea, eb = a.worst_amplitude_error, b.worst_amplitude_error
@@ -422,7 +427,7 @@ def _judge_shrinking(ms, orders, fails, reasons):
                        "errors below 1e-5 count as measurement precision)")
 
 
-def _judge_brackets(brackets, fails, opens, reasons):
+def _judge_brackets(brackets, fails, opens, reasons) -> None:
     for b in brackets:
         if b.as_predicted:
             continue

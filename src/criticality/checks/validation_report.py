@@ -17,6 +17,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import ClassVar, Mapping
 
+from ..kinds import Classification, RunStatus, Side, coerce
 from ..outputs.escape import tex_text
 from ..renderers import render
 
@@ -81,7 +82,7 @@ class CycleMeasurement:
     offset: float
     mu: float
     approach: str
-    status: str
+    status: RunStatus
     predicted_amplitudes: Mapping[str, float]
     measured_amplitudes: Mapping[str, float]
     amplitude_errors: Mapping[str, float | None]
@@ -97,9 +98,12 @@ class CycleMeasurement:
     predicted_floquet: float | None = None
     floquet_error: float | None = None
 
+    def __post_init__(self) -> None:
+        coerce(self, status=RunStatus)
+
     @property
     def measured(self) -> bool:
-        return self.status == "measured"
+        return self.status == RunStatus.MEASURED
 
     @property
     def worst_amplitude_error(self) -> float | None:
@@ -135,11 +139,14 @@ class BracketOutcome:
     radius: float
     predicted_amplitudes: Mapping[str, float]
     inside_factor: float
-    inside: str
+    inside: RunStatus
     inside_time: float
     outside_factor: float
-    outside: str
+    outside: RunStatus
     outside_time: float
+
+    def __post_init__(self) -> None:
+        coerce(self, inside=RunStatus, outside=RunStatus)
 
     @property
     def as_predicted(self) -> bool:
@@ -199,8 +206,8 @@ class ValidationReport:
     critical_value: float
     omega: float
     l1: float
-    classification: str
-    side: str
+    classification: Classification
+    side: Side
     predicted_stable: bool
     states: tuple
     measurements: tuple
@@ -213,6 +220,9 @@ class ValidationReport:
     method: str
     rtol: float
     elapsed: float
+
+    def __post_init__(self) -> None:
+        coerce(self, classification=Classification, side=Side)
 
     @property
     def confirmed(self) -> bool:
@@ -238,7 +248,7 @@ class ValidationReport:
 _APPROACH = {"forward": "", "backward": " (reversed time)", "shooting": " (shooting)"}
 
 
-def _g(x, digits=6) -> str:
+def _g(x, digits: int = 6) -> str:
     if x is None:
         return "-"
     return f"{x:.{digits}g}"
@@ -322,7 +332,7 @@ def _tex_name(name: str) -> str:
     return f"\\{name}" if name in greek else (name if len(name) == 1 else f"\\mathit{{{name}}}")
 
 
-def _tex_num(x, digits=6) -> str:
+def _tex_num(x, digits: int = 6) -> str:
     if x is None:
         return "--"
     text = f"{x:.{digits}g}"

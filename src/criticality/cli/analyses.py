@@ -27,6 +27,8 @@ analysis needs two symbols), the equilibrium options of the main command,
 
 from __future__ import annotations
 
+from typing import Any
+
 
 from .options import flags as _flags
 from .support import Stage, equilibrium_choice, name_list, pairs, read_model, write_output
@@ -109,7 +111,7 @@ def _handler(analysis):
     return run
 
 
-def register(subparsers) -> None:
+def register(subparsers: Any) -> None:
     """Add a subcommand for every registered analysis other than ``hopf``."""
     from ..registry import analyses
 

@@ -29,6 +29,8 @@ rest.  Files are written atomically and never overwritten without
 
 from __future__ import annotations
 
+from typing import Any
+
 import os
 import sys
 
@@ -87,7 +89,7 @@ def _check_options(parser) -> None:
                         help="cap on the length of one run, in periods")
 
 
-def register(subparsers) -> None:
+def register(subparsers: Any) -> None:
     """Add the ``confirm``, ``plane`` and ``survey`` subcommands.
 
     ``subparsers`` is what ``ArgumentParser.add_subparsers()`` returned; each

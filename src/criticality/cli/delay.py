@@ -16,6 +16,8 @@ shell only.
 
 from __future__ import annotations
 
+from typing import Any
+
 import argparse
 
 from ..errors import ParameterError
@@ -44,7 +46,7 @@ def _numeric_text(num) -> str:
     return "\n".join(lines)
 
 
-def delay_output(args, result, what: str) -> int:
+def delay_output(args: argparse.Namespace, result: Any, what: str) -> int:
     """Render a delay result for the main subcommands (text, latex, fragment, json, evaluate)."""
     point = _merged(getattr(args, "point", None))
     digits = getattr(args, "digits", 20)
@@ -81,7 +83,8 @@ def _confirm(args) -> int:
     point = {k: float(v) if not isinstance(v, str) else v for k, v in _merged(args.point).items()}
     offsets = [float(x) for x in args.offsets.split(",")] if args.offsets else None
     with Stage("simulating the delay equation at three offsets", quiet=quiet):
-        report = result.validate(_floats(point), offsets=offsets)
+        report = result.validate(  # type: ignore[union-attr]  # a delay model, no guess
+            _floats(point), offsets=offsets)
     write_output(str(report) + "\n", args.output, force=args.force)
     if report.status == "confirmed":
         return 0
@@ -98,7 +101,7 @@ def _floats(point: dict) -> dict:
     return out
 
 
-def register(subparsers) -> None:
+def register(subparsers: Any) -> None:
     """Add the ``delay-confirm`` subcommand."""
     p = subparsers.add_parser(
         "delay-confirm", help="simulate a delay equation near onset and compare with the "

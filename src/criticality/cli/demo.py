@@ -10,11 +10,16 @@ there.  No mathematics here.
 
 from __future__ import annotations
 
+import argparse
 import json
 import os
 from importlib.resources import files
+from typing import TYPE_CHECKING, cast
 
 from .support import Stage, write_output
+
+if TYPE_CHECKING:
+    from ..hopf_analysis.results import HopfResult
 
 __all__ = ["demo_text", "run_demo", "DEMO_RESOURCE"]
 
@@ -25,7 +30,10 @@ _RULE = "=" * 78
 
 def demo_text() -> str:
     """The text of the bundled demo model file."""
-    return files("criticality").joinpath(*DEMO_RESOURCE).read_text(encoding="utf-8")
+    resource = files("criticality")
+    for part in DEMO_RESOURCE:
+        resource = resource.joinpath(part)
+    return resource.read_text(encoding="utf-8")
 
 
 def _heading(title: str) -> str:
@@ -57,7 +65,7 @@ def _write_files(result, text: str, folder: str, force: bool) -> list:
     return out
 
 
-def run_demo(args, *, quiet: bool = False) -> int:
+def run_demo(args: argparse.Namespace, *, quiet: bool = False) -> int:
     """Print the demo; returns the exit status."""
     from ..hopf_analysis.analysis import hopf
     from ..outputs.latex import result_to_latex
@@ -67,7 +75,7 @@ def run_demo(args, *, quiet: bool = False) -> int:
     text = demo_text()
     model = Model.from_text(text, source="criticality/data/demo.toml")
     with Stage("Hopf analysis of the demo model", quiet=quiet):
-        result = hopf(model)
+        result = cast("HopfResult", hopf(model))  # the bundled demo model is an ordinary flow
     digits = args.digits
     parts = [_heading("criticality demo: an invented greenhouse heating loop"),
              "The bundled model file (criticality/data/demo.toml):\n\n", text,

@@ -6,6 +6,8 @@ Pipeline place: **command line** -> Hopf analysis ->
 
 from __future__ import annotations
 
+from typing import Any
+
 import argparse
 import sys
 
@@ -26,7 +28,7 @@ def _export(args) -> int:
     return 0
 
 
-def register(subparsers) -> None:
+def register(subparsers: Any) -> None:
     """Add the ``export`` subcommand."""
     from .options import add_analysis_options
 

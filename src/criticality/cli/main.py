@@ -45,6 +45,8 @@ interrupted.  The codes 3 to 10 are the ``exit_code`` of the error classes in
 
 from __future__ import annotations
 
+from typing import Sequence
+
 import argparse
 import sys
 import traceback
@@ -251,7 +253,7 @@ def _report_error(exc: BaseException, debug: bool) -> None:
     print(f"criticality: error: {message}", file=sys.stderr)
 
 
-def main(argv=None) -> int:
+def main(argv: Sequence[str] | None = None) -> int:
     """Run the command line with ``argv`` (default: ``sys.argv[1:]``); returns
     the exit status (see the module docstring)."""
     parser = build_parser()

@@ -18,6 +18,8 @@ Both take ``--scheduler ADDRESS`` to run on a dask cluster.
 
 from __future__ import annotations
 
+from typing import Any
+
 import argparse
 import sys
 
@@ -47,7 +49,7 @@ def _range(text: str):
     return name.strip(), low, high, count
 
 
-def register(subparsers) -> None:
+def register(subparsers: Any) -> None:
     """Add the ``curve`` and ``batch`` subcommands."""
     from .support import pairs
 

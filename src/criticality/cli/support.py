@@ -31,7 +31,9 @@ def split_top_level(text: str) -> list:
     >>> split_top_level("x=0, y=sqrt(b*(r-1)), z=f(1,2)")
     ['x=0', 'y=sqrt(b*(r-1))', 'z=f(1,2)']
     """
-    parts, depth, current = [], 0, []
+    parts: list[str] = []
+    depth = 0
+    current: list[str] = []
     for ch in text:
         if ch == "," and depth == 0:
             parts.append("".join(current))

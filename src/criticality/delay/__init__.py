@@ -7,13 +7,15 @@ Pipeline place: a room of its own beside ``hopf_analysis``: model (with
 :func:`hopf_delay`.
 """
 
+from typing import Any
+
 from .analysis import hopf_delay
 from .results import DelayHopfResult
 
 __all__ = ["hopf_delay", "DelayHopfResult", "validate_delay"]
 
 
-def __getattr__(name):
+def __getattr__(name: str) -> Any:
     if name == "validate_delay":
         from .simulate import validate_delay
         return validate_delay

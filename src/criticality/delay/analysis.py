@@ -8,7 +8,7 @@ hands a model with delayed states here.
 
 from __future__ import annotations
 
-from typing import Mapping
+from typing import TYPE_CHECKING, Any, Mapping, Sequence
 
 import sympy
 
@@ -21,15 +21,22 @@ from ..budget import stage
 from ..budget import time_limit as time_limit_
 from ..errors import ClosedFormUnavailableError, NoHopfPointError, ParameterError
 from ..hopf_analysis.results import CyclePrediction
+from ..kinds import Classification, Side
+
+if TYPE_CHECKING:
+    from .numeric import NumericDelayHopf
+    from ..local.prepare import EquilibriumSpec
+    from ..model.core import Model
 
 __all__ = ["hopf_delay"]
 
 
-def hopf_delay(model, parameter: str | None = None, *, equilibrium=None,
-               values: Mapping | None = None, branch: int | None = None,
-               assume: Mapping | None = None, time_limit: float | None = None,
-               order: int = 3, eliminate=None, guess=None, backend: str = "sympy",
-               digits: int = 30, **_ignored) -> DelayHopfResult:
+def hopf_delay(model: Model, parameter: str | None = None, *, equilibrium: EquilibriumSpec = None,
+               values: Mapping[str, object] | None = None, branch: int | None = None,
+               assume: Mapping[str, str] | None = None, time_limit: float | None = None,
+               order: int = 3, eliminate: Sequence[str] | None = None,
+               guess: Mapping[str, object] | None = None, backend: str = "sympy", digits: int = 30,
+               **_ignored: Any) -> DelayHopfResult | NumericDelayHopf:
     """Hopf analysis of a retarded equation with respect to ``parameter``.
 
     Parameters
@@ -239,28 +246,28 @@ def _assemble(model, name, mu, choice, forms, crossing, data, forward, back):
         cycle=cycle, routes_agree=agree, notes=tuple(model.notes), compact=compact)
 
 
-def mu_pos_of(mu, forward):
+def mu_pos_of(mu: sympy.Symbol, forward: Mapping) -> sympy.Symbol:
     return forward.get(mu, mu)
 
 
 def _verdict(sign, l1, back):
     if sign == -1:
-        return "supercritical", "supercritical for all admissible parameters (l1 < 0)", True
+        return Classification.SUPERCRITICAL, "supercritical for all admissible parameters (l1 < 0)", True
     if sign == 1:
-        return "subcritical", "subcritical for all admissible parameters (l1 > 0)", False
+        return Classification.SUBCRITICAL, "subcritical for all admissible parameters (l1 > 0)", False
     if sign == 0:
-        return "degenerate", "l1 = 0 identically: a degenerate Hopf point", False
+        return Classification.DEGENERATE, "l1 = 0 identically: a degenerate Hopf point", False
     condition = sympy.StrictLessThan(l1.xreplace(back), 0)
-    return "depends", f"supercritical where {condition}, subcritical where it is reversed", condition
+    return Classification.DEPENDS, f"supercritical where {condition}, subcritical where it is reversed", condition
 
 
 def _cycle(model, mu_pos, mu_c, omega, data, crossing, beta1, slope_im, c1_re, c1_im, sign, back):
     degenerate = sign == 0
     k_radius = sympy.nan if degenerate else _tidy(-beta1 / c1_re)
     side_sign = None if degenerate else decide_sign(k_radius)
-    side = {1: "above", -1: "below"}.get(side_sign, "undecided")
+    side = {1: Side.ABOVE, -1: Side.BELOW}.get(side_sign, Side.UNDECIDED)
     if degenerate:
-        side = "undecided"
+        side = Side.UNDECIDED
     offset = mu_pos - mu_c
     amplitudes, coefficients = {}, {}
     qq = _at(crossing, data.qq)
@@ -271,7 +278,7 @@ def _cycle(model, mu_pos, mu_c, omega, data, crossing, beta1, slope_im, c1_re, c
     slope = sympy.nan if degenerate else _tidy(slope_im - beta1 * c1_im / c1_re)
     stable = True if sign == -1 and crossing.mode == "delay" else (False if sign == 1 else None)
     return CyclePrediction(
-        side=side, side_condition=None if side != "undecided" or degenerate else
+        side=side, side_condition=None if side != Side.UNDECIDED or degenerate else
         sympy.StrictGreaterThan(k_radius.xreplace(back), 0),
         stable=stable, radius_squared=(k_radius * offset).xreplace(back),
         amplitudes=amplitudes, amplitude_coefficients=coefficients,

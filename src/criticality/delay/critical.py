@@ -32,12 +32,19 @@ of ``omega`` is substituted.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Sequence
+
 from dataclasses import dataclass
 
 import sympy
 
 from .cx import Cx
 from ..errors import ClosedFormUnavailableError, NoHopfPointError
+
+if TYPE_CHECKING:
+    from ..algebra.field import Element
+    from .linearize import DelayForms
+    from ..model.core import Model
 
 __all__ = ["Crossing", "quasi_polynomial_parts", "delay_crossing", "parameter_crossing",
            "positive_symbols", "decide_sign", "LAMBDA", "S_OMEGA2", "J_INDEX"]
@@ -84,7 +91,7 @@ class Crossing:
     to_positive: dict
     branch_count: int = 1
 
-    def at_critical(self, expr) -> sympy.Expr:
+    def at_critical(self, expr: sympy.Expr) -> sympy.Expr:
         """An internal expression (in w, T, positive symbols) at the first crossing,
         in the model's symbols."""
         value = sympy.sympify(expr).xreplace({self.T: self.delay_value_pos}).xreplace(
@@ -92,11 +99,11 @@ class Crossing:
         return value.xreplace(self.to_model)
 
     @property
-    def delay_value_pos(self):
+    def delay_value_pos(self) -> sympy.Expr:
         return self.delay_value.xreplace(self.to_positive)
 
 
-def positive_symbols(model) -> tuple[dict, dict]:
+def positive_symbols(model: Model) -> tuple[dict, dict]:
     """Maps from the model's real symbols to symbols carrying their declared sign, and back."""
     forward, back = {}, {}
     for p in model.parameters:
@@ -108,7 +115,7 @@ def positive_symbols(model) -> tuple[dict, dict]:
     return forward, back
 
 
-def decide_sign(expr) -> int | None:
+def decide_sign(expr: sympy.Expr) -> int | None:
     """+1, -1 or 0 where sympy's assumptions settle the sign of ``expr`` factor by
     factor (symbols carry their declared signs), else None."""
     expr = sympy.sympify(expr)
@@ -150,7 +157,7 @@ def _numeric_sign(expr, digits: int = 60) -> int | None:
     return 1 if re > 0 else -1
 
 
-def quasi_polynomial_parts(forms) -> tuple[sympy.Expr, sympy.Expr]:
+def quasi_polynomial_parts(forms: DelayForms) -> tuple[sympy.Expr, sympy.Expr]:
     """``(P, Q)`` with ``det Delta(lambda) = P(lambda) + Q(lambda) exp(-lambda tau)`` for a
     model with one delay whose matrix ``A_1`` has rank one."""
     if len(forms.delays) != 1:
@@ -183,7 +190,7 @@ def _at_iw(poly, w) -> Cx:
     return Cx(*value.as_real_imag())
 
 
-def frequency_polynomial(P, Q, w):
+def frequency_polynomial(P: sympy.Expr, Q: sympy.Expr, w: sympy.Symbol) -> sympy.Expr:
     """``F(s)`` with ``F(w^2) = |P(i w)|^2 - |Q(i w)|^2`` (w real)."""
     F = sympy.expand(_at_iw(P, w).abs2() - _at_iw(Q, w).abs2())
     poly = sympy.Poly(F, w)
@@ -231,7 +238,7 @@ def _theta(c, s):
     return sympy.Piecewise((base, s >= 0), (2 * sympy.pi - base, True))
 
 
-def delay_crossing(model, forms, tau, branch: int = 0) -> Crossing:
+def delay_crossing(model: Model, forms: DelayForms, tau: str, branch: int = 0) -> Crossing:
     """The crossings with the delay ``tau`` as bifurcation parameter."""
     forward, back = positive_symbols(model)
     pos = forms.substitute(forward)
@@ -271,7 +278,8 @@ def delay_crossing(model, forms, tau, branch: int = 0) -> Crossing:
                     tau0.xreplace(back), back, forward, len(roots))
 
 
-def parameter_crossing(model, forms, mu, branch: int = 0) -> Crossing:
+def parameter_crossing(model: Model, forms: DelayForms, mu: sympy.Symbol,
+                       branch: int = 0) -> Crossing:
     """The crossings with a non-delay parameter ``mu`` at fixed delay(s)."""
     forward, back = positive_symbols(model)
     pos = forms.substitute(forward)
@@ -324,11 +332,11 @@ def parameter_crossing(model, forms, mu, branch: int = 0) -> Crossing:
                     None, (), w, T, E, mu_w, tau.xreplace(back), back, forward, len(candidates))
 
 
-def derivative_in_lambda(poly, w) -> Cx:
+def derivative_in_lambda(poly: Sequence[Element], w: sympy.Symbol) -> Cx:
     return _at_iw(sympy.diff(poly, LAMBDA), w)
 
 
-def at_iw(poly, w) -> Cx:
+def at_iw(poly: Sequence[Element], w: sympy.Symbol) -> Cx:
     """The value of a polynomial in lambda at i w (w real), as a Cx."""
     return _at_iw(poly, w)
 

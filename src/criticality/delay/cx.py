@@ -14,6 +14,7 @@ part (every symbol is real).
 from __future__ import annotations
 
 from fractions import Fraction
+from typing import Any, Callable, Mapping, Sequence
 
 import sympy
 
@@ -39,26 +40,26 @@ class Cx:
 
     __slots__ = ("re", "im")
 
-    def __init__(self, re, im=0):
+    def __init__(self, re: Any, im: Any = 0) -> None:
         self.re, self.im = _c(re), _c(im)
 
-    def __add__(self, o):
+    def __add__(self, o: object) -> "Cx":
         o = cx(o)
         return Cx(self.re + o.re, self.im + o.im)
 
     __radd__ = __add__
 
-    def __sub__(self, o):
+    def __sub__(self, o: object) -> "Cx":
         o = cx(o)
         return Cx(self.re - o.re, self.im - o.im)
 
-    def __rsub__(self, o):
+    def __rsub__(self, o: object) -> "Cx":
         return cx(o) - self
 
-    def __neg__(self):
+    def __neg__(self) -> "Cx":
         return Cx(-self.re, -self.im)
 
-    def __mul__(self, o):
+    def __mul__(self, o: object) -> "Cx":
         o = cx(o)
         if _zero(o.im):
             return Cx(self.re * o.re, self.im * o.re)
@@ -68,7 +69,7 @@ class Cx:
 
     __rmul__ = __mul__
 
-    def __truediv__(self, o):
+    def __truediv__(self, o: object) -> "Cx":
         o = cx(o)
         if _zero(o.im):
             return Cx(_div(self.re, o.re), _div(self.im, o.re))
@@ -76,19 +77,19 @@ class Cx:
         return Cx(_div(self.re * o.re + self.im * o.im, norm),
                   _div(self.im * o.re - self.re * o.im, norm))
 
-    def __rtruediv__(self, o):
+    def __rtruediv__(self, o: object) -> "Cx":
         return cx(o) / self
 
     def conj(self) -> "Cx":
         return Cx(self.re, -self.im)
 
-    def abs2(self):
+    def abs2(self) -> Any:
         return _c(self.re ** 2 + self.im ** 2)
 
     def is_zero(self) -> bool:
         return _zero(self.re) and _zero(self.im)
 
-    def subs(self, mapping) -> "Cx":
+    def subs(self, mapping: Mapping) -> "Cx":
         return Cx(self.re.xreplace(mapping) if mapping else self.re,
                   self.im.xreplace(mapping) if mapping else self.im)
 
@@ -96,11 +97,11 @@ class Cx:
         """The sympy value re + I*im (sympy components)."""
         return self.re + sympy.I * self.im
 
-    def map(self, fn) -> "Cx":
+    def map(self, fn: Callable[[Any], Any]) -> "Cx":
         """Both components converted by ``fn`` (e.g. a field's ``to_sympy``)."""
         return Cx(fn(self.re), fn(self.im))
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return f"Cx({self.re}, {self.im})"
 
 
@@ -115,7 +116,7 @@ def _zero(x) -> bool:
     return x == 0 if isinstance(x, (int, Fraction, sympy.Basic)) else not x
 
 
-def cx(value) -> Cx:
+def cx(value: object) -> Cx:
     """A Cx from a Cx, a real sympy expression or a number."""
     return value if isinstance(value, Cx) else Cx(value, 0)
 
@@ -123,7 +124,7 @@ def cx(value) -> Cx:
 ZERO, ONE, I_ = Cx(0), Cx(1), Cx(0, 1)
 
 
-def dot(a, b) -> Cx:
+def dot(a: Sequence[Cx], b: Sequence[Cx]) -> Cx:
     """sum a_i b_i (no conjugation)."""
     total = ZERO
     for x, y in zip(a, b):
@@ -132,7 +133,7 @@ def dot(a, b) -> Cx:
     return total
 
 
-def mat_vec(M, v) -> list:
+def mat_vec(M: Sequence[Sequence[Cx]], v: Sequence[Cx]) -> list:
     return [dot(row, v) for row in M]
 
 
@@ -178,7 +179,7 @@ def _echelon(M):
     return rows, pivots
 
 
-def solve(M, b) -> list:
+def solve(M: Sequence[Sequence[Cx]], b: Sequence[Cx]) -> list:
     """The solution of M x = b for a nonsingular square M (ValueError if singular)."""
     n = len(M)
     rows, pivots = _echelon([list(M[i]) + [cx(b[i])] for i in range(n)])
@@ -187,7 +188,7 @@ def solve(M, b) -> list:
     return [rows[i][n] for i in range(n)]
 
 
-def kernel(M) -> list:
+def kernel(M: Sequence[Sequence[Cx]]) -> list:
     """One nonzero vector of the kernel of M (ValueError if M is nonsingular)."""
     n = len(M[0])
     rows, pivots = _echelon(M)

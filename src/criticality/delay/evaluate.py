@@ -16,13 +16,18 @@ computes, independently of the symbolic route:
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Mapping
+from typing import Any, Mapping
 
 import mpmath
 import sympy
 
 from ..errors import ParameterError
+from ..kinds import Classification, coerce
 from ..model.expressions import convert_sympy, parse_expression
+
+#: a DelayHopfResult, typed loosely: the result imports this module at run time, and a
+#: type-only import back would make the two modules import each other
+ResultLike = Any
 
 __all__ = ["NumericDelayResult", "evaluate_result"]
 
@@ -32,24 +37,27 @@ class NumericDelayResult:
     """A :class:`~criticality.delay.results.DelayHopfResult` at one parameter point
     (mpmath numbers with ``digits`` digits)."""
 
-    values: Mapping[str, object]
+    values: Mapping[str, Any]
     digits: int
-    critical_value: object
-    omega: object
-    period: object
-    transversality: object
-    c1: object
-    l1: object
-    classification: str
-    amplitude_coefficients: Mapping[str, object]
-    residual: object
-    numeric_c1: object
-    numeric_slope: object
+    critical_value: Any
+    omega: Any
+    period: Any
+    transversality: Any
+    c1: Any
+    l1: Any
+    classification: Classification
+    amplitude_coefficients: Mapping[str, Any]
+    residual: Any
+    numeric_c1: Any
+    numeric_slope: Any
 
-    def __getitem__(self, key):
+    def __post_init__(self) -> None:
+        coerce(self, classification=Classification)
+
+    def __getitem__(self, key: str) -> Any:
         return getattr(self, key)
 
-    def amplitude(self, offset) -> dict:
+    def amplitude(self, offset: float) -> dict:
         """Predicted amplitude of each state at ``mu = mu_c + offset`` (NaN on the
         side without a cycle)."""
         with mpmath.workdps(self.digits):
@@ -94,7 +102,8 @@ def _mp(expr, sub, digits):
     return mpmath.mpc(str(re), str(im))
 
 
-def evaluate_result(result, values: Mapping, digits: int = 30) -> NumericDelayResult:
+def evaluate_result(result: ResultLike, values: Mapping,
+                    digits: int = 30) -> NumericDelayResult:
     sub = _point(result, values)
     with mpmath.workdps(digits + 10):
         mu_c = _mp(result.critical_value, sub, digits)

@@ -20,6 +20,8 @@ exp(-lambda tau_k)``; its determinant is the characteristic quasi-polynomial.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any, Callable, Sequence
+
 from dataclasses import dataclass
 from itertools import combinations_with_replacement
 
@@ -27,6 +29,12 @@ import sympy
 
 from .cx import ONE, ZERO, Cx, cx
 from ..model.delayed import current_form, delayed_terms
+
+if TYPE_CHECKING:
+    from ..local.equilibria import EquilibriumChoice
+    from ..algebra.field import Element
+    from ..local.prepare import EquilibriumSpec
+    from ..model.core import Model
 
 __all__ = ["DelayForms", "delay_forms", "equilibrium_point"]
 
@@ -64,12 +72,12 @@ class DelayForms:
     def n(self) -> int:
         return len(self.states)
 
-    def extend(self, v, factors) -> list:
+    def extend(self, v: Sequence, factors: Any) -> list:
         """The extended vector of ``v exp(lambda theta)``, with ``factors[k-1] =
         exp(-lambda tau_k)`` (Cx values)."""
         return [v[i] if k == 0 else v[i] * factors[k - 1] for i, k in self.slots]
 
-    def delta(self, lam, factors) -> list:
+    def delta(self, lam: Element, factors: Any) -> list:
         """``Delta(lambda)`` as rows of Cx, with ``factors[k-1] = exp(-lambda tau_k)``."""
         n = self.n
         rows = []
@@ -85,7 +93,7 @@ class DelayForms:
             rows.append(row)
         return rows
 
-    def delta_prime(self, factors, delays=None) -> list:
+    def delta_prime(self, factors: Any, delays: Sequence | None = None) -> list:
         """``d Delta / d lambda = I + sum_k tau_k A_k exp(-lambda tau_k)``."""
         delays = self.delays if delays is None else delays
         rows = []
@@ -101,7 +109,7 @@ class DelayForms:
             rows.append(row)
         return rows
 
-    def B(self, u, v) -> list:
+    def B(self, u: Sequence, v: Sequence) -> list:
         """The symmetric second derivative on extended vectors (Cx lists)."""
         out = []
         for table in self.second:
@@ -112,7 +120,7 @@ class DelayForms:
             out.append(total)
         return out
 
-    def C(self, u, v, w) -> list:
+    def C(self, u: Sequence, v: Sequence, w: sympy.Symbol) -> list:
         """The symmetric third derivative on extended vectors (Cx lists)."""
         out = []
         for table in self.third:
@@ -122,7 +130,7 @@ class DelayForms:
             out.append(total)
         return out
 
-    def substitute(self, mapping) -> "DelayForms":
+    def substitute(self, mapping: dict) -> "DelayForms":
         """A copy with ``mapping`` (symbol -> expression) substituted everywhere."""
         def s(e):
             return sympy.sympify(e).xreplace(mapping)
@@ -133,7 +141,7 @@ class DelayForms:
                           tuple({k: sympy.cancel(s(v)) for k, v in t.items()} for t in self.third))
 
 
-    def converted(self, conv) -> "DelayForms":
+    def converted(self, conv: Callable) -> "DelayForms":
         """A copy whose coefficients are converted by ``conv`` (sympy -> field
         element); the matrices become read-only grids indexed ``[i, j]``."""
         grids = tuple(_Grid([[conv(m[i, j]) for j in range(m.cols)] for i in range(m.rows)])
@@ -149,7 +157,7 @@ class _Grid:
 
     __slots__ = ("rows_",)
 
-    def __init__(self, rows):
+    def __init__(self, rows) -> None:
         self.rows_ = rows
 
     def __getitem__(self, key):
@@ -170,7 +178,7 @@ def _is_zero(a) -> bool:
     return a == 0 if isinstance(a, (int, sympy.Basic)) else not a
 
 
-def equilibrium_point(model, equilibrium=None):
+def equilibrium_point(model: Model, equilibrium: EquilibriumSpec = None) -> EquilibriumChoice:
     """The equilibrium of a retarded model (where every delayed value equals
     the current one): given as a mapping, the model's own hint, or solved from
     the equations with delays set to zero.
@@ -191,7 +199,7 @@ def equilibrium_point(model, equilibrium=None):
     return select_equilibrium(model, candidates, equilibrium, ctx)
 
 
-def delay_forms(model, point, *, order: int = 3) -> DelayForms:
+def delay_forms(model: Model, point: Sequence, *, order: int = 3) -> DelayForms:
     """The linear part and Taylor forms up to ``order`` at the equilibrium ``point``."""
     states = tuple(model.state_symbols)
     terms = sorted(delayed_terms(list(model.equations)), key=sympy.default_sort_key)

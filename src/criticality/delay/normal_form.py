@@ -37,6 +37,8 @@ Both return ``c1`` for the eigenvector ``q`` as computed; the result divides by
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 from dataclasses import dataclass
 
 from fractions import Fraction
@@ -44,6 +46,10 @@ from fractions import Fraction
 import sympy
 
 from .cx import ONE, Cx, dot, kernel, mat_vec, solve
+
+if TYPE_CHECKING:
+    from .critical import Crossing
+    from .linearize import DelayForms
 
 __all__ = ["CenterData", "center_data"]
 
@@ -94,7 +100,7 @@ def _sympy_of(x):
     return x if isinstance(x, sympy.Basic) else x.field.to_sympy(x)
 
 
-def center_data(forms, crossing, mu_pos) -> CenterData:
+def center_data(forms: DelayForms, crossing: Crossing, mu_pos: sympy.Symbol) -> CenterData:
     """q, p, the pairing, c1 by both routes and d lambda/d mu at the crossing.
 
     ``forms`` are in positive-assumption symbols with ``mu`` still free;

@@ -14,13 +14,18 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from itertools import permutations
-from typing import Mapping
+from typing import TYPE_CHECKING, Any, Mapping, Sequence
 
 import mpmath
 import sympy
 
 from ..errors import NoHopfPointError, ParameterError
+from ..kinds import Classification, coerce
 from ..model.delayed import current_form
+
+if TYPE_CHECKING:
+    from ..algebra.field import Element
+    from ..model.core import Model
 
 __all__ = ["NumericDelayHopf", "hopf_delay_numeric", "delta_matrix", "null_vector",
            "projection_c1"]
@@ -33,24 +38,27 @@ class NumericDelayHopf:
     The conventions are those of :class:`~criticality.delay.results.DelayHopfResult`
     (c1 for ``conj(q)^T q = 1``, ``l1 = Re(c1)/omega``)."""
 
-    model: object
+    model: Any
     parameter: str
     mode: str
-    values: Mapping[str, object]
+    values: Mapping[str, Any]
     digits: int
-    equilibrium: Mapping[str, object]
-    critical_value: object
-    omega: object
-    period: object
-    c1: object
-    l1: object
-    transversality: object
-    eigenvalue_derivative: object
-    classification: str
-    amplitude_coefficients: Mapping[str, object]
-    residual: object
+    equilibrium: Mapping[str, Any]
+    critical_value: Any
+    omega: Any
+    period: Any
+    c1: Any
+    l1: Any
+    transversality: Any
+    eigenvalue_derivative: Any
+    classification: Classification
+    amplitude_coefficients: Mapping[str, Any]
+    residual: Any
     kind: str = "hopf_delay_numeric"
     status: str = "numeric"
+
+    def __post_init__(self) -> None:
+        coerce(self, classification=Classification)
 
     def summary(self) -> str:
         lines = [f"Hopf point of a retarded equation in {self.parameter!r}, located numerically "
@@ -67,7 +75,7 @@ class NumericDelayHopf:
                  "it and defer to applicable codes and licensed engineering practice"]
         return "\n".join(lines)
 
-    def to_dict(self, **_ignored) -> dict:
+    def to_dict(self, **_ignored: Any) -> dict:
         """The result as a JSON document in the shared envelope (numbers as
         decimal strings with the stated digits)."""
         from ..outputs.envelope import envelope
@@ -91,7 +99,7 @@ class NumericDelayHopf:
                                      "l1 < 0 supercritical, l1 > 0 subcritical"],
                         cautions=[_NUMERIC_CAUTION])
 
-    def to_json(self, **_ignored) -> str:
+    def to_json(self, **_ignored: Any) -> str:
         import json
         return json.dumps(self.to_dict(), indent=2)
 
@@ -114,7 +122,7 @@ class NumericDelayHopf:
         return "\n".join([r"\documentclass{article}", r"\usepackage{amsmath,amssymb}",
                           r"\begin{document}", self.to_latex(), r"\end{document}", ""])
 
-    def __str__(self):
+    def __str__(self) -> str:
         return self.summary()
 
 
@@ -124,7 +132,7 @@ _NUMERIC_CAUTION = ("The analysis is local: valid near the critical value and ne
                     "engineering practice.")
 
 
-def delta_matrix(mats, delays, lam):
+def delta_matrix(mats: Any, delays: Sequence, lam: Element) -> Any:
     """``Delta(lambda) = lambda I - A_0 - sum_k A_k exp(-lambda tau_k)`` (mpmath)."""
     n = mats[0].rows
     D = lam * mpmath.eye(n) - mats[0]
@@ -133,7 +141,7 @@ def delta_matrix(mats, delays, lam):
     return D
 
 
-def null_vector(M):
+def null_vector(M: Any) -> Any:
     """A kernel vector of a numerically singular matrix (one entry fixed to 1)."""
     n = M.rows
     if n == 1:
@@ -161,7 +169,8 @@ def null_vector(M):
     return best[1]
 
 
-def projection_c1(mats, delays, slots, second, third, omega):
+def projection_c1(mats: Any, delays: Sequence, slots: Any, second: Any, third: Any,
+                  omega: Any) -> tuple:
     """c1 (unit normalisation) by the projection form with numeric data.
 
     ``second``/``third`` are per-equation dicts of mpmath derivative values on
@@ -202,7 +211,7 @@ def projection_c1(mats, delays, slots, second, third, omega):
 class _Problem:
     """The model's forms as mpmath functions of (x, mu)."""
 
-    def __init__(self, model, mu, values):
+    def __init__(self, model, mu, values) -> None:
         from .linearize import delay_forms
         fixed = {model.symbols[k]: v for k, v in values.items()}
         self.model, self.mu = model, mu
@@ -235,8 +244,8 @@ class _Problem:
         return mpmath.det(delta_matrix(mats, delays, lam))
 
 
-def hopf_delay_numeric(model, parameter: str, guess: Mapping, *, values: Mapping | None = None,
-                       digits: int = 30) -> NumericDelayHopf:
+def hopf_delay_numeric(model: Model, parameter: str, guess: Mapping, *,
+                       values: Mapping | None = None, digits: int = 30) -> NumericDelayHopf:
     """Locate a Hopf point of a retarded equation from ``guess`` (every state and
     the parameter; optionally ``omega``) with every other parameter fixed by
     ``values`` or the model's defaults, and compute c1, l1 and the crossing speed.
@@ -275,8 +284,8 @@ def hopf_delay_numeric(model, parameter: str, guess: Mapping, *, values: Mapping
         slope = _slope(prob, x, mu_c, omega, n)
         re_c1 = mpmath.re(c1)
         l1 = re_c1 / omega
-        classification = ("supercritical" if l1 < 0 else "subcritical") if abs(l1) > \
-            mpmath.mpf(10) ** (-digits // 2) else "degenerate"
+        classification = (Classification.SUPERCRITICAL if l1 < 0 else Classification.SUBCRITICAL) \
+            if abs(l1) > mpmath.mpf(10) ** (-digits // 2) else Classification.DEGENERATE
         coefficients = {s: -4 * mpmath.re(slope) * abs(q[i]) ** 2 / (qq * re_c1)
                         for i, s in enumerate(model.states)}
         residual = abs(prob.chi(x, mu_c, mpmath.mpc(0, omega)))

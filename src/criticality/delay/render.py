@@ -11,6 +11,8 @@ for the result kind ``hopf_delay`` (:mod:`criticality.renderers`).
 
 from __future__ import annotations
 
+from typing import Any, Mapping
+
 import json
 
 import sympy
@@ -22,6 +24,10 @@ from ..outputs.notebook import html_table, markdown_table
 from ..renderers import register_renderer
 from ..model.expressions import format_expression, parse_expression
 from ..outputs.latex_expr import latex_name
+
+#: a DelayHopfResult, typed loosely: the result imports this module at run time, and a
+#: type-only import back would make the two modules import each other
+ResultLike = Any
 
 __all__ = ["summary_text", "latex_section", "latex_document", "latex_inline", "to_json",
            "result_to_dict", "read_delay_json", "SCHEMA", "SCHEMA_VERSION"]
@@ -47,7 +53,7 @@ def _text(expr) -> str:
         return sympy.sstr(expr)
 
 
-def summary_text(r) -> str:
+def summary_text(r: ResultLike) -> str:
     mode = ("the delay is the bifurcation parameter" if r.mode == "delay"
             else "the delays are fixed")
     lines = [f"Hopf bifurcation of a retarded equation in {r.parameter!r} ({mode})",
@@ -101,19 +107,19 @@ def _latex(expr) -> str:
     return sympy.latex(expr, symbol_names=names)
 
 
-def _sub(name: str, index) -> str:
+def _sub(name: str, index: object) -> str:
     """``name`` with a subscript ``index``; a name that already carries one
     (``\\tau_{1}``) is braced first, so that LaTeX sees one subscript."""
     return f"{{{name}}}_{{{index}}}" if "_" in name else f"{name}_{index}"
 
 
-def latex_inline(r) -> str:
+def latex_inline(r: ResultLike) -> str:
     p = latex_name(r.parameter)
     return (rf"{_sub(p, 0)} = {_latex(r.critical_value)},\ \omega = {_latex(r.omega)},\ "
             rf"\ell_1 = {_latex(r.l1)}\ (\text{{{r.classification}}})")
 
 
-def latex_section(r) -> str:
+def latex_section(r: ResultLike) -> str:
     p = latex_name(r.parameter)
     lam = sympy.Symbol("lambda")
     out = [r"\section*{Hopf bifurcation of a retarded equation}",
@@ -147,7 +153,7 @@ def latex_section(r) -> str:
 
 
 
-def latex_document(r) -> str:
+def latex_document(r: ResultLike) -> str:
     return "\n".join([r"\documentclass{article}", r"\usepackage{amsmath,amssymb}",
                       r"\begin{document}", latex_section(r), r"\end{document}", ""])
 
@@ -158,7 +164,7 @@ def _json_value(expr):
     return _text(expr)
 
 
-def result_to_dict(r, *, point=None, digits: int = 30) -> dict:
+def result_to_dict(r: ResultLike, *, point: Mapping | None = None, digits: int = 30) -> dict:
     body = {
         "kind": r.kind,
         "model": {"states": list(r.model.states),
@@ -199,7 +205,7 @@ def result_to_dict(r, *, point=None, digits: int = 30) -> dict:
                     cautions=(_CAUTION,), tail=tail)
 
 
-def to_json(r, *, point=None, digits: int = 30) -> str:
+def to_json(r: ResultLike, *, point: Mapping | None = None, digits: int = 30) -> str:
     return json.dumps(result_to_dict(r, point=point, digits=digits), indent=2)
 
 

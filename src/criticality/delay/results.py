@@ -7,12 +7,18 @@ Pipeline place: normal form -> **result** -> outputs (text, LaTeX, JSON),
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import ClassVar, Mapping
+from typing import TYPE_CHECKING, Any, ClassVar, Mapping
 
 import sympy
 
 from ..hopf_analysis.results import CyclePrediction
 from ..renderers import render
+from ..kinds import Classification, coerce
+
+if TYPE_CHECKING:
+    from ..model.core import Model
+    from .evaluate import NumericDelayResult
+    from .simulate import DelayValidation
 
 __all__ = ["DelayConventions", "DELAY_CONVENTIONS", "DelayHopfResult"]
 
@@ -114,7 +120,7 @@ class DelayHopfResult:
         and ``tau_0`` (the closed forms above), which read far shorter.
     """
 
-    model: object
+    model: Model
     parameter: str
     mode: str
     delays: tuple
@@ -129,15 +135,15 @@ class DelayHopfResult:
     critical_value: sympy.Expr
     critical_sequence: sympy.Expr
     crossing_indicator: sympy.Expr
-    crossing_direction: object
+    crossing_direction: Any
     transversality: sympy.Expr
     eigenvalue_derivative: sympy.Expr
     c1: sympy.Expr
     l1: sympy.Expr
-    l1_sequence: object
-    classification: str
+    l1_sequence: Any
+    classification: Classification
     verdict: str
-    criticality_condition: object
+    criticality_condition: Any
     conditions: tuple
     stability_conditions: tuple
     eigenvector_q: tuple
@@ -152,6 +158,9 @@ class DelayHopfResult:
     result_kind: ClassVar[str] = "hopf_delay"
     status: str = "closed form"
     _details: object = field(default=None, repr=False, compare=False)
+
+    def __post_init__(self) -> None:
+        coerce(self, classification=Classification)
 
     @property
     def parameter_symbol(self) -> sympy.Symbol:
@@ -176,7 +185,7 @@ class DelayHopfResult:
         return tuple(sympy.simplify(self.critical_sequence.xreplace({J_INDEX: j}))
                      for j in range(count))
 
-    def evaluate(self, values: Mapping | None = None, *, digits: int = 30) -> dict:
+    def evaluate(self, values: Mapping | None = None, *, digits: int = 30) -> NumericDelayResult:
         """Every quantity at a parameter point, to ``digits`` digits (mpmath), with
         an independent check: the residual of the quasi-polynomial at ``i omega``.
 
@@ -208,7 +217,7 @@ class DelayHopfResult:
         """The JSON document as a dictionary."""
         return render(self, "dict", point=point, digits=digits)
 
-    def validate(self, values: Mapping | None = None, **options):
+    def validate(self, values: Mapping | None = None, **options: Any) -> DelayValidation:
         """Simulate the delay equation near onset (:func:`criticality.delay.validate_delay`)."""
         from .simulate import validate_delay
         return validate_delay(self, values or {}, **options)
@@ -229,10 +238,10 @@ class DelayHopfResult:
     def _sympystr(self, printer=None):
         return self.summary()
 
-    def __str__(self):
+    def __str__(self) -> str:
         return self.summary()
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return (f"DelayHopfResult(parameter={self.parameter!r}, mode={self.mode!r}, "
                 f"critical_value={self.critical_value}, omega={self.omega}, l1={self.l1}, "
                 f"classification={self.classification!r})")

@@ -22,12 +22,16 @@ from __future__ import annotations
 import cmath
 import math
 from dataclasses import dataclass
-from typing import Mapping
+from typing import Any, Mapping, Sequence
 
 import sympy
 
 from ..errors import ParameterError, ValidationRunError
 from ..model.delayed import delayed_terms
+
+#: a DelayHopfResult, typed loosely: the result imports this module at run time, and a
+#: type-only import back would make the two modules import each other
+ResultLike = Any
 
 __all__ = ["DelaySimulation", "DelayValidation", "simulate_delay", "validate_delay"]
 
@@ -77,7 +81,7 @@ class DelayValidation:
 class _Rhs:
     """f(x(t), x(t - tau_k)) as plain floats for one parameter value."""
 
-    def __init__(self, result, values: Mapping, mu_value: float):
+    def __init__(self, result, values: Mapping, mu_value: float) -> None:
         model = result.model
         sub = {model.symbols[k]: sympy.Float(v, 30) for k, v in values.items()}
         sub[result.parameter_symbol] = sympy.Float(mu_value, 30)
@@ -108,12 +112,12 @@ class _Rhs:
 class _History:
     """Stored values and derivatives on a uniform grid; Hermite interpolation."""
 
-    def __init__(self, t0: float, h: float):
+    def __init__(self, t0: float, h: float) -> None:
         self.t0, self.h = t0, h
         self.x: list = []
         self.dx: list = []
 
-    def append(self, x, dx):
+    def append(self, x, dx) -> None:
         self.x.append(x)
         self.dx.append(dx)
 
@@ -133,8 +137,8 @@ class _History:
                 + h11 * h * self.dx[k + 1][i])
 
 
-def simulate_delay(result, values: Mapping, mu_value: float, *, history, span: float,
-                   measure: float, steps_per_period: int = 256) -> DelaySimulation:
+def simulate_delay(result: ResultLike, values: Mapping, mu_value: float, *, history: Any,
+                   span: float, measure: float, steps_per_period: int = 256) -> DelaySimulation:
     """Integrate the retarded equation at ``mu_value`` from the initial function
     ``history(theta) -> (x, dx)`` for ``span`` time units; measure over the last
     ``measure`` time units."""
@@ -197,8 +201,9 @@ def _measure(result, samples, h, span, mu_value) -> DelaySimulation:
     return DelaySimulation(mu_value, amplitudes, period, h, span)
 
 
-def validate_delay(result, values: Mapping | None = None, *, offsets=None,
-                   tolerance: float = 0.1, periods: int = 40, settle: float = 8.0,
+def validate_delay(result: ResultLike, values: Mapping | None = None, *,
+                   offsets: Sequence[float] | None = None, tolerance: float = 0.1,
+                   periods: int = 40, settle: float = 8.0,
                    steps_per_period: int = 200) -> DelayValidation:
     """Simulate near onset at three offsets and compare amplitudes and periods.
 
@@ -228,7 +233,7 @@ def validate_delay(result, values: Mapping | None = None, *, offsets=None,
     qn = math.sqrt(sum(abs(v) ** 2 for v in q))
     x0 = [float(sympy.N(result.equilibrium[s].xreplace(
         {result.model.symbols[k]: v for k, v in values.items()}))) for s in result.model.states]
-    rows = []
+    rows: list[dict[str, Any]] = []
     for offset in offsets:
         mu = mu_c + offset
         predicted = {s: float(v) for s, v in numeric.amplitude(offset).items()}

@@ -10,23 +10,32 @@ from __future__ import annotations
 
 from dataclasses import replace
 
-from typing import Mapping
+from typing import TYPE_CHECKING, Mapping, Sequence, Union
 
 from .assemble import build_result
 from ..budget import hint, stage
 from ..budget import time_limit as time_limit_
 from .engine import run_engine
 from ..errors import NoHopfPointError
-from ..local.prepare import check_order, prepare
+from ..local.prepare import EquilibriumSpec, check_order, prepare
 from .results import HopfResult
+
+if TYPE_CHECKING:
+    from ..model.core import Model
+    from ..delay.numeric import NumericDelayHopf
+    from ..delay.results import DelayHopfResult
 
 __all__ = ["hopf", "hopf_all"]
 
+#: what hopf() returns: a HopfResult, or for a model with delayed states the delay result
+AnyHopfResult = Union[HopfResult, "DelayHopfResult", "NumericDelayHopf"]
 
-def hopf(model, parameter: str | None = None, *, equilibrium=None, eliminate=None,
-         branch: int | None = None, order: int = 3, values: Mapping | None = None,
-         assume: Mapping | None = None, backend: str = "flint", guess: Mapping | None = None,
-         digits: int = 30, time_limit: float | None = None) -> HopfResult:
+
+def hopf(model: Model, parameter: str | None = None, *, equilibrium: EquilibriumSpec = None,
+         eliminate: Sequence[str] | None = None, branch: int | None = None, order: int = 3,
+         values: Mapping[str, object] | None = None, assume: Mapping[str, str] | None = None,
+         backend: str = "flint", guess: Mapping | None = None, digits: int = 30,
+         time_limit: float | None = None) -> AnyHopfResult:
     """Hopf analysis of ``model`` with respect to ``parameter``.
 
     Parameters
@@ -98,8 +107,9 @@ def hopf(model, parameter: str | None = None, *, equilibrium=None, eliminate=Non
                         backend, select=0 if branch is None else branch)[0]
 
 
-def hopf_all(model, parameter: str | None = None, *, equilibrium=None, eliminate=None,
-             order: int = 3, values: Mapping | None = None, assume: Mapping | None = None,
+def hopf_all(model: Model, parameter: str | None = None, *, equilibrium: EquilibriumSpec = None,
+             eliminate: Sequence[str] | None = None, order: int = 3,
+             values: Mapping[str, object] | None = None, assume: Mapping[str, str] | None = None,
              backend: str = "flint", time_limit: float | None = None) -> tuple:
     """Like :func:`hopf`, returning one :class:`HopfResult` per branch of the
     critical set.

@@ -11,6 +11,8 @@ canonical factored form (:mod:`criticality.algebra.canonical`).
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any, Mapping, Sequence
+
 from dataclasses import replace
 
 import sympy
@@ -23,22 +25,28 @@ from .classify import classify
 from ..local.critical import Condition, cofactor_hurwitz
 from ..errors import CriticalityError
 from .results import CyclePrediction, HopfResult, ReducedSystemView
-from ..algebra.signs import NEGATIVE, NONNEGATIVE, NONPOSITIVE, POSITIVE, UNKNOWN, ZERO, context_for
+from ..algebra.signs import NEGATIVE, NONNEGATIVE, NONPOSITIVE, POSITIVE, UNDECIDED, ZERO, context_for
+from ..kinds import Classification, ConditionStatus, Side
+
+if TYPE_CHECKING:
+    from .engine import BranchComputation
+    from ..local.equilibria import EquilibriumChoice
+    from ..model.core import Model
 
 __all__ = ["build_result"]
 
 
 
-def _status(fs, relation=">"):
+def _status(fs, relation: str = ">") -> ConditionStatus:
     if relation == "!=":
         if fs.sign in (POSITIVE, NEGATIVE):
-            return "holds"
-        return "fails" if fs.sign == ZERO else "open"
+            return ConditionStatus.HOLDS
+        return ConditionStatus.FAILS if fs.sign == ZERO else ConditionStatus.OPEN
     if fs.sign == POSITIVE:
-        return "holds"
+        return ConditionStatus.HOLDS
     if fs.sign in (NEGATIVE, NONPOSITIVE, ZERO):
-        return "fails"
-    return "open"
+        return ConditionStatus.FAILS
+    return ConditionStatus.OPEN
 
 
 def _side(fs):
@@ -55,7 +63,7 @@ def _raw(tower, x, ctx):
 class _Branch:
     """Helper bundling one branch's conversions."""
 
-    def __init__(self, bc, ctx):
+    def __init__(self, bc, ctx) -> None:
         self.bc = bc
         self.tower = bc.branch.tower
         self.ctx = ctx
@@ -80,7 +88,7 @@ def _admissibility(B, mu_name, mu_assumption, value, W):
         rel = "!=" if mu_assumption == "nonzero" else ">"
         status = _status(fs_v, rel)
         if mu_assumption == "nonnegative" and fs_v.sign in (NONNEGATIVE, ZERO):
-            status = "holds"
+            status = ConditionStatus.HOLDS
         conds.append(Condition("critical_value_admissible",
                                f"the critical value respects the declared sign of '{mu_name}' "
                                f"({mu_assumption})", B.expr(x), rel, status))
@@ -89,7 +97,9 @@ def _admissibility(B, mu_name, mu_assumption, value, W):
     return conds, sides
 
 
-def build_result(model, name, mu, choice, out, bc, assumptions, params):
+def build_result(model: Model, name: str, mu: sympy.Symbol, choice: EquilibriumChoice, out: Any,
+                 bc: BranchComputation, assumptions: Mapping[str, str],
+                 params: Sequence[sympy.Symbol]) -> HopfResult | None:
     """The :class:`HopfResult` of one computed branch, or None when the branch
     is provably not a Hopf point (omega^2 <= 0)."""
     tower = bc.branch.tower
@@ -97,7 +107,7 @@ def build_result(model, name, mu, choice, out, bc, assumptions, params):
     B = _Branch(bc, ctx0)
     br, eb = bc.branch, bc.eigenbasis
     conds, sides = _admissibility(B, name, assumptions.get(mu, "real"), br.value, br.W)
-    if conds[0].status == "fails":
+    if conds[0].status == ConditionStatus.FAILS:
         return None
     ctx = ctx0.with_conditions(sides)
     B = _Branch(bc, ctx)
@@ -121,7 +131,7 @@ def build_result(model, name, mu, choice, out, bc, assumptions, params):
     re_c1, im_c1_nu = lower(c1.a), lower(c1.b)
     fs_l1 = factored(tower, re_c1, ctx)
     verdict = classify(fs_l1)
-    if verdict.classification == "degenerate":
+    if verdict.classification == Classification.DEGENERATE:
         verdict = _higher_verdict(tower, ctx, bc.c_center, verdict)
     re_c1_expr = fs_l1.as_expr()
     im_c1_expr = B.expr(im_c1_nu) * omega
@@ -151,7 +161,7 @@ def build_result(model, name, mu, choice, out, bc, assumptions, params):
 class _Details:
     """Builds the display-oriented parts of a result on first access."""
 
-    def __init__(self, B, bc, omega, model):
+    def __init__(self, B, bc, omega, model) -> None:
         self.B, self.bc, self.omega, self.model = B, bc, omega, model
 
     def reduced_system(self):
@@ -198,7 +208,7 @@ def _omega(B, W):
 def _factored_sqrt(fs, expr):
     """``sqrt`` of a factored expression: factors of known sign and even
     multiplicity come out, the rest stays under the root."""
-    if fs.sign == UNKNOWN and not fs.factors:
+    if fs.sign == UNDECIDED and not fs.factors:
         return _sqrt(expr)
     outside, inside, below = [], [fs.constant.p], [fs.constant.q]
     split = True
@@ -282,8 +292,8 @@ def _cycle(B, model, bc, omega, verdict, stab, mu):
     if j:
         k = -beta1 / R
         fs_k = _raw(B.tower, k, B.ctx)
-        side = {POSITIVE: "above", NEGATIVE: "below"}.get(fs_k.sign, "undecided")
-        side_cond = None if side != "undecided" else sympy.StrictGreaterThan(B.expr(k), 0)
+        side = {POSITIVE: Side.ABOVE, NEGATIVE: Side.BELOW}.get(fs_k.sign, Side.UNDECIDED)
+        side_cond = None if side != Side.UNDECIDED else sympy.StrictGreaterThan(B.expr(k), 0)
         lower_exact_zero = all(not c for c in bc.c_center[:j - 1])
         slope = omega * B.expr(beta_nu - beta1 * S / R) if lower_exact_zero else sympy.nan
         if j == 1:
@@ -306,10 +316,11 @@ def _cycle(B, model, bc, omega, verdict, stab, mu):
                 amps[name] = _product(_factored_sqrt(fs, fs.as_expr()),
                                       sympy.Pow(B.expr(k) * offset, sympy.Rational(1, 2 * j)))
     else:
-        side, side_cond, rho2, slope = "undecided", None, sympy.nan, sympy.nan
-    if verdict.classification == "supercritical":
-        stable = True if all(s == "holds" for s in stab) else (False if "fails" in stab else None)
-    elif verdict.classification == "subcritical":
+        side, side_cond, rho2, slope = Side.UNDECIDED, None, sympy.nan, sympy.nan
+    if verdict.classification == Classification.SUPERCRITICAL:
+        stable = True if all(s == ConditionStatus.HOLDS for s in stab) else (
+            False if ConditionStatus.FAILS in stab else None)
+    elif verdict.classification == Classification.SUBCRITICAL:
         stable = False
     else:
         stable = None

@@ -22,12 +22,14 @@ from dataclasses import dataclass
 import sympy
 
 from ..algebra.canonical import larger_than
-from ..algebra.signs import NEGATIVE, NONNEGATIVE, NONPOSITIVE, POSITIVE, UNKNOWN, ZERO, FactoredSign
+from ..algebra.signs import NEGATIVE, NONNEGATIVE, NONPOSITIVE, POSITIVE, UNDECIDED, ZERO, FactoredSign
+from ..kinds import Classification
 
 __all__ = ["Verdict", "classify"]
 
-SUPERCRITICAL, SUBCRITICAL, DEGENERATE, MIXED = ("supercritical", "subcritical", "degenerate",
-                                                 "depends")
+SUPERCRITICAL, SUBCRITICAL, DEGENERATE, MIXED = (
+    Classification.SUPERCRITICAL, Classification.SUBCRITICAL, Classification.DEGENERATE,
+    Classification.DEPENDS)
 
 
 @dataclass(frozen=True)
@@ -36,7 +38,7 @@ class Verdict:
 
     Attributes
     ----------
-    classification : str
+    classification : Classification
         ``"supercritical"``, ``"subcritical"``, ``"depends"`` or ``"degenerate"``.
     text : str
         The verdict in words.
@@ -50,7 +52,7 @@ class Verdict:
         times the sign of the rest).
     """
 
-    classification: str
+    classification: Classification
     text: str
     supercritical_where: object
     zero_set: object
@@ -63,12 +65,12 @@ def classify(fs: FactoredSign, *, coefficient: str = "l1") -> Verdict:
         return Verdict(DEGENERATE, f"degenerate: {coefficient} vanishes identically; the next "
                        "Lyapunov coefficient decides", None, None, sympy.Integer(0))
     undecided = fs.undecided
-    even_unknown = [f for f in fs.factors if f.sign in (UNKNOWN, NONNEGATIVE) and f.multiplicity % 2 == 0
+    even_unknown = [f for f in fs.factors if f.sign in (UNDECIDED, NONNEGATIVE) and f.multiplicity % 2 == 0
                     and not f.expr.is_number]
     zero_exprs = [f.expr for f in undecided if not f.in_denominator] + \
                  [f.expr for f in even_unknown if not f.in_denominator]
     zero_set = sympy.Eq(sympy.Mul(*zero_exprs), 0, evaluate=False) if zero_exprs else None
-    zero_words = _show(zero_set.lhs, "Z, the product in zero_set") if zero_exprs else ""
+    zero_words = _show(zero_set.lhs, "Z, the product in zero_set") if zero_set is not None else ""
     where = f" except where {zero_words} = 0" if zero_exprs else ""
     if fs.sign in (NEGATIVE, NONPOSITIVE) and not undecided:
         return Verdict(SUPERCRITICAL, "supercritical for all admissible parameters" + where,

@@ -90,7 +90,7 @@ def run_engine(problem: PreparedProblem, select: int | None = None) -> EngineOut
                                  f"{len(branches) - 1})")
         todo = [branches[select]]
     else:
-        todo = branches
+        todo = list(branches)
     computed = []
     for b in todo:
         if len(b.tower.levels) > len(tower.levels):
@@ -141,7 +141,7 @@ def _in_range(branch, ctx, assumption) -> bool:
     return sign not in bad
 
 
-def _compute_branch(tower, taylor_mu, branch, problem, order) -> BranchComputation:
+def _compute_branch(tower, taylor_mu, branch, problem, order) -> BranchComputation | None:
     target = branch.tower
     mu, value, images = problem.mu, branch.value, branch.images
     K = target.top

@@ -32,7 +32,7 @@ from __future__ import annotations
 
 import math
 from collections import OrderedDict
-from typing import Mapping
+from typing import TYPE_CHECKING, Any, Mapping
 
 import mpmath
 import sympy
@@ -45,6 +45,11 @@ from ..local.numeric_hopf import (FloatField, HopfSystem, MpField, eigen_data, e
                                   numpy_projection_c1, numpy_projection_c1_real,
                                   mp_projection_c1, numpy_transversality)
 from ..local.projection import projection_c1
+
+if TYPE_CHECKING:
+    from .results import HopfResult
+    from ..local.numeric_hopf import HopfPoint
+    from ..model.core import Model
 
 __all__ = ["hopf_numeric", "numeric_setup", "NumericSetup", "FLOAT64_DIGITS", "guess_vector",
            "nu_to_complex"]
@@ -78,7 +83,8 @@ class NumericSetup:
     parameter symbols in order and their exact values, the bifurcation
     parameter's index, and the float values for Newton."""
 
-    def __init__(self, model, parameter: str, values, order: int, along: tuple = ()):
+    def __init__(self, model: Model, parameter: str, values: Mapping | None, order: int,
+                 along: tuple = ()) -> None:
         if parameter in model.states:
             raise ParameterError(f"'{parameter}' is a state variable, not a parameter")
         model.parameter(parameter)  # did-you-mean on an unknown name
@@ -130,14 +136,15 @@ class NumericSetup:
                     for v in self.exact]
 
 
-def numeric_setup(model, parameter, values=None, order: int = 3, along: tuple = ()):
+def numeric_setup(model: Model, parameter: str, values: Mapping | None = None, order: int = 3,
+                  along: tuple = ()) -> NumericSetup:
     """The (cached) compiled setup of ``model`` for the numeric mode."""
     return NumericSetup(model, parameter, values, order, along)
 
 
 # -- float64 --------------------------------------------------------------------------------
 
-def nu_to_complex(N, x, omega):
+def nu_to_complex(N: Any, x: Any, omega: Any) -> complex:
     a, b = N.components(x)
     return complex(a) + 1j * complex(b) * omega
 
@@ -151,7 +158,7 @@ def _others_max_re(np, A, omega):
     return max((z.real for z in rest), default=-1.0), lam
 
 
-def run_float(setup: NumericSetup, pt, order: int) -> dict:
+def run_float(setup: NumericSetup, pt: HopfPoint, order: int) -> dict:
     """Every quantity in float64 at the located point, with the estimated
     number of correct digits (key ``"correct"``)."""
     import numpy as np
@@ -192,7 +199,7 @@ def run_float(setup: NumericSetup, pt, order: int) -> dict:
 
 # -- mpmath ---------------------------------------------------------------------------------
 
-def run_mp(setup: NumericSetup, system: HopfSystem, pt, dps: int, order: int,
+def run_mp(setup: NumericSetup, system: HopfSystem, pt: HopfPoint, dps: int, order: int,
            routes: bool = True) -> dict:
     """Every quantity at ``dps`` digits (mpmath), from the float64 point;
     without ``routes`` (order 3) only the projection formula gives ``c1``."""
@@ -215,9 +222,9 @@ def run_mp(setup: NumericSetup, system: HopfSystem, pt, dps: int, order: int,
             cs = complex_normal_form(taylor, eb, order)
         elif routes:  # the second route: complex solves on the compiled tensors
             c1 = mp_projection_c1(ct, vals, A, om, q, pbar)
-            cs = [N.element(mpmath.re(c1), mpmath.im(c1) / om)]
+            cs = (N.element(mpmath.re(c1), mpmath.im(c1) / om),)
         else:
-            cs = [c1p]
+            cs = (c1p,)
         n = ct.n
         f_mu = mpmath.matrix(n, 1)
         for i, pos in ct.layout.f_p[0]:
@@ -261,7 +268,7 @@ def _agreement(a, b, digits, cap):
     return max(worst, 0)
 
 
-def guess_vector(model, parameter, guess):
+def guess_vector(model: Model, parameter: str, guess: Mapping) -> list:
     if not isinstance(guess, Mapping):
         raise ParameterError(f"guess must be a mapping {{name: value}}, got "
                              f"{type(guess).__name__}")
@@ -294,8 +301,8 @@ def guess_vector(model, parameter, guess):
     return out
 
 
-def hopf_numeric(model, parameter: str, guess: Mapping, *, digits: int = 30, order: int = 3,
-                 values: Mapping | None = None, radius: float = 1.0):
+def hopf_numeric(model: Model, parameter: str | None, guess: Mapping, *, digits: int = 30,
+                 order: int = 3, values: Mapping | None = None, radius: float = 1.0) -> HopfResult:
     """Locate a Hopf point numerically from ``guess`` and analyse it.
 
     Parameters

@@ -7,6 +7,8 @@ result is numeric and how many of its digits are correct.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 from collections.abc import Mapping
 
 import mpmath
@@ -14,7 +16,11 @@ import sympy
 
 from ..local.critical import Condition
 from ..errors import ClosedFormUnavailableError
+from ..kinds import Classification, ConditionStatus, Side
 from .results import CyclePrediction, HopfResult
+
+if TYPE_CHECKING:
+    from ..model.core import Model
 
 __all__ = ["numeric_result"]
 
@@ -36,9 +42,12 @@ def _c(x, digits):
 
 
 class _NumericDetails:
-    """The display-oriented parts of a numeric result."""
+    """The display-oriented parts of a numeric result (plain mpmath data, so
+    it pickles as it is)."""
 
-    def __init__(self, data, digits, model):
+    portable = True
+
+    def __init__(self, data, digits, model) -> None:
         self.data, self.digits, self.model = data, digits, model
 
     def reduced_system(self):
@@ -66,12 +75,12 @@ def _conditions(d, digits):
     others = d["others_max_re"]
     return (
         Condition("omega_squared_positive", "omega^2 > 0: the pair is imaginary, not a real "
-                  "pair +-kappa", _f(d["W"], digits), ">", "holds" if d["W"] > 0 else "fails"),
+                  "pair +-kappa", _f(d["W"], digits), ">", ConditionStatus.HOLDS if d["W"] > 0 else ConditionStatus.FAILS),
         Condition("transversal", "the pair crosses with non-zero speed: Re d lambda / d mu != 0",
-                  _f(beta, digits), "!=", "holds" if abs(beta) > tol else "fails"),
+                  _f(beta, digits), "!=", ConditionStatus.HOLDS if abs(beta) > tol else ConditionStatus.FAILS),
         Condition("others_stable", "the largest real part of the other eigenvalues is negative "
                   "(float64 eigenvalues)", _f(-others, min(digits, 15)), ">",
-                  "holds" if others < 0 else "fails"),
+                  ConditionStatus.HOLDS if others < 0 else ConditionStatus.FAILS),
     )
 
 
@@ -79,8 +88,9 @@ class _Amplitudes(Mapping):
     """``{state: sqrt(k_j (mu - mu_c))}``, each expression built when first
     read (building them all costs more than the numeric analysis itself)."""
 
-    def __init__(self, coeffs, offset):
-        self._coeffs, self._offset, self._built = dict(coeffs), offset, {}
+    def __init__(self, coeffs, offset) -> None:
+        self._coeffs, self._offset = dict(coeffs), offset
+        self._built: dict = {}
 
     def __getitem__(self, key):
         if key not in self._built:
@@ -90,7 +100,7 @@ class _Amplitudes(Mapping):
     def __iter__(self):
         return iter(self._coeffs)
 
-    def __len__(self):
+    def __len__(self) -> int:
         return len(self._coeffs)
 
     def __reduce__(self):
@@ -99,7 +109,7 @@ class _Amplitudes(Mapping):
     def __eq__(self, other):
         return isinstance(other, Mapping) and dict(self.items()) == dict(other.items())
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return repr(dict(self.items()))
 
 
@@ -111,14 +121,15 @@ def _cycle(d, digits, mu, mu_c, states, stable_others):
     offset = mu - mu_c
     coeffs = {s: _f(4 * k * abs(x) ** 2, digits) for s, x in zip(states, d["q"])}
     amps = _Amplitudes(coeffs, offset)
-    side = "above" if k > 0 else "below"
+    side = Side.ABOVE if k > 0 else Side.BELOW
     slope = mpmath.im(d["dlam"]) - beta * mpmath.im(c1) / R
     stable = bool(R < 0 and stable_others)
     return CyclePrediction(side, None, stable, _f(k, digits) * offset, amps, coeffs,
                            2 * sympy.pi / _f(d["omega"], digits), _f(slope, digits))
 
 
-def numeric_result(original, parameter, d, digits, correct, agreement, routes, order, how):
+def numeric_result(original: Model, parameter: str, d: dict, digits: int, correct: int,
+                   agreement: float, routes: bool, order: int, how: str) -> HopfResult:
     """Build the result; ``correct`` digits are reported, ``agreement`` is the
     raw estimate of correct digits, ``how`` the note that says how it was found."""
     model = original
@@ -130,14 +141,14 @@ def numeric_result(original, parameter, d, digits, correct, agreement, routes, o
         l1 = mpmath.re(c1) / omega
         lyap = tuple(_f(mpmath.re(c) / omega, digits) for c in d["c"])
         conds = _conditions(d, digits)
-        cls = "supercritical" if l1 < 0 else "subcritical"
+        cls = Classification.SUPERCRITICAL if l1 < 0 else Classification.SUBCRITICAL
         if abs(l1) < mpmath.mpf(10) ** (-correct) * max(1, abs(c1) / omega):
-            cls = "degenerate"
+            cls = Classification.DEGENERATE
         status = f"numeric ({correct} correct digits)"
         note = how
-        verdict = {"supercritical": "supercritical (numeric): l1 < 0",
-                   "subcritical": "subcritical (numeric): l1 > 0",
-                   "degenerate": "l1 is zero to the computed accuracy: the next Lyapunov "
+        verdict = {Classification.SUPERCRITICAL: "supercritical (numeric): l1 < 0",
+                   Classification.SUBCRITICAL: "subcritical (numeric): l1 > 0",
+                   Classification.DEGENERATE: "l1 is zero to the computed accuracy: the next Lyapunov "
                                  "coefficient decides"}[cls]
         dlam = d["dlam"]
         return HopfResult(
@@ -149,7 +160,7 @@ def numeric_result(original, parameter, d, digits, correct, agreement, routes, o
             c1=_c(c1, digits), l1=_f(l1, digits), planar_coefficient=_f(mpmath.re(c1) / 2, digits),
             lyapunov_coefficients=lyap, classification=cls, verdict=verdict,
             supercritical_where=None, l1_zero_set=None, conditions=conds,
-            cycle=_cycle(d, digits, mu, mu_c, model.states, conds[2].status == "holds"),
+            cycle=_cycle(d, digits, mu, mu_c, model.states, conds[2].status == ConditionStatus.HOLDS),
             q_norm_squared=sympy.Integer(1), routes_agree=bool(routes), branch_index=0,
             branch_count=1, substitutions={},
             notes=tuple(getattr(original, "notes", ())) + (note,),

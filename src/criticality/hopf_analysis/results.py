@@ -12,13 +12,20 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field, fields, is_dataclass, replace
 from functools import cached_property
-from typing import ClassVar, Mapping
+from typing import TYPE_CHECKING, Any, ClassVar, Mapping, Sequence
 
 import sympy
 
+from ..kinds import Classification, Side, coerce
 from ..renderers import render
 
-__all__ = ["Conventions", "CONVENTIONS", "CyclePrediction", "ReducedSystemView", "HopfResult"]
+if TYPE_CHECKING:
+    from ..checks.numeric import NumericHopfResult
+    from ..local.critical import Condition
+    from ..model.core import Model
+
+__all__ = ["Conventions", "CONVENTIONS", "CyclePrediction", "ReducedSystemView", "StoredDetails",
+           "HopfResult"]
 
 
 @dataclass(frozen=True)
@@ -53,7 +60,7 @@ class CyclePrediction:
 
     Attributes
     ----------
-    side : str
+    side : Side
         ``"above"`` (mu > mu_c), ``"below"`` (mu < mu_c) or ``"undecided"``.
     side_condition : sympy relational or None
         For ``"undecided"``: the cycle exists for mu > mu_c exactly where this
@@ -84,15 +91,18 @@ class CyclePrediction:
         when ``l_j`` decides because ``l1 = ... = l_(j-1) = 0`` identically.
     """
 
-    side: str
-    side_condition: object
-    stable: object
+    side: Side
+    side_condition: Any
+    stable: Any
     radius_squared: sympy.Expr
     amplitudes: Mapping[str, sympy.Expr]
     amplitude_coefficients: Mapping[str, sympy.Expr]
     period: sympy.Expr
     frequency_slope: sympy.Expr
     amplitude_power: int = 2
+
+    def __post_init__(self) -> None:
+        coerce(self, side=Side)
 
 
 @dataclass(frozen=True)
@@ -117,7 +127,7 @@ class ReducedSystemView:
     manifold: tuple
     omega: sympy.Symbol = sympy.Symbol("omega", positive=True)
 
-    def equations(self):
+    def equations(self) -> tuple[sympy.Eq, sympy.Eq]:
         """``(x' = -omega y + f, y' = omega x + g)`` as sympy equations."""
         return (sympy.Eq(sympy.Symbol(f"{self.x}'"), -self.omega * self.y + self.f),
                 sympy.Eq(sympy.Symbol(f"{self.y}'"), self.omega * self.x + self.g))
@@ -130,10 +140,10 @@ class ReducedSystemView:
         return (f"\\begin{{aligned}} \\dot{{{lx}}} &= {fx} \\\\ "
                 f"\\dot{{{ly}}} &= {fy} \\end{{aligned}}")
 
-    def _repr_latex_(self):
+    def _repr_latex_(self) -> str:
         return f"$${self.to_latex()}$$"
 
-    def __str__(self):
+    def __str__(self) -> str:
         return (f"{self.x}' = {sympy.sstr(-self.omega * self.y + self.f)}\n"
                 f"{self.y}' = {sympy.sstr(self.omega * self.x + self.g)}")
 
@@ -148,7 +158,7 @@ class HopfResult:
 
     result_kind: ClassVar[str] = "hopf"
 
-    model: object
+    model: Model
     parameter: str
     parameter_symbol: sympy.Symbol
     equilibrium: Mapping[str, sympy.Expr]
@@ -162,10 +172,10 @@ class HopfResult:
     l1: sympy.Expr
     planar_coefficient: sympy.Expr
     lyapunov_coefficients: tuple
-    classification: str
+    classification: Classification
     verdict: str
-    supercritical_where: object
-    l1_zero_set: object
+    supercritical_where: Any
+    l1_zero_set: Any
     conditions: tuple
     cycle: CyclePrediction
     q_norm_squared: sympy.Expr
@@ -177,9 +187,12 @@ class HopfResult:
     assumptions: Mapping[str, str]
     conventions: Conventions = CONVENTIONS
     status: str = "closed form"
-    _details: object = field(default=None, repr=False, compare=False)
+    _details: Any = field(default=None, repr=False, compare=False)
     #: ``(parameter record, value)`` of the parameters fixed before the analysis (``values=``)
     fixed_parameters: tuple = ()
+
+    def __post_init__(self) -> None:
+        coerce(self, classification=Classification)
 
     # -- computed on first access (display-oriented, not needed for the verdict) ----------
     @cached_property
@@ -211,7 +224,7 @@ class HopfResult:
 
     # -- derived -------------------------------------------------------------------------
     @property
-    def l2(self):
+    def l2(self) -> sympy.Expr | None:
         """The second Lyapunov coefficient, or None if not computed (use order=5)."""
         return self.lyapunov_coefficients[1] if len(self.lyapunov_coefficients) > 1 else None
 
@@ -219,7 +232,7 @@ class HopfResult:
     def period(self) -> sympy.Expr:
         return self.cycle.period
 
-    def condition(self, key: str):
+    def condition(self, key: str) -> Condition:
         """The condition with the given key (e.g. ``"omega_squared_positive"``)."""
         for c in self.conditions:
             if c.key == key:
@@ -262,7 +275,8 @@ class HopfResult:
         return replace(self, _details=_SwappedDetails(self._details, sub), **changes)
 
     # -- numeric ---------------------------------------------------------------------------
-    def evaluate(self, values: Mapping | None = None, *, digits: int = 30, **kwargs):
+    def evaluate(self, values: Mapping | None = None, *, digits: int = 30,
+                 **kwargs: object) -> NumericHopfResult:
         """Every quantity at a parameter point, to ``digits`` significant digits.
 
         Parameters are given as a mapping or as keywords (``r.evaluate(a=1)``);
@@ -274,8 +288,9 @@ class HopfResult:
         merged.update(kwargs)
         return evaluate_result(self, merged, digits=digits)
 
-    def evaluate_many(self, points: Mapping, quantities=("critical_value", "omega", "l1"),
-                      **kwargs):
+    def evaluate_many(self, points: Mapping,
+                      quantities: Sequence[str] = ("critical_value", "omega", "l1"),
+                      **kwargs: Any) -> Mapping:
         """Quantities at many parameter points: arrays in, arrays out
         (float64, compiled once; see :func:`criticality.checks.sweeps.evaluate_many`)."""
         from ..checks.sweeps import evaluate_many
@@ -297,11 +312,11 @@ class HopfResult:
         """Every quantity as a LaTeX equation (an ``align``-ready block)."""
         return render(self, "latex")
 
-    def to_report(self, **options) -> str:
+    def to_report(self, **options: Any) -> str:
         """The LaTeX derivation report (``fragment=True``: no preamble)."""
         return render(self, "report", **options)
 
-    def to_json(self, **kwargs) -> str:
+    def to_json(self, **kwargs: Any) -> str:
         """The result as JSON in the documented, versioned schema."""
         return render(self, "json", **kwargs)
 
@@ -328,12 +343,57 @@ class HopfResult:
     def _sympystr(self, printer=None):
         return self.summary()
 
-    def __str__(self):
+    def __str__(self) -> str:
         return self.summary()
 
-    def __repr__(self):
+    def __repr__(self) -> str:
         return (f"HopfResult(parameter={self.parameter!r}, critical_value={self.critical_value}, "
                 f"classification={self.classification!r})")
+
+    # -- pickling: the lazy parts leave as plain sympy data --------------------------------
+    def __getstate__(self) -> dict:
+        """The instance state with the display-oriented parts built and stored
+        as sympy objects, so that no field element (a python-flint object) or
+        closure of the engine is pickled."""
+        state = dict(self.__dict__)
+        if self._details is not None and not getattr(self._details, "portable", False):
+            state["_details"] = StoredDetails.of(self)
+        return {k: v if k == "model" else _keep_shape(v) for k, v in state.items()}
+
+
+@dataclass(frozen=True)
+class StoredDetails:
+    """The display-oriented parts of a :class:`HopfResult` as plain sympy
+    data (what a pickled result carries instead of the engine's field
+    elements); the same methods as the engine's lazy builder."""
+
+    reduced: ReducedSystemView
+    jacobian_matrix: sympy.Matrix
+    charpoly: sympy.Expr
+    q: tuple
+    p: tuple
+    portable: ClassVar[bool] = True
+
+    @classmethod
+    def of(cls, result: "HopfResult") -> "StoredDetails":
+        """Build every display-oriented part of ``result`` once."""
+        return cls(result.reduced_system, result.jacobian, result.characteristic_polynomial,
+                   result.eigenvector_q, result.eigenvector_p)
+
+    def reduced_system(self) -> ReducedSystemView:
+        return self.reduced
+
+    def jacobian(self) -> sympy.Matrix:
+        return self.jacobian_matrix
+
+    def characteristic_polynomial(self) -> sympy.Expr:
+        return self.charpoly
+
+    def eigenvector_q(self) -> tuple:
+        return self.q
+
+    def eigenvector_p(self) -> tuple:
+        return self.p
 
 
 def _swap(value, sub: dict):
@@ -351,12 +411,82 @@ def _swap(value, sub: dict):
     return value
 
 
+# -- pickling expressions in the shape they were built in ---------------------------------
+# sympy pickles an expression as its class and arguments and rebuilds it with evaluation;
+# the engine builds some products and roots unevaluated (to spare sympy's assumption
+# queries), which evaluation would regroup.  These helpers store the tree node by node and
+# rebuild Add, Mul and Pow unevaluated, so that a pickled result equals the original.
+
+_UNEVALUATED = (sympy.Add, sympy.Mul, sympy.Pow)
+
+
+class _Shape:
+    """An expression tree stored node by node (pickles to a nested tuple)."""
+
+    __slots__ = ("tree",)
+
+    def __init__(self, expr: sympy.Basic) -> None:
+        self.tree = _tree(expr)
+
+    def __reduce__(self):
+        return _rebuild, (self.tree,)
+
+
+def _tree(expr):
+    """``(class, unevaluated?, argument trees)``, or the atom itself."""
+    if not isinstance(expr, sympy.Basic) or not expr.args or \
+            type(expr).__getnewargs__ is not sympy.Basic.__getnewargs__:
+        return expr
+    return (type(expr), isinstance(expr, _UNEVALUATED), tuple(_tree(a) for a in expr.args))
+
+
+def _rebuild(tree):
+    if not isinstance(tree, tuple):
+        return tree
+    cls, unevaluated, args = tree
+    args = tuple(_rebuild(a) for a in args)
+    return cls(*args, evaluate=False) if unevaluated else cls(*args)
+
+
+def _keep_shape(value):
+    """``value`` with every sympy expression (also inside containers and frozen
+    dataclasses) wrapped for a shape-preserving pickle."""
+    if isinstance(value, sympy.Basic):
+        return _Shape(value) if value.args else value
+    if isinstance(value, dict):
+        return {k: _keep_shape(v) for k, v in value.items()}
+    if isinstance(value, tuple) and not hasattr(value, "_fields"):
+        return tuple(_keep_shape(v) for v in value)
+    if is_dataclass(value) and not isinstance(value, type) and hasattr(value, "__dict__") and \
+            type(value).__reduce__ is object.__reduce__ and \
+            type(value).__reduce_ex__ is object.__reduce_ex__:
+        copy = object.__new__(type(value))
+        copy.__dict__.update({k: _keep_shape(v) for k, v in value.__dict__.items()})
+        return copy
+    return value
+
+
 class _SwappedDetails:
     """The display-oriented parts of a result, in other symbols."""
 
-    def __init__(self, inner, sub: dict):
+    def __init__(self, inner, sub: dict) -> None:
         self._inner, self._sub = inner, sub
+        self.portable = getattr(inner, "portable", False)
 
-    def __getattr__(self, name):
-        method = getattr(self._inner, name)
-        return lambda *args, **kwargs: _swap(method(*args, **kwargs), self._sub)
+    def _swapped(self, name: str):
+        return _swap(getattr(self._inner, name)(), self._sub)
+
+    def reduced_system(self) -> ReducedSystemView:
+        return self._swapped("reduced_system")
+
+    def jacobian(self) -> sympy.Matrix:
+        return self._swapped("jacobian")
+
+    def characteristic_polynomial(self) -> sympy.Expr:
+        return self._swapped("characteristic_polynomial")
+
+    def eigenvector_q(self) -> tuple:
+        return self._swapped("eigenvector_q")
+
+    def eigenvector_p(self) -> tuple:
+        return self._swapped("eigenvector_p")

@@ -21,6 +21,8 @@ space and two bordering rows pin ``h_k`` to the complementary subspace.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any, Callable
+
 from dataclasses import dataclass
 
 import sympy
@@ -31,6 +33,11 @@ from ..budget import checkpoint
 from ..errors import CriticalityError, DegenerateHopfError
 from .projection import solve_shifted
 from ..algebra.series import compose, mul as poly_mul
+
+if TYPE_CHECKING:
+    from ..algebra.field import Element
+    from .eigenbasis import Eigenbasis
+    from .taylor import TaylorForms
 
 __all__ = ["ReducedSystem", "reduce_to_center_manifold"]
 
@@ -46,14 +53,15 @@ class ReducedSystem:
     ``xi1^(k-b) xi2^b``, b = 0..k.
     """
 
-    W: object
+    W: Any
     g1: dict
     g2: dict
     h: dict
     order: int
-    field: object
+    field: Any
 
-    def rotation_form(self, to_sympy, omega, x, y):
+    def rotation_form(self, to_sympy: Callable[[Element], sympy.Expr], omega: sympy.Expr,
+                      x: sympy.Symbol, y: sympy.Symbol) -> tuple[sympy.Expr, sympy.Expr]:
         """The right-hand sides in the coordinates ``x = xi1``, ``y = xi2 / omega``
         where the linear part is the rotation ``[[0, -omega], [omega, 0]]``:
         returns ``(f, g)`` with ``x' = -omega y + f``, ``y' = omega x + g``.
@@ -71,14 +79,16 @@ class ReducedSystem:
 
 
 
-def reduce_to_center_manifold(taylor, eb, order: int) -> ReducedSystem:
+def reduce_to_center_manifold(taylor: TaylorForms, eb: Eigenbasis, order: int) -> ReducedSystem:
     """Compute ``g`` up to degree ``order`` (and ``h`` up to ``order - 1``)."""
     K, n = eb.field, len(eb.A)
     e1, e2 = eb.Av, [-x for x in eb.v]
     u = [{(1, 0): e1[j], (0, 1): e2[j]} for j in range(n)]
     for j in range(n):
         u[j] = {m: c for m, c in u[j].items() if c}
-    g1, g2, h = {}, {}, {}
+    g1: dict = {}
+    g2: dict = {}
+    h: dict = {}
     for k in range(2, order + 1):
         cache: dict = {}
         R = [_degree_part(taylor, i, u, k, cache) for i in range(n)]
@@ -135,7 +145,7 @@ def _subtract_drift(K, stable, h, g1, g2, k, n):
     return rhs
 
 
-def _accumulate(rhs, vec, factor, p1, p2, n):
+def _accumulate(rhs, vec, factor, p1, p2, n) -> None:
     b = p2
     for t in range(n):
         if vec[t]:

@@ -26,7 +26,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
-from typing import Sequence
+from typing import Any, Sequence
 
 import sympy
 
@@ -96,7 +96,7 @@ _NAMESPACES = {"math": _math_namespace, "numpy": _numpy_namespace, "mpmath": _mp
 class _Printer:
     """Python source for a sympy expression over a fixed set of node types."""
 
-    def __init__(self, names: dict, backend: str):
+    def __init__(self, names: dict, backend: str) -> None:
         self.names = names          # Symbol -> generated name
         self.backend = backend
         self.constants: dict = {}   # printed constant -> generated name (mpmath only)
@@ -195,20 +195,20 @@ class CompiledExpressions:
     count: int
     arity: int
 
-    def __post_init__(self):
+    def __post_init__(self) -> None:
         namespace = dict(_NAMESPACES[self.backend]())
         # generated source only: see the module docstring on why exec is safe here
         exec(compile(self.source, "<criticality generated>", "exec"), namespace)  # noqa: S102
         object.__setattr__(self, "_fn", namespace["_generated"])
 
     def __call__(self, args: Sequence) -> list:
-        return self._fn(args)
+        return self._fn(args)  # type: ignore[attr-defined]  # set in __post_init__, not a field
 
-    def __reduce__(self):
+    def __reduce__(self) -> tuple:
         return (CompiledExpressions, (self.source, self.backend, self.count, self.arity))
 
 
-def operation_count(exprs) -> int:
+def operation_count(exprs: Any) -> int:
     """Operations in ``exprs`` as sympy counts them (a size measure)."""
     return int(sum(sympy.count_ops(e) for e in exprs))
 

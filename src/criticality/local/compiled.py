@@ -25,7 +25,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from itertools import permutations
 from math import factorial
-from typing import Sequence
+from typing import Any, Sequence
 
 import sympy
 
@@ -40,7 +40,7 @@ __all__ = ["CompiledTaylor", "compile_taylor"]
 def _derivatives(graph, f: int, i: int, n: int, order: int, out: list) -> None:
     """Append ``(i, index tuple, node)`` for f and its nonzero x-derivatives."""
     out.append((i, (), f))
-    stack = [(f, ())]
+    stack: list[tuple[int, tuple[int, ...]]] = [(f, ())]
     while stack:
         node, idx = stack.pop()
         if len(idx) >= order:
@@ -86,7 +86,8 @@ class CompiledTaylor:
         Highest x-derivative.
     """
 
-    def __init__(self, equations, states, parameters, active: Sequence[int], order: int):
+    def __init__(self, equations: Any, states: Any, parameters: Any, active: Sequence[int],
+                 order: int) -> None:
         self.n = len(states)
         self.order = order
         self.states = tuple(states)
@@ -103,7 +104,7 @@ class CompiledTaylor:
             _derivatives(graph, f, i, self.n, order, entries)
         outputs = [node for _, _, node in entries]
         positions = {(i, idx): k for k, (i, idx, _) in enumerate(entries)}
-        by_degree = [[] for _ in range(order + 1)]
+        by_degree: list[list] = [[] for _ in range(order + 1)]
         for (i, idx), k in positions.items():
             by_degree[len(idx)].append((i, idx, k))
         f_p, J_p = [], []
@@ -138,12 +139,12 @@ class CompiledTaylor:
             self._compiled[backend] = fn
         return fn
 
-    def values(self, x, p, backend: str = "math") -> list:
+    def values(self, x: Any, p: Any, backend: str = "math") -> list:
         """Every compiled derivative at state ``x`` and parameters ``p``."""
         return self.function(backend)(list(x) + list(p))
 
     # -- dense views (numpy) --------------------------------------------------------------
-    def dense(self):
+    def dense(self) -> Any:
         """Index arrays for the numpy views (built once)."""
         cached = getattr(self, "_dense", None)
         if cached is None:
@@ -152,12 +153,12 @@ class CompiledTaylor:
         return cached
 
     # -- the engine's Taylor forms over a numeric field ---------------------------------------
-    def taylor_forms(self, vals, field, order: int | None = None) -> TaylorForms:
+    def taylor_forms(self, vals: Any, field: Any, order: int | None = None) -> TaylorForms:
         """:class:`TaylorForms` (coefficients of ``u^e``, i.e. derivative / e!)
         from compiled values ``vals``, in ``field``."""
         order = self.order if order is None else order
         n = self.n
-        comps = [dict() for _ in range(n)]
+        comps: list[dict] = [dict() for _ in range(n)]
         for k in range(1, order + 1):
             for i, idx, pos in self.layout.by_degree[k]:
                 v = vals[pos]
@@ -177,14 +178,14 @@ class CompiledTaylor:
                 comps[i][(0,) * n] = field(v)
         return TaylorForms(field, n, order, comps)
 
-    def __reduce__(self):
+    def __reduce__(self) -> tuple:
         raise TypeError("CompiledTaylor is rebuilt from the model on each worker, not pickled")
 
 
 class _DenseIndex:
     """numpy index arrays for f, J, the derivative tensors and the mu parts."""
 
-    def __init__(self, layout: _Layout):
+    def __init__(self, layout: _Layout) -> None:
         import numpy as np
 
         self.n = layout.n
@@ -263,7 +264,8 @@ class _DenseIndex:
         return M
 
 
-def compile_taylor(equations, states, parameters, active, order: int) -> CompiledTaylor:
+def compile_taylor(equations: Any, states: Any, parameters: Any, active: Any,
+                   order: int) -> CompiledTaylor:
     """Build a :class:`CompiledTaylor` (see there)."""
     return CompiledTaylor(equations, states, parameters, active, order)
 

@@ -19,6 +19,7 @@ from __future__ import annotations
 
 import random
 from dataclasses import dataclass, replace
+from typing import TYPE_CHECKING, Any, Callable, Sequence
 
 import sympy
 
@@ -30,7 +31,12 @@ from ..algebra.certified import is_numeric
 from ..algebra.polyops import numerator_factors, pair_resultant, rational_field, value_at
 from ..algebra.quadratic import QuadraticElement, QuadraticExtension, lower
 from ..errors import ClosedFormUnavailableError, DegenerateHopfError, NoHopfPointError
+from ..kinds import ConditionStatus, coerce
 from .linear import factor_univariate, hurwitz_determinant, hurwitz_determinants
+
+if TYPE_CHECKING:
+    from ..algebra import Tower
+    from ..algebra.field import Element
 
 __all__ = ["Condition", "CriticalBranch", "CriticalSet", "find_critical_branches",
            "nu_extension"]
@@ -51,7 +57,7 @@ class Condition:
         The quantity that must be positive (or non-zero, see ``relation``).
     relation : str
         ``">"`` or ``"!="``.
-    status : str
+    status : ConditionStatus
         ``"holds"`` (proved under the assumptions), ``"fails"`` (proved false)
         or ``"open"`` (stated, not proved: the result is valid where it holds).
     """
@@ -60,10 +66,13 @@ class Condition:
     description: str
     expr: sympy.Expr
     relation: str
-    status: str
+    status: ConditionStatus
+
+    def __post_init__(self) -> None:
+        coerce(self, status=ConditionStatus)
 
     @property
-    def inequality(self):
+    def inequality(self) -> sympy.Basic:
         if self.relation == ">":
             return sympy.StrictGreaterThan(self.expr, 0, evaluate=False)
         return sympy.Ne(self.expr, 0, evaluate=False)
@@ -79,13 +88,13 @@ class CriticalBranch:
     """
 
     index: int
-    value: object
-    tower: object
-    W: object
+    value: Any
+    tower: Any
+    W: Any
     chi: list
     cofactor: list
     transversality: tuple  # (Re d lambda/d mu, coefficient b of nu in d lambda/d mu)
-    nu_field: object
+    nu_field: Any
     images: dict
     cofactor_factors: tuple = ()
 
@@ -119,13 +128,13 @@ class CriticalSet:
     needs_root: bool = False
 
 
-def nu_extension(tower, W):
+def nu_extension(tower: Tower, W: Element) -> QuadraticExtension:
     """The field ``top(nu)`` with ``nu**2 = -W`` (``nu = i omega``)."""
     W_expr = tower.to_sympy(W)
     return QuadraticExtension(tower.top, -W, "nu", root=sympy.I * sympy.sqrt(W_expr))
 
 
-def _solutions(tower_mu, mu, d, algebraic=False):
+def _solutions(tower_mu, mu, d, algebraic: bool = False):
     """Critical values from ``d = 0``: list of ``(kind, data)`` with kind
     ``"linear"`` (value), ``"quadratic"`` ((c2, c1, c0)), ``"algebraic"``
     (the coefficients of an irreducible factor of degree >= 3, lowest first;
@@ -145,7 +154,7 @@ def _solutions(tower_mu, mu, d, algebraic=False):
     return [o for o in out if o is not None]
 
 
-def norm_to_base(x):
+def norm_to_base(x: Element) -> Element:
     """The norm of a tower element down to the base field (the product of its
     conjugates under every sign change of the radicals)."""
     x = lower(x)
@@ -154,7 +163,7 @@ def norm_to_base(x):
     return x
 
 
-def linear_alternatives(tower_mu, mu, d) -> list:
+def linear_alternatives(tower_mu: Tower, mu: sympy.Symbol, d: Element) -> list:
     """Names of other parameters in which every factor of ``d`` that is not
     linear in ``mu`` is linear: analysing the Hopf set with respect to one of
     them gives it in closed form without square roots."""
@@ -173,7 +182,7 @@ def linear_alternatives(tower_mu, mu, d) -> list:
     return sorted(str(s) for s in candidates or ())
 
 
-def _classify(c, expr, algebraic=False):
+def _classify(c, expr, algebraic: bool = False):
     deg = len(c) - 1
     if deg == 0:
         return None
@@ -272,7 +281,7 @@ def _pair_carriers(factors):
             yield upoly.mul(linear[i], linear[j])
 
 
-def pair_sum_condition(tower, f):
+def pair_sum_condition(tower: Tower, f: Sequence[Element]) -> Element:
     """An element vanishing exactly where two roots of ``f`` sum to zero.
 
     For ``f(l) = E(l^2) + l O(l^2)`` this is the resultant ``Res_s(E, O)``,
@@ -313,8 +322,12 @@ def _pair_sums_vanish(tower, coeffs) -> bool:
     return not pair_sum_condition(tower, coeffs)
 
 
-def find_critical_branches(tower_mu, mu, chi, *, describe=str, accept=None, want=None,
-                           admissible=None):
+def find_critical_branches(tower_mu: Tower, mu: sympy.Symbol, chi: Sequence[Element], *,
+                           describe: Callable[[sympy.Symbol], str] = str,
+                           accept: Callable[[CriticalBranch], bool] | None = None,
+                           want: int | None = None,
+                           admissible: Callable[[CriticalBranch], bool] | None = None
+                           ) -> CriticalSet:
     """The closed-form branches of the critical set.
 
     Candidates are examined in a fixed order: critical values that need no
@@ -333,9 +346,12 @@ def find_critical_branches(tower_mu, mu, chi, *, describe=str, accept=None, want
     when a factor of the critical set may carry branches that were not found
     (no real root at the sample points of a family).
     """
-    notes, branches, degenerate, late = [], [], [], []
+    notes: list = []
+    branches: list = []
+    degenerate: list = []
+    late: list = []
     factors = factor_univariate(tower_mu, chi)
-    info = {"linear_in": (), "rootless": []}
+    info: dict = {"linear_in": (), "rootless": []}
     candidates = _candidates(tower_mu, mu, factors, describe, notes, info)
     examined = rejected = 0
     for f, value, target, d in candidates:
@@ -500,7 +516,7 @@ def _make_branch(tower_mu, mu, chi, f, value, target, index, factors=(), zeros=(
                           (dlam.a, dlam.b), nu_field, images, tuple(parts))
 
 
-def cofactor_hurwitz(branch):
+def cofactor_hurwitz(branch: CriticalBranch) -> list[tuple[str, Element]]:
     """``[(label, Delta)]``: the Hurwitz determinants of each factor of the
     cofactor; all positive iff the other eigenvalues lie in the open left
     half-plane.  Labels are ``"k"`` (one factor) or ``"i_k"`` (factor i)."""

@@ -22,6 +22,8 @@ no user text is involved), for the back ends of :mod:`criticality.local.codegen`
 
 from __future__ import annotations
 
+from typing import Any
+
 import sympy
 
 from .codegen import UnsupportedExpression
@@ -40,7 +42,7 @@ _HALF = sympy.Rational(1, 2)
 class ExpressionGraph:
     """A hash-consed expression graph over numbered arguments ``a0, a1, ...``."""
 
-    def __init__(self):
+    def __init__(self) -> None:
         self.nodes: list = []      # node id -> key tuple
         self.index: dict = {}      # key -> node id
         self._d: dict = {}         # (node, argument) -> derivative node
@@ -56,13 +58,13 @@ class ExpressionGraph:
             self.index[key] = k
         return k
 
-    def const(self, value) -> int:
+    def const(self, value: Any) -> int:
         return self._node(("c", sympy.sympify(value)))
 
     def arg(self, k: int) -> int:
         return self._node(("a", k))
 
-    def value(self, a):
+    def value(self, a: Any) -> Any:
         key = self.nodes[a]
         return key[1] if key[0] == "c" else None
 
@@ -91,7 +93,7 @@ class ExpressionGraph:
     def neg(self, a: int) -> int:
         return self.mul(self.const(-1), a)
 
-    def power(self, a: int, e) -> int:
+    def power(self, a: int, e: Any) -> int:
         """``a ** e`` for a sympy number ``e`` (an integer or a rational)."""
         e = sympy.sympify(e)
         va = self.value(a)
@@ -118,7 +120,7 @@ class ExpressionGraph:
         return self._node(("f", name, a))
 
     # -- from sympy -----------------------------------------------------------------------
-    def from_sympy(self, expr, args: dict, cache: dict | None = None) -> int:
+    def from_sympy(self, expr: Any, args: dict, cache: dict | None = None) -> int:
         """The node of a sympy expression; ``args`` maps symbols to argument numbers."""
         cache = {} if cache is None else cache
         hit = cache.get(expr)
@@ -173,9 +175,9 @@ class ExpressionGraph:
 
     def depends(self, a: int) -> frozenset:
         """The arguments node ``a`` depends on."""
-        cache = getattr(self, "_deps", None)
+        cache: dict[int, frozenset] | None = getattr(self, "_deps", None)
         if cache is None:
-            cache = self._deps = {}
+            cache = self._deps = {}  # type: ignore[var-annotated]  # typed on the line above
         hit = cache.get(a)
         if hit is not None:
             return hit
@@ -252,7 +254,7 @@ class ExpressionGraph:
         raise UnsupportedExpression(f"no derivative rule for {name}")
 
     # -- code -------------------------------------------------------------------------------
-    def source(self, outputs, n_args: int, backend: str) -> str:
+    def source(self, outputs: Any, n_args: int, backend: str) -> str:
         """Python source of ``_generated(args)`` returning the output nodes."""
         need = set()
         stack = list(outputs)

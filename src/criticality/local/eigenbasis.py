@@ -22,10 +22,15 @@ So the other eigenvalues, which usually have no closed form, are never needed.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any, Sequence
+
 from dataclasses import dataclass
 
 from ..algebra.linalg import dot, kernel, matmul, matvec, transpose
 from ..errors import DegenerateHopfError
+
+if TYPE_CHECKING:
+    from ..algebra.field import Element
 
 __all__ = ["Eigenbasis", "critical_eigenbasis"]
 
@@ -56,19 +61,19 @@ class Eigenbasis:
 
     A: list
     A2: list
-    W: object
+    W: Any
     v: list
     Av: list
     q: list
     pbar: list
     w: list
     wA: list
-    qq: object
-    field: object
-    nu_field: object
+    qq: Any  # an element of ``field``
+    field: Any
+    nu_field: Any  # the extension K(nu), nu^2 = -W
     gram: tuple  # ((w.e1, w.e2), (wA.e1, wA.e2), determinant)
 
-    def center_coordinates(self, y):
+    def center_coordinates(self, y: Sequence[Element]) -> tuple[Element, Element]:
         """Coordinates ``(xi1, xi2)`` of the center part of a real vector ``y``
         in the basis ``(e1, e2) = (A v, -v)``."""
         K = self.field
@@ -82,7 +87,8 @@ def _smallest(K, vectors):
     return min(vectors, key=lambda vec: sum(K.size(x) for x in vec if x))
 
 
-def critical_eigenbasis(K, A, W, nu_field) -> Eigenbasis:
+def critical_eigenbasis(K: Any, A: list[list[Element]], W: Element,
+                        nu_field: Any) -> Eigenbasis:
     """Compute the eigen-data at the critical point.
 
     Parameters

@@ -19,11 +19,15 @@ Three ways to fix the steady state ``x0`` the analysis shifts to:
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import TYPE_CHECKING, Any, Sequence
 
 import sympy
 
 from ..errors import EquilibriumNotFoundError, ParameterError
 from ..algebra.signs import NEGATIVE, NONNEGATIVE, POSITIVE, ZERO, SignContext
+
+if TYPE_CHECKING:
+    from ..model.core import Model
 
 __all__ = ["EquilibriumChoice", "given_equilibrium", "solve_equilibria", "select_equilibrium",
            "parametrised_equilibrium"]
@@ -56,7 +60,7 @@ class EquilibriumChoice:
     note: str = ""
 
 
-def given_equilibrium(model, mapping) -> EquilibriumChoice:
+def given_equilibrium(model: Model, mapping: Any) -> EquilibriumChoice:
     """Read a user mapping ``{state: expression}`` (every state must be given)."""
     unknown = [k for k in mapping if k not in model.states]
     if unknown:
@@ -97,7 +101,7 @@ def _match_symbols(model, expr):
     return expr.xreplace(repl) if repl else expr
 
 
-def solve_equilibria(model, equations=None) -> list:
+def solve_equilibria(model: Model, equations: Sequence[sympy.Expr] | None = None) -> list:
     """All equilibria sympy finds, sorted deterministically.
 
     Raises
@@ -128,7 +132,8 @@ def solve_equilibria(model, equations=None) -> list:
                                            sympy.default_sort_key(p)))
 
 
-def select_equilibrium(model, candidates, choice, sign_context: SignContext) -> EquilibriumChoice:
+def select_equilibrium(model: Model, candidates: Sequence, choice: Any,
+                       sign_context: SignContext) -> EquilibriumChoice:
     """Pick one of ``candidates`` by index or by a sign condition."""
     listing = "; ".join(f"[{k}] " + ", ".join(f"{s} = {v}" for s, v in zip(model.states, p))
                         for k, p in enumerate(candidates))
@@ -161,7 +166,7 @@ def select_equilibrium(model, candidates, choice, sign_context: SignContext) -> 
         f"{len(hits)} equilibria are {choice}: {listing}; choose one by index")
 
 
-def parametrised_equilibrium(model, eliminate) -> EquilibriumChoice:
+def parametrised_equilibrium(model: Model, eliminate: Sequence[str]) -> EquilibriumChoice:
     """Solve ``f(x0) = 0`` for the names in ``eliminate`` (parameters and
     states, as many as there are states); other states become free symbols."""
     eliminate = list(eliminate)

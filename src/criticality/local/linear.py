@@ -12,16 +12,22 @@ critical pair.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any, Sequence
+
 from ..algebra import upoly
 from ..algebra.field import clear_denominators
 from ..algebra.linalg import determinant
 from ..algebra.quadratic import QuadraticElement
 
+if TYPE_CHECKING:
+    from ..algebra import Tower
+    from ..algebra.field import Element
+
 __all__ = ["hurwitz_matrix", "hurwitz_determinants",
            "hurwitz_determinant", "factor_univariate"]
 
 
-def hurwitz_matrix(coeffs):
+def hurwitz_matrix(coeffs: Sequence[Element]) -> list[list[Element]]:
     """Hurwitz matrix of ``a0 x^m + a1 x^(m-1) + ... + am`` given as the
     coefficient list lowest degree first; entry (i, j) is ``a_(2j - i)``
     (1-based indices), zero outside 0..m."""
@@ -36,13 +42,13 @@ def hurwitz_matrix(coeffs):
     return [[entry(i, j) for j in range(1, m + 1)] for i in range(1, m + 1)]
 
 
-def hurwitz_determinant(K, coeffs, k: int):
+def hurwitz_determinant(K: Any, coeffs: Sequence[Element], k: int) -> Element:
     """``Delta_k``, the k-th leading principal minor of the Hurwitz matrix."""
     H = hurwitz_matrix(coeffs)
     return determinant(K, [row[:k] for row in H[:k]])
 
 
-def hurwitz_determinants(K, coeffs):
+def hurwitz_determinants(K: Any, coeffs: Sequence[Element]) -> list[Element]:
     """``[Delta_1, ..., Delta_m]`` of a polynomial of degree m.
 
     Computed from Routh's array, whose first column holds the ratios
@@ -57,7 +63,8 @@ def hurwitz_determinants(K, coeffs):
         a = [x * inv for x in a]
     zero = coeffs[0] - coeffs[0]
     prev, cur = a[0::2], a[1::2]
-    out, acc = [], None
+    out: list = []
+    acc = None
     for k in range(1, m + 1):
         pivot = cur[0] if cur else zero
         if not pivot:
@@ -81,7 +88,7 @@ def _base_part(x):
     return x
 
 
-def factor_univariate(tower, coeffs):
+def factor_univariate(tower: Tower, coeffs: Sequence[Element]) -> list:
     """Factor a polynomial in lambda with coefficients in the tower's base field.
 
     Returns a list of ``(factor_coeffs, multiplicity)``, each factor monic in

@@ -81,6 +81,8 @@ package's unit-convention ``c_k`` (equivalently, the unit ``c_k`` is
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any
+
 from dataclasses import dataclass
 
 from ..algebra.linalg import SingularMatrixError, solve
@@ -89,6 +91,11 @@ from ..errors import DegenerateHopfError
 from .prepare import check_order
 from .projection import solve_shifted
 from ..algebra.series import compose
+
+if TYPE_CHECKING:
+    from ..algebra.field import Element
+    from .eigenbasis import Eigenbasis
+    from .taylor import TaylorForms
 
 __all__ = ["NormalizationSeries", "normalization_series", "complex_normal_form",
            "unit_normal_form"]
@@ -208,7 +215,8 @@ def _bordered_resonant(eb, r, alpha):
     return h, N.element(sol[2 * n], sol[2 * n + 1])
 
 
-def normalization_series(taylor, eb, order: int, *, choices=None) -> NormalizationSeries:
+def normalization_series(taylor: TaylorForms, eb: Eigenbasis, order: int, *,
+                         choices: Any = None) -> NormalizationSeries:
     """Solve the homological equations degree by degree up to ``order``.
 
     Parameters
@@ -258,7 +266,7 @@ def normalization_series(taylor, eb, order: int, *, choices=None) -> Normalizati
     return NormalizationSeries(h, tuple(c), order)
 
 
-def complex_normal_form(taylor, eb, order: int) -> tuple:
+def complex_normal_form(taylor: TaylorForms, eb: Eigenbasis, order: int) -> tuple:
     """``(c_1, c_2, ...)`` up to degree ``order`` in the unit-eigenvector
     convention (``<q, q> = 1``), by the normalization method.
 
@@ -271,6 +279,6 @@ def complex_normal_form(taylor, eb, order: int) -> tuple:
     return unit_normal_form(normalization_series(taylor, eb, order), eb.qq)
 
 
-def unit_normal_form(series: NormalizationSeries, qq) -> tuple:
+def unit_normal_form(series: NormalizationSeries, qq: Element) -> tuple:
     """The coefficients of ``series`` divided by ``<q, q>^k``."""
     return tuple(ck / qq ** k for k, ck in enumerate(series.c, start=1))

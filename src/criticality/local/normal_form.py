@@ -22,14 +22,20 @@ to the package's convention (``x - x0 = z q + conj(z q)`` with ``<q, q> = 1``):
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any, Sequence
+
 from math import factorial
 
 from ..algebra.series import add_into, compose_degree, conjugate, derivative, mul
 
+if TYPE_CHECKING:
+    from ..algebra.field import Element
+    from .center_manifold import ReducedSystem
+
 __all__ = ["complexify", "planar_normal_form", "hassard_c1", "unit_coefficients"]
 
 
-def complexify(reduced, N, order: int) -> dict:
+def complexify(reduced: ReducedSystem, N: Any, order: int) -> dict:
     """``G(z, conj z)`` with ``z' = nu z + G`` for the reduced system."""
     W_inv = 1 / reduced.W
     half = N(1) / 2
@@ -53,7 +59,7 @@ def complexify(reduced, N, order: int) -> dict:
     return {m: c for m, c in G.items() if c}
 
 
-def planar_normal_form(G, N, order: int):
+def planar_normal_form(G: dict, N: Any, order: int) -> list[Element]:
     """Normal-form coefficients ``[N_21, N_32, ...]`` up to degree ``order``
     for ``z' = nu z + G(z, conj z)`` (``G`` starts at degree 2)."""
     nu = N.gen
@@ -84,7 +90,7 @@ def planar_normal_form(G, N, order: int):
     return [Nf.get((k + 1, k), N.zero) for k in range(1, (order - 1) // 2 + 1)]
 
 
-def hassard_c1(G, N, W):
+def hassard_c1(G: dict, N: Any, W: Element) -> Element:
     """``c1`` of ``z' = nu z + G`` by the closed formula
     ``c1 = i/(2 omega) (g20 g11 - 2|g11|^2 - |g02|^2/3) + g21/2``,
     ``g_jl = j! l! G_jl`` (same scaling as :func:`planar_normal_form`)."""
@@ -95,7 +101,7 @@ def hassard_c1(G, N, W):
     return N.gen * bracket / (2 * W) + g21 / 2
 
 
-def unit_coefficients(raw, qq):
+def unit_coefficients(raw: Sequence[Element], qq: Element) -> list[Element]:
     """``c_k`` in the unit-eigenvector convention from the coefficients of the
     ``z = xi1 + i xi2/omega`` coordinate: ``4^k raw_k / <q,q>^k``."""
     return [c * (4 ** k) / qq ** k for k, c in enumerate(raw, start=1)]

@@ -30,6 +30,8 @@ each step gains about ``16 - log10(cond)`` digits).
 
 from __future__ import annotations
 
+from typing import Any
+
 from dataclasses import dataclass
 
 import mpmath
@@ -54,18 +56,18 @@ class FloatField:
     zero = 0.0
     one = 1.0
 
-    def __call__(self, value):
+    def __call__(self, value: Any) -> float:
         if hasattr(value, "ext"):
             return value
         return float(value)
 
-    def size(self, x):
+    def size(self, x: Any) -> float:
         return -abs(x)
 
-    def to_sympy(self, x):
+    def to_sympy(self, x: Any) -> sympy.Expr:
         return sympy.Float(x, 15)
 
-    def is_zero(self, x) -> bool:
+    def is_zero(self, x: Any) -> bool:
         return not x
 
 
@@ -74,18 +76,18 @@ class MpField(FloatField):
 
     backend = "mpmath"
 
-    def __init__(self):
+    def __init__(self) -> None:
         self.zero = mpmath.mpf(0)
         self.one = mpmath.mpf(1)
 
-    def __call__(self, value):
+    def __call__(self, value: Any) -> Any:
         if hasattr(value, "ext"):
             return value
         if isinstance(value, sympy.Basic):
             return mpmath.mpf(sympy.N(value, mpmath.mp.dps + 5))
         return mpmath.mpf(value)
 
-    def to_sympy(self, x):
+    def to_sympy(self, x: Any) -> sympy.Expr:
         return sympy.Float(x, mpmath.mp.dps)
 
 
@@ -93,10 +95,10 @@ class MpField(FloatField):
 class HopfPoint:
     """A solution of the Hopf system (float64 numpy arrays, or mpmath lists)."""
 
-    x: object
-    mu: object
-    omega: object
-    q: object            # complex eigenvector, A q = i omega q
+    x: Any
+    mu: Any
+    omega: Any
+    q: Any               # complex eigenvector, A q = i omega q
     params: tuple        # every parameter value (the bifurcation parameter set to mu)
     iterations: int
     distance: float      # scaled max-norm distance of (x, mu) from the guess
@@ -113,7 +115,7 @@ class HopfSystem:
     """The Hopf system of a compiled model with the bifurcation parameter at
     index ``mu_index`` of the parameter vector ``params`` (float values)."""
 
-    def __init__(self, compiled, params, mu_index: int, active_index: int = 0):
+    def __init__(self, compiled: Any, params: Any, mu_index: int, active_index: int = 0) -> None:
         self.ct = compiled
         self.dense = compiled.dense()
         self.params = list(params)
@@ -137,11 +139,11 @@ class HopfSystem:
             return None, p
         return vals, p
 
-    def split(self, y):
+    def split(self, y: Any) -> tuple:
         n = self.n
         return y[:n], y[n], y[n + 1], y[n + 2:2 * n + 2], y[2 * n + 2:3 * n + 2]
 
-    def residual(self, y, c, extra=None):
+    def residual(self, y: Any, c: Any, extra: Any = None) -> tuple:
         np = _np()
         x, mu, om, vr, vi = self.split(y)
         vals, _ = self._values(x, mu, extra)
@@ -152,7 +154,7 @@ class HopfSystem:
                             [c.real @ vr + c.imag @ vi - 1, c.real @ vi - c.imag @ vr]])
         return G, (vals, A)
 
-    def jacobian(self, y, c, cache, param_columns=()):
+    def jacobian(self, y: Any, c: Any, cache: Any, param_columns: Any = ()) -> Any:
         """The Newton matrix; ``param_columns`` adds columns d/d(active k)."""
         np = _np()
         n = self.n
@@ -187,7 +189,7 @@ class HopfSystem:
         return M
 
     # -- the start -----------------------------------------------------------------------
-    def start(self, x, mu):
+    def start(self, x: Any, mu: Any) -> Any:
         """``(y0, c)``: the guess with the eigenvector of the complex pair
         nearest the imaginary axis."""
         np = _np()
@@ -213,7 +215,7 @@ class HopfSystem:
         return y0, c
 
     # -- Newton ----------------------------------------------------------------------------
-    def solve(self, x, mu, *, radius: float = 1.0, tol: float = 1e-12,
+    def solve(self, x: Any, mu: Any, *, radius: float = 1.0, tol: float = 1e-12,
               max_iter: int = 60) -> HopfPoint:
         """Newton's method from the guess ``(x, mu)``, kept within ``radius``."""
         np = _np()
@@ -224,7 +226,7 @@ class HopfSystem:
         y, its, corr, cond = self.newton(y, c, guess, scale, radius, tol, max_iter)
         return self.point(y, guess, scale, its, corr, cond)
 
-    def equilibrium(self, x, mu, scale, radius, max_iter: int = 30):
+    def equilibrium(self, x: Any, mu: Any, scale: Any, radius: Any, max_iter: int = 30) -> Any:
         """A damped Newton solve of ``f(x, mu) = 0`` at the guessed ``mu``
         (the start of the Hopf system); the guess itself if it fails."""
         np = _np()
@@ -255,7 +257,8 @@ class HopfSystem:
                 return x0
         return x if float(np.max(np.abs(F))) < 1e-8 else x0
 
-    def newton(self, y, c, guess, scale, radius, tol, max_iter, extra=None):
+    def newton(self, y: Any, c: Any, guess: Any, scale: Any, radius: Any, tol: Any, max_iter: Any,
+               extra: Any = None) -> Any:
         np = _np()
         n = self.n
         G, cache = self.residual(y, c, extra)
@@ -309,7 +312,7 @@ class HopfSystem:
             "Newton's method on the Hopf system did not converge from the guess (residual "
             f"{norm:.2e} after {max_iter} steps); give a guess closer to the Hopf point")
 
-    def point(self, y, guess, scale, its, corr, cond) -> HopfPoint:
+    def point(self, y: Any, guess: Any, scale: Any, its: Any, corr: Any, cond: Any) -> HopfPoint:
         np = _np()
         x, mu, om, vr, vi = self.split(y)
         q = vr + 1j * vi
@@ -326,7 +329,7 @@ class HopfSystem:
         return HopfPoint(np.array(x), float(mu), float(om), q, tuple(p), its, far, corr, cond)
 
     # -- more digits ---------------------------------------------------------------------
-    def refine(self, pt: HopfPoint, dps: int, params=None, max_iter: int = 60):
+    def refine(self, pt: HopfPoint, dps: int, params: Any = None, max_iter: int = 60) -> tuple:
         """The point at ``dps`` digits (mpmath lists), by simplified Newton steps;
         ``params`` are the parameter values at that precision (default: the
         float values)."""
@@ -415,7 +418,7 @@ def _left_vector_mp(A, omega, q):
     return [x / norm for x in pbar]
 
 
-def eigen_data(compiled, vals, omega, q, backend: str):
+def eigen_data(compiled: Any, vals: Any, omega: Any, q: Any, backend: str) -> tuple:
     """``(A, pbar)`` at the point: the Jacobian (nested lists for mpmath,
     numpy otherwise) and ``conj(p)`` normalised by ``conj(p)^T q = 1``."""
     if backend == "mpmath":
@@ -428,7 +431,7 @@ def eigen_data(compiled, vals, omega, q, backend: str):
     return A, _left_vector(A, omega, q)
 
 
-def engine_eigenbasis(A, omega, q, pbar, K) -> Eigenbasis:
+def engine_eigenbasis(A: Any, omega: Any, q: Any, pbar: Any, K: Any) -> Eigenbasis:
     """The engine's :class:`Eigenbasis` from numeric eigenvectors: ``q = A v +
     nu v`` and ``conj(p) = A^T w + nu w`` with ``nu = i omega`` (so the
     engine's projection formula and normalization method run unchanged over
@@ -457,7 +460,7 @@ def engine_eigenbasis(A, omega, q, pbar, K) -> Eigenbasis:
     return Eigenbasis(A, A2, W, v, Av, qe, pe, w, wA, qq, K, N, gram)
 
 
-def numpy_projection_c1(dense, vals, A, omega, q, pbar):
+def numpy_projection_c1(dense: Any, vals: Any, A: Any, omega: Any, q: Any, pbar: Any) -> Any:
     """``c1`` in the unit convention by the projection formula with dense
     complex solves (Kuznetsov 2004, Section 3.5; see
     :mod:`criticality.local.projection`)."""
@@ -478,7 +481,7 @@ def numpy_projection_c1(dense, vals, A, omega, q, pbar):
     return c1 / np.vdot(q, q).real
 
 
-def numpy_projection_c1_real(dense, vals, A, omega, q, pbar):
+def numpy_projection_c1_real(dense: Any, vals: Any, A: Any, omega: Any, q: Any, pbar: Any) -> Any:
     """The same ``c1`` with the two solves realified (``2n x 2n`` real block
     system for ``(2 i omega I - A) h = r``): a second route whose rounding
     differs, used to estimate the float64 error."""
@@ -502,7 +505,7 @@ def numpy_projection_c1_real(dense, vals, A, omega, q, pbar):
     return (0.5 * t1 - t2 + 0.5 * t3) / float(np.sum(q.real ** 2 + q.imag ** 2))
 
 
-def mp_projection_c1(compiled, vals, A, omega, q, pbar):
+def mp_projection_c1(compiled: Any, vals: Any, A: Any, omega: Any, q: Any, pbar: Any) -> Any:
     """``c1`` in the unit convention by the projection formula with complex
     mpmath solves and the compiled derivative tensors (the second route of
     the mpmath run at order 3; the engine's realified formula is the first)."""
@@ -540,7 +543,7 @@ def mp_projection_c1(compiled, vals, A, omega, q, pbar):
     return c1 / mpmath.fsum(abs(z) ** 2 for z in q)
 
 
-def numpy_transversality(dense, vals, A, q, pbar, k: int):
+def numpy_transversality(dense: Any, vals: Any, A: Any, q: Any, pbar: Any, k: int) -> Any:
     """``d lambda / d mu`` at the point (the equilibrium moves with mu)."""
     np = _np()
     dx = np.linalg.solve(A, -dense.f_param(vals, k))

@@ -17,7 +17,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, replace
 from types import MappingProxyType
-from typing import Any, Callable, Iterable, Mapping
+from typing import Any, Callable, Iterable, Mapping, Sequence, Union
 
 import sympy
 
@@ -34,9 +34,14 @@ from .sign_words import expr, sign_word
 from .solve import SolvedPoint, solve_for
 from .taylor import RawTaylor, TaylorForms, raw_taylor
 
-__all__ = ["PreparedProblem", "prepare", "prepare_system", "check_order", "resolve_parameter",
-           "assumption_map", "choose_equilibrium", "SolvedPoint", "solve_for", "sign_word",
-           "expr"]
+#: how an equilibrium may be given: a mapping state -> value, the values in state order,
+#: the index of a solved equilibrium, a sign word ("positive", "nonnegative", "nonzero"),
+#: or None (the model file's equilibrium, else the only one)
+EquilibriumSpec = Union[Mapping[str, object], Sequence[object], int, str, None]
+
+__all__ = ["EquilibriumSpec", "PreparedProblem", "prepare", "prepare_system", "check_order",
+           "resolve_parameter", "assumption_map", "choose_equilibrium", "SolvedPoint", "solve_for",
+           "sign_word", "expr"]
 
 def check_order(order) -> int:
     """The order of a normal form: an odd integer ``>= 3`` (3 gives ``l1``,

@@ -19,8 +19,15 @@ vector), and ``(2 nu I - A) h = r`` as
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Sequence
+
 from ..algebra.linalg import SingularMatrixError, dot, matvec, solve, solve_vector
 from ..errors import DegenerateHopfError
+
+if TYPE_CHECKING:
+    from ..algebra.field import Element
+    from .eigenbasis import Eigenbasis
+    from .taylor import TaylorForms
 
 __all__ = ["projection_c1", "solve_shifted"]
 
@@ -29,7 +36,7 @@ def _pair(N, x):
     return N.components(x)
 
 
-def solve_shifted(eb, m: int, r):
+def solve_shifted(eb: Eigenbasis, m: int, r: Sequence[Element]) -> list[Element]:
     """Solve ``(m nu I - A) h = r`` for an integer ``m != +-1`` over the real
     field, ``r`` a vector of the nu-extension."""
     K, N, A = eb.field, eb.nu_field, eb.A
@@ -60,7 +67,7 @@ def solve_shifted(eb, m: int, r):
     return [N.element(-(ax - mW * y), -(m * x + ay)) for ax, y, x, ay in zip(AX, Y, X, AY)]
 
 
-def projection_c1(taylor, eb):
+def projection_c1(taylor: TaylorForms, eb: Eigenbasis) -> Element:
     """``c1`` for the eigenvector ``q`` of ``eb`` (not normalised): divide by
     ``<q, q>`` for the unit-eigenvector convention."""
     N = eb.nu_field

@@ -38,8 +38,15 @@ re-derived (the coefficient of ``z^j conj(z)^k / (j! k!)`` in
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 from ..algebra.linalg import SingularMatrixError, dot, solve
 from ..errors import DegenerateHopfError
+
+if TYPE_CHECKING:
+    from ..algebra.field import Element
+    from .eigenbasis import Eigenbasis
+    from .taylor import TaylorForms
 
 __all__ = ["formula_c1_c2"]
 
@@ -76,7 +83,7 @@ def _bordered(eb, r):
     return [row[0] for row in sol[:n]]
 
 
-def formula_c1_c2(taylor, eb):
+def formula_c1_c2(taylor: TaylorForms, eb: Eigenbasis) -> tuple[Element, Element]:
     """``(c_1, c_2)`` by the closed formula, for the eigenvector ``q`` of
     ``eb`` (divide by ``<q, q>`` and ``<q, q>^2`` for the unit convention).
 

@@ -8,21 +8,29 @@ the verdicts of :mod:`criticality.bifurcations`.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 import sympy
 
 from ..algebra.canonical import canonical_expr, factored
 from ..algebra.quadratic import lower
-from ..algebra.signs import NEGATIVE, NONNEGATIVE, NONPOSITIVE, POSITIVE, ZERO, context_for
+from ..algebra.signs import context_for
+from ..kinds import Sign
+
+if TYPE_CHECKING:
+    from ..algebra import Tower
+    from ..algebra.field import Element
+    from ..algebra.signs import SignContext
 
 __all__ = ["sign_word", "expr"]
 
 
-def sign_word(tower, x, ctx) -> str:
+def sign_word(tower: Tower, x: Element, ctx: SignContext | None) -> Sign:
     """``"positive"``, ``"negative"``, ``"zero"``, ``"nonnegative"``,
-    ``"nonpositive"`` or ``"undecided"``."""
+    ``"nonpositive"`` or ``"undecided"`` (a :class:`~criticality.kinds.Sign`)."""
     x = lower(x)
     if not x:
-        return "zero"
+        return Sign.ZERO
     numeric = _numeric_sign(tower, x)
     if numeric is not None:
         return numeric
@@ -31,11 +39,10 @@ def sign_word(tower, x, ctx) -> str:
     try:
         fs = factored(tower, x, ctx)
     except Exception:  # noqa: BLE001 - radicals: no decision
-        return "undecided"
+        return Sign.UNDECIDED
     if fs.undecided:
-        return "undecided"
-    return {POSITIVE: "positive", NEGATIVE: "negative", ZERO: "zero",
-            NONNEGATIVE: "nonnegative", NONPOSITIVE: "nonpositive"}.get(fs.sign, "undecided")
+        return Sign.UNDECIDED
+    return Sign(fs.sign)
 
 
 def _numeric_sign(tower, x):
@@ -49,9 +56,9 @@ def _numeric_sign(tower, x):
     re, im = v.as_real_imag()
     if abs(im) > 1e-40 * max(1, abs(re)) or abs(re) < sympy.Float(10) ** -40:
         return None
-    return "positive" if re > 0 else "negative"
+    return Sign.POSITIVE if re > 0 else Sign.NEGATIVE
 
 
-def expr(tower, x, ctx):
+def expr(tower: Tower, x: Element, ctx: SignContext) -> sympy.Expr:
     """A field element as a compact sympy expression."""
     return canonical_expr(tower, x, ctx)

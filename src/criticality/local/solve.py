@@ -22,13 +22,16 @@ and never left out), and a value at which such an atom is undefined
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import sympy
 
 from ..algebra import Tower
 from ..algebra.quadratic import QuadraticElement, lower
 from .sign_words import sign_word
+
+if TYPE_CHECKING:
+    from ..algebra.field import Element
 
 __all__ = ["LINEAR", "QUADRATIC", "BIQUADRATIC", "UNSOLVED", "closed_form_solutions",
            "branch_values", "SolvedPoint", "solve_for", "dependent_atoms"]
@@ -63,7 +66,8 @@ def _classify(c, biquadratic: bool):
     return None
 
 
-def closed_form_solutions(tower: Tower, x, symbol, *, biquadratic: bool = False) -> list:
+def closed_form_solutions(tower: Tower, x: Element, symbol: sympy.Symbol, *,
+                          biquadratic: bool = False) -> list:
     """The solutions of ``x = 0`` for ``symbol``, factor by factor.
 
     Returns a list of ``(kind, data)``: ``(LINEAR, value)``,
@@ -91,13 +95,13 @@ def closed_form_solutions(tower: Tower, x, symbol, *, biquadratic: bool = False)
     return out
 
 
-def dependent_atoms(tower: Tower, symbol) -> tuple:
+def dependent_atoms(tower: Tower, symbol: sympy.Symbol) -> tuple:
     """The generators of ``tower`` that stand for a transcendental function
     of ``symbol`` (``g0`` for ``log(1/(h + 1))`` when solving for ``h``)."""
     return tuple(a.symbol for a in tower.atoms if a.expr.has(symbol))
 
 
-def _atoms_defined(tower: Tower, target: Tower, symbol, value) -> bool:
+def _atoms_defined(tower: Tower, target: Tower, symbol: sympy.Symbol, value: Element) -> bool:
     """False where an atom that depends on ``symbol`` is undefined at
     ``symbol = value`` (a logarithm of zero, a pole)."""
     dependent = [a for a in tower.atoms if a.expr.has(symbol)]
@@ -111,7 +115,7 @@ def _atoms_defined(tower: Tower, target: Tower, symbol, value) -> bool:
     return True
 
 
-def branch_values(tower: Tower, symbol, solution) -> list:
+def branch_values(tower: Tower, symbol: sympy.Symbol, solution: tuple) -> list:
     """``[(value, target tower)]`` for one solution of
     :func:`closed_form_solutions`: one value for a linear factor, two (with
     the root of the discriminant adjoined, each in its own tower) for a
@@ -155,17 +159,20 @@ class SolvedPoint:
     target: Tower
     images: dict
 
-    def substitute(self, x):
+    def substitute(self, x: Element) -> Element:
         return self.source.substitute(x, self.symbol, self.value, self.target, self.images)
 
 
-def solve_for(tower: Tower, x, symbol, positive: bool = False):
+def solve_for(tower: Tower, x: Element, symbol: sympy.Symbol,
+              positive: bool = False) -> tuple[list[SolvedPoint], list[sympy.Expr]]:
     """Closed-form solutions of ``x = 0`` for ``symbol``: factors of degree
     one or two (and even factors of degree four).  Returns
     ``(points, unsolved)`` with ``points`` a list of :class:`SolvedPoint` and
     ``unsolved`` the sympy factors left alone.  Values proved non-real (or,
     with ``positive``, proved non-positive) are dropped."""
-    points, unsolved, late = [], [], []
+    points: list = []
+    unsolved: list = []
+    late: list = []
     for kind, data in closed_form_solutions(tower, x, symbol, biquadratic=True):
         if kind == UNSOLVED:
             unsolved.append(data)

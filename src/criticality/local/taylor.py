@@ -18,6 +18,8 @@ dictionaries by polarisation (:func:`multilinear`).
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any, Callable, Iterator, Sequence
+
 from dataclasses import dataclass
 from itertools import permutations
 from math import comb, factorial
@@ -25,6 +27,9 @@ from math import comb, factorial
 import sympy
 
 from ..errors import NotAnalyticError
+
+if TYPE_CHECKING:
+    from ..algebra.field import Element
 
 __all__ = ["RawTaylor", "TaylorForms", "raw_taylor", "multilinear"]
 
@@ -43,13 +48,13 @@ class RawTaylor:
     shifted: tuple
     order: int
 
-    def map(self, fn) -> "RawTaylor":
+    def map(self, fn: Callable[[sympy.Expr], sympy.Expr]) -> "RawTaylor":
         """Apply ``fn`` to every coefficient."""
         def apply(part):
             return tuple(None if d is None else {e: fn(c) for e, c in d.items()} for d in part)
         return RawTaylor(apply(self.polynomial), apply(self.shifted), self.order)
 
-    def coefficients(self):
+    def coefficients(self) -> Iterator[sympy.Expr]:
         """Every sympy coefficient (for discovering the field's generators)."""
         for part in (self.polynomial, self.shifted):
             for d in part:
@@ -57,7 +62,9 @@ class RawTaylor:
                     yield from d.values()
 
 
-def raw_taylor(equations, states, equilibrium, order: int, names=None) -> RawTaylor:
+def raw_taylor(equations: Sequence[sympy.Expr], states: Sequence[sympy.Symbol],
+               equilibrium: Sequence[sympy.Expr], order: int,
+               names: Sequence[str] | None = None) -> RawTaylor:
     """Split each right-hand side into polynomial terms or shifted derivatives.
 
     Parameters
@@ -72,7 +79,8 @@ def raw_taylor(equations, states, equilibrium, order: int, names=None) -> RawTay
         State names, for error messages.
     """
     names = names or [str(s) for s in states]
-    polys, shifted = [], []
+    polys: list = []
+    shifted: list = []
     for i, f in enumerate(equations):
         terms = _polynomial_terms(f, states)
         if terms is not None:
@@ -152,7 +160,7 @@ class TaylorForms:
         ``components[i][e]`` is the coefficient of ``u**e`` in component ``i``.
     """
 
-    def __init__(self, field, n: int, order: int, components):
+    def __init__(self, field: Any, n: int, order: int, components: Any) -> None:
         self.field = field
         self.n = n
         self.order = order
@@ -163,7 +171,7 @@ class TaylorForms:
         ]
 
     @classmethod
-    def from_raw(cls, raw: RawTaylor, equilibrium, convert, field) -> "TaylorForms":
+    def from_raw(cls, raw: RawTaylor, equilibrium: Any, convert: Any, field: Any) -> "TaylorForms":
         """Convert ``raw`` into ``field`` (``convert`` maps sympy -> element),
         shifting polynomial components by ``equilibrium`` (field elements)."""
         comps = []
@@ -179,17 +187,17 @@ class TaylorForms:
                 del comp[e]
         return cls(field, n, raw.order, comps)
 
-    def map(self, fn, field) -> "TaylorForms":
+    def map(self, fn: Callable[[Element], Element], field: Any) -> "TaylorForms":
         """Apply a field homomorphism to every coefficient."""
         return TaylorForms(field, self.n, self.order,
                            [{e: fn(c) for e, c in comp.items()} for comp in self.components])
 
-    def residual(self):
+    def residual(self) -> list[Element]:
         """The constant terms (the field at the equilibrium)."""
         zero = (0,) * self.n
         return [comp.get(zero, self.field.zero) for comp in self.components]
 
-    def jacobian(self):
+    def jacobian(self) -> list[list[Element]]:
         K = self.field
         A = [[K.zero] * self.n for _ in range(self.n)]
         for i, comp in enumerate(self.components):
@@ -200,7 +208,7 @@ class TaylorForms:
     def degree_part(self, i: int, k: int) -> dict:
         return self._by_degree[i][k] if k <= self.order else {}
 
-    def form(self, k: int, *vectors):
+    def form(self, k: int, *vectors: Sequence[Element]) -> list[Element]:
         """The symmetric k-linear form ``D^k F(0)[v1, ..., vk]`` (e.g.
         ``form(2, q, q)`` is ``B(q, q)``)."""
         return [multilinear(self.field, self.degree_part(i, k), vectors) for i in range(self.n)]
@@ -241,7 +249,7 @@ def _shift(K, terms, x0, order):
     return out
 
 
-def multilinear(K, part: dict, vectors):
+def multilinear(K: Any, part: dict, vectors: Sequence[Sequence[Element]]) -> Element:
     """``D^k P[v1, ..., vk]`` for a homogeneous part ``{e: c}`` of degree k.
 
     For ``P = c * u**e`` the k-th derivative tensor is ``c * e!`` on the index

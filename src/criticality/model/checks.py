@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import warnings
 from types import MappingProxyType
-from typing import Mapping
+from typing import Any, Mapping
 
 import sympy
 
@@ -85,7 +85,7 @@ class _Assembler:
             elif item in names:
                 self.problem("states", "states", None, f"the state {item!r} is listed twice")
             else:
-                names.append(item)
+                names.append(str(item))
         if not names and not self.problems:
             self.problems.append("the model has no states (give the ordered list of state names)")
         return names
@@ -106,7 +106,7 @@ class _Assembler:
         for name, spec in items:
             self.parameter_names.add(str(name))
             if any(p.name == name for p in result):
-                self.problem(f"parameter {name!r}", "parameters", name, "declared twice")
+                self.problem(f"parameter {name!r}", "parameters", str(name), "declared twice")
                 continue
             parameter = self.parameter(name, spec)
             if parameter is not None:
@@ -120,6 +120,7 @@ class _Assembler:
             self.bad_names.add(str(name))
             self.problem(label, "parameters", None, problem)
             return None
+        assert isinstance(name, str)  # name_problem refuses every other type
         if isinstance(spec, Parameter):
             if spec.name != name:
                 self.problem(label, "parameters", name, f"is given a Parameter named {spec.name!r}")
@@ -154,8 +155,8 @@ class _Assembler:
             return None
         unknown = [k for k in spec if k not in _PARAMETER_KEYS]
         for key in unknown:
-            hint = _suggest(str(key), _PARAMETER_KEYS)
-            hint = f"did you mean {hint[0]!r}? " if hint else ""
+            close = _suggest(str(key), _PARAMETER_KEYS)
+            hint = f"did you mean {close[0]!r}? " if close else ""
             self.problem(label, "parameters", name, f"unknown key {key!r}; {hint}"
                          f"(allowed: {', '.join(_PARAMETER_KEYS)})")
         if unknown:
@@ -189,7 +190,7 @@ class _Assembler:
         """The right-hand sides in state order, and the undeclared names they use."""
         given = self.equation_table(equations, states, symbols)
         unknown: dict[str, str] = {}
-        result = []
+        result: list = []
         for state in states:
             if state not in given:
                 self.problem(f"state {state!r}", "equations", None, "has no equation")
@@ -218,13 +219,13 @@ class _Assembler:
             elif str(name) not in self.bad_names:
                 known = name in symbols or str(name) in self.parameter_names
                 what = "a parameter, not a state" if known else "not a state"
-                hint = _suggest(str(name), states)
-                hint = f"; did you mean {hint[0]!r}?" if hint else ""
+                close = _suggest(str(name), states)
+                hint = f"; did you mean {close[0]!r}?" if close else ""
                 self.problem(f"equation for {str(name)[:40]!r}", "equations", str(name),
                              f"{name!r} is {what}{hint} (states: {', '.join(states) or 'none'})")
         return table
 
-    def expression(self, raw: object, context: str, place: tuple, symbols: Mapping,
+    def expression(self, raw: object, context: str, place: tuple[str, str | None], symbols: Mapping,
                    unknown: dict | None, delayed=None):
         """Parse text or check a sympy expression; None (and a problem) on failure."""
         def collect(name, column):
@@ -298,8 +299,8 @@ class _Assembler:
         for key, raw in equilibrium.items():
             name = _name_of(key)
             if name not in states:
-                hint = _suggest(str(name), states)
-                hint = f"; did you mean {hint[0]!r}?" if hint else ""
+                close = _suggest(str(name), states)
+                hint = f"; did you mean {close[0]!r}?" if close else ""
                 self.problem(f"equilibrium value for {str(name)[:40]!r}", "equilibrium",
                              str(name), f"{name!r} is not a state{hint}")
                 continue
@@ -328,8 +329,8 @@ class _Assembler:
         if name in states:
             message = f"{name!r} is a state; the bifurcation parameter must be a parameter"
         else:
-            hint = _suggest(str(name), names)
-            hint = f"; did you mean {hint[0]!r}?" if hint else ""
+            close = _suggest(str(name), names)
+            hint = f"; did you mean {close[0]!r}?" if close else ""
             message = f"{str(name)[:40]!r} is not a parameter of the model{hint}"
         self.problem("bifurcation_parameter", "bifurcation_parameter", None, message)
         return None
@@ -345,8 +346,8 @@ class _Assembler:
         out = {}
         for key, unit in units.items():
             if key not in states:
-                hint = _suggest(str(key), states)
-                hint = f"did you mean {hint[0]!r}? " if hint else ""
+                close = _suggest(str(key), states)
+                hint = f"did you mean {close[0]!r}? " if close else ""
                 self.problem(f"unit of {str(key)[:40]!r}", "units", str(key),
                              f"{str(key)[:40]!r} is not a state; {hint}(a parameter's unit is "
                              "the key unit in its own table)")
@@ -359,7 +360,7 @@ class _Assembler:
     def run(self, states, equations, parameters, name, description, equilibrium,
             bifurcation_parameter, error=InvalidModelError, units=None) -> dict:
         """Validate everything; return the normalised fields or raise ``error``."""
-        fields = {"name": self.text("name", name),
+        fields: dict[str, Any] = {"name": self.text("name", name),
                   "description": self.text("description", description)}
         state_names = self.states(states)
         declared = self.clashes(state_names, self.parameters(parameters))

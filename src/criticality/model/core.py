@@ -15,8 +15,9 @@ split radicals such as ``sqrt(b*(r - 1))`` behind the engine's back.
 
 from __future__ import annotations
 
+import os
 from types import MappingProxyType
-from typing import Mapping
+from typing import Mapping, Sequence
 
 import sympy
 
@@ -102,10 +103,12 @@ class Model:
     symbols: Mapping[str, sympy.Symbol]
     kind: str
 
-    def __init__(self, states, equations, parameters=None, *, name: str | None = None,
+    def __init__(self, states: Sequence[str], equations: Mapping[str, object] | Sequence[object],
+                 parameters: Mapping[str, object] | Sequence[object] | None = None, *,
+                 name: str | None = None,
                  description: str | None = None, equilibrium: Mapping | None = None,
                  bifurcation_parameter: str | None = None, state_units: Mapping | None = None,
-                 kind: str = "flow"):
+                 kind: str = "flow") -> None:
         problem = _kind_problem(kind)
         if problem is not None:
             raise InvalidModelError([problem])
@@ -156,7 +159,7 @@ class Model:
         return read_model_text(cls, text, source)
 
     @classmethod
-    def from_file(cls, path) -> "Model":
+    def from_file(cls, path: str | os.PathLike[str]) -> "Model":
         """Read a TOML model file; see :meth:`from_text`."""
         from .toml_file import read_model_file
         return read_model_file(cls, path)
@@ -230,8 +233,8 @@ class Model:
         if name in self.states:
             raise ParameterError(f"{name!r} is a state of the model, not a parameter")
         names = [p.name for p in self.parameters]
-        hint = _suggest(str(name), names)
-        hint = f"; did you mean {' or '.join(map(repr, hint))}?" if hint else ""
+        close = _suggest(str(name), names)
+        hint = f"; did you mean {' or '.join(map(repr, close))}?" if close else ""
         listing = f" (parameters: {', '.join(names)})" if names else " (it has no parameters)"
         raise ParameterError(f"the model has no parameter {str(name)[:40]!r}{hint}{listing}")
 
@@ -239,7 +242,7 @@ class Model:
         """The default values of the parameters that have one, by name."""
         return {p.name: p.default for p in self.parameters if p.default is not None}
 
-    def parse(self, text, context: str = "expression") -> sympy.Expr:
+    def parse(self, text: str | sympy.Expr, context: str = "expression") -> sympy.Expr:
         """Read an expression in terms of this model's states and parameters.
 
         Text goes through :func:`~criticality.parse_expression`; sympy
@@ -276,7 +279,7 @@ class Model:
             substitution[parameter.symbol] = value
         return substitution, problems
 
-    def with_values(self, values: Mapping | None = None, /, **more) -> "Model":
+    def with_values(self, values: Mapping | None = None, /, **more: object) -> "Model":
         """A copy with exact values substituted for some parameters.
 
         Values may be numbers (floats are read by their decimal digits), text

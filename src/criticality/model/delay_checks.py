@@ -8,12 +8,20 @@ tau > 0).  Every problem is returned as text, to be listed with the others.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Callable, Sequence
+
 from .delayed import delayed_terms
+
+if TYPE_CHECKING:
+    import sympy
+
+    from .parameter import Parameter
 
 __all__: list[str] = []
 
 
-def delay_problems(states, equations, parameters, at) -> list[str]:
+def delay_problems(states: Sequence[str], equations: Sequence[sympy.Expr],
+                   parameters: Sequence[Parameter], at: Callable[..., str]) -> list[str]:
     """Problems of the delayed terms of the equations (one text each)."""
     by_name = {p.name: p for p in parameters}
     problems: list[str] = []

@@ -11,6 +11,8 @@ delay), several arguments, keywords.
 
 from __future__ import annotations
 
+from typing import Any
+
 import ast
 
 import sympy
@@ -28,7 +30,7 @@ def _plain(ident: str) -> str:
     return ident[len(_KW_PREFIX):] if ident.startswith(_KW_PREFIX) else ident
 
 
-def delayed_call(builder, node) -> sympy.Expr:
+def delayed_call(builder: Any, node: Any) -> sympy.Expr:  # node: an ast.Call on a Name
     """Build ``Delayed(state, delay)`` from the call node ``state(t - delay)``."""
     state = _plain(node.func.id)
     form = f"{state}(t - tau)"

@@ -16,6 +16,8 @@ argument is a state, is checked by the model (:mod:`criticality.model.checks`).
 
 from __future__ import annotations
 
+from typing import Iterable
+
 import sympy
 
 __all__ = ["Delayed", "delayed_terms", "delays_of", "current_form"]
@@ -70,7 +72,7 @@ class Delayed(sympy.Function):
         return printer._print_seq((sympy.Symbol(self._sympystr(sympy.StrPrinter())),))
 
 
-def delayed_terms(expr) -> set:
+def delayed_terms(expr: sympy.Basic) -> set:
     """The :class:`Delayed` objects in an expression (or in several)."""
     if isinstance(expr, (list, tuple)):
         found: set = set()
@@ -80,7 +82,7 @@ def delayed_terms(expr) -> set:
     return set(expr.atoms(Delayed)) if isinstance(expr, sympy.Basic) else set()
 
 
-def delays_of(exprs) -> tuple:
+def delays_of(exprs: Iterable[sympy.Basic]) -> tuple:
     """The distinct delays used by expressions, numbers first (ascending), then symbols by name."""
     delays = {d.delay for d in delayed_terms(list(exprs))}
     numbers = sorted((d for d in delays if d.is_number), key=lambda d: float(d))
@@ -88,7 +90,7 @@ def delays_of(exprs) -> tuple:
     return tuple(numbers + others)
 
 
-def current_form(expr):
+def current_form(expr: sympy.Expr) -> sympy.Expr:
     """The expression with every delayed state replaced by its current value
     (what the equilibria of a retarded equation solve)."""
     terms = delayed_terms(expr)

@@ -119,10 +119,12 @@ class _Builder:
         self.chunk: _Chunk | None = None
 
     def error(self, cls, message: str, node, **kw):
+        assert self.chunk is not None  # set before the first node is visited
         start, end = self.chunk.span(node)
         return self.where.error(cls, message, start, end, **kw)
 
     def piece(self, node) -> str:
+        assert self.chunk is not None
         start, end = self.chunk.span(node)
         return _quote(self.where.text[start:end])
 

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from fractions import Fraction
+from typing import Any
 
 import sympy
 
@@ -31,8 +32,8 @@ def _assumption_problem(assumption: object) -> str | None:
         return None
     if not isinstance(assumption, str):
         return f"the assumption must be a word, not {type(assumption).__name__}"
-    hint = _suggest(assumption, ASSUMPTIONS)
-    hint = f"did you mean {hint[0]!r}? " if hint else ""
+    close = _suggest(assumption, ASSUMPTIONS)
+    hint = f"did you mean {close[0]!r}? " if close else ""
     return f"unknown assumption {assumption!r}; {hint}(one of {', '.join(ASSUMPTIONS)})"
 
 
@@ -123,6 +124,6 @@ class Parameter:
         return sympy.Symbol(self.name, real=True)
 
 
-def _name_of(key: object) -> object:
+def _name_of(key: object) -> Any:
     """A name given as a string or as a sympy symbol (matched by name)."""
     return key.name if isinstance(key, sympy.Symbol) else key

@@ -10,7 +10,7 @@ unchanged.
 from __future__ import annotations
 
 from fractions import Fraction
-from typing import Callable, Mapping
+from typing import Any, Callable, Mapping
 
 import mpmath
 import sympy
@@ -81,7 +81,7 @@ def convert_sympy(expr, symbols: Mapping[str, sympy.Expr] | None = None, *,
     ExpressionLimitError
         A power with a numeric exponent beyond ``MAX_EXPONENT``.
     """
-    where = {"context": context, "line": line}
+    where: dict[str, Any] = {"context": context, "line": line}
     if isinstance(expr, bool) or not isinstance(expr, (int, float, Fraction, sympy.Expr)):
         raise ForbiddenExpressionError(f"expected an expression, found {type(expr).__name__} "
                                        f"{_short(expr)}", **where)
@@ -188,7 +188,7 @@ def _short(obj) -> str:
 # -- printing ----------------------------------------------------------------
 
 
-def format_expression(expr) -> str:
+def format_expression(expr: sympy.Expr | int | float) -> str:
     """Write an expression in the model syntax.
 
     ``parse_expression(format_expression(e)) == e`` for every expression of
@@ -265,7 +265,7 @@ def _wrap(text: str, prec: int, least: int) -> str:
 
 
 def _sum(e) -> tuple[str, int]:
-    out = []
+    out: list[str] = []
     for term in e.as_ordered_terms():
         coeff = term.as_coeff_Mul()[0]
         negative = coeff.is_extended_negative

@@ -195,7 +195,7 @@ def _scan(text: str, where: _Where) -> list[tuple[str, int, int, str]]:
     tokens: list[tuple[str, int, int, str]] = []
     depth = signs = 0
     for m in _SCAN.finditer(text):
-        kind, s, e, piece = m.lastgroup, m.start(), m.end(), m.group()
+        kind, s, e, piece = m.lastgroup or "", m.start(), m.end(), m.group()
         if kind == "other":
             if piece in "([{":
                 depth += 1

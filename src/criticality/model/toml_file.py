@@ -119,8 +119,8 @@ def read_model_text(cls, text: str, source: str | None = None):
     problems = []
     for key in data:
         if key not in TOP_KEYS:
-            hint = _suggest(key, TOP_KEYS)
-            hint = f"did you mean {hint[0]!r}? " if hint else ""
+            close = _suggest(key, TOP_KEYS)
+            hint = f"did you mean {close[0]!r}? " if close else ""
             at = lines.locate(key)
             problems.append(f"{f'line {at}: ' if at else ''}unknown key {key!r}; {hint}"
                             f"(allowed: {', '.join(TOP_KEYS)})")

@@ -16,7 +16,7 @@ both.
 from __future__ import annotations
 
 import json
-from typing import Any, Mapping
+from typing import Any, Mapping, Sequence
 
 from .render import CAUTIONS
 from ..errors import ModelFileError
@@ -29,8 +29,9 @@ SCHEMA_VERSION = 1
 READABLE_VERSIONS = (1, "1")
 
 
-def envelope(schema: str, analysis: str, body: Mapping[str, Any], *, status: str,
-             conventions: Any, notes=(), cautions=CAUTIONS, tail: Mapping | None = None) -> dict:
+def envelope(schema: str, analysis: str, body: Mapping[str, Any], *, status: str, conventions: Any,
+             notes: Sequence[str] = (), cautions: Sequence[str] = CAUTIONS,
+             tail: Mapping | None = None) -> dict:
     """The document of one result: the shared head, ``body``, notes,
     cautions, then ``tail`` (keys that belong after the cautions).
 

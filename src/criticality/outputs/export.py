@@ -17,6 +17,8 @@ keywords, C keywords and ``math.h`` functions) get a trailing underscore.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 import keyword
 import textwrap
 
@@ -24,6 +26,9 @@ import sympy
 
 from .render import CAUTIONS, per_offset, split_complex
 from ..renderers import register_renderer
+
+if TYPE_CHECKING:
+    from ..hopf_analysis.results import HopfResult
 
 __all__ = ["exported_quantities", "numpy_module", "c_code", "export_arguments"]
 
@@ -48,7 +53,7 @@ def _usable(expr) -> bool:
     return not expr.has(sympy.I, sympy.nan, sympy.zoo, sympy.oo, -sympy.oo)
 
 
-def exported_quantities(result) -> dict:
+def exported_quantities(result: HopfResult) -> dict:
     """Name -> ``(description, expression)`` of every closed form exported."""
     name = result.parameter
     re_c1, _ = split_complex(result.c1)
@@ -75,7 +80,7 @@ def exported_quantities(result) -> dict:
     return {key: (words, sympy.sympify(e)) for key, (words, e) in table.items() if _usable(e)}
 
 
-def export_arguments(result, quantities: dict | None = None) -> tuple:
+def export_arguments(result: HopfResult, quantities: dict | None = None) -> tuple:
     """The parameters the exported closed forms depend on, in model order."""
     quantities = exported_quantities(result) if quantities is None else quantities
     used = set()
@@ -105,7 +110,7 @@ def _header_lines(result) -> list:
             *CAUTIONS]
 
 
-def numpy_module(result) -> str:
+def numpy_module(result: HopfResult) -> str:
     """A standalone Python module (numpy only) with one function per
     closed form; arguments are numbers or numpy arrays.
 
@@ -137,7 +142,7 @@ def numpy_module(result) -> str:
     return "\n".join(out)
 
 
-def c_code(result, prefix: str = "hopf_") -> str:
+def c_code(result: HopfResult, prefix: str = "hopf_") -> str:
     """C99 code (``math.h`` only): one ``double`` function per closed form,
     named ``prefix + quantity``.
 

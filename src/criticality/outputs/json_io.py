@@ -19,7 +19,7 @@ significant digits.
 from __future__ import annotations
 
 import json
-from typing import Mapping
+from typing import TYPE_CHECKING, Any, Mapping
 
 import mpmath
 import sympy
@@ -28,6 +28,9 @@ from .envelope import SCHEMA_VERSION, envelope, read_document
 from .render import CAUTIONS, split_complex, try_model_text
 from ..renderers import register_renderer
 from ..model.expressions import parse_expression
+
+if TYPE_CHECKING:
+    from ..hopf_analysis.results import HopfResult
 
 __all__ = ["SCHEMA", "SCHEMA_VERSION", "result_to_json", "result_to_dict", "read_expressions",
            "result_expressions"]
@@ -50,7 +53,7 @@ def _expr(value):
     return text if text is not None else {"unrepresentable": sympy.sstr(value)}
 
 
-def nu_to_complex(value) -> dict:
+def nu_to_complex(value: Any) -> dict:
     re, im = split_complex(value)
     return {"re": _expr(re), "im": _expr(im)}
 
@@ -127,7 +130,7 @@ def _numeric_fields(num, digits: int) -> dict:
     }
 
 
-def result_to_dict(result, *, point: Mapping | None = None, digits: int = 30) -> dict:
+def result_to_dict(result: HopfResult, *, point: Mapping | None = None, digits: int = 30) -> dict:
     """The result as plain Python data in the JSON schema (see
     :func:`result_to_json`)."""
     conventions = result.conventions
@@ -166,7 +169,7 @@ def result_to_dict(result, *, point: Mapping | None = None, digits: int = 30) ->
                     tail={"numeric": None if point is None else _numeric(result, point, digits)})
 
 
-def result_to_json(result, *, point: Mapping | None = None, digits: int = 30,
+def result_to_json(result: HopfResult, *, point: Mapping | None = None, digits: int = 30,
                    indent: int | None = 2) -> str:
     """The result as a JSON document (schema ``criticality/hopf-result``, version 1).
 
@@ -205,16 +208,16 @@ def _walk(doc: dict) -> list:
     """``(path, text)`` of every exact expression in a document."""
     out = []
 
-    def add(path, value):
+    def add(path, value) -> None:
         if isinstance(value, str):
             out.append((path, value))
 
-    def add_complex(path, value):
+    def add_complex(path, value) -> None:
         if isinstance(value, dict):
             add(path + ".re", value.get("re"))
             add(path + ".im", value.get("im"))
 
-    def add_relation(path, value):
+    def add_relation(path, value) -> None:
         if isinstance(value, dict):
             add(path + ".expression", value.get("expression"))
 
@@ -281,7 +284,7 @@ def read_expressions(json_text: str, *, exact: bool | None = None) -> dict:
     return out
 
 
-def result_expressions(result) -> dict:
+def result_expressions(result: HopfResult) -> dict:
     """The result's own expressions under the paths :func:`read_expressions`
     uses (only those the model syntax can write), for comparisons."""
     doc = result_to_dict(result)

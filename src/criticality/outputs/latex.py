@@ -23,11 +23,16 @@ Model names are typeset without ever colliding with LaTeX macros (``E``,
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 import sympy
 
 from ..renderers import register_renderer
 from .latex_expr import latex_name
 from .latex_sections import Document, report_body
+
+if TYPE_CHECKING:
+    from ..hopf_analysis.results import HopfResult
 
 __all__ = ["result_to_latex", "result_to_notebook_latex", "latex_report", "latex_name"]
 
@@ -74,7 +79,7 @@ def _with_definitions(doc: Document, rows: list, environment: str) -> list:
     return rows + ["&\\text{where}"] + definitions
 
 
-def result_to_latex(result, width: float = 40) -> str:
+def result_to_latex(result: HopfResult, width: float = 40) -> str:
     """Every quantity of ``result`` as a row of one ``align*`` block.
 
     Parameters
@@ -103,7 +108,7 @@ def result_to_latex(result, width: float = 40) -> str:
     return doc.block(rows)
 
 
-def result_to_notebook_latex(result, width: float = 70) -> str:
+def result_to_notebook_latex(result: HopfResult, width: float = 70) -> str:
     """A compact ``$$\\begin{aligned} ... \\end{aligned}$$`` block for
     Jupyter (``_repr_latex_``): the critical value, the frequency, ``l1``
     and the verdict."""
@@ -120,7 +125,7 @@ def result_to_notebook_latex(result, width: float = 70) -> str:
     return "$$\\begin{aligned}\n" + " \\\\\n".join(rows) + "\n\\end{aligned}$$"
 
 
-def latex_report(result, width: float = 66, fragment: bool = False) -> str:
+def latex_report(result: HopfResult, width: float = 66, fragment: bool = False) -> str:
     """A standalone LaTeX document with the whole derivation of ``result``.
 
     It compiles with pdflatex using only amsmath, amssymb, geometry and

@@ -19,6 +19,8 @@ Pipeline place: result -> **LaTeX expressions** -> :mod:`criticality.outputs.lat
 
 from __future__ import annotations
 
+from typing import Sequence
+
 import re
 
 import sympy
@@ -89,7 +91,7 @@ class Notation:
         Placeholder name -> LaTeX, for the printer.
     """
 
-    def __init__(self, model_names):
+    def __init__(self, model_names: Sequence[str]) -> None:
         taken = {latex_name(n) for n in model_names}
         taken |= {t.split("_")[0] for t in taken}
 
@@ -114,11 +116,11 @@ class Notation:
 class _Printer(LatexPrinter):
     """sympy's LaTeX printer with collision-free symbol names."""
 
-    def __init__(self, names: dict):
+    def __init__(self, names: dict) -> None:
         super().__init__({"mul_symbol": None, "ln_notation": False})
         self._names = names
 
-    def _print_Symbol(self, expr, style="plain"):
+    def _print_Symbol(self, expr, style: str = "plain"):
         known = self._names.get(expr.name)
         return known if known is not None else latex_name(expr.name)
 
@@ -148,7 +150,7 @@ class TexWriter:
         Sums wider than this inside a larger expression get a name.
     """
 
-    def __init__(self, notation: Notation, width: float = 40, threshold: float = 22):
+    def __init__(self, notation: Notation, width: float = 40, threshold: float = 22) -> None:
         self.notation = notation
         self.width = width
         self.threshold = threshold
@@ -163,7 +165,8 @@ class TexWriter:
         self.atoms: dict = {}
         self._atoms_used: set = set()
 
-    def name_atoms(self, exprs, min_count: int = 2, min_width: float = 6) -> None:
+    def name_atoms(self, exprs: Sequence[sympy.Expr], min_count: int = 2,
+                   min_width: float = 6) -> None:
         """Name the non-polynomial subexpressions (logarithms, exponentials,
         radicals, roots) that occur at least ``min_count`` times in
         ``exprs`` and are wider than ``min_width``: each is printed as
@@ -189,7 +192,7 @@ class TexWriter:
         return symbol
 
     # -- measuring --------------------------------------------------------------------
-    def measure(self, e) -> float:
+    def measure(self, e: sympy.Expr) -> float:
         """Approximate printed width of ``e`` (fractions count their wider part)."""
         key = e
         if key in self._memo:
@@ -255,7 +258,7 @@ class TexWriter:
             return self._symbol_for(new)
         return new
 
-    def shorten(self, e):
+    def shorten(self, e: sympy.Expr) -> sympy.Expr:
         """``e`` with wide inner sums replaced by named factors, and the
         numerator or denominator of a fraction that is still too wide named
         as a whole."""
@@ -291,11 +294,11 @@ class TexWriter:
         return out
 
     # -- printing -------------------------------------------------------------------------
-    def tex(self, e) -> str:
+    def tex(self, e: sympy.Expr) -> str:
         """LaTeX of ``e`` as it stands (no naming, no breaking)."""
         return self.printer.doprint(e)
 
-    def pieces(self, e, width: float | None = None) -> list:
+    def pieces(self, e: sympy.Expr, width: float | None = None) -> list:
         """``e`` (already shortened) as LaTeX lines no wider than ``width``,
         broken between the terms of a sum."""
         width = self.width if width is None else width
@@ -331,7 +334,9 @@ class TexWriter:
         num, den = sympy.fraction(e, exact=True)
         if den != 1:
             return [self.tex(e)]
-        lines, current, used = [], [], 0.0
+        lines: list = []
+        current: list = []
+        used = 0.0
         for factor in e.as_ordered_factors():
             size = self.measure(factor) + 1.5 * factor.is_Add
             if current and used + size > width:
@@ -347,7 +352,7 @@ class TexWriter:
             out.append(text if k == 0 else "{}\\cdot " + text)
         return out
 
-    def align_rows(self, lhs: str, e, width: float | None = None, relation: str = "=",
+    def align_rows(self, lhs: str, e: sympy.Expr, width: float | None = None, relation: str = "=",
                    fit: bool = True) -> list:
         """Rows of an ``align*`` block for ``lhs = e`` (``e`` shortened here)."""
         short = self.shorten(e) if fit else self._rebuild(sympy.sympify(e), True)

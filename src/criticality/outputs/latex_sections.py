@@ -11,6 +11,8 @@ defined right after the first block that uses them.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 import sympy
 
 from .escape import tex_text
@@ -19,6 +21,9 @@ from .prose import prose_to_tex
 from .render import (CAUTIONS, classification_sentence, per_offset, reduced_system_or_none,
                       split_complex, transversality_sentence)
 from ..hopf_analysis.results import CONVENTIONS
+
+if TYPE_CHECKING:
+    from ..hopf_analysis.results import HopfResult
 
 __all__ = ["Document", "report_body", "tex_text", "join_rows"]
 
@@ -61,7 +66,8 @@ def _named_candidates(result, bases) -> list:
 class Document:
     """Shared state of one LaTeX document for one result."""
 
-    def __init__(self, result, width: float, threshold: float, zero_left: bool = False):
+    def __init__(self, result: HopfResult, width: float, threshold: float,
+                 zero_left: bool = False) -> None:
         self.result = result
         self.zero_left = zero_left
         names = set(result.model.symbols) | set(result.substitutions) | {result.parameter}
@@ -84,14 +90,14 @@ class Document:
         self.writer.name_atoms(_named_candidates(result, self._bases))
 
     # -- expressions ------------------------------------------------------------------
-    def split(self, expr) -> tuple:
+    def split(self, expr: sympy.Expr) -> tuple:
         return split_complex(expr)
 
     def _has_radical(self, e) -> bool:
         return any(p.base in self._bases and p.exp.is_Rational and p.exp.q == 2
                    for p in e.atoms(sympy.Pow))
 
-    def with_omega(self, e):
+    def with_omega(self, e: sympy.Expr) -> sympy.Expr:
         """``e`` with the frequency written as the symbol omega where it
         appears as a factor (``l1 = R / omega`` rather than a radical)."""
         e = sympy.sympify(e)
@@ -111,7 +117,7 @@ class Document:
                     best = (size, candidate)
         return e if best is None else best[1]
 
-    def over_omega(self, e):
+    def over_omega(self, e: sympy.Expr) -> sympy.Expr:
         """``e`` written as ``(e*omega)/omega`` (for ``l_k = Re(c_k)/omega``)."""
         e = sympy.sympify(e)
         if not self._bases:
@@ -119,7 +125,7 @@ class Document:
         t = e * self._omega_expr
         return self.with_omega(e) if self._has_radical(t) else t * self.omega ** -1
 
-    def complex_with_omega(self, e):
+    def complex_with_omega(self, e: sympy.Expr) -> sympy.Expr:
         """``re + i*im`` with the frequency factored out of both parts."""
         re, im = split_complex(e)
         return sympy.Add(self.with_omega(re), sympy.I * self.with_omega(im))
@@ -127,7 +133,7 @@ class Document:
     def relation(self, op: str) -> str:
         return _RELATIONS.get(op, op)
 
-    def inequality_rows(self, rel) -> list:
+    def inequality_rows(self, rel: sympy.Basic) -> list:
         """Rows for a relational ``lhs > 0``: the deciding expression on the
         left and 0 on the right (``0 < lhs`` with ``zero_left``, the form of
         the quantity block)."""
@@ -135,7 +141,7 @@ class Document:
             return self.aligned_relation_rows(rel.lhs - rel.rhs, self.relation(rel.rel_op))
         return self.relation_rows(rel.lhs - rel.rhs, self.relation(rel.rel_op))
 
-    def aligned_relation_rows(self, expr, relation: str) -> list:
+    def aligned_relation_rows(self, expr: sympy.Expr, relation: str) -> list:
         """``expr &relation 0`` for the quantity block (the relation aligned
         with the block's ``=`` signs, the deciding expression on the left);
         an expression too long for one row is broken as in
@@ -146,7 +152,7 @@ class Document:
             return [f"{lines[0]} &{relation} 0"]
         return self.relation_rows(expr, relation)
 
-    def relation_rows(self, expr, relation: str) -> list:
+    def relation_rows(self, expr: sympy.Expr, relation: str) -> list:
         """``expr relation 0`` as rows: the expression, broken as needed, then
         the relation on the last row."""
         w = self.writer
@@ -176,7 +182,7 @@ class Document:
             out += "\nwhere\n" + self.block(definitions)
         return out
 
-    def matrix_rows(self, lhs: str, matrix) -> list:
+    def matrix_rows(self, lhs: str, matrix: sympy.Matrix) -> list:
         w = self.writer
         entries = [[w.shorten(self.with_omega(x)) for x in row] for row in matrix.tolist()]
         cols = len(entries[0]) if entries else 0

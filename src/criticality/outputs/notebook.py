@@ -12,6 +12,8 @@ LaTeX (``$...$``), which Jupyter typesets.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Sequence
+
 import html
 
 import mpmath
@@ -21,6 +23,9 @@ from .latex_expr import latex_name
 from ..algebra.canonical import compact
 from .render import model_text
 from ..renderers import register_renderer
+
+if TYPE_CHECKING:
+    from ..hopf_analysis.results import HopfResult
 
 __all__ = ["html_table", "markdown_table", "hopf_rows"]
 
@@ -60,7 +65,7 @@ def _tex(value) -> str:
     return str(value).replace("|", "\\|")
 
 
-def html_table(title: str, rows, paragraphs=()) -> str:
+def html_table(title: str, rows: Sequence[tuple], paragraphs: Sequence[str] = ()) -> str:
     """``rows`` of ``(label, value)`` as an HTML table under a heading."""
     body = "".join(f"<tr><th style=\"text-align:left\">{html.escape(label)}</th>"
                    f"<td style=\"text-align:left\"><code>{html.escape(_plain(value))}</code>"
@@ -74,14 +79,14 @@ def _cell(text: str) -> str:
     return str(text).replace("|", "\\|")
 
 
-def markdown_table(title: str, rows, paragraphs=()) -> str:
+def markdown_table(title: str, rows: Sequence[tuple], paragraphs: Sequence[str] = ()) -> str:
     """``rows`` of ``(label, value)`` as a Markdown table, values in LaTeX."""
     lines = [f"**{title}**", "", "| quantity | value |", "|---|---|"]
     lines += [f"| {_cell(label)} | {_tex(value)} |" for label, value in rows]
     return "\n".join(lines + [""] + [f"{p}\n" for p in paragraphs]).rstrip() + "\n"
 
 
-def hopf_rows(result) -> list:
+def hopf_rows(result: HopfResult) -> list:
     """The main quantities of a Hopf result, as ``(label, value)``."""
     name = result.parameter
     rows = [(f"critical value {name}_c", result.critical_value),
@@ -127,7 +132,7 @@ _TITLES = {"fold": lambda r: f"{r.kind.capitalize()} point in {r.parameter}",
            "hopf_hopf": lambda r: f"Hopf-Hopf point in ({', '.join(r.parameters)})"}
 
 
-def _listed(kind: str):
+def _listed(kind: str) -> None:
     title = _TITLES[kind]
 
     def rows(r):

@@ -24,13 +24,19 @@ import io
 import math
 import os
 from dataclasses import dataclass
-from typing import Mapping, Sequence
+from typing import TYPE_CHECKING, Any, Mapping, Sequence
 
 from ..files import write_bytes_atomic
 from ..errors import MissingExtraError, ParameterError
+from ..kinds import Classification
 from ..checks.plane import (CurveData, StabilityGrid, curve_data, feasibility_grid,
                             stability_grid, write_curve_csv)
 from .latex_expr import latex_name
+
+if TYPE_CHECKING:
+    from ..model.core import Model
+    from ..checks.validation_report import ValidationReport
+    from ..hopf_analysis.results import HopfResult
 
 __all__ = ["PlaneDiagram", "AmplitudePlot", "plot_parameter_plane", "plot_amplitude",
            "save_figure", "write_curve_csv", "curve_data", "axis_label"]
@@ -89,11 +95,12 @@ def _runs(curve: CurveData):
         if curve.segment[i] < 0 or not math.isfinite(curve.l1[i]) or curve.l1[i] == 0:
             i += 1
             continue
-        kind = "supercritical" if curve.l1[i] < 0 else "subcritical"
+        kind = Classification.SUPERCRITICAL if curve.l1[i] < 0 else Classification.SUBCRITICAL
         key = (curve.segment[i], kind, bool(curve.others_stable[i]))
         j = i + 1
         while j < n and curve.segment[j] == key[0] and (
-                "supercritical" if curve.l1[j] < 0 else "subcritical") == kind and bool(
+                Classification.SUPERCRITICAL if curve.l1[j] < 0 else Classification.SUBCRITICAL
+        ) == kind and bool(
                 curve.others_stable[j]) == key[2]:
             j += 1
         stop = j + 1 if j < n and curve.segment[j] == key[0] else j  # join to the next run
@@ -101,7 +108,7 @@ def _runs(curve: CurveData):
         i = j
 
 
-def _draw_curve(ax, curve, artists):
+def _draw_curve(ax, curve, artists) -> None:
     for kind, others, part in _runs(curve):
         label = _LABEL[kind] + ("" if others else ", other eigenvalues unstable")
         style = dict(_STYLE[kind], alpha=1.0 if others else 0.4)
@@ -119,7 +126,7 @@ def _math(name: str) -> str:
     return "$" + latex_name(name) + "$"
 
 
-def axis_label(model, name: str) -> str:
+def axis_label(model: Model, name: str) -> str:
     """An axis label from the model: the description, the name in math and
     the unit (``"sinking loss rate $v$ [1/day]"``); the bare name when the
     model gives neither."""
@@ -136,7 +143,7 @@ def axis_label(model, name: str) -> str:
     return text + (f" [{unit}]" if unit else "")
 
 
-def _draw_infeasible(ax, feasible, artists):
+def _draw_infeasible(ax, feasible, artists) -> None:
     from matplotlib.patches import Patch
 
     X, Y, ok = feasible
@@ -148,7 +155,7 @@ def _draw_infeasible(ax, feasible, artists):
     artists["equilibrium not feasible"] = [region, proxy]
 
 
-def _draw_stability(ax, grid, artists, feasible=None):
+def _draw_stability(ax, grid, artists, feasible=None) -> None:
     from matplotlib.patches import Patch
 
     stable = grid.stable if feasible is None else grid.stable & feasible[2]
@@ -161,13 +168,14 @@ def _draw_stability(ax, grid, artists, feasible=None):
     artists["equilibrium stable"] = [region, proxy]
 
 
-def plot_parameter_plane(result, x: str, y: str, *, values: Mapping | None = None,
+def plot_parameter_plane(result: HopfResult, x: str, y: str, *, values: Mapping | None = None,
                          x_range: Sequence[float] = (0.0, 1.0),
-                         y_range: Sequence[float] = (0.0, 1.0), ax=None, points: int = 400,
+                         y_range: Sequence[float] = (0.0, 1.0), ax: Any = None,
+                         points: int = 400,
                          shade: bool = True, stability: str = "closed form",
-                         shade_points: int = 200, figsize=(6.4, 4.8), dpi: int = 100,
-                         title: str | None = None, legend: bool = True,
-                         feasible=None) -> PlaneDiagram:
+                         shade_points: int = 200, figsize: tuple[float, float] = (6.4, 4.8),
+                         dpi: int = 100, title: str | None = None, legend: bool = True,
+                         feasible: Any = None) -> PlaneDiagram:
     """Draw the Hopf curve of ``result`` in the ``(x, y)`` parameter plane.
 
     Parameters
@@ -295,10 +303,11 @@ def _frequency_slope(result, num) -> float:
     return float(sympy.re(value)) if value.is_number else 0.0
 
 
-def plot_amplitude(result, values: Mapping | None = None, *, states: Sequence[str] | None = None,
-                   simulated=None, offset_range=None, ax=None, points: int = 200,
-                   figsize=(6.4, 4.8), dpi: int = 100, title: str | None = None,
-                   **kwargs) -> AmplitudePlot:
+def plot_amplitude(result: HopfResult, values: Mapping | None = None, *,
+                   states: Sequence[str] | None = None, simulated: ValidationReport | None = None,
+                   offset_range: Sequence[float] | None = None, ax: Any = None,
+                   points: int = 200, figsize: tuple[float, float] = (6.4, 4.8),
+                   dpi: int = 100, title: str | None = None, **kwargs: Any) -> AmplitudePlot:
     """Amplitude of each state against the bifurcation parameter.
 
     The predicted cycle ``sqrt(k_j (mu - mu_c))`` is drawn on the side where
@@ -358,7 +367,7 @@ def plot_amplitude(result, values: Mapping | None = None, *, states: Sequence[st
     return AmplitudePlot(fig, ax, mu, predicted, artists)
 
 
-def _draw_simulated(ax, report, chosen, artists):
+def _draw_simulated(ax, report, chosen, artists) -> None:
     for i, s in enumerate(chosen):
         pts = [(m.mu, m.measured_amplitudes[s]) for m in report.measurements
                if m.measured and s in m.measured_amplitudes]
@@ -391,7 +400,8 @@ def _figure_of(thing):
                          f"'figure'); got {type(thing).__name__}")
 
 
-def save_figure(figure, path, *, force: bool = False, dpi: int | None = None) -> str:
+def save_figure(figure: Any, path: str | os.PathLike[str], *, force: bool = False,
+                dpi: int | None = None) -> str:
     """Write ``figure`` to ``path`` (PNG, SVG or PDF, from the suffix) atomically.
 
     ``figure`` is a matplotlib Figure or Axes, or any plot object this

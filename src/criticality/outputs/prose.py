@@ -17,6 +17,8 @@ quotes or one that is not also a short English word.
 
 from __future__ import annotations
 
+from typing import Iterable, Sequence
+
 import re
 
 from .escape import tex_text
@@ -190,7 +192,8 @@ def formula_to_tex(text: str) -> str:
     >>> print(formula_to_tex("Re d lambda / d mu != 0"))
     \operatorname{Re} d \lambda/d \mu \neq 0
     """
-    chunks, previous = [[]], None
+    chunks: list[list] = [[]]
+    previous = None
     for token in _TOKEN.findall(text):
         if previous is not None and re.fullmatch(r"[A-Za-z0-9_.]+'?", token) and \
                 re.fullmatch(r"[A-Za-z0-9_.)]+'?", previous):
@@ -216,7 +219,7 @@ def _is_formula(span: str, names: frozenset, quoted: bool) -> bool:
     return False
 
 
-def prose_to_tex(text: str, names=()) -> str:
+def prose_to_tex(text: str, names: Iterable[str] = ()) -> str:
     r"""Prose made LaTeX: formulas in math mode, the rest escaped.
 
     Parameters
@@ -259,7 +262,7 @@ def prose_to_tex(text: str, names=()) -> str:
 
 def _pieces(text: str):
     """Known phrases (with their LaTeX) and candidate formulas, in order."""
-    found = []
+    found: list[tuple[int, int, str | None]] = []
     for phrase, tex in _PHRASES.items():
         for match in re.finditer(re.escape(phrase), text):
             if not any(s < match.end() and match.start() < e for s, e, _ in found):

@@ -10,10 +10,16 @@ verdict, the cycle and the cautions, so that every output says the same thing.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any
+
 import sympy
 
 from ..errors import CriticalityError
+from ..kinds import Classification, Side
 from ..model.expressions import format_expression
+
+if TYPE_CHECKING:
+    from ..hopf_analysis.results import HopfResult, ReducedSystemView
 
 __all__ = ["split_complex", "model_text", "try_model_text", "wrap_expression", "CAUTIONS",
            "classification_sentence", "cycle_sentences", "transversality_sentence",
@@ -33,18 +39,18 @@ CAUTIONS = (
     "and to licensed engineering practice; this analysis does not replace them.",
 )
 
-_CLASSIFICATION = {
-    "supercritical": ("Supercritical (l1 < 0): a stable limit cycle is born as the equilibrium "
+_CLASSIFICATION: dict[str, str] = {
+    Classification.SUPERCRITICAL: ("Supercritical (l1 < 0): a stable limit cycle is born as the equilibrium "
                       "loses stability; its amplitude grows like the square root of the distance "
                       "from the critical value (a soft, reversible onset)."),
-    "subcritical": ("Subcritical (l1 > 0): an unstable cycle surrounds the equilibrium on its "
+    Classification.SUBCRITICAL: ("Subcritical (l1 > 0): an unstable cycle surrounds the equilibrium on its "
                     "stable side and shrinks onto it at the critical value; there the equilibrium "
                     "loses stability without a small stable cycle to take over (a hard, "
                     "hysteretic onset)."),
-    "depends": ("The type depends on the parameters: supercritical (stable cycle, soft onset) "
+    Classification.DEPENDS: ("The type depends on the parameters: supercritical (stable cycle, soft onset) "
                 "where the condition below holds, subcritical (hard, hysteretic onset) where it "
                 "is reversed."),
-    "degenerate": ("Degenerate (l1 = 0): the first Lyapunov coefficient vanishes; the next "
+    Classification.DEGENERATE: ("Degenerate (l1 = 0): the first Lyapunov coefficient vanishes; the next "
                    "coefficient decides (a Bautin point)."),
 }
 
@@ -64,7 +70,7 @@ def classification_sentence(classification: str, power: int = 2) -> str:
     'Subcritical (l1 = 0 identically, l2 > 0)'
     """
     text = _CLASSIFICATION.get(classification, f"Classification: {classification}.")
-    if power > 2 and classification in ("supercritical", "subcritical"):
+    if power > 2 and classification in (Classification.SUPERCRITICAL, Classification.SUBCRITICAL):
         j = power // 2
         vanish = "l1" if j == 2 else f"l1 = ... = l{j - 1}"
         text = text.replace("(l1 <", f"({vanish} = 0 identically, l{j} <")
@@ -73,7 +79,7 @@ def classification_sentence(classification: str, power: int = 2) -> str:
     return text
 
 
-def split_complex(expr) -> tuple:
+def split_complex(expr: sympy.Expr) -> tuple:
     """``(re, im)`` of an expression built as ``re + I*im`` with real parts.
 
     The results build complex quantities exactly so (``c1``, ``d lambda/d mu``,
@@ -99,7 +105,7 @@ def split_complex(expr) -> tuple:
     return re, im
 
 
-def try_model_text(expr):
+def try_model_text(expr: sympy.Expr) -> str | None:
     """The expression in the model syntax, or None where the syntax cannot
     express it (the imaginary unit, ``Abs``, infinities, ``nan``)."""
     try:
@@ -108,7 +114,7 @@ def try_model_text(expr):
         return None
 
 
-def model_text(expr) -> str:
+def model_text(expr: sympy.Expr) -> str:
     """The expression in the model syntax where possible, else in sympy's own
     notation (marked ``[sympy]``), so that a display never fails.
 
@@ -161,7 +167,7 @@ def wrap_expression(text: str, width: int) -> list:
     return lines
 
 
-def transversality_sentence(result) -> str:
+def transversality_sentence(result: HopfResult) -> str:
     """Which side of the critical value the equilibrium is unstable on."""
     sign = _sign(result.transversality, result.assumptions)
     name = result.parameter
@@ -181,15 +187,16 @@ def transversality_sentence(result) -> str:
 
 def _unstable_side(result):
     """``">"`` or ``"<"`` from the cycle's side and the verdict, or None."""
-    side = {"above": ">", "below": "<"}.get(result.cycle.side)
-    if side is None or result.classification not in ("supercritical", "subcritical"):
+    side = {Side.ABOVE: ">", Side.BELOW: "<"}.get(result.cycle.side)
+    if side is None or result.classification not in (Classification.SUPERCRITICAL,
+                                                     Classification.SUBCRITICAL):
         return None
-    if result.classification == "supercritical":
+    if result.classification == Classification.SUPERCRITICAL:
         return side
     return "<" if side == ">" else ">"
 
 
-def cycle_sentences(result, show=None) -> list:
+def cycle_sentences(result: HopfResult, show: Any = None) -> list:
     """The predicted cycle in words (side, stability, period); ``show``
     writes an expression (default: :func:`model_text`)."""
     show = model_text if show is None else show
@@ -220,7 +227,7 @@ def cycle_sentences(result, show=None) -> list:
     return out
 
 
-_SIGN_KEYWORDS = {"positive": {"positive": True}, "negative": {"negative": True},
+_SIGN_KEYWORDS: dict[str | None, dict[str, bool]] = {"positive": {"positive": True}, "negative": {"negative": True},
                   "nonnegative": {"nonnegative": True}}
 
 
@@ -247,7 +254,7 @@ def _sign(expr, assumptions=None) -> int:
     return 0
 
 
-def reduced_system_or_none(result):
+def reduced_system_or_none(result: HopfResult) -> ReducedSystemView | None:
     """The reduced system of a result, or None where it is not available
     (the numeric mode does not build it)."""
     try:
@@ -258,7 +265,7 @@ def reduced_system_or_none(result):
         return None
 
 
-def per_offset(result, expr):
+def per_offset(result: HopfResult, expr: sympy.Expr) -> sympy.Expr:
     """``K`` such that ``expr = K*(mu - mu_c)`` (the radius and amplitudes of
     the cycle have this shape), or None when ``expr`` is not of it."""
     offset = result.parameter_symbol - result.critical_value

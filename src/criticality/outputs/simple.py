@@ -9,6 +9,8 @@ None.  Rendering is pure (strings in, strings out).
 
 from __future__ import annotations
 
+from typing import Any, Sequence
+
 import json
 
 import sympy
@@ -33,7 +35,8 @@ def _text(value) -> str:
     return str(value)
 
 
-def render_text(title: str, rows, notes=(), conventions=(), cautions=CAUTIONS) -> str:
+def render_text(title: str, rows: Sequence[tuple], notes: Sequence[str] = (),
+                conventions: Sequence[str] = (), cautions: Sequence[str] = CAUTIONS) -> str:
     """A two-column table, then notes, conventions and cautions."""
     width = max((len(label) for _, label, _ in rows), default=0)
     lines = [title, "=" * len(title)]
@@ -60,7 +63,7 @@ def _latex_value(value) -> str:
     return r"\text{" + tex_text(str(value)) + "}"
 
 
-def render_latex(title: str, rows) -> str:
+def render_latex(title: str, rows: Sequence[tuple]) -> str:
     """An ``align*`` environment with one line per quantity."""
     body = " \\\\\n".join(f"  \\text{{{tex_text(label)}}} &: {_latex_value(value)}"
                           for _, label, value in rows)
@@ -77,14 +80,16 @@ def _json_value(value):
     return _text(value)
 
 
-def render_dict(kind: str, rows, notes=(), conventions=(), status: str = "closed form") -> dict:
+def render_dict(kind: str, rows: Sequence[tuple], notes: Sequence[str] = (),
+                conventions: Sequence[str] = (), status: str = "closed form") -> dict:
     """The document of a result listed by rows, in the shared envelope."""
     return envelope(f"criticality.{kind}", kind,
                     {"quantities": {key: _json_value(value) for key, _, value in rows}},
                     status=status, conventions=list(conventions), notes=notes)
 
 
-def render_json(kind: str, rows, notes=(), conventions=(), **kwargs) -> str:
+def render_json(kind: str, rows: Sequence[tuple], notes: Sequence[str] = (),
+                conventions: Sequence[str] = (), **kwargs: Any) -> str:
     """Every quantity as a string under its key, with the conventions, in
     the shared envelope (:mod:`criticality.outputs.envelope`)."""
     doc = render_dict(kind, rows, notes, conventions)

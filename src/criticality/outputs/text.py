@@ -11,6 +11,8 @@ expressions are wrapped at sums first, then at products.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING, Any
+
 import textwrap
 
 import mpmath
@@ -20,6 +22,9 @@ from ..algebra.canonical import compact
 from ..renderers import register_renderer
 from .render import (CAUTIONS, classification_sentence, cycle_sentences, model_text,
                       per_offset, split_complex, transversality_sentence, wrap_expression)
+
+if TYPE_CHECKING:
+    from ..hopf_analysis.results import HopfResult
 
 __all__ = ["result_summary", "result_details", "numeric_summary", "DEFAULT_WIDTH", "SUMMARY_LINES"]
 
@@ -43,7 +48,7 @@ def _rows(result) -> list:
     return rows
 
 
-def decimal(value):
+def decimal(value: Any) -> sympy.Expr:
     """A number that carries decimals (the numeric mode) as one decimal with
     the digits of its least precise Float: ``2*pi/omega`` with a numeric
     omega prints as ``6.2831...``, not as ``6.2831...*pi/1.0``.
@@ -136,13 +141,13 @@ def _expr_lines(prefix: str, expr, width: int, indent: str = "    ", suffix: str
                                                              suffix, lines)
     room = max(width - len(prefix) - len(indent), 20)
     pieces = _wrapped(model_text(decimal(expr) if raw else _shown(expr)), room, lines)
-    lines = [f"{indent}{prefix}{pieces[0]}"] + [f"{indent}{' ' * len(prefix)}  {p}"
-                                                for p in pieces[1:]]
-    if suffix and len(lines[-1]) + len(suffix) + 1 <= width:
-        lines[-1] += " " + suffix
+    out = [f"{indent}{prefix}{pieces[0]}"] + [f"{indent}{' ' * len(prefix)}  {p}"
+                                              for p in pieces[1:]]
+    if suffix and len(out[-1]) + len(suffix) + 1 <= width:
+        out[-1] += " " + suffix
     elif suffix:
-        lines.append(f"{indent}{suffix}")
-    return lines
+        out.append(f"{indent}{suffix}")
+    return out
 
 
 def _header(result, width: int) -> list:
@@ -217,7 +222,7 @@ def _cycle(result, width: int) -> list:
     return out
 
 
-def result_details(result, width: int = DEFAULT_WIDTH) -> str:
+def result_details(result: HopfResult, width: int = DEFAULT_WIDTH) -> str:
     global _NAMED
     _NAMED = _named(result)
     try:
@@ -280,7 +285,7 @@ def _number(value, digits: int) -> str:
     return str(value)
 
 
-def numeric_summary(numeric, digits: int | None = None) -> str:
+def numeric_summary(numeric: Any, digits: int | None = None) -> str:
     """A numeric evaluation (:class:`~criticality.checks.numeric.NumericHopfResult`)
     as text, every number with ``digits`` significant digits (default: the
     evaluation's own)."""
@@ -393,7 +398,7 @@ def _summary_sections(result, width: int, lines: int) -> list:
             _packed(_CAUTION_PHRASES, width)]
 
 
-def result_summary(result, width: int = DEFAULT_WIDTH) -> str:
+def result_summary(result: HopfResult, width: int = DEFAULT_WIDTH) -> str:
     global _NAMED
     _NAMED = _named(result)
     try:
