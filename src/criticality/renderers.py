@@ -30,7 +30,7 @@ from importlib import import_module
 from typing import Any, Callable
 
 __all__ = ["FORMATS", "PROVIDERS", "register_renderer", "add_provider", "renderer", "render",
-           "formats_of"]
+           "formats_of", "Rendered"]
 
 #: the formats a renderer may be registered for
 FORMATS = ("text", "details", "latex", "notebook_latex", "report", "json", "dict", "html",
@@ -110,3 +110,44 @@ def render(result: Any, fmt: str, **options: Any) -> Any:
     if kind is None:
         raise LookupError(f"{type(result).__name__} declares no result_kind")
     return renderer(kind, fmt)(result, **options)
+
+
+class Rendered:
+    """The display methods every result kind shares, each a call to
+    :func:`render` for the kind's ``result_kind``: a result class lists its
+    fields and inherits these (text, details, LaTeX, JSON and its dictionary,
+    and the notebook displays)."""
+
+    __slots__ = ()
+
+    def summary(self) -> str:
+        """The result as plain text (a table, notes, conventions and cautions)."""
+        return render(self, "text")
+
+    def details(self) -> str:
+        """The full plain text."""
+        return render(self, "details")
+
+    def to_latex(self) -> str:
+        """The quantities as an ``align*`` block."""
+        return render(self, "latex")
+
+    def to_json(self, **kwargs: Any) -> str:
+        """The result as JSON in the shared envelope."""
+        return render(self, "json", **kwargs)
+
+    def to_dict(self, **kwargs: Any) -> dict:
+        """The JSON document as a dictionary."""
+        return render(self, "dict", **kwargs)
+
+    def _repr_html_(self) -> str:
+        return render(self, "html")
+
+    def _repr_markdown_(self) -> str:
+        return render(self, "markdown")
+
+    def _repr_latex_(self) -> str:
+        return render(self, "notebook_latex")
+
+    def __str__(self) -> str:
+        return self.summary()

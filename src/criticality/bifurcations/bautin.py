@@ -37,7 +37,7 @@ import mpmath
 import sympy
 
 from ..local.prepare import EquilibriumSpec, expr, prepare, sign_word, solve_for
-from ..renderers import render
+from ..renderers import Rendered
 from ..algebra.quadratic import lower
 from ..hopf_analysis.engine import run_engine
 from ..errors import NoHopfPointError
@@ -48,6 +48,7 @@ if TYPE_CHECKING:
 
 __all__ = ["BautinPoint", "bautin_points", "BAUTIN_CONVENTIONS"]
 
+
 BAUTIN_CONVENTIONS = (
     "l1 = Re(c1)/omega and l2 = Re(c2)/omega for the unit eigenvector <q, q> = 1, with "
     "z' = (beta + i omega) z + c1 z|z|^2 + c2 z|z|^4 (l2 is invariant under the choices of the "
@@ -57,7 +58,7 @@ BAUTIN_CONVENTIONS = (
 
 
 @dataclass(frozen=True)
-class BautinPoint:
+class BautinPoint(Rendered):
     """A point of the Hopf set where ``l1 = 0``, with ``l2`` there."""
 
     result_kind: ClassVar[str] = "bautin"
@@ -90,31 +91,6 @@ class BautinPoint:
                 ("fold_of_cycles_side", "fold of cycles", self.fold_of_cycles_side),
                 ("scenario", "scenario", self.scenario)]
 
-    def summary(self) -> str:
-        """The result as plain text (a table, notes and conventions)."""
-        return render(self, "text")
-
-    def details(self) -> str:
-        """The full plain text (the same table: this kind is short)."""
-        return render(self, "details")
-
-    def to_latex(self) -> str:
-        """The quantities as an ``align*`` block."""
-        return render(self, "latex")
-
-    def to_json(self, **kwargs: Any) -> str:
-        """The result as JSON in the shared envelope."""
-        return render(self, "json", **kwargs)
-
-    def _repr_html_(self) -> str:
-        return render(self, "html")
-
-    def _repr_markdown_(self) -> str:
-        return render(self, "markdown")
-
-    def _repr_latex_(self) -> str:
-        return render(self, "notebook_latex")
-
     def evaluate(self, values: Mapping | None = None, digits: int = 30) -> dict:
         """The numeric values of the point's quantities at ``values``
         (names of the remaining parameters -> numbers)."""
@@ -127,9 +103,6 @@ class BautinPoint:
                 e = e.xreplace({s: subs[s] for s in e.free_symbols if s in subs})
                 out[key] = sympy.N(e, digits)
         return out
-
-    def __str__(self) -> str:
-        return self.summary()
 
 
 def _scenario(l2_sign, slope_sign, second, value_text):

@@ -36,7 +36,7 @@ from typing import TYPE_CHECKING, Any, ClassVar, Mapping, Sequence
 import sympy
 
 from ..local.prepare import EquilibriumSpec, expr, prepare, sign_word, solve_for
-from ..renderers import render
+from ..renderers import Rendered
 from ..algebra.linalg import dot, kernel, matvec, solve_consistent, transpose
 from ..errors import DegenerateBifurcationError, NoHopfPointError
 from ..kinds import Sign, coerce
@@ -48,6 +48,7 @@ if TYPE_CHECKING:
 
 __all__ = ["BogdanovTakensResult", "bogdanov_takens", "bogdanov_takens_all", "BT_CONVENTIONS"]
 
+
 BT_CONVENTIONS = (
     "A q0 = 0, A q1 = q0, A^T p1 = 0, A^T p0 = p1, <p0, q0> = <p1, q1> = 1, "
     "<p1, q0> = <p0, q1> = 0 (real vectors)",
@@ -58,7 +59,7 @@ BT_CONVENTIONS = (
 
 
 @dataclass(frozen=True)
-class BogdanovTakensResult:
+class BogdanovTakensResult(Rendered):
     """A Bogdanov-Takens point and its normal-form coefficients."""
 
     result_kind: ClassVar[str] = "bogdanov_takens"
@@ -86,34 +87,6 @@ class BogdanovTakensResult:
                 ("q0", "q0", self.q0), ("q1", "q1", self.q1), ("p0", "p0", self.p0),
                 ("p1", "p1", self.p1), ("a", "a", self.a), ("b", "b", self.b),
                 ("ab_sign", "sign of a b", self.ab_sign), ("scenario", "scenario", self.scenario)]
-
-    def summary(self) -> str:
-        """The result as plain text (a table, notes and conventions)."""
-        return render(self, "text")
-
-    def details(self) -> str:
-        """The full plain text (the same table: this kind is short)."""
-        return render(self, "details")
-
-    def to_latex(self) -> str:
-        """The quantities as an ``align*`` block."""
-        return render(self, "latex")
-
-    def to_json(self, **kwargs: Any) -> str:
-        """The result as JSON in the shared envelope."""
-        return render(self, "json", **kwargs)
-
-    def _repr_html_(self) -> str:
-        return render(self, "html")
-
-    def _repr_markdown_(self) -> str:
-        return render(self, "markdown")
-
-    def _repr_latex_(self) -> str:
-        return render(self, "notebook_latex")
-
-    def __str__(self) -> str:
-        return self.summary()
 
 
 def _chain(K, M, top):

@@ -43,7 +43,7 @@ import sympy
 from ..kinds import FoldKind, Sign, coerce
 from ..local.prepare import EquilibriumSpec, expr, prepare, sign_word, solve_for
 from ..model.expressions import format_expression
-from ..renderers import render
+from ..renderers import Rendered
 from ..algebra.linalg import determinant, dot, kernel, matvec, solve, transpose
 from ..errors import ClosedFormUnavailableError, DegenerateBifurcationError, NoHopfPointError
 
@@ -51,6 +51,7 @@ if TYPE_CHECKING:
     from ..model.core import Model
 
 __all__ = ["FoldResult", "fold", "fold_all", "FOLD_CONVENTIONS", "MAP_FOLD_CONVENTIONS"]
+
 
 FOLD_CONVENTIONS = (
     "A q = 0, A^T p = 0, <p, q> = 1 (real vectors); x - x0 = y q + O(y^2) on the center manifold",
@@ -74,7 +75,7 @@ _MAP_NOTE = ("discrete-time map x -> F(x): the critical multiplier is +1; 'eigen
 
 
 @dataclass(frozen=True)
-class FoldResult:
+class FoldResult(Rendered):
     """A point with a simple zero eigenvalue and its normal form."""
 
     result_kind: ClassVar[str] = "fold"
@@ -110,34 +111,6 @@ class FoldResult:
                 ("cubic", "cubic coefficient d", self.cubic),
                 ("normal_form", "normal form y'", self.normal_form),
                 ("verdict", "verdict", self.verdict)]
-
-    def summary(self) -> str:
-        """The result as plain text (a table, notes and conventions)."""
-        return render(self, "text")
-
-    def details(self) -> str:
-        """The full plain text (the same table: this kind is short)."""
-        return render(self, "details")
-
-    def to_latex(self) -> str:
-        """The quantities as an ``align*`` block."""
-        return render(self, "latex")
-
-    def to_json(self, **kwargs: Any) -> str:
-        """The result as JSON in the shared envelope."""
-        return render(self, "json", **kwargs)
-
-    def _repr_html_(self) -> str:
-        return render(self, "html")
-
-    def _repr_markdown_(self) -> str:
-        return render(self, "markdown")
-
-    def _repr_latex_(self) -> str:
-        return render(self, "notebook_latex")
-
-    def __str__(self) -> str:
-        return self.summary()
 
 
 def _f_mu(model, choice, mu):

@@ -55,7 +55,7 @@ from ..local.eigenbasis import critical_eigenbasis
 from ..algebra.linalg import characteristic_polynomial
 from ..local.prepare import EquilibriumSpec, expr, prepare, sign_word, solve_for
 from ..model.expressions import convert_sympy, parse_expression
-from ..renderers import render
+from ..renderers import Rendered
 from .bogdanov_takens import _solve_pair
 from .fold import _null_vectors
 
@@ -64,6 +64,7 @@ if TYPE_CHECKING:
 
 __all__ = ["FoldHopfResult", "fold_hopf", "fold_hopf_all", "FOLD_HOPF_CONVENTIONS",
            "fold_hopf_scenario"]
+
 
 FOLD_HOPF_CONVENTIONS = (
     "A q0 = 0, A^T p0 = 0, <p0, q0> = 1 (real); A q1 = i omega q1, A^T p1 = -i omega p1, "
@@ -76,7 +77,7 @@ FOLD_HOPF_CONVENTIONS = (
 
 
 @dataclass(frozen=True)
-class FoldHopfResult:
+class FoldHopfResult(Rendered):
     """A fold-Hopf point and its quadratic normal-form coefficients."""
 
     result_kind: ClassVar[str] = "fold_hopf"
@@ -115,38 +116,6 @@ class FoldHopfResult:
                 ("theta_sign", "sign of theta", self.theta_sign),
                 ("status", "status", self.status), ("scenario", "scenario", self.scenario),
                 ("conditions", "conditions", self.conditions)]
-
-    def summary(self) -> str:
-        """The result as plain text (a table, notes, conventions and cautions)."""
-        return render(self, "text")
-
-    def details(self) -> str:
-        """The full plain text (the same table: this kind is short)."""
-        return render(self, "details")
-
-    def to_latex(self) -> str:
-        """The quantities as an ``align*`` block."""
-        return render(self, "latex")
-
-    def to_json(self, **kwargs: Any) -> str:
-        """The result as JSON in the shared envelope."""
-        return render(self, "json", **kwargs)
-
-    def to_dict(self) -> dict:
-        """The JSON document as a dictionary."""
-        return render(self, "dict")
-
-    def _repr_html_(self) -> str:
-        return render(self, "html")
-
-    def _repr_markdown_(self) -> str:
-        return render(self, "markdown")
-
-    def _repr_latex_(self) -> str:
-        return render(self, "notebook_latex")
-
-    def __str__(self) -> str:
-        return self.summary()
 
 
 def fold_hopf_scenario(s: int | str, theta_sign: str) -> str:

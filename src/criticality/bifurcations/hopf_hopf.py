@@ -56,7 +56,7 @@ from ..local.eigenbasis import critical_eigenbasis
 from ..algebra.linalg import characteristic_polynomial
 from ..local.prepare import EquilibriumSpec, expr, prepare, sign_word
 from ..local.projection import projection_c1
-from ..renderers import render
+from ..renderers import Rendered
 from .bogdanov_takens import _solve_pair
 from .fold_hopf import _located, _names
 from .map_normal_form import solve_complex
@@ -67,6 +67,7 @@ if TYPE_CHECKING:
 
 __all__ = ["HopfHopfResult", "hopf_hopf", "hopf_hopf_all", "HOPF_HOPF_CONVENTIONS",
            "hopf_hopf_scenario", "principal_subresultant"]
+
 
 HOPF_HOPF_CONVENTIONS = (
     "A q_k = i omega_k q_k, A^T p_k = -i omega_k p_k, <p_k, q_k> = 1, <q_k, q_k> = 1, "
@@ -79,7 +80,7 @@ HOPF_HOPF_CONVENTIONS = (
 
 
 @dataclass(frozen=True)
-class HopfHopfResult:
+class HopfHopfResult(Rendered):
     """A Hopf-Hopf point and the coefficients of its amplitude equations."""
 
     result_kind: ClassVar[str] = "hopf_hopf"
@@ -117,38 +118,6 @@ class HopfHopfResult:
                 ("status", "status", self.status), ("scenario", "scenario", self.scenario),
                 ("signs", "signs", self.signs)]
 
-    def summary(self) -> str:
-        """The result as plain text (a table, notes, conventions and cautions)."""
-        return render(self, "text")
-
-    def details(self) -> str:
-        """The full plain text (the same table: this kind is short)."""
-        return render(self, "details")
-
-    def to_latex(self) -> str:
-        """The quantities as an ``align*`` block."""
-        return render(self, "latex")
-
-    def to_json(self, **kwargs: Any) -> str:
-        """The result as JSON in the shared envelope."""
-        return render(self, "json", **kwargs)
-
-    def to_dict(self) -> dict:
-        """The JSON document as a dictionary."""
-        return render(self, "dict")
-
-    def _repr_html_(self) -> str:
-        return render(self, "html")
-
-    def _repr_markdown_(self) -> str:
-        return render(self, "markdown")
-
-    def _repr_latex_(self) -> str:
-        return render(self, "notebook_latex")
-
-    def __str__(self) -> str:
-        return self.summary()
-
 
 # -- location -------------------------------------------------------------------------
 
@@ -183,6 +152,7 @@ def _conditions(prep):
 
 
 # -- the point ---------------------------------------------------------------------------
+
 
 _RESONANCES = ((1, "1:1"), (4, "1:2"), (9, "1:3"), (16, "1:4"))
 

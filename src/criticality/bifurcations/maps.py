@@ -49,7 +49,7 @@ from ..local.critical import cofactor_hurwitz, find_critical_branches
 from ..algebra.linalg import characteristic_polynomial
 from ..local.prepare import EquilibriumSpec, expr, sign_word
 from ..local.prepare import solve_for as solve_symbol
-from ..renderers import render
+from ..renderers import Rendered
 from .map_normal_form import flip_coefficients, flip_vectors, ns_coefficient, unit_circle_vectors
 from .map_setup import cayley, condition_status, inside_unit_circle, map_jacobian, prepare_map, \
     unknown_symbol
@@ -59,6 +59,7 @@ if TYPE_CHECKING:
 
 __all__ = ["FlipResult", "NeimarkSackerResult", "flip", "flip_all", "neimark_sacker",
            "neimark_sacker_all", "FLIP_CONVENTIONS", "NS_CONVENTIONS"]
+
 
 FLIP_CONVENTIONS = (
     "map x -> F(x); A = DF(x0); A q = -q, A^T p = -p, <p, q> = 1, <q, q> = 1 (real vectors)",
@@ -85,7 +86,7 @@ def _text_conditions(conditions):
 
 
 @dataclass(frozen=True)
-class FlipResult:
+class FlipResult(Rendered):
     """A period-doubling (flip) point of a fixed point of a map."""
 
     result_kind: ClassVar[str] = "flip"
@@ -124,41 +125,9 @@ class FlipResult:
                 ("status", "status", self.status), ("verdict", "verdict", self.verdict),
                 ("conditions", "conditions", _text_conditions(self.conditions))]
 
-    def summary(self) -> str:
-        """The result as plain text (a table, notes, conventions and cautions)."""
-        return render(self, "text")
-
-    def details(self) -> str:
-        """The full plain text (the same table: this kind is short)."""
-        return render(self, "details")
-
-    def to_latex(self) -> str:
-        """The quantities as an ``align*`` block."""
-        return render(self, "latex")
-
-    def to_json(self, **kwargs: Any) -> str:
-        """The result as JSON in the shared envelope."""
-        return render(self, "json", **kwargs)
-
-    def to_dict(self) -> dict:
-        """The JSON document as a dictionary."""
-        return render(self, "dict")
-
-    def _repr_html_(self) -> str:
-        return render(self, "html")
-
-    def _repr_markdown_(self) -> str:
-        return render(self, "markdown")
-
-    def _repr_latex_(self) -> str:
-        return render(self, "notebook_latex")
-
-    def __str__(self) -> str:
-        return self.summary()
-
 
 @dataclass(frozen=True)
-class NeimarkSackerResult:
+class NeimarkSackerResult(Rendered):
     """A Neimark-Sacker point (multipliers exp(+-i theta)) of a map."""
 
     result_kind: ClassVar[str] = "neimark_sacker"
@@ -205,38 +174,6 @@ class NeimarkSackerResult:
                  self.amplitude_squared),
                 ("status", "status", self.status), ("verdict", "verdict", self.verdict),
                 ("conditions", "conditions", _text_conditions(self.conditions))]
-
-    def summary(self) -> str:
-        """The result as plain text (a table, notes, conventions and cautions)."""
-        return render(self, "text")
-
-    def details(self) -> str:
-        """The full plain text (the same table: this kind is short)."""
-        return render(self, "details")
-
-    def to_latex(self) -> str:
-        """The quantities as an ``align*`` block."""
-        return render(self, "latex")
-
-    def to_json(self, **kwargs: Any) -> str:
-        """The result as JSON in the shared envelope."""
-        return render(self, "json", **kwargs)
-
-    def to_dict(self) -> dict:
-        """The JSON document as a dictionary."""
-        return render(self, "dict")
-
-    def _repr_html_(self) -> str:
-        return render(self, "html")
-
-    def _repr_markdown_(self) -> str:
-        return render(self, "markdown")
-
-    def _repr_latex_(self) -> str:
-        return render(self, "notebook_latex")
-
-    def __str__(self) -> str:
-        return self.summary()
 
 
 # -- shared ---------------------------------------------------------------------------
@@ -351,7 +288,6 @@ def flip_all(model: Model, parameter: str, *, solve_for: str | None = None,
                            reason="empty_critical_set")
 
 
-
 def flip(model: Model, parameter: str, *, solve_for: str | None = None,
          equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
          values: Mapping[str, object] | None = None, assume: Mapping[str, str] | None = None,
@@ -387,6 +323,7 @@ def flip(model: Model, parameter: str, *, solve_for: str | None = None,
 
 
 # -- Neimark-Sacker --------------------------------------------------------------------
+
 
 _RESONANCE_REASONS = {
     "zero_eigenvalue": ("resonance_1_1", "the critical multipliers meet at +1 (the 1:1 "
