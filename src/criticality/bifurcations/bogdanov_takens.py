@@ -39,6 +39,7 @@ from ..local.prepare import expr, prepare, sign_word, solve_for
 from ..renderers import render
 from ..algebra.linalg import dot, kernel, matvec, solve_consistent, transpose
 from ..errors import DegenerateBifurcationError, NoHopfPointError
+from ..local.options import check_branch, pick_branch
 from ..algebra.linalg import characteristic_polynomial
 
 __all__ = ["BogdanovTakensResult", "bogdanov_takens", "bogdanov_takens_all", "BT_CONVENTIONS"]
@@ -239,9 +240,8 @@ def bogdanov_takens(model, parameter: str, second: str, *, equilibrium=None, eli
     >>> r.values, r.a, r.b, r.ab_sign
     ({'b2': 0, 'x_eq': 0, 'b1': 0}, 2, -3, 'negative')
     """
+    branch = check_branch(branch)
     results = bogdanov_takens_all(model, parameter, second, equilibrium=equilibrium,
                                   eliminate=eliminate, values=values, assume=assume,
                                   backend=backend)
-    if not 0 <= branch < len(results):
-        raise IndexError(f"branch {branch} does not exist ({len(results)} solution(s))")
-    return results[branch]
+    return pick_branch(results, branch)

@@ -44,6 +44,7 @@ from ..local.prepare import expr, prepare, sign_word, solve_for
 from ..renderers import render
 from ..algebra.linalg import determinant, dot, kernel, matvec, solve, transpose
 from ..errors import DegenerateBifurcationError, NoHopfPointError
+from ..local.options import check_branch, pick_branch
 
 __all__ = ["FoldResult", "fold", "fold_all", "FOLD_CONVENTIONS", "MAP_FOLD_CONVENTIONS"]
 
@@ -324,8 +325,7 @@ def fold(model, parameter: str, *, solve_for: str | None = None, equilibrium=Non
     >>> r.kind, r.critical_values, r.a, r.transversality
     ('fold', {'x_eq': 0, 'mu': 0}, -1, 1)
     """
+    branch = check_branch(branch)
     results = fold_all(model, parameter, solve_for_name=solve_for, equilibrium=equilibrium,
                        eliminate=eliminate, values=values, assume=assume, backend=backend)
-    if not 0 <= branch < len(results):
-        raise IndexError(f"branch {branch} does not exist ({len(results)} solution(s))")
-    return results[branch]
+    return pick_branch(results, branch)

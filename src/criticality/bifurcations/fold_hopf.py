@@ -47,6 +47,7 @@ from ..algebra import upoly
 from ..algebra.linalg import dot
 from ..algebra.quadratic import lower
 from ..errors import DegenerateBifurcationError, NoHopfPointError, ParameterError
+from ..local.options import check_branch, pick_branch
 from ..local.critical import nu_extension, pair_sum_condition
 from ..local.eigenbasis import critical_eigenbasis
 from ..algebra.linalg import characteristic_polynomial
@@ -330,8 +331,7 @@ def fold_hopf(model, parameters, second=None, *, point=None, equilibrium=None, e
     >>> r.s, r.theta, r.G200
     (-1, 3/2, 2)
     """
+    branch = check_branch(branch)
     results = fold_hopf_all(model, parameters, second, point=point, equilibrium=equilibrium,
                             eliminate=eliminate, values=values, assume=assume, backend=backend)
-    if not 0 <= branch < len(results):
-        raise IndexError(f"branch {branch} does not exist ({len(results)} solution(s))")
-    return results[branch]
+    return pick_branch(results, branch)

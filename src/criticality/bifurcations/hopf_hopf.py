@@ -49,6 +49,7 @@ from ..algebra import upoly
 from ..algebra.linalg import SingularMatrixError, determinant, dot, solve_vector
 from ..algebra.quadratic import QuadraticExtension, lower
 from ..errors import DegenerateBifurcationError, DegenerateHopfError, NoHopfPointError
+from ..local.options import check_branch, pick_branch
 from ..local.eigenbasis import critical_eigenbasis
 from ..algebra.linalg import characteristic_polynomial
 from ..local.prepare import expr, prepare, sign_word
@@ -395,8 +396,7 @@ def hopf_hopf(model, parameters, second=None, *, point=None, equilibrium=None, e
     >>> r.values, r.omega1, r.omega2, r.p11, r.theta, r.case
     ({'m1': 0, 'm2': 0}, 5, 2, -2, 0, 'simple')
     """
+    branch = check_branch(branch)
     results = hopf_hopf_all(model, parameters, second, point=point, equilibrium=equilibrium,
                             eliminate=eliminate, values=values, assume=assume, backend=backend)
-    if not 0 <= branch < len(results):
-        raise IndexError(f"branch {branch} does not exist ({len(results)} solution(s))")
-    return results[branch]
+    return pick_branch(results, branch)

@@ -42,6 +42,7 @@ import sympy
 from ..algebra import upoly
 from ..algebra.quadratic import lower
 from ..errors import DegenerateBifurcationError, DegenerateHopfError, NoHopfPointError
+from ..local.options import check_branch, pick_branch
 from ..local.critical import cofactor_hurwitz, find_critical_branches
 from ..algebra.linalg import characteristic_polynomial
 from ..local.prepare import expr, sign_word
@@ -323,11 +324,10 @@ def flip(model, parameter: str, *, solve_for: str | None = None, equilibrium=Non
     >>> r.critical_values, r.coefficient_sign, r.status
     ({'r': 3}, 'positive', 'nondegenerate')
     """
+    branch = check_branch(branch)
     results = flip_all(model, parameter, solve_for=solve_for, equilibrium=equilibrium,
                        eliminate=eliminate, values=values, assume=assume, backend=backend)
-    if not 0 <= branch < len(results):
-        raise IndexError(f"branch {branch} does not exist ({len(results)} solution(s))")
-    return results[branch]
+    return pick_branch(results, branch)
 
 
 # -- Neimark-Sacker --------------------------------------------------------------------
@@ -499,9 +499,8 @@ def neimark_sacker(model, parameter: str, *, solve_for: str | None = None, equil
     >>> r.critical_values, r.angle, r.lyapunov_sign
     ({'r': 2}, pi/3, 'negative')
     """
+    branch = check_branch(branch)
     results = neimark_sacker_all(model, parameter, solve_for=solve_for,
                                  equilibrium=equilibrium, eliminate=eliminate, values=values,
                                  assume=assume, backend=backend)
-    if not 0 <= branch < len(results):
-        raise IndexError(f"branch {branch} does not exist ({len(results)} solution(s))")
-    return results[branch]
+    return pick_branch(results, branch)

@@ -19,6 +19,7 @@ import mpmath
 import sympy
 
 from ..errors import ParameterError
+from ..local.options import check_digits, check_point
 from ..renderers import render
 
 __all__ = ["NumericHopfResult", "evaluate_result", "parameter_values"]
@@ -154,15 +155,20 @@ def _num(expr, subs, digits, what=None):
         return mpmath.nan
     re, im = v.as_real_imag()
     if im != 0 and abs(im) > abs(re) * sympy.Float(10) ** (-digits + 3):
-        return mpmath.mpc(mpmath.mpf(str(re)), mpmath.mpf(str(im)))
-    return mpmath.mpf(str(re))
+        return mpmath.mpc(_mpf(re, digits), _mpf(im, digits))
+    return _mpf(re, digits)
+
+
+def _mpf(x, digits):
+    """A sympy number as an mpmath number through its binary value (no
+    decimal string, so no limit on the number of digits)."""
+    return mpmath.mpf(sympy.Float(x, digits)._mpf_)
 
 
 def evaluate_result(result, values: Mapping, *, digits: int = 30) -> NumericHopfResult:
     """Evaluate every quantity of ``result`` at ``values``."""
-    if digits < 5 or digits > 10000:
-        raise ParameterError(f"digits must be between 5 and 10000, got {digits}")
-    exact = parameter_values(result, values)
+    check_digits(digits, 5, 10000)
+    exact = parameter_values(result, check_point(values))
     subs = {result.model.symbols.get(k, sympy.Symbol(k, real=True)): v for k, v in exact.items()}
     for s in _free_parameters(result):
         if str(s) in exact:
@@ -170,7 +176,7 @@ def evaluate_result(result, values: Mapping, *, digits: int = 30) -> NumericHopf
     with mpmath.workdps(digits + 5):
         mu_c = _num(result.critical_value, subs, digits + 5, "critical value")
         at_c = dict(subs)
-        at_c[result.parameter_symbol] = sympy.Float(str(mu_c), digits + 5) if isinstance(
+        at_c[result.parameter_symbol] = sympy.Float(mu_c, digits + 5) if isinstance(
             mu_c, mpmath.mpf) else mu_c
         omega = _num(result.omega, subs, digits + 5, "frequency omega")
         l1 = _num(result.l1, subs, digits + 5)

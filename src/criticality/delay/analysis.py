@@ -21,6 +21,8 @@ from ..budget import stage
 from ..budget import time_limit as time_limit_
 from ..errors import ClosedFormUnavailableError, NoHopfPointError, ParameterError
 from ..hopf_analysis.results import CyclePrediction
+from ..local.options import (check_assume, check_branch, check_digits, check_equilibrium,
+                             check_order, check_values, refuse_unused)
 
 __all__ = ["hopf_delay"]
 
@@ -29,7 +31,7 @@ def hopf_delay(model, parameter: str | None = None, *, equilibrium=None,
                values: Mapping | None = None, branch: int | None = None,
                assume: Mapping | None = None, time_limit: float | None = None,
                order: int = 3, eliminate=None, guess=None, backend: str = "sympy",
-               digits: int = 30, **_ignored) -> DelayHopfResult:
+               digits: int = 30) -> DelayHopfResult:
     """Hopf analysis of a retarded equation with respect to ``parameter``.
 
     Parameters
@@ -72,6 +74,14 @@ def hopf_delay(model, parameter: str | None = None, *, equilibrium=None,
     >>> r.critical_value, r.omega, r.classification
     (pi/(2*k), k, 'supercritical')
     """
+    branch = check_branch(branch)
+    check_order(order)
+    assume, values = check_assume(assume), check_values(values)
+    equilibrium = check_equilibrium(equilibrium)
+    if guess is not None:
+        check_digits(digits, 5, 500)
+        refuse_unused("the numeric mode of delay equations (guess=) locates one point from "
+                      "the guess and", equilibrium=equilibrium, branch=branch, assume=assume)
     if order != 3:
         raise ClosedFormUnavailableError(f"order={order}: for delay equations only l1 (order=3) "
                                          "is computed")

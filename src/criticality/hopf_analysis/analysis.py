@@ -17,7 +17,9 @@ from ..budget import hint, stage
 from ..budget import time_limit as time_limit_
 from .engine import run_engine
 from ..errors import NoHopfPointError
-from ..local.prepare import check_order, prepare
+from ..local.options import (check_backend, check_branch, check_digits, check_equilibrium,
+                             check_order, refuse_unused)
+from ..local.prepare import prepare
 from .results import HopfResult
 
 __all__ = ["hopf", "hopf_all"]
@@ -83,6 +85,7 @@ def hopf(model, parameter: str | None = None, *, equilibrium=None, eliminate=Non
     >>> r.critical_value, r.l1, r.classification
     (0, -1/4, 'supercritical')
     """
+    branch = check_branch(branch)
     if getattr(model, "delays", ()):
         from ..delay.analysis import hopf_delay
         return hopf_delay(model, parameter, equilibrium=equilibrium, values=values,
@@ -90,6 +93,10 @@ def hopf(model, parameter: str | None = None, *, equilibrium=None, eliminate=Non
                           eliminate=eliminate, guess=guess, digits=digits)
     if guess is not None:
         from .numeric_mode import hopf_numeric
+        check_digits(digits, 5, 500)
+        refuse_unused("the numeric mode (guess=) locates one Hopf point from the guess and",
+                      equilibrium=equilibrium, eliminate=eliminate, branch=branch, assume=assume)
+        check_backend(backend)
         with time_limit_(time_limit, "the numeric Hopf analysis"):
             return hopf_numeric(model, parameter or model.bifurcation_parameter, guess,
                                 digits=digits, order=order, values=values)
@@ -115,6 +122,7 @@ def hopf_all(model, parameter: str | None = None, *, equilibrium=None, eliminate
 
 def _analyse(model, parameter, equilibrium, eliminate, order, values, assume, backend, select):
     check_order(order)
+    check_equilibrium(equilibrium, model)
     if order > 3:
         hint(f"ask for a lower order (order={order} was asked; order=3 gives l1)")
     prep = prepare(model, parameter, equilibrium=equilibrium, eliminate=eliminate,

@@ -26,8 +26,8 @@ from ..algebra.domain import algebraic_atom_rules
 from ..algebra.signs import SignContext, context_for, truth
 from ..budget import hint, stage
 from ..errors import (ClosedFormUnavailableError, NoHopfPointError, NotAnEquilibriumError,
-                      OrderError, ParameterError)
-from ..model.parameter import ASSUMPTIONS
+                      ParameterError)
+from .options import check_assume, check_options, check_order
 from .equilibria import (EquilibriumChoice, given_equilibrium, parametrised_equilibrium,
                          select_equilibrium, solve_equilibria)
 from .sign_words import expr, sign_word
@@ -37,15 +37,6 @@ from .taylor import RawTaylor, TaylorForms, raw_taylor
 __all__ = ["PreparedProblem", "prepare", "prepare_system", "check_order", "resolve_parameter",
            "assumption_map", "choose_equilibrium", "SolvedPoint", "solve_for", "sign_word",
            "expr"]
-
-def check_order(order) -> int:
-    """The order of a normal form: an odd integer ``>= 3`` (3 gives ``l1``,
-    ``2k + 1`` gives ``l1 .. lk``).  Raises :class:`OrderError` otherwise."""
-    if isinstance(order, bool) or not isinstance(order, int) or order < 3 or order % 2 == 0:
-        raise OrderError(f"order must be an odd integer >= 3 (3 gives l1, 5 gives l2); "
-                         f"got {order!r}")
-    return order
-
 
 @dataclass(frozen=True)
 class PreparedProblem:
@@ -134,10 +125,7 @@ def assumption_map(model, assume: Mapping | None) -> dict:
     out = {}
     for p in model.parameters:
         out[model.symbols[p.name]] = p.assumption
-    for key, value in (assume or {}).items():
-        if value not in ASSUMPTIONS:
-            raise ParameterError(f"unknown assumption {value!r} for '{key}'; expected one of "
-                                 f"{', '.join(ASSUMPTIONS)}")
+    for key, value in (check_assume(assume) or {}).items():
         if key in model.symbols:
             out[model.symbols[key]] = value
     return out
@@ -209,6 +197,11 @@ def prepare(model, parameter: str | None = None, *, equilibrium=None, eliminate=
     if getattr(model, "kind", "flow") == "map":
         model.require_kind("flow", "this analysis", "for maps use flip(), neimark_sacker() or "
                            "fold() (which treats a map's multiplier +1)")
+    opts = check_options(model, parameter=parameter, equilibrium=equilibrium,
+                         eliminate=eliminate, values=values, assume=assume, order=order,
+                         backend=backend)
+    equilibrium, eliminate, values = opts["equilibrium"], opts["eliminate"], opts["values"]
+    assume, order, backend = opts["assume"], opts["order"], opts["backend"]
     full, fixed = model, (model.value_substitution(values) if values else {})
     model, name = resolve_parameter(model, parameter, values)
     assumptions = assumption_map(model, assume)
