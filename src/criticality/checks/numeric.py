@@ -192,10 +192,15 @@ def evaluate_result(result, values: Mapping, *, digits: int = 30) -> NumericHopf
         others = [e for e in eigs if abs(e - target) > tol and abs(e + target) > tol]
         conds = tuple((c.key, _num(c.expr, subs, digits + 5), c.relation) for c in result.conditions)
         cls = "supercritical" if l1 < 0 else "subcritical" if l1 > 0 else "degenerate"
+        transversality = _num(result.transversality, subs, digits + 5)
+        if result.classification in ("nontransversal", "inadmissible"):
+            cls = result.classification  # no verdict for the family, none at its points
+        elif transversality == 0:
+            cls = "nontransversal"
         return NumericHopfResult(
             values=exact, digits=digits, critical_value=mu_c, omega_squared=omega ** 2,
             omega=omega, period=2 * mpmath.pi / omega,
-            transversality=_num(result.transversality, subs, digits + 5),
+            transversality=transversality,
             c1=_num(result.c1, subs, digits + 5), l1=l1, lyapunov_coefficients=lyap,
             classification=cls, equilibrium=eq, amplitude_coefficients=amps,
             eigenvalues=tuple(eigs), pair_error=pair_error,

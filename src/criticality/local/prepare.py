@@ -23,10 +23,10 @@ import sympy
 
 from ..algebra import Tower, collect_atoms
 from ..algebra.domain import algebraic_atom_rules
-from ..algebra.signs import SignContext, context_for, truth
+from ..algebra.signs import NEGATIVE, NONPOSITIVE, ZERO, SignContext, context_for, truth
 from ..budget import hint, stage
-from ..errors import (ClosedFormUnavailableError, NoHopfPointError, NotAnEquilibriumError,
-                      ParameterError)
+from ..errors import (ClosedFormUnavailableError, NoHopfPointError, NotAnalyticError,
+                      NotAnEquilibriumError, ParameterError)
 from .options import check_assume, check_options, check_order
 from .equilibria import (EquilibriumChoice, given_equilibrium, parametrised_equilibrium,
                          select_equilibrium, solve_equilibria)
@@ -244,6 +244,8 @@ def _fields(model, name, mu, choice, eqs, params, assumptions, order, backend, p
     names = tuple(model.states) if names is None else tuple(names)
     if order > 3:
         hint(f"ask for a lower order (order={order} was asked; order=3 gives l1)")
+    plain = context_for(params, assumptions)
+    _check_real(eqs, states, point, names, plain)
     stage("expanding the model in Taylor series at the equilibrium")
     raw = raw_taylor(eqs, states, point, order, names)
     equilibrium = tuple(point)
@@ -260,7 +262,6 @@ def _fields(model, name, mu, choice, eqs, params, assumptions, order, backend, p
             "equilibrium, so its critical value is not algebraic in closed form. Parametrise "
             "the family by the equilibrium (eliminate=[...]) so that it occurs polynomially, "
             "choose another bifurcation parameter, or use the numeric mode (guess={...}).")
-    plain = context_for(params, assumptions)
     tower = Tower(params, atoms, backend, lambda e: truth(plain.sign(e)))
     x0 = [tower.convert(e) for e in equilibrium]
     taylor = TaylorForms.from_raw(raw, x0, tower.convert, tower.base)
@@ -270,6 +271,29 @@ def _fields(model, name, mu, choice, eqs, params, assumptions, order, backend, p
     return PreparedProblem(model, name, mu, choice, tuple(eqs), states, names, tuple(params),
                            MappingProxyType(dict(assumptions)), order, backend, equilibrium,
                            raw, tower, taylor, converted, tuple(more))
+
+
+def _check_real(eqs, states, point, names, ctx):
+    """Refuse a field that is complex at the equilibrium: an even root or a
+    logarithm of a quantity that is negative there under the declared
+    assumptions (``sqrt(b)`` with ``b`` declared negative)."""
+    at = dict(zip(states, point))
+    for name, f in zip(names, eqs):
+        for atom in sorted(f.atoms(sympy.Pow, sympy.log), key=sympy.default_sort_key):
+            if isinstance(atom, sympy.log):
+                base, what = atom.args[0], "the logarithm of"
+            elif atom.exp.is_Rational and atom.exp.q % 2 == 0:
+                base, what = atom.base, "an even root of"
+            else:
+                continue
+            value = base.xreplace(at)
+            if ctx.structural_sign(value) in (NEGATIVE,) or (
+                    what == "the logarithm of" and ctx.structural_sign(value) in (ZERO, NONPOSITIVE)):
+                raise NotAnalyticError(
+                    f"the right-hand side for '{name}' contains {atom}, {what} {value}, which "
+                    "is not positive at the equilibrium under the declared assumptions, so the "
+                    "model is complex (or undefined) there; the analysis needs a real field. "
+                    "Check the sign declared for its parameters.")
 
 
 def _check_equilibrium(tower, taylor, names):
