@@ -39,7 +39,7 @@ from ..local.prepare import expr, prepare, sign_word, solve_for
 from ..renderers import render
 from ..algebra.linalg import dot, kernel, matvec, solve_consistent, transpose
 from ..errors import DegenerateBifurcationError, NoHopfPointError
-from ..local.options import check_branch, pick_branch
+from ..local.options import check_branch, check_second, pick_branch
 from ..algebra.linalg import characteristic_polynomial
 
 __all__ = ["BogdanovTakensResult", "bogdanov_takens", "bogdanov_takens_all", "BT_CONVENTIONS"]
@@ -205,6 +205,7 @@ def _point(prep, sp1, sp2, names):
 def bogdanov_takens_all(model, parameter: str, second: str, *, equilibrium=None, eliminate=None,
                         values=None, assume=None, backend: str = "flint") -> tuple:
     """Every closed-form Bogdanov-Takens point (see :func:`bogdanov_takens`)."""
+    check_second(parameter or getattr(model, "bifurcation_parameter", None), second)
     prep = prepare(model, parameter, equilibrium=equilibrium, eliminate=eliminate,
                    values=values, assume=assume, order=2, backend=backend)
     u1, u2 = prep.symbol(parameter), prep.symbol(second)

@@ -24,7 +24,7 @@ from ..model.parameter import ASSUMPTIONS
 
 __all__ = ["MAX_ORDER", "BACKENDS", "EQUILIBRIUM_WORDS", "check_order", "check_branch",
            "check_backend", "check_values", "check_assume", "check_equilibrium",
-           "check_eliminate", "check_digits", "check_point", "check_name", "refuse_unused",
+           "check_eliminate", "check_second", "check_digits", "check_point", "check_name", "refuse_unused",
            "check_options", "equilibrium_count_bound", "pick_branch"]
 
 #: highest normal-form order (l1 .. l10); each order costs a series solve
@@ -79,6 +79,17 @@ def check_name(name: Any, option: str) -> str:
         raise ParameterError(f"{option} must be the name of a parameter (a non-empty string); "
                              f"got {_shown(name)}")
     return name
+
+
+def check_second(parameter: Any, second: Any) -> str:
+    """The second parameter of a codimension-two analysis: a name other
+    than the first."""
+    check_name(second, "second")
+    if second == parameter:
+        raise ParameterError(f"the second parameter must differ from the first ('{parameter}'): "
+                             "the analysis varies the first across its critical value and "
+                             "solves for the second; name another parameter")
+    return second
 
 
 def _mapping(value: Any, option: str, example: str) -> dict | None:

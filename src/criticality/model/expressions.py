@@ -233,6 +233,8 @@ class _Builder:
                 negative ^= isinstance(unsigned.op, ast.USub)
                 unsigned = unsigned.operand
             product = sympy.Mul(*self.chain(node, (ast.Mult, ast.Div), depth, leftmost, unsigned))
+            if product.is_Pow or product.is_Mul:
+                self.check_degree(product, node)
             return -product if negative else product
         if op is ast.Pow:
             if _integer_literal(node.right):
@@ -378,15 +380,51 @@ class _Builder:
             if value.has(sympy.I) or value.is_extended_real is False:
                 raise self.error(ForbiddenExpressionError,
                                  f"{self.piece(node)} is not a real number", node)
+            if not value.is_Rational:
+                self.check_magnitude(value, node)
+        elif value.is_Pow or value.is_Mul:
+            self.check_degree(value, node)
         if self.floats:
             self.check_floats(value, node)
         return value
+
+    def check_magnitude(self, value, node) -> None:
+        """A constant must have a value the engine can evaluate: its binary
+        exponent within +-_MAX_CONSTANT_BITS (``exp(exp(1000))`` is refused
+        by its value, however it is spelled)."""
+        try:
+            number = value.evalf(15)
+            mpf = getattr(number, "_mpf_", None)
+            size = None if mpf is None or not mpf[1] else mpf[2] + mpf[3]
+        except (OverflowError, ValueError, ArithmeticError, RecursionError, MemoryError):
+            size = _MAX_CONSTANT_BITS + 1
+        if size is not None and abs(size) > _MAX_CONSTANT_BITS:
+            raise self.error(ExpressionLimitError, f"the value of {self.piece(node)} is beyond "
+                             f"2^+-{_MAX_CONSTANT_BITS} (about 10^+-"
+                             f"{int(_MAX_CONSTANT_BITS * 0.30103)}), too large or too small to "
+                             "evaluate", node)
+
+    def check_degree(self, value, node) -> None:
+        """The exponent limit on the evaluated power: sympy merges
+        ``(x^1000)^1000`` into ``x^1000000`` and ``x^600*x^600`` into
+        ``x^1200``; such a power is refused as if written so."""
+        powers = [value] if value.is_Pow else [a for a in value.args if a.is_Pow]
+        for p in powers:
+            if p.exp.is_Number and abs(p.exp) > MAX_EXPONENT and p.base not in (
+                    sympy.S.Zero, sympy.S.One, sympy.S.NegativeOne):
+                raise self.error(ExpressionLimitError, f"{self.piece(node)} evaluates to a power "
+                                 f"{p.base}^{p.exp}, whose exponent is beyond +-{MAX_EXPONENT}",
+                                 node)
 
     def check_floats(self, value, node) -> None:
         for number in value.atoms(sympy.Float):
             if not abs(number) <= _FLOAT_RANGE:
                 raise self.error(ExpressionLimitError, f"{self.piece(node)} leaves the range of "
                                  "floating-point numbers (1e308)", node)
+
+
+#: binary exponent bound on the value of a constant (about 30,000 digits)
+_MAX_CONSTANT_BITS = 100_000
 
 
 def _integer_literal(node) -> bool:
