@@ -36,6 +36,7 @@ from typing import ClassVar, Mapping
 import mpmath
 import sympy
 
+from ..local.boundary import guarded
 from ..local.prepare import expr, prepare, sign_word, solve_for
 from ..renderers import render
 from ..algebra.quadratic import lower
@@ -179,6 +180,7 @@ def _points_on_branch(prep, bc, second, index):
     return out, unsolved
 
 
+@guarded("the Bautin analysis")
 def bautin_points(model, parameter: str, second: str, *, equilibrium=None, eliminate=None,
                   values=None, assume=None, backend: str = "flint") -> tuple:
     """Bautin points of the Hopf set of ``parameter``, solved for ``second``.

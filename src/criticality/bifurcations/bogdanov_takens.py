@@ -35,6 +35,7 @@ from typing import ClassVar
 
 import sympy
 
+from ..local.boundary import guarded
 from ..local.prepare import expr, prepare, sign_word, solve_for
 from ..renderers import render
 from ..algebra.linalg import dot, kernel, matvec, solve_consistent, transpose
@@ -202,6 +203,7 @@ def _point(prep, sp1, sp2, names):
                                 _scenario(sign), tuple(notes))
 
 
+@guarded("the Bogdanov-Takens analysis")
 def bogdanov_takens_all(model, parameter: str, second: str, *, equilibrium=None, eliminate=None,
                         values=None, assume=None, backend: str = "flint") -> tuple:
     """Every closed-form Bogdanov-Takens point (see :func:`bogdanov_takens`)."""
@@ -224,6 +226,7 @@ def bogdanov_takens_all(model, parameter: str, second: str, *, equilibrium=None,
     return tuple(out)
 
 
+@guarded("the Bogdanov-Takens analysis")
 def bogdanov_takens(model, parameter: str, second: str, *, equilibrium=None, eliminate=None,
                     values=None, assume=None, backend: str = "flint",
                     branch: int = 0) -> BogdanovTakensResult:

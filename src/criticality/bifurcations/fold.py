@@ -40,6 +40,7 @@ from typing import ClassVar
 
 import sympy
 
+from ..local.boundary import guarded
 from ..local.prepare import expr, prepare, sign_word, solve_for
 from ..renderers import render
 from ..algebra.linalg import determinant, dot, kernel, matvec, solve, transpose
@@ -254,6 +255,7 @@ def _result(prep, sp, unknown):
                       signs)
 
 
+@guarded("the fold analysis")
 def fold_all(model, parameter: str, *, solve_for_name: str | None = None, equilibrium=None,
              eliminate=None, values=None, assume=None, backend: str = "flint") -> tuple:
     """Every closed-form point of ``det A = 0`` (see :func:`fold`)."""
@@ -292,6 +294,7 @@ def _unknown(prep, name):
     return prep.symbol(prep.parameter)
 
 
+@guarded("the fold analysis")
 def fold(model, parameter: str, *, solve_for: str | None = None, equilibrium=None,
          eliminate=None, values=None, assume=None, backend: str = "flint",
          branch: int = 0) -> FoldResult:

@@ -43,6 +43,7 @@ from dataclasses import dataclass
 
 import sympy
 
+from ..local.boundary import guarded
 from ..algebra import upoly
 from ..algebra.linalg import dot
 from ..algebra.quadratic import lower
@@ -276,6 +277,7 @@ def _names(parameters, second):
     return str(parameters), str(second)
 
 
+@guarded("the fold-Hopf analysis")
 def fold_hopf_all(model, parameters, second=None, *, point=None, equilibrium=None,
                   eliminate=None, values=None, assume=None, backend: str = "flint") -> tuple:
     """Every closed-form fold-Hopf point (see :func:`fold_hopf`)."""
@@ -305,6 +307,7 @@ def fold_hopf_all(model, parameters, second=None, *, point=None, equilibrium=Non
         f"'{p2}'" + (f" ({errors[0]})" if errors else ""), reason="empty_critical_set")
 
 
+@guarded("the fold-Hopf analysis")
 def fold_hopf(model, parameters, second=None, *, point=None, equilibrium=None, eliminate=None,
               values=None, assume=None, backend: str = "flint",
               branch: int = 0) -> FoldHopfResult:

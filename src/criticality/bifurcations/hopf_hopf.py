@@ -45,6 +45,7 @@ from dataclasses import dataclass
 
 import sympy
 
+from ..local.boundary import guarded
 from ..algebra import upoly
 from ..algebra.linalg import SingularMatrixError, determinant, dot, solve_vector
 from ..algebra.quadratic import QuadraticExtension, lower
@@ -349,6 +350,7 @@ def _symbol_values(prep, sub, E, names):
     return out
 
 
+@guarded("the Hopf-Hopf analysis")
 def hopf_hopf_all(model, parameters, second=None, *, point=None, equilibrium=None,
                   eliminate=None, values=None, assume=None, backend: str = "flint") -> tuple:
     """Every closed-form Hopf-Hopf point (see :func:`hopf_hopf`)."""
@@ -381,6 +383,7 @@ def hopf_hopf_all(model, parameters, second=None, *, point=None, equilibrium=Non
         f"and '{p2}'" + (f" ({errors[0]})" if errors else ""), reason="empty_critical_set")
 
 
+@guarded("the Hopf-Hopf analysis")
 def hopf_hopf(model, parameters, second=None, *, point=None, equilibrium=None, eliminate=None,
               values=None, assume=None, backend: str = "flint",
               branch: int = 0) -> HopfHopfResult:

@@ -39,6 +39,7 @@ from dataclasses import dataclass
 
 import sympy
 
+from ..local.boundary import guarded
 from ..algebra import upoly
 from ..algebra.quadratic import lower
 from ..errors import DegenerateBifurcationError, DegenerateHopfError, NoHopfPointError
@@ -265,6 +266,7 @@ def _flip_point(prep, sp, unknown, chi, dchi):
                       E(speed), amp, _flip_verdict(sign), status, conds, notes)
 
 
+@guarded("the flip analysis")
 def flip_all(model, parameter: str, *, solve_for: str | None = None, equilibrium=None,
              eliminate=None, values=None, assume=None, backend: str = "flint") -> tuple:
     """Every closed-form flip point (see :func:`flip`)."""
@@ -298,6 +300,7 @@ def flip_all(model, parameter: str, *, solve_for: str | None = None, equilibrium
 
 
 
+@guarded("the flip analysis")
 def flip(model, parameter: str, *, solve_for: str | None = None, equilibrium=None,
          eliminate=None, values=None, assume=None, backend: str = "flint",
          branch: int = 0) -> FlipResult:
@@ -427,6 +430,7 @@ def _map_error(exc):
     return exc
 
 
+@guarded("the Neimark-Sacker analysis")
 def neimark_sacker_all(model, parameter: str, *, solve_for: str | None = None,
                        equilibrium=None, eliminate=None, values=None, assume=None,
                        backend: str = "flint") -> tuple:
@@ -473,6 +477,7 @@ def neimark_sacker_all(model, parameter: str, *, solve_for: str | None = None,
     return tuple(out)
 
 
+@guarded("the Neimark-Sacker analysis")
 def neimark_sacker(model, parameter: str, *, solve_for: str | None = None, equilibrium=None,
                    eliminate=None, values=None, assume=None, backend: str = "flint",
                    branch: int = 0) -> NeimarkSackerResult:

@@ -18,6 +18,7 @@ from typing import ClassVar, Mapping
 import mpmath
 import sympy
 
+from ..local.boundary import guarded
 from ..errors import ParameterError
 from ..local.options import check_digits, check_point
 from ..renderers import render
@@ -165,6 +166,7 @@ def _mpf(x, digits):
     return mpmath.mpf(sympy.Float(x, digits)._mpf_)
 
 
+@guarded("the evaluation of the result")
 def evaluate_result(result, values: Mapping, *, digits: int = 30) -> NumericHopfResult:
     """Evaluate every quantity of ``result`` at ``values``."""
     check_digits(digits, 5, 10000)

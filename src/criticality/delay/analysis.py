@@ -17,6 +17,7 @@ from .critical import (LAMBDA, decide_sign, delay_crossing, parameter_crossing,
 from .linearize import delay_forms, equilibrium_point
 from .normal_form import center_data
 from .results import DelayHopfResult
+from ..local.boundary import guarded
 from ..budget import stage
 from ..budget import time_limit as time_limit_
 from ..errors import ClosedFormUnavailableError, NoHopfPointError, ParameterError
@@ -27,6 +28,7 @@ from ..local.options import (check_assume, check_branch, check_digits, check_equ
 __all__ = ["hopf_delay"]
 
 
+@guarded("the delay Hopf analysis")
 def hopf_delay(model, parameter: str | None = None, *, equilibrium=None,
                values: Mapping | None = None, branch: int | None = None,
                assume: Mapping | None = None, time_limit: float | None = None,

@@ -21,6 +21,7 @@ from typing import Mapping
 import mpmath
 import sympy
 
+from ..local.boundary import guarded
 from ..errors import ParameterError
 from ..model.expressions import convert_sympy, parse_expression
 
@@ -94,6 +95,7 @@ def _mp(expr, sub, digits):
     return mpmath.mpc(str(re), str(im))
 
 
+@guarded("the evaluation of the delay result")
 def evaluate_result(result, values: Mapping, digits: int = 30) -> NumericDelayResult:
     sub = _point(result, values)
     with mpmath.workdps(digits + 10):

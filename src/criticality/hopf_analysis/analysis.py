@@ -13,6 +13,7 @@ from dataclasses import replace
 from typing import Mapping
 
 from .assemble import build_result
+from ..local.boundary import guarded
 from ..budget import hint, stage
 from ..budget import time_limit as time_limit_
 from .engine import run_engine
@@ -25,6 +26,7 @@ from .results import HopfResult
 __all__ = ["hopf", "hopf_all"]
 
 
+@guarded("the Hopf analysis")
 def hopf(model, parameter: str | None = None, *, equilibrium=None, eliminate=None,
          branch: int | None = None, order: int = 3, values: Mapping | None = None,
          assume: Mapping | None = None, backend: str = "flint", guess: Mapping | None = None,
@@ -105,6 +107,7 @@ def hopf(model, parameter: str | None = None, *, equilibrium=None, eliminate=Non
                         backend, select=0 if branch is None else branch)[0]
 
 
+@guarded("the Hopf analysis")
 def hopf_all(model, parameter: str | None = None, *, equilibrium=None, eliminate=None,
              order: int = 3, values: Mapping | None = None, assume: Mapping | None = None,
              backend: str = "flint", time_limit: float | None = None) -> tuple:

@@ -37,6 +37,7 @@ from typing import Mapping
 import mpmath
 import sympy
 
+from ..local.boundary import guarded
 from ..errors import NoHopfPointError, ParameterError
 from ..local.compiled import CompiledTaylor
 from ..local.lyapunov import complex_normal_form
@@ -294,6 +295,7 @@ def guess_vector(model, parameter, guess):
     return out
 
 
+@guarded("the numeric Hopf analysis")
 def hopf_numeric(model, parameter: str, guess: Mapping, *, digits: int = 30, order: int = 3,
                  values: Mapping | None = None, radius: float = 1.0):
     """Locate a Hopf point numerically from ``guess`` and analyse it.
