@@ -62,7 +62,7 @@ def _foreign_kinds() -> tuple:
     return ((RecursionError, ComputationLimitError, "the expressions are nested too deeply"),
             (MemoryError, ComputationLimitError, "the expressions grew beyond the memory"),
             (OverflowError, ComputationLimitError, "a number grew beyond what can be evaluated"),
-            (mpmath.NoConvergence, ComputationLimitError,
+            (mpmath.libmp.NoConvergence, ComputationLimitError,
              "a numerical method did not converge"),
             (pe.BasePolynomialError, ClosedFormUnavailableError,
              "a polynomial method met an expression it cannot handle"),
