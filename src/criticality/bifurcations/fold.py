@@ -267,7 +267,7 @@ def fold_all(model, parameter: str, *, solve_for_name: str | None = None, equili
                      for r in results)
     prep = prepare(model, parameter, equilibrium=equilibrium, eliminate=eliminate,
                    values=values, assume=assume, order=3, backend=backend,
-                   extra=lambda m, c: _f_mu(m, c, m.symbols[parameter]))
+                   extra=lambda m, c: _f_mu(m, c, m.symbols[parameter or m.bifurcation_parameter]))
     unknown = _unknown(prep, solve_for_name)
     det = determinant(prep.tower.top, prep.taylor.jacobian())
     points, unsolved = solve_for(prep.tower, det, unknown)

@@ -27,7 +27,7 @@ from ..algebra.signs import NEGATIVE, NONPOSITIVE, ZERO, SignContext, context_fo
 from ..budget import hint, stage
 from ..errors import (ClosedFormUnavailableError, NoHopfPointError, NotAnalyticError,
                       NotAnEquilibriumError, ParameterError)
-from .options import check_assume, check_options, check_order
+from .options import check_assume, check_name, check_options, check_order, check_values
 from .equilibria import (EquilibriumChoice, given_equilibrium, parametrised_equilibrium,
                          select_equilibrium, solve_equilibria)
 from .sign_words import expr, sign_word
@@ -159,6 +159,9 @@ def resolve_parameter(model, parameter: str | None, values: Mapping | None = Non
     defaults to the model file's choice; a state, an unknown name (with a
     did-you-mean) or a value that breaks an assumption raise
     :class:`ParameterError`."""
+    values = check_values(values)
+    if parameter is not None:
+        check_name(parameter, "parameter")
     if values:
         model = model.with_values(dict(values))
     name = parameter or getattr(model, "bifurcation_parameter", None)
