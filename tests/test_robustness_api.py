@@ -109,6 +109,14 @@ def test_a_constant_beyond_evaluation_is_refused_where_it_is_written(text):
         criticality.parse_expression(text)
 
 
+def test_a_sympy_built_constant_beyond_evaluation_is_refused_too():
+    x, y, mu = sympy.symbols("x y mu", real=True)
+    huge = sympy.exp(sympy.exp(sympy.exp(sympy.exp(1000, evaluate=False), evaluate=False),
+                               evaluate=False), evaluate=False)
+    with pytest.raises(InvalidModelError, match="beyond 2\\^"):
+        Model(["x", "y"], {"x": mu * x - y + huge * x ** 2, "y": x + mu * y})
+
+
 def test_evaluate_refuses_a_point_beyond_evaluation():
     r = hopf(CUBIC, "mu", equilibrium=ORIGIN)
     with pytest.raises(CriticalityError):

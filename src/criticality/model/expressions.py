@@ -66,7 +66,7 @@ from .syntax import (EXPRESSION_KEYWORDS, FUNCTIONS, MAX_DEPTH, MAX_EXPONENT,
                            _MAX_DECIMAL_EXPONENT, _MAX_POWER_BITS, _MAX_ROOT_BITS,
                            _MAX_TOTAL_POWER_BITS, _NOT_FINITE, _Chunk, _decimal_to_rational,
                            _parse_chunk, _quote, _scan, _split_terms, _suggest, _Where,
-                           name_problem)
+                           name_problem, MAX_CONSTANT_BITS, constant_out_of_range)
 from .sympy_input import convert_sympy, format_expression
 from .delay_syntax import delayed_call
 from ..errors import (CriticalityError, ExpressionLimitError, ExpressionSyntaxError,
@@ -389,19 +389,13 @@ class _Builder:
         return value
 
     def check_magnitude(self, value, node) -> None:
-        """A constant must have a value the engine can evaluate: its binary
-        exponent within +-_MAX_CONSTANT_BITS (``exp(exp(1000))`` is refused
-        by its value, however it is spelled)."""
-        try:
-            number = value.evalf(15)
-            mpf = getattr(number, "_mpf_", None)
-            size = None if mpf is None or not mpf[1] else mpf[2] + mpf[3]
-        except (OverflowError, ValueError, ArithmeticError, RecursionError, MemoryError):
-            size = _MAX_CONSTANT_BITS + 1
-        if size is not None and abs(size) > _MAX_CONSTANT_BITS:
+        """A constant must have a value the engine can evaluate: within
+        2^+-MAX_CONSTANT_BITS (``exp(exp(1000))`` is refused by its value,
+        however it is spelled)."""
+        if constant_out_of_range(value):
             raise self.error(ExpressionLimitError, f"the value of {self.piece(node)} is beyond "
-                             f"2^+-{_MAX_CONSTANT_BITS} (about 10^+-"
-                             f"{int(_MAX_CONSTANT_BITS * 0.30103)}), too large or too small to "
+                             f"2^+-{MAX_CONSTANT_BITS} (about 10^+-"
+                             f"{int(MAX_CONSTANT_BITS * 0.30103)}), too large or too small to "
                              "evaluate", node)
 
     def check_degree(self, value, node) -> None:
@@ -421,10 +415,6 @@ class _Builder:
             if not abs(number) <= _FLOAT_RANGE:
                 raise self.error(ExpressionLimitError, f"{self.piece(node)} leaves the range of "
                                  "floating-point numbers (1e308)", node)
-
-
-#: binary exponent bound on the value of a constant (about 30,000 digits)
-_MAX_CONSTANT_BITS = 100_000
 
 
 def _integer_literal(node) -> bool:
