@@ -206,6 +206,21 @@ def test_evaluate_at_ten_thousand_digits():
         r.evaluate({"a": 1}, digits="30")
 
 
+def test_delay_evaluation_at_many_digits_and_bad_points():
+    """The delay result's evaluation converts through binary values and prints
+    at its own precision; bad points and digits are named."""
+    model = Model(["x"], {"x": "-k*x(t - tau) - x^3"}, {"k": "positive", "tau": "positive"})
+    r = hopf(model, "tau", equilibrium={"x": 0})
+    num = r.evaluate({"k": 1}, digits=5000)
+    assert len(repr(num)) > 5000
+    with pytest.raises(ParameterError, match="values must be a mapping"):
+        r.evaluate("k=1")
+    with pytest.raises(ParameterError, match="digits must be"):
+        r.evaluate({"k": 1}, digits="30")
+    with pytest.raises(CriticalityError, match="not finite"):
+        r.evaluate({"k": math.nan})
+
+
 @pytest.mark.parametrize("path", ["\x00", "a\x00b.toml"])
 def test_a_model_path_with_a_nul_character(path):
     with pytest.raises(ModelFileError, match="NUL"):

@@ -163,7 +163,9 @@ def _num(expr, subs, digits, what=None):
 def _mpf(x, digits):
     """A sympy number as an mpmath number through its binary value (no
     decimal string, so no limit on the number of digits)."""
-    return mpmath.mpf(sympy.Float(x, digits)._mpf_)
+    value = sympy.Float(x, digits)
+    mpf = getattr(value, "_mpf_", None)
+    return mpmath.mpf(mpf) if mpf is not None else mpmath.mpf(str(value))  # NaN
 
 
 @guarded("the evaluation of the result")
