@@ -374,6 +374,33 @@ def test_fuzz_other_analyses(name, first, second, options):
         survives(call)
 
 
+#: a planar map with a fixed point at the origin (flip at r = -1, a
+#: Neimark-Sacker point at a = 1 for the rotation part); invented
+FUZZ_MAP = Model(["x", "y"], {"x": "r*x - y + x^2", "y": "a*x + r*y - y^3"},
+                 {"r": "real", "a": {"assume": "positive", "value": "1"}}, kind="map",
+                 equilibrium={"x": "0", "y": "0"})
+
+
+@settings(FUZZ, max_examples=400)
+@given(st.sampled_from(["flip", "neimark_sacker", "fold_hopf", "hopf_hopf"]),
+       st.one_of(PYTHON_VALUES, st.sampled_from(["r", "a", "mu", ("mu", "a"), ("mu", "b")])),
+       st.dictionaries(st.sampled_from(("equilibrium", "values", "assume", "backend",
+                                        "branch", "eliminate", "solve_for", "point")),
+                       PYTHON_VALUES, max_size=2))
+def test_fuzz_map_and_codimension_two_analyses(name, first, options):
+    """flip / neimark_sacker on a map, fold_hopf / hopf_hopf on a flow, with
+    generated arguments."""
+    function = getattr(criticality, name)
+    if name in ("fold_hopf", "hopf_hopf"):
+        options.pop("solve_for", None)
+        model = FUZZ_MODEL
+    else:
+        options.pop("point", None)
+        model = FUZZ_MAP
+    with criticality.time_limit(BUDGET):
+        survives(function, model, first, **options)
+
+
 @settings(FUZZ, max_examples=500)
 @given(st.dictionaries(NAMES, PYTHON_VALUES, max_size=3), PYTHON_VALUES)
 def test_fuzz_evaluate(values, digits):

@@ -48,7 +48,8 @@ from ..algebra import upoly
 from ..algebra.linalg import dot
 from ..algebra.quadratic import lower
 from ..errors import DegenerateBifurcationError, NoHopfPointError, ParameterError
-from ..local.options import check_branch, pick_branch
+from ..local.options import (check_branch, check_name, check_second, check_values,
+                             pick_branch)
 from ..local.critical import nu_extension, pair_sum_condition
 from ..local.eigenbasis import critical_eigenbasis
 from ..algebra.linalg import characteristic_polynomial
@@ -162,7 +163,7 @@ def _located(prep, u1, u2, point, conditions=None):
     if point is None:
         c0, c1 = conditions if conditions is not None else _conditions(prep, u1, u2)
         return _solve_pair(prep, u1, u2, c0, c1)
-    names = {str(k): v for k, v in dict(point).items()}
+    names = {str(k): v for k, v in (check_values(point, "point") or {}).items()}
     missing = [u.name for u in (u1, u2) if u.name not in names]
     if missing:
         raise NoHopfPointError(f"point= must give values for {u1.name} and {u2.name}; "
@@ -268,13 +269,20 @@ def _nonzero(target, x, ctx):
 
 
 def _names(parameters, second):
+    """The two names of a codimension-two analysis, from ``(p1, p2)`` or
+    ``p1, second=p2``: two different non-empty strings (ParameterError)."""
     if isinstance(parameters, (tuple, list)):
         if second is not None or len(parameters) != 2:
-            raise TypeError("give the two symbols as one pair (p1, p2)")
-        return str(parameters[0]), str(parameters[1])
-    if second is None:
-        raise TypeError("give the two symbols as (p1, p2)")
-    return str(parameters), str(second)
+            raise ParameterError("give the two symbols as one pair (p1, p2), e.g. "
+                                 f"('b1', 'b2'); got {parameters!r:.60}")
+        p1, p2 = parameters
+    elif second is None:
+        raise ParameterError("give the two symbols as (p1, p2), or the first and "
+                             "second=...")
+    else:
+        p1, p2 = parameters, second
+    check_name(p1, "the first parameter")
+    return p1, check_second(p1, p2)
 
 
 @guarded("the fold-Hopf analysis")
