@@ -87,7 +87,7 @@ def hopf(model, parameter: str | None = None, *, equilibrium=None, eliminate=Non
     >>> r.critical_value, r.l1, r.classification
     (0, -1/4, 'supercritical')
     """
-    branch = check_branch(branch)
+    branch, backend = check_branch(branch), check_backend(backend)
     if getattr(model, "delays", ()):
         from ..delay.analysis import hopf_delay
         return hopf_delay(model, parameter, equilibrium=equilibrium, values=values,
