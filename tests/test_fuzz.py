@@ -1,5 +1,7 @@
 """Fuzzing the Python API: expressions, names, TOML documents, JSON documents
-and the arguments of the analyses (about 8,500 generated inputs).
+and the arguments of the analyses (about 9,900 generated inputs, about a
+minute; the three largest are marked slow, so the quick loop keeps the
+smaller ones and CI runs all).
 
 Every input runs under a wall-clock limit (an alarm, and the package's own
 budget for the analyses) and the whole module under an address-space limit
@@ -254,6 +256,7 @@ FUZZ_DOCUMENT = json.loads(FUZZ_RESULT.to_json())
 # -- the fuzz tests ---------------------------------------------------------------------
 
 
+@pytest.mark.slow
 @settings(FUZZ, max_examples=3000)
 @given(EXPRESSIONS)
 def test_fuzz_expressions(text):
@@ -273,6 +276,7 @@ def test_fuzz_names_and_python_models(states, parameters, equation):
     survives(Model, states, [equation] * len(states), list(parameters))
 
 
+@pytest.mark.slow
 @settings(FUZZ, max_examples=1800)
 @given(toml_documents())
 def test_fuzz_toml_documents(text):
@@ -304,6 +308,7 @@ def _paths(value, path=()):
 DOCUMENT_PATHS = _paths(FUZZ_DOCUMENT)
 
 
+@pytest.mark.slow
 @settings(FUZZ, max_examples=1500)
 @given(st.sampled_from(DOCUMENT_PATHS), JSON_VALUES, st.integers(0, 9), st.text(max_size=20))
 def test_fuzz_json_documents(path, value, how, noise):
