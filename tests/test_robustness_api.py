@@ -388,3 +388,29 @@ def test_json_fields_of_the_wrong_shape_are_named(field, value):
 def test_json_nested_too_deeply():
     with pytest.raises(ModelFileError, match="nested too deeply"):
         read_expressions("[" * 100000)
+
+
+# -- the checks and outputs take the same care -----------------------------------------------
+
+
+def test_sweep_and_evaluate_many_name_a_bad_grid():
+    r = hopf(CUBIC, "mu", equilibrium=ORIGIN)
+    with pytest.raises(ParameterError, match="grid must be a mapping"):
+        criticality.sweep(r, "l1", "a")
+    with pytest.raises(ParameterError, match="grid values of 'a' must be numbers"):
+        r.evaluate_many({"a": "x"})
+
+
+def test_validate_refuses_a_bad_point_and_a_result_without_verdict():
+    r = hopf(CUBIC, "mu", equilibrium=ORIGIN)
+    with pytest.raises(ParameterError, match="values must be a mapping"):
+        criticality.validate(r, "a=1")
+    flat = hopf(planar("mu^2*x - y - x^3", "x + mu^2*y - y^3"), "mu", equilibrium=ORIGIN)
+    with pytest.raises(criticality.ValidationRunError, match="no verdict"):
+        criticality.validate(flat)
+
+
+def test_json_output_with_a_point_that_is_not_a_mapping():
+    r = hopf(CUBIC, "mu", equilibrium=ORIGIN)
+    with pytest.raises(ParameterError, match="point must be a mapping"):
+        r.to_json(point="a")

@@ -25,6 +25,7 @@ from typing import Callable, Mapping
 import sympy
 
 from ..errors import MissingExtraError, ParameterError
+from ..local.options import check_values
 
 __all__ = ["Sweep", "sweep", "quantity_expression", "QUANTITIES", "grid_function",
            "evaluate_many"]
@@ -250,6 +251,16 @@ def _evaluate(np, fn, arrays, report, scheduler=None) -> object:
     return out.reshape(arrays[0].shape)
 
 
+def _float_array(np, values, name):
+    """The grid coordinates of ``name`` as a float array (ParameterError if
+    they are not numbers)."""
+    try:
+        return np.asarray(values, dtype=float)
+    except (TypeError, ValueError) as exc:
+        raise ParameterError(f"the grid values of {name!r} must be numbers (an array of "
+                             f"floats); {exc}") from None
+
+
 def sweep(result, quantity, grid: Mapping, *, values: Mapping | None = None,
           progress: bool | str | Callable = "auto", scheduler=None) -> Sweep:
     """Evaluate a closed form of ``result`` over a grid of parameter values.
@@ -291,11 +302,15 @@ def sweep(result, quantity, grid: Mapping, *, values: Mapping | None = None,
     """
     np = _numpy()
     expr = quantity_expression(result, quantity)
+    if not isinstance(grid, Mapping):
+        raise ParameterError("the grid must be a mapping {parameter name: array of values}; "
+                             f"got {type(grid).__name__} {grid!r:.60}")
+    values = check_values(values)
     names = list(grid)
     if not names:
         raise ParameterError("the grid is empty: give at least one parameter and its values")
     fn, sub, fixed = grid_function(result, expr, names, values)
-    arrays = np.broadcast_arrays(*(np.asarray(grid[n], dtype=float) for n in names))
+    arrays = np.broadcast_arrays(*(_float_array(np, grid[n], n) for n in names))
     report = _Progress(f"sweep {quantity}", progress)
     out = _evaluate(np, fn, arrays, report, scheduler)
     ok = np.ones(out.shape, dtype=bool)

@@ -37,6 +37,7 @@ from typing import Mapping, Sequence
 
 from .simulate import bracket, local_frame, measure_cycle, prepare, settle_time, shoot_cycle
 from ..errors import MissingExtraError, ParameterError, ValidationRunError
+from ..local.options import check_values
 from .validation_report import BracketOutcome, CycleMeasurement, ValidationReport
 
 __all__ = ["validate", "default_offsets", "natural_scale", "ValidationReport", "CycleMeasurement",
@@ -180,6 +181,10 @@ def validate(result, values: Mapping | None = None, *, offsets: Sequence[float] 
         The integration cannot be carried out (e.g. no definite side, l1 = 0).
     """
     started = time.perf_counter()
+    values = check_values(values)
+    if result.classification in ("nontransversal", "inadmissible"):
+        raise ValidationRunError(f"the result gives no verdict ({result.classification}): "
+                                 f"{result.verdict}; there is no predicted cycle to confirm")
     power = getattr(result.cycle, "amplitude_power", 2)
     if power != 2:
         raise ValidationRunError(

@@ -27,7 +27,7 @@ import sympy
 from .envelope import SCHEMA_VERSION, envelope, read_document
 from .render import CAUTIONS, split_complex, try_model_text
 from ..renderers import register_renderer
-from ..errors import ModelFileError
+from ..errors import ModelFileError, ParameterError
 from ..model.expressions import parse_expression
 
 __all__ = ["SCHEMA", "SCHEMA_VERSION", "result_to_json", "result_to_dict", "read_expressions",
@@ -104,6 +104,8 @@ def _number(value, digits: int):
 
 
 def _numeric(result, point: Mapping, digits: int) -> dict:
+    if not isinstance(point, Mapping):
+        raise ParameterError(f"point must be a mapping {{name: value}}; got {point!r:.60}")
     num = result.evaluate(dict(point), digits=digits)
     with mpmath.workdps(digits + 10):  # mpc() rounds to the working precision
         return _numeric_fields(num, digits)
