@@ -1,5 +1,5 @@
 """Fuzzing the Python API: expressions, names, TOML documents, JSON documents
-and the arguments of the analyses (about 9,900 generated inputs, about a
+and the arguments of the analyses (about 10,200 generated inputs, about a
 minute; the three largest are marked slow, so the quick loop keeps the
 smaller ones and CI runs all).
 
@@ -413,6 +413,24 @@ def test_fuzz_evaluate(values, digits):
     if isinstance(digits, int) and not isinstance(digits, bool) and digits > 2000:
         digits = 2000  # correct but slow; 10000 digits is a named regression test
     survives(FUZZ_RESULT.evaluate, values, digits=digits)
+
+
+@settings(FUZZ, max_examples=300)
+@given(st.sampled_from(["sweep", "evaluate_many", "to_json"]),
+       st.one_of(PYTHON_VALUES, st.dictionaries(NAMES, st.one_of(
+           PYTHON_VALUES, st.lists(st.one_of(st.floats(), st.integers(), NAMES), max_size=3)),
+           max_size=2)),
+       st.one_of(PYTHON_VALUES, st.sampled_from(["l1", "omega", "critical_value",
+                                                 "amplitude:x"])))
+def test_fuzz_checks_and_outputs(name, points, quantity):
+    """sweep / evaluate_many / to_json(point=...) with generated grids and
+    points."""
+    if name == "sweep":
+        survives(criticality.sweep, FUZZ_RESULT, quantity, points, progress=False)
+    elif name == "evaluate_many":
+        survives(FUZZ_RESULT.evaluate_many, points)
+    else:
+        survives(FUZZ_RESULT.to_json, point=points, digits=15)
 
 
 @settings(FUZZ, max_examples=200)
