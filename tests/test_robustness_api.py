@@ -414,3 +414,10 @@ def test_json_output_with_a_point_that_is_not_a_mapping():
     r = hopf(CUBIC, "mu", equilibrium=ORIGIN)
     with pytest.raises(ParameterError, match="point must be a mapping"):
         r.to_json(point="a")
+
+
+def test_values_keyed_by_sympy_symbols_are_still_accepted():
+    """The option check normalises symbol keys to their names."""
+    a = CUBIC.symbols["a"]
+    r = hopf(CUBIC, "mu", equilibrium=ORIGIN, values={a: 1})
+    assert r.l1 == -sympy.Rational(3, 2)  # -3(a + 1)/4 at a = 1 (see above)

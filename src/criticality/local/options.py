@@ -98,11 +98,14 @@ def _mapping(value: Any, option: str, example: str) -> dict | None:
     if not isinstance(value, Mapping):
         raise ParameterError(f"{option} must be a mapping such as {example}; got "
                              f"{_shown(value)} ({type(value).__name__})")
-    bad = [k for k in value if not isinstance(k, str) or not k]
-    if bad:
-        raise ParameterError(f"{option} must map names (strings) to values; got the key "
-                             f"{_shown(bad[0])}")
-    return dict(value)
+    out = {}
+    for key, item in value.items():
+        name = key if isinstance(key, str) else getattr(key, "name", None)  # sympy symbols
+        if not isinstance(name, str) or not name:
+            raise ParameterError(f"{option} must map names (strings or symbols) to values; "
+                                 f"got the key {_shown(key)}")
+        out[name] = item
+    return out
 
 
 def _number_problem(value: Any) -> str | None:
