@@ -48,6 +48,8 @@ class Classification(Word):
     SUBCRITICAL = "subcritical"       # l1 > 0: an unstable cycle, abrupt onset
     DEPENDS = "depends"               # the sign changes inside the family: see the condition
     DEGENERATE = "degenerate"         # l1 = 0: the next coefficient decides
+    NONTRANSVERSAL = "nontransversal"  # the pair does not cross with nonzero speed: no verdict
+    INADMISSIBLE = "inadmissible"     # the critical value breaks the declared range: no verdict
 
 
 class Sign(Word):

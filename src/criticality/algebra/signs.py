@@ -274,12 +274,37 @@ class SignContext:
         from .flint_field import FlintRationalFunctionField
 
         expr = sympy.together(expr)
+        if not _plain_rational(expr):  # radicals, constants such as pi, functions
+            s = self.structural_sign(expr)
+            return FactoredSign(sympy.Integer(1), (FactorSign(expr, 1, False, s),), s)
         syms = sorted(expr.free_symbols, key=sympy.default_sort_key)
         if not syms:
             return self.assemble(sympy.Rational(expr), [])
         K = FlintRationalFunctionField(syms)
         x = K.from_sympy(expr)
         return self.from_flint(K, x.num, x.den)
+
+    def structural_sign(self, expr: sympy.Expr) -> Sign:
+        """Sign of an expression that is not a rational function (radicals,
+        powers with symbolic exponents, constants such as ``pi`` or
+        ``sin(1)``, ``exp``), from its structure: products and powers of
+        terms of known sign, sums of terms of one sign; UNKNOWN otherwise."""
+        if _plain_rational(expr):
+            return self.factored(expr).sign
+        if expr.is_number:
+            return _number_sign(expr)
+        if expr.is_Mul:
+            out = POSITIVE
+            for a in expr.args:
+                out = mul_sign(out, self.structural_sign(a))
+            return out
+        if expr.is_Add:
+            return _sum_sign([self.structural_sign(a) for a in expr.args])
+        if isinstance(expr, sympy.exp):
+            return POSITIVE
+        if expr.is_Pow:
+            return _power_sign(self.structural_sign(expr.base), expr.exp)
+        return UNKNOWN
 
     def from_flint(self, K: Any, num: Any, den: Any) -> FactoredSign:
         """Factored sign of ``num/den`` (``fmpz_mpoly`` of the field ``K``)."""
@@ -327,6 +352,56 @@ class SignContext:
             out.append(FactorSign(f, m, in_den, s))
         out.sort(key=lambda f: (f.sign == UNDECIDED, f.in_denominator, len(f.expr.args)))
         return FactoredSign(sympy.Rational(constant), tuple(out), total)
+
+
+def _plain_rational(expr: sympy.Expr) -> bool:
+    """True for a rational function with rational coefficients (what the
+    flint route factors)."""
+    if expr.is_Rational or expr.is_Symbol:
+        return True
+    if expr.is_Add or expr.is_Mul:
+        return all(_plain_rational(a) for a in expr.args)
+    if expr.is_Pow:
+        return expr.exp.is_Integer and _plain_rational(expr.base)
+    return False
+
+
+def _number_sign(expr: sympy.Expr) -> Sign:
+    """Sign of a constant (sympy's certified numeric evaluation)."""
+    try:
+        if expr.is_zero:
+            return ZERO
+        if expr.is_extended_positive:
+            return POSITIVE
+        if expr.is_extended_negative:
+            return NEGATIVE
+    except (TypeError, ValueError, ArithmeticError, RecursionError):
+        pass
+    return UNKNOWN
+
+
+def _sum_sign(signs: list) -> Sign:
+    if all(s in (POSITIVE, NONNEGATIVE, ZERO) for s in signs):
+        return POSITIVE if POSITIVE in signs else NONNEGATIVE if NONNEGATIVE in signs else ZERO
+    if all(s in (NEGATIVE, NONPOSITIVE, ZERO) for s in signs):
+        return NEGATIVE if NEGATIVE in signs else NONPOSITIVE if NONPOSITIVE in signs else ZERO
+    return UNKNOWN
+
+
+def _power_sign(base: Sign, exponent: sympy.Expr) -> Sign:
+    """Sign of ``base**exponent`` from the sign of a real base."""
+    if exponent.is_Integer:
+        if base == UNKNOWN or (base == ZERO and exponent < 0):
+            return UNKNOWN
+        if exponent % 2 == 0:
+            return ZERO if base == ZERO else POSITIVE if base in (POSITIVE, NEGATIVE) \
+                else NONNEGATIVE
+        return base
+    if base == POSITIVE:
+        return POSITIVE
+    if base in (NONNEGATIVE, ZERO) and exponent.is_Rational and exponent > 0:
+        return NONNEGATIVE
+    return UNKNOWN
 
 
 def context_for(parameters: Iterable[sympy.Symbol], assumptions: Mapping[sympy.Symbol, str],

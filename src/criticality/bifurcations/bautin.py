@@ -37,11 +37,14 @@ import mpmath
 import sympy
 
 from ..local.prepare import EquilibriumSpec, expr, prepare, sign_word, solve_for
-from ..renderers import Rendered
+from ..renderers import Rendered, render
 from ..algebra.quadratic import lower
 from ..hopf_analysis.engine import run_engine
 from ..errors import NoHopfPointError
 from ..kinds import Sign, coerce
+from ..local.boundary import guarded
+from ..local.options import check_digits, check_point, check_second
+from ..model.expressions import parse_expression
 
 if TYPE_CHECKING:
     from ..model.core import Model
@@ -94,8 +97,9 @@ class BautinPoint(Rendered):
     def evaluate(self, values: Mapping | None = None, digits: int = 30) -> dict:
         """The numeric values of the point's quantities at ``values``
         (names of the remaining parameters -> numbers)."""
-        subs = {sympy.Symbol(k, real=True): sympy.nsimplify(v) if isinstance(v, str) else v
-                for k, v in dict(values or {}).items()}
+        digits = check_digits(digits, 5, 10000)
+        subs = {sympy.Symbol(k, real=True): parse_expression(v, {}) if isinstance(v, str)
+                else sympy.sympify(v, strict=True) for k, v in check_point(values).items()}
         out = {}
         with mpmath.workdps(digits):
             for key in ("second_value", "critical_value", "omega_squared", "l2", "l1_slope"):
@@ -108,7 +112,7 @@ class BautinPoint(Rendered):
 def _scenario(l2_sign, slope_sign, second, value_text):
     if l2_sign == "zero":
         return ("l2 vanishes too: a degenerate Bautin point (codimension three or more); the "
-                "next Lyapunov coefficient (order 7) decides")
+                "next Lyapunov coefficient (order 7) decides", "undecided")
     if l2_sign not in ("negative", "positive"):
         return ("the sign of l2 is not decided under the assumptions; evaluate l2 at a "
                 "parameter point", "undecided")
@@ -156,6 +160,7 @@ def _points_on_branch(prep, bc, second, index):
     return out, unsolved
 
 
+@guarded("the Bautin analysis")
 def bautin_points(model: Model, parameter: str, second: str, *,
                   equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
                   values: Mapping[str, object] | None = None,
@@ -186,6 +191,7 @@ def bautin_points(model: Model, parameter: str, second: str, *,
     >>> p.second_value, p.l2, p.l2_sign
     (0, -4, 'negative')
     """
+    check_second(parameter or getattr(model, "bifurcation_parameter", None), second)
     prep = prepare(model, parameter, equilibrium=equilibrium, eliminate=eliminate,
                    values=values, assume=assume, order=5, backend=backend, vary=True)
     sec = prep.symbol(second)

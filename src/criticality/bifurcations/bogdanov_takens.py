@@ -36,10 +36,12 @@ from typing import TYPE_CHECKING, Any, ClassVar, Mapping, Sequence
 import sympy
 
 from ..local.prepare import EquilibriumSpec, expr, prepare, sign_word, solve_for
-from ..renderers import Rendered
+from ..renderers import Rendered, render
 from ..algebra.linalg import dot, kernel, matvec, solve_consistent, transpose
 from ..errors import DegenerateBifurcationError, NoHopfPointError
 from ..kinds import Sign, coerce
+from ..local.boundary import guarded
+from ..local.options import check_branch, check_second, pick_branch
 from ..algebra.linalg import characteristic_polynomial
 
 if TYPE_CHECKING:
@@ -182,12 +184,14 @@ def _point(prep, sp1, sp2, names):
                                 _scenario(sign), tuple(notes))
 
 
+@guarded("the Bogdanov-Takens analysis")
 def bogdanov_takens_all(model: Model, parameter: str, second: str, *,
                         equilibrium: EquilibriumSpec = None,
                         eliminate: Sequence[str] | None = None,
                         values: Mapping[str, object] | None = None,
                         assume: Mapping[str, str] | None = None, backend: str = "flint") -> tuple:
     """Every closed-form Bogdanov-Takens point (see :func:`bogdanov_takens`)."""
+    check_second(parameter or getattr(model, "bifurcation_parameter", None), second)
     prep = prepare(model, parameter, equilibrium=equilibrium, eliminate=eliminate,
                    values=values, assume=assume, order=2, backend=backend)
     u1, u2 = prep.symbol(parameter), prep.symbol(second)
@@ -206,11 +210,12 @@ def bogdanov_takens_all(model: Model, parameter: str, second: str, *,
     return tuple(out)
 
 
+@guarded("the Bogdanov-Takens analysis")
 def bogdanov_takens(model: Model, parameter: str, second: str, *,
                     equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
                     values: Mapping[str, object] | None = None,
                     assume: Mapping[str, str] | None = None, backend: str = "flint",
-                    branch: int = 0) -> BogdanovTakensResult:
+                    branch: int | None = 0) -> BogdanovTakensResult:
     """Bogdanov-Takens analysis in the two symbols ``parameter`` and ``second``.
 
     Both may be model parameters or, for a family parametrised by the
@@ -225,9 +230,8 @@ def bogdanov_takens(model: Model, parameter: str, second: str, *,
     >>> r.values, r.a, r.b, r.ab_sign
     ({'b2': 0, 'x_eq': 0, 'b1': 0}, 2, -3, 'negative')
     """
+    branch = check_branch(branch)
     results = bogdanov_takens_all(model, parameter, second, equilibrium=equilibrium,
                                   eliminate=eliminate, values=values, assume=assume,
                                   backend=backend)
-    if not 0 <= branch < len(results):
-        raise IndexError(f"branch {branch} does not exist ({len(results)} solution(s))")
-    return results[branch]
+    return pick_branch(results, branch)

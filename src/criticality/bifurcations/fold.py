@@ -43,9 +43,11 @@ import sympy
 from ..kinds import FoldKind, Sign, coerce
 from ..local.prepare import EquilibriumSpec, expr, prepare, sign_word, solve_for
 from ..model.expressions import format_expression
-from ..renderers import Rendered
+from ..renderers import Rendered, render
 from ..algebra.linalg import determinant, dot, kernel, matvec, solve, transpose
 from ..errors import ClosedFormUnavailableError, DegenerateBifurcationError, NoHopfPointError
+from ..local.boundary import guarded
+from ..local.options import check_branch, pick_branch
 
 if TYPE_CHECKING:
     from ..model.core import Model
@@ -234,6 +236,7 @@ def _result(prep, sp, unknown):
                       signs)
 
 
+@guarded("the fold analysis")
 def fold_all(model: Model, parameter: str, *, solve_for_name: str | None = None,
              equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
              values: Mapping[str, object] | None = None, assume: Mapping[str, str] | None = None,
@@ -247,7 +250,7 @@ def fold_all(model: Model, parameter: str, *, solve_for_name: str | None = None,
                      for r in results)
     prep = prepare(model, parameter, equilibrium=equilibrium, eliminate=eliminate,
                    values=values, assume=assume, order=3, backend=backend,
-                   extra=lambda m, c: _f_mu(m, c, m.symbols[parameter]))
+                   extra=lambda m, c: _f_mu(m, c, m.symbols[parameter or m.bifurcation_parameter]))
     unknown = _unknown(prep, solve_for_name)
     det = determinant(prep.tower.top, prep.taylor.jacobian())
     points, unsolved = solve_for(prep.tower, det, unknown)
@@ -284,10 +287,11 @@ def _unknown(prep, name):
     return prep.symbol(prep.parameter)
 
 
+@guarded("the fold analysis")
 def fold(model: Model, parameter: str, *, solve_for: str | None = None,
          equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
          values: Mapping[str, object] | None = None, assume: Mapping[str, str] | None = None,
-         backend: str = "flint", branch: int = 0) -> FoldResult:
+         backend: str = "flint", branch: int | None = 0) -> FoldResult:
     """Zero-eigenvalue analysis of ``model`` in ``parameter``.
 
     Parameters
@@ -318,8 +322,7 @@ def fold(model: Model, parameter: str, *, solve_for: str | None = None,
     >>> r.kind, r.critical_values, r.a, r.transversality
     ('fold', {'x_eq': 0, 'mu': 0}, -1, 1)
     """
+    branch = check_branch(branch)
     results = fold_all(model, parameter, solve_for_name=solve_for, equilibrium=equilibrium,
                        eliminate=eliminate, values=values, assume=assume, backend=backend)
-    if not 0 <= branch < len(results):
-        raise IndexError(f"branch {branch} does not exist ({len(results)} solution(s))")
-    return results[branch]
+    return pick_branch(results, branch)

@@ -45,11 +45,14 @@ from dataclasses import dataclass
 
 import sympy
 
+from ..local.boundary import guarded
 from ..algebra import upoly
 from ..algebra.linalg import dot
 from ..algebra.quadratic import lower
 from ..errors import DegenerateBifurcationError, NoHopfPointError, ParameterError
 from ..kinds import PointStatus, Sign, coerce
+from ..local.options import (check_branch, check_name, check_second, check_values,
+                             pick_branch)
 from ..local.critical import nu_extension, pair_sum_condition
 from ..local.eigenbasis import critical_eigenbasis
 from ..algebra.linalg import characteristic_polynomial
@@ -159,7 +162,7 @@ def _located(prep, u1, u2, point, conditions=None):
     if point is None:
         c0, c1 = conditions if conditions is not None else _conditions(prep, u1, u2)
         return _solve_pair(prep, u1, u2, c0, c1)
-    names = {str(k): v for k, v in dict(point).items()}
+    names = {str(k): v for k, v in (check_values(point, "point") or {}).items()}
     missing = [u.name for u in (u1, u2) if u.name not in names]
     if missing:
         raise NoHopfPointError(f"point= must give values for {u1.name} and {u2.name}; "
@@ -265,15 +268,23 @@ def _nonzero(target, x, ctx):
 
 
 def _names(parameters, second):
+    """The two names of a codimension-two analysis, from ``(p1, p2)`` or
+    ``p1, second=p2``: two different non-empty strings (ParameterError)."""
     if isinstance(parameters, (tuple, list)):
         if second is not None or len(parameters) != 2:
-            raise TypeError("give the two symbols as one pair (p1, p2)")
-        return str(parameters[0]), str(parameters[1])
-    if second is None:
-        raise TypeError("give the two symbols as (p1, p2)")
-    return str(parameters), str(second)
+            raise ParameterError("give the two symbols as one pair (p1, p2), e.g. "
+                                 f"('b1', 'b2'); got {parameters!r:.60}")
+        p1, p2 = parameters
+    elif second is None:
+        raise ParameterError("give the two symbols as (p1, p2), or the first and "
+                             "second=...")
+    else:
+        p1, p2 = parameters, second
+    check_name(p1, "the first parameter")
+    return p1, check_second(p1, p2)
 
 
+@guarded("the fold-Hopf analysis")
 def fold_hopf_all(model: Model, parameters: str | Sequence[str], second: str | None = None, *,
                   point: Mapping[str, object] | None = None, equilibrium: EquilibriumSpec = None,
                   eliminate: Sequence[str] | None = None,
@@ -306,11 +317,12 @@ def fold_hopf_all(model: Model, parameters: str | Sequence[str], second: str | N
         f"'{p2}'" + (f" ({errors[0]})" if errors else ""), reason="empty_critical_set")
 
 
+@guarded("the fold-Hopf analysis")
 def fold_hopf(model: Model, parameters: str | Sequence[str], second: str | None = None, *,
               point: Mapping[str, object] | None = None, equilibrium: EquilibriumSpec = None,
               eliminate: Sequence[str] | None = None, values: Mapping[str, object] | None = None,
               assume: Mapping[str, str] | None = None, backend: str = "flint",
-              branch: int = 0) -> FoldHopfResult:
+              branch: int | None = 0) -> FoldHopfResult:
     """Fold-Hopf analysis in two symbols.
 
     Parameters
@@ -334,8 +346,7 @@ def fold_hopf(model: Model, parameters: str | Sequence[str], second: str | None 
     >>> r.s, r.theta, r.G200
     (-1, 3/2, 2)
     """
+    branch = check_branch(branch)
     results = fold_hopf_all(model, parameters, second, point=point, equilibrium=equilibrium,
                             eliminate=eliminate, values=values, assume=assume, backend=backend)
-    if not 0 <= branch < len(results):
-        raise IndexError(f"branch {branch} does not exist ({len(results)} solution(s))")
-    return results[branch]
+    return pick_branch(results, branch)

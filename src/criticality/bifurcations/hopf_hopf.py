@@ -47,11 +47,13 @@ from dataclasses import dataclass
 
 import sympy
 
+from ..local.boundary import guarded
 from ..algebra import upoly
 from ..algebra.linalg import SingularMatrixError, determinant, dot, solve_vector
 from ..algebra.quadratic import QuadraticExtension, lower
 from ..errors import DegenerateBifurcationError, DegenerateHopfError, NoHopfPointError
 from ..kinds import HopfHopfCase, PointStatus, Sign, coerce
+from ..local.options import check_branch, pick_branch
 from ..local.eigenbasis import critical_eigenbasis
 from ..algebra.linalg import characteristic_polynomial
 from ..local.prepare import EquilibriumSpec, expr, prepare, sign_word
@@ -349,6 +351,7 @@ def _symbol_values(prep, sub, E, names):
     return out
 
 
+@guarded("the Hopf-Hopf analysis")
 def hopf_hopf_all(model: Model, parameters: str | Sequence[str], second: str | None = None, *,
                   point: Mapping[str, object] | None = None, equilibrium: EquilibriumSpec = None,
                   eliminate: Sequence[str] | None = None,
@@ -384,11 +387,12 @@ def hopf_hopf_all(model: Model, parameters: str | Sequence[str], second: str | N
         f"and '{p2}'" + (f" ({errors[0]})" if errors else ""), reason="empty_critical_set")
 
 
+@guarded("the Hopf-Hopf analysis")
 def hopf_hopf(model: Model, parameters: str | Sequence[str], second: str | None = None, *,
               point: Mapping[str, object] | None = None, equilibrium: EquilibriumSpec = None,
               eliminate: Sequence[str] | None = None, values: Mapping[str, object] | None = None,
               assume: Mapping[str, str] | None = None, backend: str = "flint",
-              branch: int = 0) -> HopfHopfResult:
+              branch: int | None = 0) -> HopfHopfResult:
     """Hopf-Hopf analysis in two symbols; arguments as for :func:`fold_hopf`.
 
     Examples
@@ -401,8 +405,7 @@ def hopf_hopf(model: Model, parameters: str | Sequence[str], second: str | None 
     >>> r.values, r.omega1, r.omega2, r.p11, r.theta, r.case
     ({'m1': 0, 'm2': 0}, 5, 2, -2, 0, 'simple')
     """
+    branch = check_branch(branch)
     results = hopf_hopf_all(model, parameters, second, point=point, equilibrium=equilibrium,
                             eliminate=eliminate, values=values, assume=assume, backend=backend)
-    if not 0 <= branch < len(results):
-        raise IndexError(f"branch {branch} does not exist ({len(results)} solution(s))")
-    return results[branch]
+    return pick_branch(results, branch)

@@ -41,10 +41,12 @@ from dataclasses import dataclass
 
 import sympy
 
+from ..local.boundary import guarded
 from ..algebra import upoly
 from ..algebra.quadratic import lower
 from ..errors import DegenerateBifurcationError, DegenerateHopfError, NoHopfPointError
 from ..kinds import PointStatus, Sign, coerce
+from ..local.options import check_branch, pick_branch
 from ..local.critical import cofactor_hurwitz, find_critical_branches
 from ..algebra.linalg import characteristic_polynomial
 from ..local.prepare import EquilibriumSpec, expr, sign_word
@@ -254,6 +256,7 @@ def _flip_point(prep, sp, unknown, chi, dchi):
                       E(speed), amp, _flip_verdict(sign), status, conds, notes)
 
 
+@guarded("the flip analysis")
 def flip_all(model: Model, parameter: str, *, solve_for: str | None = None,
              equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
              values: Mapping[str, object] | None = None, assume: Mapping[str, str] | None = None,
@@ -288,10 +291,11 @@ def flip_all(model: Model, parameter: str, *, solve_for: str | None = None,
                            reason="empty_critical_set")
 
 
+@guarded("the flip analysis")
 def flip(model: Model, parameter: str, *, solve_for: str | None = None,
          equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
          values: Mapping[str, object] | None = None, assume: Mapping[str, str] | None = None,
-         backend: str = "flint", branch: int = 0) -> FlipResult:
+         backend: str = "flint", branch: int | None = 0) -> FlipResult:
     """Period-doubling (flip) analysis of a map's fixed point in ``parameter``.
 
     Parameters
@@ -315,11 +319,10 @@ def flip(model: Model, parameter: str, *, solve_for: str | None = None,
     >>> r.critical_values, r.coefficient_sign, r.status
     ({'r': 3}, 'positive', 'nondegenerate')
     """
+    branch = check_branch(branch)
     results = flip_all(model, parameter, solve_for=solve_for, equilibrium=equilibrium,
                        eliminate=eliminate, values=values, assume=assume, backend=backend)
-    if not 0 <= branch < len(results):
-        raise IndexError(f"branch {branch} does not exist ({len(results)} solution(s))")
-    return results[branch]
+    return pick_branch(results, branch)
 
 
 # -- Neimark-Sacker --------------------------------------------------------------------
@@ -420,6 +423,7 @@ def _map_error(exc):
     return exc
 
 
+@guarded("the Neimark-Sacker analysis")
 def neimark_sacker_all(model: Model, parameter: str, *, solve_for: str | None = None,
                        equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
                        values: Mapping[str, object] | None = None,
@@ -467,11 +471,12 @@ def neimark_sacker_all(model: Model, parameter: str, *, solve_for: str | None = 
     return tuple(out)
 
 
+@guarded("the Neimark-Sacker analysis")
 def neimark_sacker(model: Model, parameter: str, *, solve_for: str | None = None,
                    equilibrium: EquilibriumSpec = None, eliminate: Sequence[str] | None = None,
                    values: Mapping[str, object] | None = None,
                    assume: Mapping[str, str] | None = None, backend: str = "flint",
-                   branch: int = 0) -> NeimarkSackerResult:
+                   branch: int | None = 0) -> NeimarkSackerResult:
     """Neimark-Sacker analysis of a map's fixed point in ``parameter``.
 
     Parameters
@@ -495,9 +500,8 @@ def neimark_sacker(model: Model, parameter: str, *, solve_for: str | None = None
     >>> r.critical_values, r.angle, r.lyapunov_sign
     ({'r': 2}, pi/3, 'negative')
     """
+    branch = check_branch(branch)
     results = neimark_sacker_all(model, parameter, solve_for=solve_for,
                                  equilibrium=equilibrium, eliminate=eliminate, values=values,
                                  assume=assume, backend=backend)
-    if not 0 <= branch < len(results):
-        raise IndexError(f"branch {branch} does not exist ({len(results)} solution(s))")
-    return results[branch]
+    return pick_branch(results, branch)

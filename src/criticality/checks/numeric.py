@@ -18,8 +18,10 @@ from typing import Any, ClassVar, Mapping
 import mpmath
 import sympy
 
+from ..local.boundary import guarded
 from ..errors import ParameterError
 from ..kinds import Classification, coerce
+from ..local.options import check_digits, check_point
 from ..renderers import render
 
 #: a HopfResult, typed loosely: the result imports this module at run time, and a
@@ -162,15 +164,23 @@ def _num(expr, subs, digits, what=None):
         return mpmath.nan
     re, im = v.as_real_imag()
     if im != 0 and abs(im) > abs(re) * sympy.Float(10) ** (-digits + 3):
-        return mpmath.mpc(mpmath.mpf(str(re)), mpmath.mpf(str(im)))
-    return mpmath.mpf(str(re))
+        return mpmath.mpc(_mpf(re, digits), _mpf(im, digits))
+    return _mpf(re, digits)
 
 
+def _mpf(x, digits):
+    """A sympy number as an mpmath number through its binary value (no
+    decimal string, so no limit on the number of digits)."""
+    value = sympy.Float(x, digits)
+    mpf = getattr(value, "_mpf_", None)
+    return mpmath.mpf(mpf) if mpf is not None else mpmath.mpf(str(value))  # NaN
+
+
+@guarded("the evaluation of the result")
 def evaluate_result(result: ResultLike, values: Mapping, *, digits: int = 30) -> NumericHopfResult:
     """Evaluate every quantity of ``result`` at ``values``."""
-    if digits < 5 or digits > 10000:
-        raise ParameterError(f"digits must be between 5 and 10000, got {digits}")
-    exact = parameter_values(result, values)
+    check_digits(digits, 5, 10000)
+    exact = parameter_values(result, check_point(values))
     subs = {result.model.symbols.get(k, sympy.Symbol(k, real=True)): v for k, v in exact.items()}
     for s in _free_parameters(result):
         if str(s) in exact:
@@ -178,7 +188,7 @@ def evaluate_result(result: ResultLike, values: Mapping, *, digits: int = 30) ->
     with mpmath.workdps(digits + 5):
         mu_c = _num(result.critical_value, subs, digits + 5, "critical value")
         at_c = dict(subs)
-        at_c[result.parameter_symbol] = sympy.Float(str(mu_c), digits + 5) if isinstance(
+        at_c[result.parameter_symbol] = sympy.Float(mu_c, digits + 5) if isinstance(
             mu_c, mpmath.mpf) else mu_c
         omega = _num(result.omega, subs, digits + 5, "frequency omega")
         l1 = _num(result.l1, subs, digits + 5)
@@ -195,10 +205,16 @@ def evaluate_result(result: ResultLike, values: Mapping, *, digits: int = 30) ->
         conds = tuple((c.key, _num(c.expr, subs, digits + 5), c.relation) for c in result.conditions)
         cls = (Classification.SUPERCRITICAL if l1 < 0 else
                Classification.SUBCRITICAL if l1 > 0 else Classification.DEGENERATE)
+        transversality = _num(result.transversality, subs, digits + 5)
+        if result.classification in (Classification.NONTRANSVERSAL,
+                                     Classification.INADMISSIBLE):
+            cls = result.classification  # no verdict for the family, none at its points
+        elif transversality == 0:
+            cls = Classification.NONTRANSVERSAL
         return NumericHopfResult(
             values=exact, digits=digits, critical_value=mu_c, omega_squared=omega ** 2,
             omega=omega, period=2 * mpmath.pi / omega,
-            transversality=_num(result.transversality, subs, digits + 5),
+            transversality=transversality,
             c1=_num(result.c1, subs, digits + 5), l1=l1, lyapunov_coefficients=lyap,
             classification=cls, equilibrium=eq, amplitude_coefficients=amps,
             eigenvalues=tuple(eigs), pair_error=pair_error,

@@ -34,6 +34,7 @@ from typing import Any, Callable, Mapping, Sequence
 import sympy
 
 from ..errors import MissingExtraError, ParameterError, PrecisionWarning
+from ..local.options import check_values
 
 __all__ = ["Sweep", "sweep", "quantity_expression", "QUANTITIES", "grid_function",
            "evaluate_many"]
@@ -277,6 +278,16 @@ def _evaluate(np, fn, arrays, report, scheduler=None) -> Any:
     return out.reshape(arrays[0].shape)
 
 
+def _float_array(np, values, name):
+    """The grid coordinates of ``name`` as a float array (ParameterError if
+    they are not numbers)."""
+    try:
+        return np.asarray(values, dtype=float)
+    except (TypeError, ValueError) as exc:
+        raise ParameterError(f"the grid values of {name!r} must be numbers (an array of "
+                             f"floats); {exc}") from None
+
+
 # ``result`` is a HopfResult, typed as Any: HopfResult.evaluate_many calls into this module,
 # and a type-only import back would make the two modules import each other.
 def sweep(result: Any, quantity: str | sympy.Expr, grid: Mapping, *,
@@ -321,11 +332,15 @@ def sweep(result: Any, quantity: str | sympy.Expr, grid: Mapping, *,
     """
     np = _numpy()
     expr = quantity_expression(result, quantity)
+    if not isinstance(grid, Mapping):
+        raise ParameterError("the grid must be a mapping {parameter name: array of values}; "
+                             f"got {type(grid).__name__} {grid!r:.60}")
+    values = check_values(values)
     names = list(grid)
     if not names:
         raise ParameterError("the grid is empty: give at least one parameter and its values")
     fn, sub, fixed = grid_function(result, expr, names, values)
-    arrays = np.broadcast_arrays(*(np.asarray(grid[n], dtype=float) for n in names))
+    arrays = np.broadcast_arrays(*(_float_array(np, grid[n], n) for n in names))
     report = _Progress(f"sweep {quantity}", progress)
     out = _evaluate(np, fn, arrays, report, scheduler)
     ok = np.ones(out.shape, dtype=bool)

@@ -38,6 +38,7 @@ from typing import TYPE_CHECKING, Any, Mapping, Sequence
 from .simulate import bracket, local_frame, measure_cycle, prepare, settle_time, shoot_cycle
 from ..errors import MissingExtraError, ParameterError, ValidationRunError
 from ..kinds import Classification, Side
+from ..local.options import check_values
 from .validation_report import BracketOutcome, CycleMeasurement, ValidationReport
 
 if TYPE_CHECKING:
@@ -185,6 +186,10 @@ def validate(result: HopfResult, values: Mapping | None = None, *,
         The integration cannot be carried out (e.g. no definite side, l1 = 0).
     """
     started = time.perf_counter()
+    values = check_values(values)
+    if result.classification in ("nontransversal", "inadmissible"):
+        raise ValidationRunError(f"the result gives no verdict ({result.classification}): "
+                                 f"{result.verdict}; there is no predicted cycle to confirm")
     power = getattr(result.cycle, "amplitude_power", 2)
     if power != 2:
         raise ValidationRunError(

@@ -17,6 +17,7 @@ from .critical import (LAMBDA, decide_sign, delay_crossing, parameter_crossing,
 from .linearize import delay_forms, equilibrium_point
 from .normal_form import center_data
 from .results import DelayHopfResult
+from ..local.boundary import guarded
 from ..budget import stage
 from ..budget import time_limit as time_limit_
 from ..errors import ClosedFormUnavailableError, NoHopfPointError, ParameterError
@@ -27,16 +28,19 @@ if TYPE_CHECKING:
     from .numeric import NumericDelayHopf
     from ..local.prepare import EquilibriumSpec
     from ..model.core import Model
+from ..local.options import (check_assume, check_branch, check_digits, check_equilibrium,
+                             check_order, check_values, refuse_unused)
 
 __all__ = ["hopf_delay"]
 
 
+@guarded("the delay Hopf analysis")
 def hopf_delay(model: Model, parameter: str | None = None, *, equilibrium: EquilibriumSpec = None,
                values: Mapping[str, object] | None = None, branch: int | None = None,
                assume: Mapping[str, str] | None = None, time_limit: float | None = None,
                order: int = 3, eliminate: Sequence[str] | None = None,
-               guess: Mapping[str, object] | None = None, backend: str = "sympy", digits: int = 30,
-               **_ignored: Any) -> DelayHopfResult | NumericDelayHopf:
+               guess: Mapping[str, object] | None = None, backend: str = "sympy",
+               digits: int = 30) -> DelayHopfResult | NumericDelayHopf:
     """Hopf analysis of a retarded equation with respect to ``parameter``.
 
     Parameters
@@ -79,6 +83,14 @@ def hopf_delay(model: Model, parameter: str | None = None, *, equilibrium: Equil
     >>> r.critical_value, r.omega, r.classification
     (pi/(2*k), k, 'supercritical')
     """
+    branch = check_branch(branch)
+    check_order(order)
+    assume, values = check_assume(assume), check_values(values)
+    equilibrium = check_equilibrium(equilibrium)
+    if guess is not None:
+        check_digits(digits, 5, 500)
+        refuse_unused("the numeric mode of delay equations (guess=) locates one point from "
+                      "the guess and", equilibrium=equilibrium, branch=branch, assume=assume)
     if order != 3:
         raise ClosedFormUnavailableError(f"order={order}: for delay equations only l1 (order=3) "
                                          "is computed")

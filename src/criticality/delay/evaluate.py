@@ -15,12 +15,15 @@ computes, independently of the symbolic route:
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass
 from typing import Any, Mapping
 
 import mpmath
 import sympy
 
+from ..local.boundary import guarded
+from ..local.options import check_digits
 from ..errors import ParameterError
 from ..kinds import Classification, coerce
 from ..model.expressions import convert_sympy, parse_expression
@@ -32,7 +35,7 @@ ResultLike = Any
 __all__ = ["NumericDelayResult", "evaluate_result"]
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, repr=False)
 class NumericDelayResult:
     """A :class:`~criticality.delay.results.DelayHopfResult` at one parameter point
     (mpmath numbers with ``digits`` digits)."""
@@ -56,6 +59,14 @@ class NumericDelayResult:
 
     def __getitem__(self, key: str) -> Any:
         return getattr(self, key)
+
+    def __repr__(self) -> str:
+        # mpmath prints a number of many digits only at a working precision
+        # that holds them (else Python's int-string limit fires)
+        with mpmath.workdps(self.digits + 10):
+            fields = ", ".join(f"{f.name}={getattr(self, f.name)!r}"
+                               for f in dataclasses.fields(self))
+        return f"{type(self).__name__}({fields})"
 
     def amplitude(self, offset: float) -> dict:
         """Predicted amplitude of each state at ``mu = mu_c + offset`` (NaN on the
@@ -97,18 +108,30 @@ def _mp(expr, sub, digits):
     value = sympy.sympify(expr).xreplace(sub)
     value = sympy.N(value, digits + 10)
     re, im = value.as_real_imag()
+    # through the binary value: no decimal string, so no limit on the digits
+    real = _binary(re, digits + 10)
     if im == 0:
-        return mpmath.mpf(str(re))
-    return mpmath.mpc(str(re), str(im))
+        return real
+    return mpmath.mpc(real, _binary(im, digits + 10))
 
 
+def _binary(x, digits):
+    value = sympy.Float(x, digits)
+    mpf = getattr(value, "_mpf_", None)
+    return mpmath.mpf(mpf) if mpf is not None else mpmath.mpf(str(value))  # NaN
+
+
+@guarded("the evaluation of the delay result")
 def evaluate_result(result: ResultLike, values: Mapping,
                     digits: int = 30) -> NumericDelayResult:
+    digits = check_digits(digits, 5, 10000)
+    if not isinstance(values, Mapping):
+        raise ParameterError(f"values must be a mapping {{name: number}}; got {values!r:.60}")
     sub = _point(result, values)
     with mpmath.workdps(digits + 10):
         mu_c = _mp(result.critical_value, sub, digits)
         full = dict(sub)
-        full[result.parameter_symbol] = sympy.Float(str(mu_c), digits + 10)
+        full[result.parameter_symbol] = sympy.Float(mu_c, digits + 10)
         omega = _mp(result.omega, sub, digits)
         c1 = _mp(result.c1, sub, digits)
         coefficients = {s: _mp(k, sub, digits) for s, k in
@@ -235,7 +258,7 @@ def _numeric_slope(result, sub, mu_c, omega):
     roots = []
     for mu in (mu_c - h, mu_c + h):
         full = dict(sub)
-        full[result.parameter_symbol] = sympy.Float(str(mu), mpmath.mp.dps)
+        full[result.parameter_symbol] = sympy.Float(mu, mpmath.mp.dps)
         mats, delays = _matrices(result, full), _delays(result, full)
         roots.append(mpmath.findroot(lambda z: mpmath.det(_delta(mats, delays, z)),
                                      mpmath.mpc(0, omega)))

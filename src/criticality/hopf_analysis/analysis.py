@@ -13,11 +13,14 @@ from dataclasses import replace
 from typing import TYPE_CHECKING, Mapping, Sequence, Union
 
 from .assemble import build_result
+from ..local.boundary import guarded
 from ..budget import hint, stage
 from ..budget import time_limit as time_limit_
 from .engine import run_engine
 from ..errors import NoHopfPointError
-from ..local.prepare import EquilibriumSpec, check_order, prepare
+from ..local.options import (check_backend, check_branch, check_digits, check_equilibrium,
+                             check_order, refuse_unused)
+from ..local.prepare import EquilibriumSpec, prepare
 from .results import HopfResult
 
 if TYPE_CHECKING:
@@ -30,6 +33,7 @@ __all__ = ["hopf", "hopf_all"]
 #: what hopf() returns: a HopfResult, or for a model with delayed states the delay result
 AnyHopfResult = Union[HopfResult, "DelayHopfResult", "NumericDelayHopf"]
 
+@guarded("the Hopf analysis")
 
 def hopf(model: Model, parameter: str | None = None, *, equilibrium: EquilibriumSpec = None,
          eliminate: Sequence[str] | None = None, branch: int | None = None, order: int = 3,
@@ -92,6 +96,7 @@ def hopf(model: Model, parameter: str | None = None, *, equilibrium: Equilibrium
     >>> r.critical_value, r.l1, r.classification
     (0, -1/4, 'supercritical')
     """
+    branch, backend = check_branch(branch), check_backend(backend)
     if getattr(model, "delays", ()):
         from ..delay.analysis import hopf_delay
         return hopf_delay(model, parameter, equilibrium=equilibrium, values=values,
@@ -99,6 +104,10 @@ def hopf(model: Model, parameter: str | None = None, *, equilibrium: Equilibrium
                           eliminate=eliminate, guess=guess, digits=digits)
     if guess is not None:
         from .numeric_mode import hopf_numeric
+        check_digits(digits, 5, 500)
+        refuse_unused("the numeric mode (guess=) locates one Hopf point from the guess and",
+                      equilibrium=equilibrium, eliminate=eliminate, branch=branch, assume=assume)
+        check_backend(backend)
         with time_limit_(time_limit, "the numeric Hopf analysis"):
             return hopf_numeric(model, parameter or model.bifurcation_parameter, guess,
                                 digits=digits, order=order, values=values)
@@ -107,6 +116,7 @@ def hopf(model: Model, parameter: str | None = None, *, equilibrium: Equilibrium
                         backend, select=0 if branch is None else branch)[0]
 
 
+@guarded("the Hopf analysis")
 def hopf_all(model: Model, parameter: str | None = None, *, equilibrium: EquilibriumSpec = None,
              eliminate: Sequence[str] | None = None, order: int = 3,
              values: Mapping[str, object] | None = None, assume: Mapping[str, str] | None = None,
@@ -125,6 +135,7 @@ def hopf_all(model: Model, parameter: str | None = None, *, equilibrium: Equilib
 
 def _analyse(model, parameter, equilibrium, eliminate, order, values, assume, backend, select):
     check_order(order)
+    check_equilibrium(equilibrium, model)
     if order > 3:
         hint(f"ask for a lower order (order={order} was asked; order=3 gives l1)")
     prep = prepare(model, parameter, equilibrium=equilibrium, eliminate=eliminate,

@@ -21,7 +21,7 @@ from ..algebra.algebraic import AlgebraicExtension
 from ..algebra.certified import is_numeric
 from ..algebra.quadratic import lower
 from ..algebra.canonical import canonical_expr, factored, larger_than
-from .classify import classify
+from .classify import INADMISSIBLE, NONTRANSVERSAL, classify, no_verdict
 from ..local.critical import Condition, cofactor_hurwitz
 from ..errors import CriticalityError
 from .results import CyclePrediction, HopfResult, ReducedSystemView
@@ -133,6 +133,11 @@ def build_result(model: Model, name: str, mu: sympy.Symbol, choice: EquilibriumC
     verdict = classify(fs_l1)
     if verdict.classification == Classification.DEGENERATE:
         verdict = _higher_verdict(tower, ctx, bc.c_center, verdict)
+    failed = {c.key for c in conds if c.status == "fails"}
+    if "transversal" in failed:
+        verdict = no_verdict(NONTRANSVERSAL, name)
+    elif "critical_value_admissible" in failed:
+        verdict = no_verdict(INADMISSIBLE, name, assumptions.get(mu, "real"))
     re_c1_expr = fs_l1.as_expr()
     im_c1_expr = B.expr(im_c1_nu) * omega
     lyap = tuple(B.expr(lower(c.a)) / omega for c in bc.c_center)
@@ -292,8 +297,7 @@ def _cycle(B, model, bc, omega, verdict, stab, mu):
     if j:
         k = -beta1 / R
         fs_k = _raw(B.tower, k, B.ctx)
-        side = {POSITIVE: Side.ABOVE, NEGATIVE: Side.BELOW}.get(fs_k.sign, Side.UNDECIDED)
-        side_cond = None if side != Side.UNDECIDED else sympy.StrictGreaterThan(B.expr(k), 0)
+        side, side_cond = _cycle_side(B, fs_k.sign, beta1, R, k)
         lower_exact_zero = all(not c for c in bc.c_center[:j - 1])
         slope = omega * B.expr(beta_nu - beta1 * S / R) if lower_exact_zero else sympy.nan
         if j == 1:
@@ -326,6 +330,25 @@ def _cycle(B, model, bc, omega, verdict, stab, mu):
         stable = None
     return CyclePrediction(side, side_cond, stable, rho2, amps, coeffs, 2 * sympy.pi / omega, slope,
                            2 * j if j else 2)
+
+
+def _cycle_side(B, sign, beta1, R, k):
+    """``(side, condition)``: on which side of the critical value the cycle
+    exists, from the sign of ``k = -beta'(mu_c) / Re c_j`` (or of its two
+    factors); with ``k = 0`` (no crossing) there is no side, and a condition
+    that sympy decides (a number) is never left as a boolean."""
+    if sign not in (POSITIVE, NEGATIVE):
+        sb, sr = _raw(B.tower, beta1, B.ctx).sign, _raw(B.tower, R, B.ctx).sign
+        if sb in (POSITIVE, NEGATIVE) and sr in (POSITIVE, NEGATIVE):
+            sign = POSITIVE if sb != sr else NEGATIVE
+    if sign in (POSITIVE, NEGATIVE):
+        return ("above" if sign == POSITIVE else "below"), None
+    rel = sympy.StrictGreaterThan(B.expr(k), 0)
+    if rel is sympy.true:
+        return "above", None
+    if sympy.StrictLessThan(B.expr(k), 0) is sympy.true:
+        return "below", None
+    return "undecided", (rel if isinstance(rel, sympy.Rel) else None)
 
 
 def _reduced_view(B, bc, omega, model):

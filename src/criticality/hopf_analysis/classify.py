@@ -25,11 +25,14 @@ from ..algebra.canonical import larger_than
 from ..algebra.signs import NEGATIVE, NONNEGATIVE, NONPOSITIVE, POSITIVE, UNDECIDED, ZERO, FactoredSign
 from ..kinds import Classification
 
-__all__ = ["Verdict", "classify"]
+__all__ = ["Verdict", "classify", "no_verdict"]
 
 SUPERCRITICAL, SUBCRITICAL, DEGENERATE, MIXED = (
     Classification.SUPERCRITICAL, Classification.SUBCRITICAL, Classification.DEGENERATE,
     Classification.DEPENDS)
+#: no verdict: the pair does not cross (zero transversality), or the critical
+#: value lies outside the parameter's declared range (empty admissible set)
+NONTRANSVERSAL, INADMISSIBLE = Classification.NONTRANSVERSAL, Classification.INADMISSIBLE
 
 
 @dataclass(frozen=True)
@@ -87,6 +90,24 @@ def classify(fs: FactoredSign, *, coefficient: str = "l1") -> Verdict:
     if zero_set is not None:
         text += f"; {coefficient} vanishes where {zero_words} = 0"
     return Verdict(MIXED, text, ineq, zero_set, sign_factor)
+
+
+def no_verdict(kind: Classification, parameter: str, sign: str = "") -> Verdict:
+    """The named status that replaces a verdict where the Hopf theorem does
+    not apply: ``NONTRANSVERSAL`` (Re d lambda / d mu = 0 at the critical
+    value: the pair touches the imaginary axis without crossing) or
+    ``INADMISSIBLE`` (the critical value violates the declared sign of the
+    parameter, so no admissible parameter value reaches it)."""
+    if kind == NONTRANSVERSAL:
+        text = (f"no verdict: the transversality Re d lambda / d {parameter} vanishes at the "
+                "critical value, so the pair touches the imaginary axis without crossing it "
+                "and the Hopf theorem does not apply (a degenerate point: higher derivatives "
+                f"in {parameter} decide whether cycles appear)")
+    else:
+        text = (f"no verdict: the critical value of '{parameter}' violates its declared sign "
+                f"({sign}), so the admissible set is empty and no admissible parameter value "
+                "reaches this Hopf point")
+    return Verdict(kind, text, None, None, sympy.nan)
 
 
 #: Expressions with more nodes than this are not spelled out in the verdict's

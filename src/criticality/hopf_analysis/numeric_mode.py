@@ -37,6 +37,7 @@ from typing import TYPE_CHECKING, Any, Mapping
 import mpmath
 import sympy
 
+from ..local.boundary import guarded
 from ..errors import NoHopfPointError, ParameterError
 from ..local.compiled import CompiledTaylor
 from ..local.lyapunov import complex_normal_form
@@ -301,6 +302,7 @@ def guess_vector(model: Model, parameter: str, guess: Mapping) -> list:
     return out
 
 
+@guarded("the numeric Hopf analysis")
 def hopf_numeric(model: Model, parameter: str | None, guess: Mapping, *, digits: int = 30,
                  order: int = 3, values: Mapping | None = None, radius: float = 1.0) -> HopfResult:
     """Locate a Hopf point numerically from ``guess`` and analyse it.

@@ -203,6 +203,9 @@ def _branch_values(tower_mu, mu, solution):
     target = tower_mu.fresh(drop=mu)
     if kind == "linear":
         return [(target.project(data), target)]
+    c2, c1, c0 = (target.project(c) for c in data)
+    if _provably_negative(target, c1 * c1 - 4 * c2 * c0):
+        return []  # both roots are complex: no real critical value
     out = []
     for sign in (1, -1):
         if sign == -1:
@@ -211,6 +214,17 @@ def _branch_values(tower_mu, mu, solution):
         s = target.sqrt(c1 * c1 - 4 * c2 * c0)
         out.append(((-c1 + sign * s) / (2 * c2), target))
     return out
+
+
+def _provably_negative(tower, x) -> bool:
+    """True where ``x`` (a tower element) is negative under the declared
+    assumptions."""
+    if tower.positivity is None:
+        return False
+    try:
+        return tower.positivity(-tower.to_sympy(x)) is True
+    except (sympy.PolynomialError, ValueError, TypeError):
+        return False
 
 
 def _root_values(tower_mu, mu, coeffs):
@@ -403,7 +417,7 @@ def find_critical_branches(tower_mu: Tower, mu: sympy.Symbol, chi: Sequence[Elem
     if not candidates:
         raise NoHopfPointError(
             f"no pair of eigenvalues can cross the imaginary axis as {describe(mu)} varies: "
-            "the Hurwitz determinant of the characteristic polynomial has no zero that "
+            "the Hurwitz determinant of the characteristic polynomial has no real zero that "
             f"depends on {describe(mu)}" + (f" ({'; '.join(notes)})" if notes else ""),
             reason="empty_critical_set")
     raise NoHopfPointError(
@@ -440,6 +454,10 @@ def _candidates(tower_mu, mu, factors, describe, notes, info):
                 continue
             rank = {"linear": 0, "quadratic": 1}.get(sol[0], 2)
             values = _branch_values(tower_mu, mu, sol)
+            if not values and sol[0] == "quadratic":
+                notes.append(f"the zeros in {describe(mu)} of a quadratic factor of the critical "
+                             "set are complex (negative discriminant), so no real parameter "
+                             "value reaches them")
             if not values and sol[0] == "algebraic" and not is_numeric(tower_mu.fresh(drop=mu)):
                 x = sympy.Symbol(str(mu))
                 info["rootless"].append(sympy.Add(*[tower_mu.to_sympy(c) * x ** k

@@ -155,15 +155,35 @@ def select_equilibrium(model: Model, candidates: Sequence, choice: Any,
             f"{', '.join(_CONDITIONS)}, or a mapping from states to values")
     wanted = {"positive": (POSITIVE,), "nonnegative": (POSITIVE, NONNEGATIVE, ZERO),
               "nonzero": (POSITIVE, NEGATIVE)}[choice]
-    hits = [p for p in candidates if all(sign_context.sign(x) in wanted for x in p)]
+    hits = [p for p in candidates if _has_signs(p, sign_context, wanted)]
     if len(hits) == 1:
-        return EquilibriumChoice(hits[0], "solved", {}, (), f"the {choice} equilibrium")
+        radicands = _radicands(hits[0])
+        where = (f" (real where {' > 0, '.join(map(str, radicands))} > 0)" if radicands else "")
+        return EquilibriumChoice(hits[0], "solved", {}, (), f"the {choice} equilibrium{where}")
     if not hits:
         raise EquilibriumNotFoundError(
             f"no equilibrium is provably {choice} under the declared assumptions; the equilibria "
             f"are: {listing}. Choose one by index, or declare parameter signs")
     raise EquilibriumNotFoundError(
         f"{len(hits)} equilibria are {choice}: {listing}; choose one by index")
+
+
+def _radicands(point) -> list:
+    """The radicands of the square roots in ``point`` (the point is real
+    where they are >= 0), numerator times denominator so that each is a
+    polynomial of the same sign."""
+    found = {sympy.Mul(*sympy.fraction(sympy.together(a.base)))
+             for x in point for a in x.atoms(sympy.Pow)
+             if a.exp.is_Rational and a.exp.q == 2 and a.base.free_symbols}
+    return sorted(found, key=sympy.default_sort_key)
+
+
+def _has_signs(point, sign_context, wanted) -> bool:
+    """Every coordinate of ``point`` has one of the ``wanted`` signs where
+    the point is real (its radicands positive)."""
+    radicands = _radicands(point)
+    ctx = sign_context.with_conditions(radicands) if radicands else sign_context
+    return all(ctx.sign(x) in wanted for x in point)
 
 
 def parametrised_equilibrium(model: Model, eliminate: Sequence[str]) -> EquilibriumChoice:

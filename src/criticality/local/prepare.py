@@ -23,11 +23,11 @@ import sympy
 
 from ..algebra import Tower, collect_atoms
 from ..algebra.domain import algebraic_atom_rules
-from ..algebra.signs import SignContext, context_for, truth
+from ..algebra.signs import NEGATIVE, NONPOSITIVE, ZERO, SignContext, context_for, truth
 from ..budget import hint, stage
-from ..errors import (ClosedFormUnavailableError, NoHopfPointError, NotAnEquilibriumError,
-                      OrderError, ParameterError)
-from ..model.parameter import ASSUMPTIONS
+from ..errors import (ClosedFormUnavailableError, NoHopfPointError, NotAnalyticError,
+                      NotAnEquilibriumError, ParameterError)
+from .options import check_assume, check_name, check_options, check_order, check_values
 from .equilibria import (EquilibriumChoice, given_equilibrium, parametrised_equilibrium,
                          select_equilibrium, solve_equilibria)
 from .sign_words import expr, sign_word
@@ -42,15 +42,6 @@ EquilibriumSpec = Union[Mapping[str, object], Sequence[object], int, str, None]
 __all__ = ["EquilibriumSpec", "PreparedProblem", "prepare", "prepare_system", "check_order",
            "resolve_parameter", "assumption_map", "choose_equilibrium", "SolvedPoint", "solve_for",
            "sign_word", "expr"]
-
-def check_order(order) -> int:
-    """The order of a normal form: an odd integer ``>= 3`` (3 gives ``l1``,
-    ``2k + 1`` gives ``l1 .. lk``).  Raises :class:`OrderError` otherwise."""
-    if isinstance(order, bool) or not isinstance(order, int) or order < 3 or order % 2 == 0:
-        raise OrderError(f"order must be an odd integer >= 3 (3 gives l1, 5 gives l2); "
-                         f"got {order!r}")
-    return order
-
 
 @dataclass(frozen=True)
 class PreparedProblem:
@@ -139,10 +130,7 @@ def assumption_map(model, assume: Mapping | None) -> dict:
     out = {}
     for p in model.parameters:
         out[model.symbols[p.name]] = p.assumption
-    for key, value in (assume or {}).items():
-        if value not in ASSUMPTIONS:
-            raise ParameterError(f"unknown assumption {value!r} for '{key}'; expected one of "
-                                 f"{', '.join(ASSUMPTIONS)}")
+    for key, value in (check_assume(assume) or {}).items():
         if key in model.symbols:
             out[model.symbols[key]] = value
     return out
@@ -176,6 +164,9 @@ def resolve_parameter(model, parameter: str | None, values: Mapping | None = Non
     defaults to the model file's choice; a state, an unknown name (with a
     did-you-mean) or a value that breaks an assumption raise
     :class:`ParameterError`."""
+    values = check_values(values)
+    if parameter is not None:
+        check_name(parameter, "parameter")
     if values:
         model = model.with_values(dict(values))
     name = parameter or getattr(model, "bifurcation_parameter", None)
@@ -214,6 +205,11 @@ def prepare(model, parameter: str | None = None, *, equilibrium=None, eliminate=
     if getattr(model, "kind", "flow") == "map":
         model.require_kind("flow", "this analysis", "for maps use flip(), neimark_sacker() or "
                            "fold() (which treats a map's multiplier +1)")
+    opts = check_options(model, parameter=parameter, equilibrium=equilibrium,
+                         eliminate=eliminate, values=values, assume=assume, order=order,
+                         backend=backend)
+    equilibrium, eliminate, values = opts["equilibrium"], opts["eliminate"], opts["values"]
+    assume, order, backend = opts["assume"], opts["order"], opts["backend"]
     full, fixed = model, (model.value_substitution(values) if values else {})
     model, name = resolve_parameter(model, parameter, values)
     assumptions = assumption_map(model, assume)
@@ -256,6 +252,8 @@ def _fields(model, name, mu, choice, eqs, params, assumptions, order, backend, p
     names = tuple(model.states) if names is None else tuple(names)
     if order > 3:
         hint(f"ask for a lower order (order={order} was asked; order=3 gives l1)")
+    plain = context_for(params, assumptions)
+    _check_real(eqs, states, point, names, plain)
     stage("expanding the model in Taylor series at the equilibrium")
     raw = raw_taylor(eqs, states, point, order, names)
     equilibrium = tuple(point)
@@ -272,7 +270,6 @@ def _fields(model, name, mu, choice, eqs, params, assumptions, order, backend, p
             "equilibrium, so its critical value is not algebraic in closed form. Parametrise "
             "the family by the equilibrium (eliminate=[...]) so that it occurs polynomially, "
             "choose another bifurcation parameter, or use the numeric mode (guess={...}).")
-    plain = context_for(params, assumptions)
     tower = Tower(params, atoms, backend, lambda e: truth(plain.sign(e)))
     x0 = [tower.convert(e) for e in equilibrium]
     taylor = TaylorForms.from_raw(raw, x0, tower.convert, tower.base)
@@ -282,6 +279,29 @@ def _fields(model, name, mu, choice, eqs, params, assumptions, order, backend, p
     return PreparedProblem(model, name, mu, choice, tuple(eqs), states, names, tuple(params),
                            MappingProxyType(dict(assumptions)), order, backend, equilibrium,
                            raw, tower, taylor, converted, tuple(more))
+
+
+def _check_real(eqs, states, point, names, ctx):
+    """Refuse a field that is complex at the equilibrium: an even root or a
+    logarithm of a quantity that is negative there under the declared
+    assumptions (``sqrt(b)`` with ``b`` declared negative)."""
+    at = dict(zip(states, point))
+    for name, f in zip(names, eqs):
+        for atom in sorted(f.atoms(sympy.Pow, sympy.log), key=sympy.default_sort_key):
+            if isinstance(atom, sympy.log):
+                base, what = atom.args[0], "the logarithm of"
+            elif atom.exp.is_Rational and atom.exp.q % 2 == 0:
+                base, what = atom.base, "an even root of"
+            else:
+                continue
+            value = base.xreplace(at)
+            if ctx.structural_sign(value) in (NEGATIVE,) or (
+                    what == "the logarithm of" and ctx.structural_sign(value) in (ZERO, NONPOSITIVE)):
+                raise NotAnalyticError(
+                    f"the right-hand side for '{name}' contains {atom}, {what} {value}, which "
+                    "is not positive at the equilibrium under the declared assumptions, so the "
+                    "model is complex (or undefined) there; the analysis needs a real field. "
+                    "Check the sign declared for its parameters.")
 
 
 def _check_equilibrium(tower, taylor, names):

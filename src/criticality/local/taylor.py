@@ -26,7 +26,7 @@ from math import comb, factorial
 
 import sympy
 
-from ..errors import NotAnalyticError
+from ..errors import ComputationLimitError, NotAnalyticError
 
 if TYPE_CHECKING:
     from ..algebra.field import Element
@@ -82,6 +82,7 @@ def raw_taylor(equations: Sequence[sympy.Expr], states: Sequence[sympy.Symbol],
     polys: list = []
     shifted: list = []
     for i, f in enumerate(equations):
+        _check_size(f, names[i])
         terms = _polynomial_terms(f, states)
         if terms is not None:
             polys.append(terms)
@@ -90,6 +91,43 @@ def raw_taylor(equations: Sequence[sympy.Expr], states: Sequence[sympy.Symbol],
             polys.append(None)
             shifted.append(_shifted_derivatives(f, states, equilibrium, order, names[i]))
     return RawTaylor(tuple(polys), tuple(shifted), order)
+
+
+#: most terms a right-hand side may expand to (a bound on the expanded
+#: polynomial, computed before expanding it)
+MAX_EXPANDED_TERMS = 5_000
+
+
+def expanded_terms_bound(f) -> int:
+    """An upper bound on the number of terms of ``expand(f)``: sums add,
+    products multiply, ``g^e`` has at most ``C(t + e - 1, e)`` terms for a
+    ``g`` of ``t`` terms (the number of monomials of degree ``e`` in ``t``
+    variables; common practice, no source); other atoms count as one.
+    Capped just above the limit, so that it stays cheap."""
+    cap = MAX_EXPANDED_TERMS + 1
+    if f.is_Add:
+        return min(cap, sum(expanded_terms_bound(a) for a in f.args))
+    if f.is_Mul:
+        out = 1
+        for a in f.args:
+            out = min(cap, out * expanded_terms_bound(a))
+        return out
+    if f.is_Pow and f.exp.is_Integer and f.exp > 1:
+        t, e = expanded_terms_bound(f.base), int(f.exp)
+        if t == 1:
+            return 1
+        return cap if e >= cap else min(cap, comb(t + e - 1, e))
+    return 1
+
+
+def _check_size(f, name) -> None:
+    size = expanded_terms_bound(f)
+    if size > MAX_EXPANDED_TERMS:
+        raise ComputationLimitError(
+            f"the right-hand side for '{name}' would expand to more than {MAX_EXPANDED_TERMS} "
+            "polynomial terms (a power of a sum, such as (x + y + 1)^200), beyond what the exact "
+            "engine expands; write the model in a smaller form, fix parameters (values={...}), "
+            "or use the numeric mode (guess={...})")
 
 
 def _polynomial_terms(f, states):

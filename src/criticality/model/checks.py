@@ -103,14 +103,16 @@ class _Assembler:
                          f"names to assumptions, found {_describe(parameters)}")
             return []
         result: list[Parameter] = []
+        seen: set = set()  # the names declared so far (a set: reading stays linear)
         for name, spec in items:
             self.parameter_names.add(str(name))
-            if any(p.name == name for p in result):
-                self.problem(f"parameter {name!r}", "parameters", str(name), "declared twice")
+            if isinstance(name, str) and name in seen:
+                self.problem(f"parameter {name!r}", "parameters", name, "declared twice")
                 continue
             parameter = self.parameter(name, spec)
             if parameter is not None:
                 result.append(parameter)
+                seen.add(parameter.name)
         return result
 
     def parameter(self, name: object, spec: object) -> Parameter | None:

@@ -66,7 +66,7 @@ from .syntax import (EXPRESSION_KEYWORDS, FUNCTIONS, MAX_DEPTH, MAX_EXPONENT,
                            _MAX_DECIMAL_EXPONENT, _MAX_POWER_BITS, _MAX_ROOT_BITS,
                            _MAX_TOTAL_POWER_BITS, _NOT_FINITE, _Chunk, _decimal_to_rational,
                            _parse_chunk, _quote, _scan, _split_terms, _suggest, _Where,
-                           name_problem)
+                           name_problem, MAX_CONSTANT_BITS, constant_out_of_range)
 from .sympy_input import convert_sympy, format_expression
 from .delay_syntax import delayed_call
 from ..errors import (CriticalityError, ExpressionLimitError, ExpressionSyntaxError,
@@ -235,6 +235,8 @@ class _Builder:
                 negative ^= isinstance(unsigned.op, ast.USub)
                 unsigned = unsigned.operand
             product = sympy.Mul(*self.chain(node, (ast.Mult, ast.Div), depth, leftmost, unsigned))
+            if product.is_Pow or product.is_Mul:
+                self.check_degree(product, node)
             return -product if negative else product
         if op is ast.Pow:
             if _integer_literal(node.right):
@@ -380,9 +382,35 @@ class _Builder:
             if value.has(sympy.I) or value.is_extended_real is False:
                 raise self.error(ForbiddenExpressionError,
                                  f"{self.piece(node)} is not a real number", node)
+            if not value.is_Rational:
+                self.check_magnitude(value, node)
+        elif value.is_Pow or value.is_Mul:
+            self.check_degree(value, node)
         if self.floats:
             self.check_floats(value, node)
         return value
+
+    def check_magnitude(self, value, node) -> None:
+        """A constant must have a value the engine can evaluate: within
+        2^+-MAX_CONSTANT_BITS (``exp(exp(1000))`` is refused by its value,
+        however it is spelled)."""
+        if constant_out_of_range(value):
+            raise self.error(ExpressionLimitError, f"the value of {self.piece(node)} is beyond "
+                             f"2^+-{MAX_CONSTANT_BITS} (about 10^+-"
+                             f"{int(MAX_CONSTANT_BITS * 0.30103)}), too large or too small to "
+                             "evaluate", node)
+
+    def check_degree(self, value, node) -> None:
+        """The exponent limit on the evaluated power: sympy merges
+        ``(x^1000)^1000`` into ``x^1000000`` and ``x^600*x^600`` into
+        ``x^1200``; such a power is refused as if written so."""
+        powers = [value] if value.is_Pow else [a for a in value.args if a.is_Pow]
+        for p in powers:
+            if p.exp.is_Number and abs(p.exp) > MAX_EXPONENT and p.base not in (
+                    sympy.S.Zero, sympy.S.One, sympy.S.NegativeOne):
+                raise self.error(ExpressionLimitError, f"{self.piece(node)} evaluates to a power "
+                                 f"{p.base}^{p.exp}, whose exponent is beyond +-{MAX_EXPONENT}",
+                                 node)
 
     def check_floats(self, value, node) -> None:
         for number in value.atoms(sympy.Float):

@@ -18,7 +18,7 @@ from sympy.core.function import AppliedUndef
 
 from .syntax import (_DECIMAL, _MAX_DECIMAL_EXPONENT, _NOT_FINITE, FUNCTIONS,
                            MAX_EXPONENT, NOT_ANALYTIC, _decimal_to_rational, _suggest,
-                           name_problem)
+                           name_problem, MAX_CONSTANT_BITS, constant_out_of_range)
 from .delayed import Delayed
 from ..errors import ExpressionLimitError, ForbiddenExpressionError, UnknownSymbolError
 
@@ -106,6 +106,11 @@ def convert_sympy(expr, symbols: Mapping[str, sympy.Expr] | None = None, *,
     if result.has(*_NOT_FINITE, sympy.I):
         raise ForbiddenExpressionError(f"{_short(result)} is not a finite real expression",
                                        **where)
+    for atom in result.atoms(sympy.Function, sympy.Pow):
+        if atom.is_number and not atom.is_Rational and constant_out_of_range(atom):
+            raise ExpressionLimitError(f"the value of {_short(atom)} is beyond "
+                                       f"2^+-{MAX_CONSTANT_BITS}, too large or too small to "
+                                       "evaluate", **where)
     return result
 
 

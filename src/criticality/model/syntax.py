@@ -322,3 +322,20 @@ def _decimal_to_rational(intpart: str, frac: str, exp: str) -> sympy.Rational:
     if scale >= 0:
         return sympy.Integer(digits * 10 ** scale)
     return sympy.Rational(digits, 10 ** -scale)
+
+
+#: binary exponent bound on the value of a constant (about 30,000 digits)
+MAX_CONSTANT_BITS = 100_000
+
+
+def constant_out_of_range(value) -> bool:
+    """True when the constant ``value`` (a sympy number) is beyond
+    ``2^+-MAX_CONSTANT_BITS`` or cannot be evaluated at all
+    (``exp(exp(1000))``): its size is read from a 15-digit evaluation."""
+    try:
+        number = value.evalf(15)
+        mpf = getattr(number, "_mpf_", None)
+        size = None if mpf is None or not mpf[1] else mpf[2] + mpf[3]
+    except (OverflowError, ValueError, ArithmeticError, RecursionError, MemoryError):
+        return True
+    return size is not None and abs(size) > MAX_CONSTANT_BITS

@@ -142,6 +142,9 @@ def read_model_file(cls, path):
             data = handle.read(4 * MAX_FILE_CHARS + 1)
     except TypeError:
         raise ModelFileError(f"expected a file path, found {type(path).__name__}") from None
+    except ValueError:  # a NUL byte, which no file name can hold
+        raise ModelFileError(f"the model file path {str(path)!r} contains a NUL character; "
+                             "no file has such a name") from None
     except FileNotFoundError:
         raise ModelFileError(f"model file {str(path)!r} not found") from None
     except OSError as exc:

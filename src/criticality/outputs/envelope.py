@@ -84,4 +84,7 @@ def read_document(text: str, schema: str | None = None) -> dict:
         doc = json.loads(text)
     except (TypeError, ValueError) as exc:
         raise ModelFileError(f"not a JSON document: {exc}") from None
+    except RecursionError:
+        raise ModelFileError("not a JSON document this reader accepts: arrays or objects are "
+                             "nested too deeply") from None
     return read_envelope(doc, schema)

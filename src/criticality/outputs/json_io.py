@@ -27,6 +27,7 @@ import sympy
 from .envelope import SCHEMA_VERSION, envelope, read_document
 from .render import CAUTIONS, split_complex, try_model_text
 from ..renderers import register_renderer
+from ..errors import ModelFileError, ParameterError
 from ..model.expressions import parse_expression
 
 if TYPE_CHECKING:
@@ -106,6 +107,8 @@ def _number(value, digits: int):
 
 
 def _numeric(result, point: Mapping, digits: int) -> dict:
+    if not isinstance(point, Mapping):
+        raise ParameterError(f"point must be a mapping {{name: value}}; got {point!r:.60}")
     num = result.evaluate(dict(point), digits=digits)
     with mpmath.workdps(digits + 10):  # mpc() rounds to the working precision
         return _numeric_fields(num, digits)
@@ -204,50 +207,85 @@ def result_to_json(result: HopfResult, *, point: Mapping | None = None, digits: 
 # -- reading back ------------------------------------------------------------------------
 
 
+def _kind(value) -> str:
+    return "null" if value is None else {bool: "a boolean", int: "a number", float: "a number",
+                                          str: "a string", list: "an array",
+                                          dict: "an object"}.get(type(value), "a value")
+
+
+def _shape_error(path: str, expected: str, value) -> ModelFileError:
+    return ModelFileError(f"JSON field {path!r} must be {expected}, found {_kind(value)}; the "
+                          "document does not follow the schema (docs/json-schema.md)")
+
+
+def _object(value, path: str) -> dict:
+    """An object or null (read as empty)."""
+    if value is None:
+        return {}
+    if not isinstance(value, dict):
+        raise _shape_error(path, "an object", value)
+    return value
+
+
+def _array(value, path: str) -> list:
+    """An array or null (read as empty)."""
+    if value is None:
+        return []
+    if not isinstance(value, list):
+        raise _shape_error(path, "an array", value)
+    return value
+
+
 def _walk(doc: dict) -> list:
-    """``(path, text)`` of every exact expression in a document."""
+    """``(path, text)`` of every exact expression in a document; a field of
+    the wrong shape raises :class:`ModelFileError` naming its path."""
     out = []
 
     def add(path, value) -> None:
         if isinstance(value, str):
             out.append((path, value))
+        elif value is not None:
+            raise _shape_error(path, "an expression string or null", value)
 
-    def add_complex(path, value) -> None:
-        if isinstance(value, dict):
-            add(path + ".re", value.get("re"))
-            add(path + ".im", value.get("im"))
+    def add_complex(path: str, value: object) -> None:
+        value = _object(value, path)
+        add(path + ".re", value.get("re"))
+        add(path + ".im", value.get("im"))
 
-    def add_relation(path, value) -> None:
-        if isinstance(value, dict):
-            add(path + ".expression", value.get("expression"))
+    def add_relation(path: str, value: object) -> None:
+        add(path + ".expression", _object(value, path).get("expression"))
+
+    def add_named(path: str, value: object) -> None:
+        for name, text in _object(value, path).items():
+            add(f"{path}.{name}", text)
 
     for key in ("critical_value", "omega_squared", "omega", "period", "transversality", "l1",
                 "planar_coefficient", "q_norm_squared"):
         add(key, doc.get(key))
     for key in ("eigenvalue_derivative", "c1"):
         add_complex(key, doc.get(key))
-    for k, value in enumerate(doc.get("lyapunov_coefficients") or []):
+    for k, value in enumerate(_array(doc.get("lyapunov_coefficients"),
+                                     "lyapunov_coefficients")):
         add(f"lyapunov_coefficients.{k}", value)
     for key in ("supercritical_where", "l1_zero_set"):
         add_relation(key, doc.get(key))
-    for c in doc.get("conditions") or []:
-        add(f"conditions.{c.get('key')}.expression", c.get("expression"))
-    eq = doc.get("equilibrium") or {}
+    for k, c in enumerate(_array(doc.get("conditions"), "conditions")):
+        c = _object(c, f"conditions.{k}")
+        add(f"conditions.{c.get('key', k)}.expression", c.get("expression"))
+    eq = _object(doc.get("equilibrium"), "equilibrium")
     for part in ("point", "eliminated"):
-        for name, value in (eq.get(part) or {}).items():
-            add(f"equilibrium.{part}.{name}", value)
-    cycle = doc.get("cycle") or {}
+        add_named(f"equilibrium.{part}", eq.get(part))
+    cycle = _object(doc.get("cycle"), "cycle")
     add_relation("cycle.side_condition", cycle.get("side_condition"))
     for key in ("radius_squared", "period", "frequency_slope"):
         add(f"cycle.{key}", cycle.get(key))
     for part in ("amplitude_squared_slopes", "amplitudes"):
-        for name, value in (cycle.get(part) or {}).items():
-            add(f"cycle.{part}.{name}", value)
-    model = doc.get("model") or {}
-    for name, value in (model.get("equations") or {}).items():
-        add(f"model.equations.{name}", value)
-    for p in model.get("parameters") or []:
-        add(f"model.parameters.{p.get('name')}.value", p.get("value"))
+        add_named(f"cycle.{part}", cycle.get(part))
+    model = _object(doc.get("model"), "model")
+    add_named("model.equations", model.get("equations"))
+    for k, p in enumerate(_array(model.get("parameters"), "model.parameters")):
+        p = _object(p, f"model.parameters.{k}")
+        add(f"model.parameters.{p.get('name', k)}.value", p.get("value"))
     return out
 
 

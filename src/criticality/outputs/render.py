@@ -52,6 +52,12 @@ _CLASSIFICATION: dict[str, str] = {
                 "is reversed."),
     Classification.DEGENERATE: ("Degenerate (l1 = 0): the first Lyapunov coefficient vanishes; the next "
                    "coefficient decides (a Bautin point)."),
+    "nontransversal": ("No verdict (zero transversality): the pair of eigenvalues reaches the "
+                       "imaginary axis without crossing it, so the Hopf theorem does not apply; "
+                       "the Lyapunov coefficients are reported but decide nothing."),
+    "inadmissible": ("No verdict (empty admissible set): the critical value violates the "
+                     "declared sign of the parameter, so no admissible parameter value reaches "
+                     "this point."),
 }
 
 
