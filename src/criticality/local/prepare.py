@@ -160,6 +160,7 @@ def choose_equilibrium(model, equilibrium, eliminate, assumptions, full=None,
     default = getattr(model, "equilibrium_hint", None)
     if equilibrium is None and default:
         return given_equilibrium(model, default)
+    stage("solving f(x) = 0 for the equilibria (sympy's solve)")
     candidates = solve_equilibria(model)
     ctx = context_for(model.parameter_symbols, assumptions)
     return select_equilibrium(model, candidates, equilibrium, ctx)
