@@ -128,7 +128,7 @@ class BautinPoint:
 def _scenario(l2_sign, slope_sign, second, value_text):
     if l2_sign == "zero":
         return ("l2 vanishes too: a degenerate Bautin point (codimension three or more); the "
-                "next Lyapunov coefficient (order 7) decides")
+                "next Lyapunov coefficient (order 7) decides", "degenerate")
     if l2_sign not in ("negative", "positive"):
         return ("the sign of l2 is not decided under the assumptions; evaluate l2 at a "
                 "parameter point", "undecided")
