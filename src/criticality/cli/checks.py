@@ -33,6 +33,7 @@ import os
 import sys
 
 from .options import add_analysis_options, analyse_from_args
+from . import ranges
 from .options import flags as _flags
 
 __all__ = ["register", "EXIT_NOT_CONFIRMED", "EXIT_INCONCLUSIVE"]
@@ -66,24 +67,31 @@ def _plane_options(parser) -> None:
     parser.add_argument("--x", required=True, help="parameter on the horizontal axis")
     parser.add_argument("--y", help="parameter on the vertical axis (default: the bifurcation "
                         "parameter)")
-    parser.add_argument("--x-range", nargs=2, type=float, metavar=("LOW", "HIGH"), required=True)
-    parser.add_argument("--y-range", nargs=2, type=float, metavar=("LOW", "HIGH"), required=True)
+    for axis in ("x", "y"):
+        parser.add_argument(f"--{axis}-range", nargs=2, type=ranges.range_bound(f"--{axis}-range"),
+                            action=ranges.OrderedPair, metavar=("LOW", "HIGH"), required=True)
     parser.add_argument("--stability", choices=("closed-form", "eigenvalues"),
                         default="closed-form", help="how the stable region is decided")
-    parser.add_argument("--size", nargs=2, type=float, default=(6.4, 4.8),
+    parser.add_argument("--size", nargs=2, type=ranges.real("--size", ranges.SIZE),
+                        default=(6.4, 4.8),
                         metavar=("WIDTH", "HEIGHT"), help="figure size in inches")
-    parser.add_argument("--dpi", type=int, default=100, help="pixels per inch of PNG output")
-    parser.add_argument("--points", type=int, default=400, help="samples along the curve")
+    parser.add_argument("--dpi", type=ranges.integer("--dpi", ranges.DPI), default=100,
+                        help="pixels per inch of PNG output")
+    parser.add_argument("--points", type=ranges.integer("--points", ranges.POINTS), default=400,
+                        help="samples along the curve")
 
 
 def _check_options(parser) -> None:
-    parser.add_argument("--offsets", type=float, nargs="+", metavar="DELTA",
+    parser.add_argument("--offsets", type=ranges.real("--offsets", ranges.OFFSETS), nargs="+",
+                        metavar="DELTA",
                         help="distances |mu - mu_c| to check (default: from the problem's scale)")
-    parser.add_argument("--tolerance", type=float, default=0.05,
+    parser.add_argument("--tolerance", type=ranges.real("--tolerance", ranges.TOLERANCE),
+                        default=0.05,
                         help="largest relative error accepted at the smallest offset")
     parser.add_argument("--method", choices=("DOP853", "RK45", "Radau", "BDF", "LSODA"),
                         help="scipy integrator (default: DOP853, LSODA when stiff)")
-    parser.add_argument("--max-periods", type=int, default=4000,
+    parser.add_argument("--max-periods", type=ranges.integer("--max-periods", ranges.MAX_PERIODS),
+                        default=4000,
                         help="cap on the length of one run, in periods")
 
 
@@ -196,6 +204,18 @@ def _diagram(args, result, values):
             figsize=tuple(args.size), dpi=args.dpi, points=args.points)
 
 
+def _check_picture(args) -> None:
+    """--size and --dpi together: a picture of at most ranges.MAX_PIXELS pixels."""
+    from .options import UsageError
+
+    width, height = args.size
+    pixels = width * height * args.dpi ** 2
+    if pixels > ranges.MAX_PIXELS:
+        raise UsageError(f"--size {width:g} {height:g} at --dpi {args.dpi} makes a picture of "
+                         f"{pixels:.3g} pixels; the limit is {ranges.MAX_PIXELS:.0e} (a smaller "
+                         "--size or --dpi)")
+
+
 def _refuse_existing(path, force):
     from ..files import check_writable
 
@@ -206,6 +226,7 @@ def _plane(args) -> int:
     """``plane``: the parameter-plane diagram (and its CSV)."""
     from ..outputs.plots import save_figure, write_curve_csv
 
+    _check_picture(args)
     result, values = _analyse(args)
     for path in filter(None, (args.output, args.csv)):
         _refuse_existing(path, args.force)
@@ -224,6 +245,7 @@ def _survey(args) -> int:
     from .support import write_output
     from ..outputs.plots import plot_amplitude, save_figure, write_curve_csv
 
+    _check_picture(args)
     result, values = _analyse(args)
     os.makedirs(args.out_dir, exist_ok=True)
     paths = {name: os.path.join(args.out_dir, name) for name in _SURVEY_FILES}

@@ -18,6 +18,8 @@ from __future__ import annotations
 
 import argparse
 
+from . import ranges
+from .options import time_limit_option
 from .support import Stage, equilibrium_choice, pairs, read_model, split_top_level, write_output
 
 __all__ = ["delay_output", "register"]
@@ -113,7 +115,8 @@ def register(subparsers) -> None:
     p.add_argument("--offsets", type=lambda s: ",".join(split_top_level(s)) if s else s,
                    help="comma-separated offsets from the critical value (default 2%%, 1%%, "
                    "0.5%% of it)")
-    p.add_argument("--branch", type=int, default=None)
+    p.add_argument("--branch", type=ranges.integer("--branch", ranges.BRANCH), default=None)
+    time_limit_option(p)
     p.add_argument("-o", "--output", metavar="FILE")
     p.add_argument("-f", "--force", action="store_true")
     p.set_defaults(handler=_confirm)

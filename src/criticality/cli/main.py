@@ -49,7 +49,7 @@ import argparse
 import sys
 import traceback
 
-from . import analyses, checks, delay, export, numeric
+from . import analyses, checks, delay, export, numeric, ranges
 from .options import UsageError as _UsageError
 from .options import add_analysis_options, analyse_from_args
 from .options import flags as _flags
@@ -57,7 +57,9 @@ from .options import merge as _merge
 from .options import quiet as _quiet
 from .support import Stage, pairs, write_output
 from .delay import delay_output
-from ..errors import CriticalityError
+from .guard import command_guard
+from ..budget import BudgetExpired
+from ..errors import ComputationLimitError, CriticalityError
 
 __all__ = ["main", "build_parser", "add_analysis_options", "analyse_from_args",
            "EXIT_OK", "EXIT_USAGE", "EXIT_INTERNAL", "EXIT_INTERRUPTED"]
@@ -74,8 +76,9 @@ def _point_options(parser, digits: int) -> None:
                         type=lambda s: pairs([s], "--at"),
                         help="evaluate at this parameter value (repeatable, exact text such as "
                         "8/3); model defaults fill the rest")
-    parser.add_argument("--digits", type=int, default=digits,
-                        help=f"significant digits of numeric values (default {digits})")
+    parser.add_argument("--digits", type=ranges.integer("--digits", ranges.DIGITS),
+                        default=digits, help="significant digits of numeric values (default "
+                        f"{digits}, at most {ranges.DIGITS[1]})")
 
 
 def _output_options(parser) -> None:
@@ -213,7 +216,8 @@ def _add_subcommands(sub) -> None:
     add_analysis_options(p)
     _point_options(p, 20)
     _output_options(p)
-    p.add_argument("--width", type=int, default=100, help="line width (default 100)")
+    p.add_argument("--width", type=ranges.integer("--width", ranges.WIDTH), default=100,
+                   help=f"line width (default 100; {ranges.WIDTH[0]} to {ranges.WIDTH[1]})")
     p = _subcommand(sub, "report", _report, "LaTeX derivation report",
                     "Write the derivation as a standalone LaTeX document (pdflatex).")
     add_analysis_options(p)
@@ -238,7 +242,8 @@ def _add_subcommands(sub) -> None:
     p.add_argument("--output-dir", metavar="DIR",
                    help="also write the model, the LaTeX report and the JSON into DIR")
     p.add_argument("-f", "--force", action="store_true", help="overwrite files in DIR")
-    p.add_argument("--digits", type=int, default=20, help="digits of the numeric evaluation")
+    p.add_argument("--digits", type=ranges.integer("--digits", ranges.DIGITS), default=20,
+                   help="digits of the numeric evaluation")
 
 
 # -- entry point -----------------------------------------------------------------------------
@@ -265,7 +270,8 @@ def main(argv=None) -> int:
         return EXIT_USAGE
     debug = bool(getattr(args, "debug", False))
     try:
-        return int(handler(args))
+        with command_guard(args, hard=argv is None):
+            return int(handler(args))
     except _UsageError as exc:
         parser.print_usage(sys.stderr)
         print(f"criticality: error: {exc}", file=sys.stderr)
@@ -276,6 +282,9 @@ def main(argv=None) -> int:
     except KeyboardInterrupt:
         print("criticality: interrupted", file=sys.stderr)
         return EXIT_INTERRUPTED
+    except BudgetExpired:  # a stop delivered just as the budget ended
+        print("criticality: error: the command stopped at its time limit", file=sys.stderr)
+        return ComputationLimitError.exit_code
     except Exception as exc:  # a bug: say so in one paragraph
         if debug:
             traceback.print_exc()

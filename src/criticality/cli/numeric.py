@@ -21,6 +21,8 @@ from __future__ import annotations
 import argparse
 import sys
 
+from .ranges import time_limit_value
+
 __all__ = ["register"]
 
 
@@ -88,7 +90,7 @@ def register(subparsers) -> None:
     p.add_argument("--out-dir", required=True, metavar="DIR", help="an existing folder")
     p.add_argument("-p", "--parameter", help="the bifurcation parameter of every model "
                    "(default: each file's own)")
-    p.add_argument("--time-limit", type=float, metavar="SECONDS",
+    p.add_argument("--time-limit", type=time_limit_value, metavar="SECONDS",
                    help="wall-clock budget per model")
     p.add_argument("--scheduler", metavar="ADDRESS", help="a dask scheduler address")
     p.add_argument("-f", "--force", action="store_true", help="overwrite existing files")

@@ -19,7 +19,7 @@ from contextlib import contextmanager
 from ..errors import CriticalityError, NameTypoWarning
 
 __all__ = ["pairs", "split_top_level", "equilibrium_choice", "name_list", "Stage",
-           "read_model", "write_output", "EQUILIBRIUM_WORDS"]
+           "read_model", "write_output", "is_terminal", "EQUILIBRIUM_WORDS"]
 
 #: equilibrium choices that ask the engine to solve and select
 EQUILIBRIUM_WORDS = ("positive", "nonnegative", "nonzero")
@@ -110,8 +110,13 @@ class Stage:
         print(f"criticality: {self.name} ...", file=self.stream or sys.stderr, flush=True)
 
     def __enter__(self):
+        from ..budget import reporting, stage
+
         self._start = time.perf_counter()
-        if not self.quiet:
+        if self.stream is None and not is_terminal(sys.stderr):
+            self.quiet = True  # progress only for a person watching
+        stage(self.name)
+        if not self.quiet and not reporting():  # else the budget announces the stages
             self._timer = threading.Timer(self.after, self._announce)
             self._timer.daemon = True
             self._timer.start()
@@ -125,6 +130,13 @@ class Stage:
             state = "done" if exc[0] is None else "stopped"
             print(f"criticality: {self.name} {state} in {elapsed:.1f} s",
                   file=self.stream or sys.stderr, flush=True)
+        return False
+
+
+def is_terminal(stream) -> bool:
+    try:
+        return bool(stream.isatty())
+    except (AttributeError, ValueError, OSError):
         return False
 
 
