@@ -175,20 +175,27 @@ def _status(report) -> int:
 
 
 def _confirm(args) -> int:
-    """``confirm``: the simulation check report."""
-    from .support import write_output
+    """``confirm``: the simulation check report (and the amplitude plot; the
+    files are written all or nothing)."""
+    from ..files import write_all
 
     result, values = _analyse(args)
-    if args.amplitude_plot:
-        _refuse_existing(args.amplitude_plot, args.force)
+    files = [p for p in (args.output, args.amplitude_plot) if p not in (None, "-")]
+    for path in files:
+        _refuse_existing(path, args.force)
     report = _validate(args, result, values)
-    text = report.to_latex() if args.format == "latex" else str(report)
-    write_output(text + "\n", args.output, force=args.force)
+    text = (report.to_latex() if args.format == "latex" else str(report)) + "\n"
+    items = {}
+    if args.output not in (None, "-"):
+        items[args.output] = text
     if args.amplitude_plot:
-        from ..outputs.plots import plot_amplitude, save_figure
+        from ..outputs.plots import figure_bytes, plot_amplitude
 
         drawn = plot_amplitude(result, values, simulated=report)
-        save_figure(drawn.figure, args.amplitude_plot, force=args.force)
+        items[args.amplitude_plot] = figure_bytes(drawn.figure, args.amplitude_plot)
+    write_all(items, force=args.force)
+    if args.output in (None, "-"):
+        sys.stdout.write(text)
     return _status(report)
 
 
@@ -216,6 +223,16 @@ def _check_picture(args) -> None:
                          "--size or --dpi)")
 
 
+def _make_folder(folder) -> None:
+    """The survey's folder, created only once every file is ready."""
+    from ..errors import OutputError
+
+    try:
+        os.makedirs(folder, exist_ok=True)
+    except OSError as exc:
+        raise OutputError(f"cannot create the folder {folder}: {exc.strerror or exc}") from None
+
+
 def _refuse_existing(path, force):
     from ..files import check_writable
 
@@ -224,16 +241,19 @@ def _refuse_existing(path, force):
 
 def _plane(args) -> int:
     """``plane``: the parameter-plane diagram (and its CSV)."""
-    from ..outputs.plots import save_figure, write_curve_csv
+    from ..checks.plane import curve_csv
+    from ..files import write_all
+    from ..outputs.plots import figure_bytes
 
     _check_picture(args)
     result, values = _analyse(args)
     for path in filter(None, (args.output, args.csv)):
         _refuse_existing(path, args.force)
     drawn = _diagram(args, result, values)
-    save_figure(drawn.figure, args.output, force=args.force)
+    items = {args.output: figure_bytes(drawn.figure, args.output)}
     if args.csv:
-        write_curve_csv(drawn.curve, args.csv, force=args.force)
+        items[args.csv] = curve_csv(drawn.curve)
+    write_all(items, force=args.force)
     if not _quiet(args):
         print(f"criticality: wrote {args.output}" + (f" and {args.csv}" if args.csv else ""),
               file=sys.stderr)
@@ -242,24 +262,26 @@ def _plane(args) -> int:
 
 def _survey(args) -> int:
     """``survey``: report and diagrams into one folder."""
-    from .support import write_output
-    from ..outputs.plots import plot_amplitude, save_figure, write_curve_csv
+    from ..checks.plane import curve_csv
+    from ..files import write_all
+    from ..outputs.plots import figure_bytes, plot_amplitude
 
     _check_picture(args)
     result, values = _analyse(args)
-    os.makedirs(args.out_dir, exist_ok=True)
     paths = {name: os.path.join(args.out_dir, name) for name in _SURVEY_FILES}
-    for path in paths.values():
-        _refuse_existing(path, args.force)
+    if os.path.isdir(args.out_dir):
+        for path in paths.values():
+            _refuse_existing(path, args.force)
     drawn = _diagram(args, result, values)
-    save_figure(drawn.figure, paths["plane.png"], force=args.force)
-    save_figure(drawn.figure, paths["plane.svg"], force=args.force)
-    write_curve_csv(drawn.curve, paths["curve.csv"], force=args.force)
     report = _validate(args, result, values)
-    write_output(str(report) + "\n", paths["report.txt"], force=args.force)
-    write_output(report.to_latex() + "\n", paths["report.tex"], force=args.force)
     amp = plot_amplitude(result, values, simulated=report)
-    save_figure(amp.figure, paths["amplitude.png"], force=args.force)
+    contents = {"report.txt": str(report) + "\n", "report.tex": report.to_latex() + "\n",
+                "plane.png": figure_bytes(drawn.figure, paths["plane.png"]),
+                "plane.svg": figure_bytes(drawn.figure, paths["plane.svg"]),
+                "curve.csv": curve_csv(drawn.curve),
+                "amplitude.png": figure_bytes(amp.figure, paths["amplitude.png"])}
+    _make_folder(args.out_dir)
+    write_all({paths[name]: contents[name] for name in _SURVEY_FILES}, force=args.force)
     print(str(report))
     if not _quiet(args):
         print(f"criticality: wrote {', '.join(_SURVEY_FILES)} into {args.out_dir}",

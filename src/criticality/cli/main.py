@@ -30,12 +30,12 @@ analysis ``batch``).
 
 Exit status
 -----------
-0 success; 1 another error of the package (e.g. a file cannot be written);
+0 success; 1 another error of the package;
 2 bad command line; 3 the model cannot be used (file, syntax, content);
 4 a parameter is unknown or lacks a value; 5 equilibrium problem or a vector
 field that is not analytic there; 6 no Hopf point or a degenerate one; 7 no
 closed form or a size limit; 8 a missing optional extra; 9 an output file
-exists (use ``--force``); 10 a numerical validation could not run; 11 the
+exists (use ``--force``) or cannot be written; 10 a numerical validation could not run; 11 the
 simulation contradicts the prediction and 12 it is inconclusive (``confirm``,
 ``survey``); 70 an
 internal error (a bug: rerun with ``--debug`` and report it); 130

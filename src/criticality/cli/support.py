@@ -16,7 +16,7 @@ import time
 import warnings
 from contextlib import contextmanager
 
-from ..errors import CriticalityError, NameTypoWarning
+from ..errors import NameTypoWarning, OutputError
 
 __all__ = ["pairs", "split_top_level", "equilibrium_choice", "name_list", "Stage",
            "read_model", "write_output", "is_terminal", "EQUILIBRIUM_WORDS"]
@@ -140,6 +140,47 @@ def is_terminal(stream) -> bool:
         return False
 
 
+def _read_stdin(stdin=None) -> str:
+    """Standard input, capped like a model file (a stream of zeros must not
+    fill the memory)."""
+    from ..errors import ModelFileError, ModelFileSyntaxError
+    from ..model.toml_file import MAX_FILE_CHARS
+
+    stream = stdin if stdin is not None else sys.stdin
+    cap = 4 * MAX_FILE_CHARS
+    raw = getattr(stream, "buffer", None)
+    data = (raw if raw is not None else stream).read(cap + 1)
+    if len(data) > cap:
+        raise ModelFileError(f"standard input holds more than {cap // 1_000_000} MB; a model "
+                             "file is at most that long")
+    if isinstance(data, bytes):
+        try:
+            data = data.decode("utf-8")
+        except UnicodeDecodeError as exc:
+            line = data[:exc.start].count(b"\n") + 1
+            raise ModelFileSyntaxError(f"standard input is not UTF-8 text (byte {exc.start}, "
+                                       f"line {line})", source="<stdin>", line=line) from None
+    return data
+
+
+def _check_model_path(path) -> None:
+    """A model path must name a regular file: a named pipe would block and a
+    device never ends."""
+    import stat
+
+    from ..errors import ModelFileError
+
+    try:
+        info = os.stat(path)
+    except (OSError, TypeError, ValueError):
+        return  # Model.from_file reports a missing or unusable path
+    if stat.S_ISDIR(info.st_mode):
+        raise ModelFileError(f"cannot read model file {path!r}: it is a folder")
+    if not stat.S_ISREG(info.st_mode):
+        raise ModelFileError(f"cannot read model file {path!r}: it is not a regular file (a "
+                             "named pipe or a device); pass - to read standard input")
+
+
 def read_model(path: str, *, stdin=None):
     """The model in ``path`` (``"-"``: standard input)."""
     from ..model.core import Model
@@ -147,9 +188,9 @@ def read_model(path: str, *, stdin=None):
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", NameTypoWarning)
         if path == "-":
-            stream = stdin if stdin is not None else sys.stdin
-            model = Model.from_text(stream.read(), source="<stdin>")
+            model = Model.from_text(_read_stdin(stdin), source="<stdin>")
         else:
+            _check_model_path(path)
             model = Model.from_file(path)
     for w in caught:
         if issubclass(w.category, NameTypoWarning):
@@ -164,7 +205,7 @@ def _os_errors(path: str):
     try:
         yield
     except OSError as exc:
-        raise CriticalityError(f"cannot write {path}: {exc.strerror or exc}") from None
+        raise OutputError(f"cannot write {path}: {exc.strerror or exc}") from None
 
 
 def write_output(text: str, path: str | None, *, force: bool = False, stdout=None) -> str | None:

@@ -33,7 +33,7 @@ from ..checks.plane import (CurveData, StabilityGrid, curve_data, feasibility_gr
 from .latex_expr import latex_name
 
 __all__ = ["PlaneDiagram", "AmplitudePlot", "plot_parameter_plane", "plot_amplitude",
-           "save_figure", "write_curve_csv", "curve_data", "axis_label"]
+           "save_figure", "figure_bytes", "write_curve_csv", "curve_data", "axis_label"]
 
 _STYLE = {"supercritical": dict(color="tab:blue", linestyle="-", linewidth=2.0),
           "subcritical": dict(color="tab:red", linestyle="--", linewidth=2.0)}
@@ -401,6 +401,13 @@ def save_figure(figure, path, *, force: bool = False, dpi: int | None = None) ->
     PNG).  Raises :class:`~criticality.errors.OutputExistsError` if the file
     exists and ``force`` is False.
     """
+    return write_bytes_atomic(path, figure_bytes(figure, path, dpi=dpi), force=force)
+
+
+def figure_bytes(figure, path, *, dpi: int | None = None) -> bytes:
+    """The image :func:`save_figure` would write to ``path`` (format from the
+    suffix), as bytes; for writing several files at once
+    (:func:`criticality.files.write_all`)."""
     figure = _figure_of(figure)
     path = os.fspath(path)
     fmt = os.path.splitext(path)[1].lstrip(".").lower()
@@ -409,4 +416,4 @@ def save_figure(figure, path, *, force: bool = False, dpi: int | None = None) ->
                              f"{', '.join('.' + f for f in _FORMATS)}")
     buffer = io.BytesIO()
     figure.savefig(buffer, format=fmt, dpi=dpi if dpi is not None else figure.dpi)
-    return write_bytes_atomic(path, buffer.getvalue(), force=force)
+    return buffer.getvalue()
