@@ -20,7 +20,8 @@ Two mechanisms stop a spent budget:
   reach a checkpoint (sympy's ``solve`` of the equilibrium, a long
   ``factor``): at the deadline it raises :class:`BudgetExpired`
   asynchronously in the thread that runs the budget (at its next Python
-  instruction, again every half second if something swallowed it), and the
+  instruction, again every half second if something swallowed it; never
+  while that thread imports a module), and the
   budget turns it into the same :class:`ComputationLimitError`.  A single
   call that stays inside compiled code cannot be interrupted this way; it is
   stopped when it returns (the command line ends the process instead, see
@@ -39,6 +40,7 @@ from __future__ import annotations
 
 import ctypes
 import math
+import sys
 import threading
 import time
 from contextlib import contextmanager
@@ -171,8 +173,7 @@ class _Watchdog:
                 announced = self._report(now, announced)
             if deadline is None or now <= deadline:
                 continue
-            if next_fire is None or now >= next_fire:
-                self._fire()
+            if (next_fire is None or now >= next_fire) and self._fire():
                 next_fire = now + _REFIRE
             if self.on_overdue is not None and now > deadline + 2.0:
                 self.on_overdue(_message(budget, now - self.start_time))
@@ -197,13 +198,19 @@ class _Watchdog:
         except Exception:  # a broken stream must not kill the watchdog
             self.progress = None
 
-    def _fire(self) -> None:
+    def _fire(self) -> bool:
+        """Deliver the stop, unless the thread is importing a module (an
+        import cut in half would leave a broken module behind for the rest of
+        the session): then the next poll tries again."""
         with self.lock:
             if self.done.is_set():
-                return
+                return True
+            if _importing(self.target):
+                return False
             self.budget.expired = self.fired = True
             ctypes.pythonapi.PyThreadState_SetAsyncExc(ctypes.c_ulong(self.target),
                                                        ctypes.py_object(BudgetExpired))
+            return True
 
     def halt(self) -> None:
         """End the watch (idempotent).  A stop delivered while halting is
@@ -219,6 +226,16 @@ class _Watchdog:
             self.done.set()
             if self.fired:
                 ctypes.pythonapi.PyThreadState_SetAsyncExc(ctypes.c_ulong(self.target), None)
+
+
+def _importing(thread_id: int) -> bool:
+    """Whether the thread is inside the import machinery."""
+    frame = sys._current_frames().get(thread_id)
+    while frame is not None:
+        if frame.f_code.co_filename.startswith("<frozen importlib"):
+            return True
+        frame = frame.f_back
+    return False
 
 
 def stage(name: str) -> None:

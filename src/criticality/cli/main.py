@@ -249,6 +249,17 @@ def _add_subcommands(sub) -> None:
 # -- entry point -----------------------------------------------------------------------------
 
 
+_PARSER: list = []
+
+
+def _shared_parser() -> argparse.ArgumentParser:
+    """One parser per process: building it costs more than most failing
+    command lines (parse_args keeps no state between calls)."""
+    if not _PARSER:
+        _PARSER.append(build_parser())
+    return _PARSER[0]
+
+
 def _report_error(exc: BaseException, debug: bool) -> None:
     if debug:
         traceback.print_exception(type(exc), exc, exc.__traceback__, file=sys.stderr)
@@ -259,7 +270,7 @@ def _report_error(exc: BaseException, debug: bool) -> None:
 def main(argv=None) -> int:
     """Run the command line with ``argv`` (default: ``sys.argv[1:]``); returns
     the exit status (see the module docstring)."""
-    parser = build_parser()
+    parser = _shared_parser()
     try:
         args = parser.parse_args(argv)
     except SystemExit as exc:  # --help, --version, or a usage error (already printed)

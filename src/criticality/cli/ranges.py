@@ -16,7 +16,7 @@ from __future__ import annotations
 import argparse
 import math
 
-__all__ = ["DEFAULT_TIME_LIMIT", "integer", "real", "time_limit_value", "range_bound", "OrderedPair",
+__all__ = ["DEFAULT_TIME_LIMIT", "integer", "real", "real_list", "time_limit_value", "range_bound", "OrderedPair",
            "WIDTH", "DPI", "SIZE", "POINTS", "RANGE_BOUND", "OFFSETS", "TOLERANCE",
            "MAX_PERIODS", "ORDER", "BRANCH", "DIGITS", "TIME_LIMIT", "MAX_PIXELS"]
 
@@ -76,6 +76,27 @@ def real(option: str, bounds: tuple):
             raise argparse.ArgumentTypeError(
                 f"expected a number from {low:g} to {high:g}, got {text!r}")
         return value
+
+    parse.__name__ = option
+    return parse
+
+
+def real_list(option: str, bounds: tuple, *, signed: bool = False):
+    """An argparse type: comma-separated numbers, each within ``bounds`` (in
+    magnitude when ``signed``)."""
+    one = real(option, bounds)
+
+    def parse(text: str) -> tuple:
+        items = [t.strip() for t in text.split(",") if t.strip()]
+        if not items:
+            raise argparse.ArgumentTypeError(f"expected comma-separated numbers, got {text!r}")
+        if not signed:
+            return tuple(one(t) for t in items)
+        out = []
+        for t in items:
+            value = one(t.lstrip("-+") or t)
+            out.append(-value if t.startswith("-") else value)
+        return tuple(out)
 
     parse.__name__ = option
     return parse
