@@ -277,5 +277,5 @@ def _message(budget: _Budget, elapsed: float) -> str:
         "or run the numeric mode from a guess (guess={...}) for one parameter point",
     ]
     return (f"{budget.what} stopped after {elapsed:.1f} s (time limit {budget.limit:g} s) while "
-            f"{budget.stage}. The exact expressions grew too large for the budget. Ways to make "
+            f"{budget.stage}; the computation did not finish within the budget. Ways to make "
             "the problem smaller: " + "; ".join(ways) + ".")
