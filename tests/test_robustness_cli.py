@@ -342,3 +342,22 @@ def test_outputs_are_byte_identical_under_any_hash_seed(tmp_path):
                        check=True, timeout=300)
         runs.append({n: (folder / f"out.{n}").read_bytes() for n in ("json", "tex", "txt")})
     assert runs[0] == runs[1] == runs[2]
+
+
+def test_batch_refuses_pipes_and_devices_and_writes_all_or_nothing(tmp_path, capsys):
+    """batch read its model files without a cap (a FIFO blocked, /dev/zero
+    filled the memory) and wrote one JSON at a time; a target in the way now
+    stops every write."""
+    fifo = tmp_path / "pipe.toml"
+    os.mkfifo(fifo)
+    out = tmp_path / "out"
+    out.mkdir()
+    code, _, err = run(["batch", fifo, "/dev/zero", PLANKTON, "--out-dir", out], capsys)
+    assert code == 1 and err.count("not a regular file") == 2
+    assert sorted(p.name for p in out.iterdir()) == ["plankton_grazer.json", "summary.csv"]
+    (out / "summary.csv").unlink()
+    (out / "summary.csv").mkdir()
+    (out / "plankton_grazer.json").unlink()
+    code, _, err = run(["batch", PLANKTON, "--out-dir", out, "--force"], capsys)
+    assert code == 9 and "folder" in err
+    assert sorted(p.name for p in out.iterdir()) == ["summary.csv"]
