@@ -60,7 +60,7 @@ NUMBER_TEXT = st.one_of(
     st.integers(-10 ** 12, 10 ** 12).map(str),
     st.floats(allow_nan=True, allow_infinity=True).map(repr),
     st.sampled_from(["0", "-1", "1e308", "1e-300", "nan", "inf", "none", "3", "5", "1/2", "",
-                     "2**64", "x", "0x10", "1_000", " 7 "]),
+                     "2**64", "x", "0x10", "1_000", " 7 ", "0.01", "0.2"]),
 )
 EXPR_TEXT = st.one_of(NUMBER_TEXT, st.sampled_from([
     "1/3", "sqrt(2)", "exp(exp(exp(exp(1000))))", "x^99999", "(", "a*", "mu", "pi", "I",
