@@ -313,7 +313,8 @@ def test_a_typo_of_a_declared_parameter_is_warned_on_stderr(tmp_path, capsys):
     path.write_text(FAST.replace('a = { assume = "real", value = "1" }',
                                  'beta = { assume = "real", value = "1" }')
                     .replace("- a*x^3", "- bta*x^3 - beta*x^3"))
-    for argv in (["analyse", path, "-q"], ["fold", path, "-q"]):
+    for argv in (["analyse", path, "-q"], ["fold", path, "-q"], ["batch", path, "--out-dir",
+                                                                  tmp_path, "-q"]):
         code, _, err = run(argv, capsys)
         assert "criticality: warning:" in err and "'bta'" in err and "did you mean 'beta'" in err
 

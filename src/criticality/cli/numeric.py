@@ -150,11 +150,13 @@ def _is_number(text: str) -> bool:
 
 
 def _batch(args) -> int:
+    from .support import typo_warnings
     from ..checks.batch import analyse_many
 
-    summary = analyse_many(args.models, parameter=args.parameter, out_dir=args.out_dir,
-                           time_limit=args.time_limit, force=args.force,
-                           scheduler=args.scheduler)
+    with typo_warnings():
+        summary = analyse_many(args.models, parameter=args.parameter, out_dir=args.out_dir,
+                               time_limit=args.time_limit, force=args.force,
+                               scheduler=args.scheduler)
     if not getattr(args, "quiet", False):
         for row in summary.rows:
             line = (f"{row.path}: {row.classification}, {row.parameter} = {row.critical_value}"

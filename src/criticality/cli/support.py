@@ -19,7 +19,7 @@ from contextlib import contextmanager
 from ..errors import NameTypoWarning, OutputError
 
 __all__ = ["pairs", "split_top_level", "equilibrium_choice", "name_list", "Stage",
-           "read_model", "write_output", "is_terminal", "EQUILIBRIUM_WORDS"]
+           "read_model", "typo_warnings", "write_output", "is_terminal", "EQUILIBRIUM_WORDS"]
 
 #: equilibrium choices that ask the engine to solve and select
 EQUILIBRIUM_WORDS = ("positive", "nonnegative", "nonzero")
@@ -185,19 +185,29 @@ def read_model(path: str, *, stdin=None):
     """The model in ``path`` (``"-"``: standard input)."""
     from ..model.core import Model
 
+    with typo_warnings():
+        if path == "-":
+            return Model.from_text(_read_stdin(stdin), source="<stdin>")
+        _check_model_path(path)
+        return Model.from_file(path)
+
+
+@contextmanager
+def typo_warnings(prefix: str = ""):
+    """Show the library's NameTypoWarning as ``criticality: warning: ...``
+    lines on standard error (other warnings pass on unchanged)."""
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", NameTypoWarning)
-        if path == "-":
-            model = Model.from_text(_read_stdin(stdin), source="<stdin>")
-        else:
-            _check_model_path(path)
-            model = Model.from_file(path)
-    for w in caught:
-        if issubclass(w.category, NameTypoWarning):
-            print(f"criticality: warning: {w.message}", file=sys.stderr)
-        else:
-            warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
-    return model
+        try:
+            yield
+        finally:
+            shown = set()
+            for w in caught:
+                if not issubclass(w.category, NameTypoWarning):
+                    warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
+                elif str(w.message) not in shown:
+                    shown.add(str(w.message))
+                    print(f"criticality: warning: {prefix}{w.message}", file=sys.stderr)
 
 
 @contextmanager
