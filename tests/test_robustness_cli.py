@@ -362,3 +362,25 @@ def test_batch_refuses_pipes_and_devices_and_writes_all_or_nothing(tmp_path, cap
     code, _, err = run(["batch", PLANKTON, "--out-dir", out, "--force"], capsys)
     assert code == 9 and "folder" in err
     assert sorted(p.name for p in out.iterdir()) == ["summary.csv"]
+
+
+_STUCK = """
+import sys, time
+from criticality.cli import options
+from criticality.cli.main import main
+options.read_model = lambda path, **kw: time.sleep(60)  # stands for a long compiled call
+sys.argv = ["criticality", "analyse", sys.argv[1], "--time-limit", "1"]
+sys.exit(main())
+"""
+
+
+def test_a_command_stuck_in_compiled_code_ends_two_seconds_after_its_limit():
+    """A call the watchdog cannot interrupt (here a sleep) must not keep the
+    real command past its budget: it ends with status 7 about two seconds
+    after the limit (bound 8 s)."""
+    start = time.monotonic()
+    done = subprocess.run([sys.executable, "-c", _STUCK, PLANKTON], capture_output=True,
+                          timeout=120)
+    assert done.returncode == 7, done.stderr
+    assert time.monotonic() - start < 8
+    assert b"stopped after" in done.stderr and b"Traceback" not in done.stderr
