@@ -148,7 +148,9 @@ def test_cli_subcommands_of_other_analyses_take_a_time_limit(tmp_path, capsys, m
     path.write_text(Model(["x", "y"], _BAUTIN, parameters={"mu": "real", "k": "real"}).to_toml())
     code = main(["bautin", str(path), "-p", "mu", "--second", "k", "-e", "x=0, y=0",
                  "--time-limit", "5", "-q"])
-    assert code == 7 and "the bautin analysis stopped" in capsys.readouterr().err
+    err = capsys.readouterr().err
+    # the command's budget covers reading the model too, so the fake clock stops it there
+    assert code == 7 and "the bautin command stopped" in err and "reading the model" in err
 
 
 def test_the_numeric_mode_honours_the_budget(monkeypatch):
@@ -161,3 +163,74 @@ def test_the_numeric_mode_honours_the_budget(monkeypatch):
         hopf(m, "mu", guess={"x": 0.01, "y": 0.0, "mu": 0.05}, time_limit=5)
     monkeypatch.undo()
     assert hopf(m, "mu", guess={"x": 0.01, "y": 0.0, "mu": 0.05}, time_limit=600).l1 < 0
+
+
+_CHAIN_TOML = """\
+# Invented three-level food chain: logistic algae A, grazers G with a
+# Holling type II intake, predators P with linear predation (no real data).
+name = "Algae, grazers and a predator"
+states = ["A", "G", "P"]
+bifurcation_parameter = "K"
+
+[parameters]
+r = { assume = "positive" }
+K = { assume = "positive" }
+g = { assume = "positive" }
+h = { assume = "positive" }
+e = { assume = "positive" }
+d = { assume = "positive" }
+q = { assume = "positive" }
+c = { assume = "positive" }
+m = { assume = "positive" }
+
+[equations]
+A = "r*A*(1 - A/K) - g*A*G/(h + A)"
+G = "e*g*A*G/(h + A) - d*G - q*G*P"
+P = "c*q*G*P - m*P"
+"""
+
+
+def test_the_watchdog_stops_sympys_equilibrium_solve():
+    """Regression (issue 13): sympy's solve of the positive equilibrium of a
+    three-level chain never reaches a checkpoint (it ran 621 s past a 60 s
+    limit); the watchdog interrupts it and the error names the stage.  The
+    margin is generous: machines are noisy."""
+    m = Model.from_text(_CHAIN_TOML)
+    start = time.monotonic()
+    with pytest.raises(ComputationLimitError) as info:
+        hopf(m, "K", equilibrium="positive", time_limit=2)
+    assert time.monotonic() - start < 6
+    assert "solving f(x) = 0 for the equilibria" in str(info.value)
+    assert "time limit 2 s" in str(info.value)
+    assert budget._current.get() is None
+
+
+def test_the_watchdog_reports_slow_stages_and_calls_on_overdue():
+    """progress hears of a stage that lasts over a second; a call stuck where
+    the stop cannot reach it (a sleep) triggers on_overdue two seconds after
+    the limit and is stopped when it returns."""
+    heard, overdue = [], []
+    with pytest.raises(ComputationLimitError, match="napping"):
+        with budget.time_limit(0.2, "the nap", progress=heard.append,
+                               on_overdue=overdue.append):
+            budget.stage("napping")
+            time.sleep(2.6)
+    assert heard == ["napping ..."]
+    assert overdue and "the nap stopped" in overdue[0]
+
+
+def test_a_budget_that_ends_in_time_leaves_nothing_pending():
+    """No stop is delivered after a budget ends, even one that ends just at
+    its limit; progress alone (no limit) is allowed."""
+    import contextlib
+
+    for _ in range(3):
+        with contextlib.suppress(ComputationLimitError):  # ends just before or at the limit
+            with budget.time_limit(0.05):
+                deadline = time.monotonic() + 0.045
+                while time.monotonic() < deadline:
+                    pass
+    with budget.time_limit(None, progress=lambda text: None):
+        budget.stage("quick")
+    time.sleep(0.7)  # a pending stop would surface here
+    assert budget._current.get() is None

@@ -122,7 +122,7 @@ def analyse_many(paths: Sequence, *, parameter: str | None = None,
     -------
     BatchSummary
     """
-    from ..files import check_writable, write_text_atomic
+    from ..files import check_writable, write_all
 
     if isinstance(paths, (str, os.PathLike)):
         paths = [paths]
@@ -137,9 +137,8 @@ def analyse_many(paths: Sequence, *, parameter: str | None = None,
     early: dict = {}
     for i, path in enumerate(paths):
         try:
-            with open(path, encoding="utf-8") as handle:
-                items.append((handle.read(), path, options))
-        except (OSError, UnicodeDecodeError) as exc:
+            items.append((_read_capped(path), path, options))
+        except (OSError, UnicodeDecodeError, ValueError) as exc:
             early[i] = {"status": "failed", "error": f"cannot read {path}: {exc}"}
             items.append(None)
     todo = [it for it in items if it is not None]
@@ -149,18 +148,34 @@ def analyse_many(paths: Sequence, *, parameter: str | None = None,
         from .cluster import map_tasks
         done = map_tasks(scheduler, _analyse_text, todo)
     results = iter(done)
-    rows = []
+    rows, outputs = [], {}
     for i, path in enumerate(paths):
         fields, text = (early[i], None) if i in early else next(results)
         json_path = ""
         if text is not None and out_dir is not None:
             stem = os.path.splitext(os.path.basename(path))[0]
             json_path = os.path.join(os.fspath(out_dir), f"{stem}.json")
-            write_text_atomic(json_path, text, force=force)
+            check_writable(json_path, force)
+            outputs[json_path] = text
         rows.append(BatchRow(path=path, json=json_path, **fields))
     summary = BatchSummary(tuple(rows))
     if out_dir is not None:
-        target = os.path.join(os.fspath(out_dir), "summary.csv")
-        check_writable(target, force)
-        write_text_atomic(target, summary.to_csv(), force=force)
+        outputs[os.path.join(os.fspath(out_dir), "summary.csv")] = summary.to_csv()
+        write_all(outputs, force=force)  # every JSON and the summary, or none of them
     return summary
+
+
+def _read_capped(path: str) -> str:
+    """A model file's text: a regular file of at most the model-file size
+    (a named pipe would block, a device never ends)."""
+    import stat
+
+    from ..model.toml_file import MAX_FILE_CHARS
+
+    if not stat.S_ISREG(os.stat(path).st_mode):
+        raise ValueError("not a regular file (a named pipe, a device or a folder)")
+    with open(path, "rb") as handle:
+        data = handle.read(4 * MAX_FILE_CHARS + 1)
+    if len(data) > 4 * MAX_FILE_CHARS:
+        raise ValueError(f"longer than {4 * MAX_FILE_CHARS // 1_000_000} MB")
+    return data.decode("utf-8")

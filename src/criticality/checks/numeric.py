@@ -112,7 +112,7 @@ def parameter_values(result: ResultLike, values: Mapping) -> dict:
                                  f"{', '.join(sorted(known))})")
         out[key] = _exact(model, key, raw)
     defaults = model.defaults() if hasattr(model, "defaults") else {}
-    for name in known:
+    for name in sorted(known):  # not set order: the JSON must not depend on the hash seed
         if name not in out and name in defaults:
             out[name] = defaults[name]
     missing = sorted(k for k in known if k not in out and k != result.parameter)

@@ -31,6 +31,7 @@ from typing import Any
 
 
 from .options import flags as _flags
+from .options import UsageError, time_limit_option
 from .support import Stage, equilibrium_choice, name_list, pairs, read_model, write_output
 from ..budget import time_limit
 
@@ -61,9 +62,7 @@ def _options(parser, analysis) -> None:
                             help="the symbol solved from det A = 0 (default: the parameter)")
     parser.add_argument("--backend", choices=("flint", "sympy"), default="flint",
                         help="exact arithmetic of the parameter field (default flint)")
-    parser.add_argument("--time-limit", type=float, default=None, metavar="SECONDS",
-                        help="stop after this many seconds with a message naming the stage "
-                        "reached (exit code 7; default: no limit)")
+    time_limit_option(parser)
     parser.add_argument("--format", choices=("text", "latex", "json"), default="text",
                         help="output format (default text)")
     parser.add_argument("-o", "--output", metavar="FILE",
@@ -97,6 +96,9 @@ def _handler(analysis):
             model = read_model(args.model)
         symbols = [args.parameter or model.bifurcation_parameter]
         if "second" in analysis.needs:
+            if args.second == symbols[0]:
+                raise UsageError(f"--second {args.second}: the second symbol must differ from "
+                                 f"the bifurcation parameter (-p {symbols[0]})")
             symbols.append(args.second)
         options = dict(equilibrium=args.equilibrium, eliminate=args.eliminate,
                        values=_merged(args.values) or None, assume=_merged(args.assume) or None,

@@ -35,6 +35,7 @@ import os
 import sys
 
 from .options import add_analysis_options, analyse_from_args
+from . import ranges
 from .options import flags as _flags
 
 __all__ = ["register", "EXIT_NOT_CONFIRMED", "EXIT_INCONCLUSIVE"]
@@ -68,24 +69,31 @@ def _plane_options(parser) -> None:
     parser.add_argument("--x", required=True, help="parameter on the horizontal axis")
     parser.add_argument("--y", help="parameter on the vertical axis (default: the bifurcation "
                         "parameter)")
-    parser.add_argument("--x-range", nargs=2, type=float, metavar=("LOW", "HIGH"), required=True)
-    parser.add_argument("--y-range", nargs=2, type=float, metavar=("LOW", "HIGH"), required=True)
+    for axis in ("x", "y"):
+        parser.add_argument(f"--{axis}-range", nargs=2, type=ranges.range_bound(f"--{axis}-range"),
+                            action=ranges.OrderedPair, metavar=("LOW", "HIGH"), required=True)
     parser.add_argument("--stability", choices=("closed-form", "eigenvalues"),
                         default="closed-form", help="how the stable region is decided")
-    parser.add_argument("--size", nargs=2, type=float, default=(6.4, 4.8),
+    parser.add_argument("--size", nargs=2, type=ranges.real("--size", ranges.SIZE),
+                        default=(6.4, 4.8),
                         metavar=("WIDTH", "HEIGHT"), help="figure size in inches")
-    parser.add_argument("--dpi", type=int, default=100, help="pixels per inch of PNG output")
-    parser.add_argument("--points", type=int, default=400, help="samples along the curve")
+    parser.add_argument("--dpi", type=ranges.integer("--dpi", ranges.DPI), default=100,
+                        help="pixels per inch of PNG output")
+    parser.add_argument("--points", type=ranges.integer("--points", ranges.POINTS), default=400,
+                        help="samples along the curve")
 
 
 def _check_options(parser) -> None:
-    parser.add_argument("--offsets", type=float, nargs="+", metavar="DELTA",
+    parser.add_argument("--offsets", type=ranges.real("--offsets", ranges.OFFSETS), nargs="+",
+                        metavar="DELTA",
                         help="distances |mu - mu_c| to check (default: from the problem's scale)")
-    parser.add_argument("--tolerance", type=float, default=0.05,
+    parser.add_argument("--tolerance", type=ranges.real("--tolerance", ranges.TOLERANCE),
+                        default=0.05,
                         help="largest relative error accepted at the smallest offset")
     parser.add_argument("--method", choices=("DOP853", "RK45", "Radau", "BDF", "LSODA"),
                         help="scipy integrator (default: DOP853, LSODA when stiff)")
-    parser.add_argument("--max-periods", type=int, default=4000,
+    parser.add_argument("--max-periods", type=ranges.integer("--max-periods", ranges.MAX_PERIODS),
+                        default=4000,
                         help="cap on the length of one run, in periods")
 
 
@@ -169,20 +177,27 @@ def _status(report) -> int:
 
 
 def _confirm(args) -> int:
-    """``confirm``: the simulation check report."""
-    from .support import write_output
+    """``confirm``: the simulation check report (and the amplitude plot; the
+    files are written all or nothing)."""
+    from ..files import write_all
 
     result, values = _analyse(args)
-    if args.amplitude_plot:
-        _refuse_existing(args.amplitude_plot, args.force)
+    files = [p for p in (args.output, args.amplitude_plot) if p not in (None, "-")]
+    for path in files:
+        _refuse_existing(path, args.force)
     report = _validate(args, result, values)
-    text = report.to_latex() if args.format == "latex" else str(report)
-    write_output(text + "\n", args.output, force=args.force)
+    text = (report.to_latex() if args.format == "latex" else str(report)) + "\n"
+    items = {}
+    if args.output not in (None, "-"):
+        items[args.output] = text
     if args.amplitude_plot:
-        from ..outputs.plots import plot_amplitude, save_figure
+        from ..outputs.plots import figure_bytes, plot_amplitude
 
         drawn = plot_amplitude(result, values, simulated=report)
-        save_figure(drawn.figure, args.amplitude_plot, force=args.force)
+        items[args.amplitude_plot] = figure_bytes(drawn.figure, args.amplitude_plot)
+    write_all(items, force=args.force)
+    if args.output in (None, "-"):
+        sys.stdout.write(text)
     return _status(report)
 
 
@@ -198,6 +213,28 @@ def _diagram(args, result, values):
             figsize=tuple(args.size), dpi=args.dpi, points=args.points)
 
 
+def _check_picture(args) -> None:
+    """--size and --dpi together: a picture of at most ranges.MAX_PIXELS pixels."""
+    from .options import UsageError
+
+    width, height = args.size
+    pixels = width * height * args.dpi ** 2
+    if pixels > ranges.MAX_PIXELS:
+        raise UsageError(f"--size {width:g} {height:g} at --dpi {args.dpi} makes a picture of "
+                         f"{pixels:.3g} pixels; the limit is {ranges.MAX_PIXELS:.0e} (a smaller "
+                         "--size or --dpi)")
+
+
+def _make_folder(folder) -> None:
+    """The survey's folder, created only once every file is ready."""
+    from ..errors import OutputError
+
+    try:
+        os.makedirs(folder, exist_ok=True)
+    except OSError as exc:
+        raise OutputError(f"cannot create the folder {folder}: {exc.strerror or exc}") from None
+
+
 def _refuse_existing(path, force):
     from ..files import check_writable
 
@@ -206,15 +243,19 @@ def _refuse_existing(path, force):
 
 def _plane(args) -> int:
     """``plane``: the parameter-plane diagram (and its CSV)."""
-    from ..outputs.plots import save_figure, write_curve_csv
+    from ..checks.plane import curve_csv
+    from ..files import write_all
+    from ..outputs.plots import figure_bytes
 
+    _check_picture(args)
     result, values = _analyse(args)
     for path in filter(None, (args.output, args.csv)):
         _refuse_existing(path, args.force)
     drawn = _diagram(args, result, values)
-    save_figure(drawn.figure, args.output, force=args.force)
+    items: dict[str, str | bytes] = {args.output: figure_bytes(drawn.figure, args.output)}
     if args.csv:
-        write_curve_csv(drawn.curve, args.csv, force=args.force)
+        items[args.csv] = curve_csv(drawn.curve)
+    write_all(items, force=args.force)
     if not _quiet(args):
         print(f"criticality: wrote {args.output}" + (f" and {args.csv}" if args.csv else ""),
               file=sys.stderr)
@@ -223,23 +264,26 @@ def _plane(args) -> int:
 
 def _survey(args) -> int:
     """``survey``: report and diagrams into one folder."""
-    from .support import write_output
-    from ..outputs.plots import plot_amplitude, save_figure, write_curve_csv
+    from ..checks.plane import curve_csv
+    from ..files import write_all
+    from ..outputs.plots import figure_bytes, plot_amplitude
 
+    _check_picture(args)
     result, values = _analyse(args)
-    os.makedirs(args.out_dir, exist_ok=True)
     paths = {name: os.path.join(args.out_dir, name) for name in _SURVEY_FILES}
-    for path in paths.values():
-        _refuse_existing(path, args.force)
+    if os.path.isdir(args.out_dir):
+        for path in paths.values():
+            _refuse_existing(path, args.force)
     drawn = _diagram(args, result, values)
-    save_figure(drawn.figure, paths["plane.png"], force=args.force)
-    save_figure(drawn.figure, paths["plane.svg"], force=args.force)
-    write_curve_csv(drawn.curve, paths["curve.csv"], force=args.force)
     report = _validate(args, result, values)
-    write_output(str(report) + "\n", paths["report.txt"], force=args.force)
-    write_output(report.to_latex() + "\n", paths["report.tex"], force=args.force)
     amp = plot_amplitude(result, values, simulated=report)
-    save_figure(amp.figure, paths["amplitude.png"], force=args.force)
+    contents = {"report.txt": str(report) + "\n", "report.tex": report.to_latex() + "\n",
+                "plane.png": figure_bytes(drawn.figure, paths["plane.png"]),
+                "plane.svg": figure_bytes(drawn.figure, paths["plane.svg"]),
+                "curve.csv": curve_csv(drawn.curve),
+                "amplitude.png": figure_bytes(amp.figure, paths["amplitude.png"])}
+    _make_folder(args.out_dir)
+    write_all({paths[name]: contents[name] for name in _SURVEY_FILES}, force=args.force)
     print(str(report))
     if not _quiet(args):
         print(f"criticality: wrote {', '.join(_SURVEY_FILES)} into {args.out_dir}",

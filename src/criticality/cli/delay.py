@@ -21,7 +21,9 @@ from typing import Any
 import argparse
 
 from ..errors import ParameterError
-from .support import Stage, equilibrium_choice, pairs, read_model, split_top_level, write_output
+from . import ranges
+from .options import time_limit_option
+from .support import Stage, equilibrium_choice, pairs, read_model, write_output
 
 __all__ = ["delay_output", "register"]
 
@@ -80,8 +82,13 @@ def _confirm(args) -> int:
     with Stage("delay Hopf analysis", quiet=quiet):
         result = hopf(model, args.parameter, equilibrium=args.equilibrium,
                       values=values or None, branch=args.branch)
-    point = {k: float(v) if not isinstance(v, str) else v for k, v in _merged(args.point).items()}
-    offsets = [float(x) for x in args.offsets.split(",")] if args.offsets else None
+    if getattr(result, "kind", "") != "hopf_delay":
+        from ..errors import ModelKindError
+
+        raise ModelKindError("delay-confirm simulates a model with delays; this model has none "
+                             "(use confirm for an ordinary model)")
+    point = _merged(args.point)
+    offsets = list(args.offsets) if args.offsets else None
     with Stage("simulating the delay equation at three offsets", quiet=quiet):
         report = result.validate(  # type: ignore[union-attr]  # a delay model, no guess
             _floats(point), offsets=offsets)
@@ -93,11 +100,15 @@ def _confirm(args) -> int:
 
 def _floats(point: dict) -> dict:
     import sympy
+    from ..errors import ParameterError
     from ..model.expressions import parse_expression
     out = {}
     for k, v in point.items():
         value = parse_expression(v, {}, context=f"--at {k}") if isinstance(v, str) else v
-        out[k] = float(sympy.N(value))
+        try:
+            out[k] = float(sympy.N(value))
+        except (TypeError, ValueError, OverflowError):
+            raise ParameterError(f"--at {k}: expected a number, got {v!r}") from None
     return out
 
 
@@ -118,10 +129,11 @@ def register(subparsers: Any) -> None:
     p.add_argument("--at", dest="point", action="append", default=[], metavar="NAME=VALUE",
                    type=lambda s: pairs([s], "--at"),
                    help="numeric values of the remaining parameters for the simulation")
-    p.add_argument("--offsets", type=lambda s: ",".join(split_top_level(s)) if s else s,
+    p.add_argument("--offsets", type=ranges.real_list("--offsets", ranges.OFFSETS, signed=True),
                    help="comma-separated offsets from the critical value (default 2%%, 1%%, "
                    "0.5%% of it)")
-    p.add_argument("--branch", type=int, default=None)
+    p.add_argument("--branch", type=ranges.integer("--branch", ranges.BRANCH), default=None)
+    time_limit_option(p)
     p.add_argument("-o", "--output", metavar="FILE")
     p.add_argument("-f", "--force", action="store_true")
     p.set_defaults(handler=_confirm)

@@ -57,12 +57,17 @@ def _write_files(result, text: str, folder: str, force: bool) -> list:
     from ..outputs.json_io import result_to_json
     from ..outputs.latex import latex_report
 
-    os.makedirs(folder, exist_ok=True)
-    out = []
-    for name, content in (("demo-model.toml", text), ("demo-report.tex", latex_report(result)),
-                          ("demo-result.json", result_to_json(result, point={}) + "\n")):
-        out.append(write_output(content, os.path.join(folder, name), force=force))
-    return out
+    from ..errors import OutputError
+    from ..files import write_all
+
+    items = {os.path.join(folder, name): content for name, content in (
+        ("demo-model.toml", text), ("demo-report.tex", latex_report(result)),
+        ("demo-result.json", result_to_json(result, point={}) + "\n"))}
+    try:
+        os.makedirs(folder, exist_ok=True)
+    except OSError as exc:
+        raise OutputError(f"cannot create the folder {folder}: {exc.strerror or exc}") from None
+    return list(write_all(items, force=force))  # all three or none
 
 
 def run_demo(args: argparse.Namespace, *, quiet: bool = False) -> int:

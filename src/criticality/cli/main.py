@@ -30,12 +30,12 @@ analysis ``batch``).
 
 Exit status
 -----------
-0 success; 1 another error of the package (e.g. a file cannot be written);
+0 success; 1 another error of the package;
 2 bad command line; 3 the model cannot be used (file, syntax, content);
 4 a parameter is unknown or lacks a value; 5 equilibrium problem or a vector
 field that is not analytic there; 6 no Hopf point or a degenerate one; 7 no
 closed form or a size limit; 8 a missing optional extra; 9 an output file
-exists (use ``--force``); 10 a numerical validation could not run; 11 the
+exists (use ``--force``) or cannot be written; 10 a numerical validation could not run; 11 the
 simulation contradicts the prediction and 12 it is inconclusive (``confirm``,
 ``survey``); 70 an
 internal error (a bug: rerun with ``--debug`` and report it); 130
@@ -51,7 +51,7 @@ import argparse
 import sys
 import traceback
 
-from . import analyses, checks, delay, export, numeric
+from . import analyses, checks, delay, export, numeric, ranges
 from .options import UsageError as _UsageError
 from .options import add_analysis_options, analyse_from_args
 from .options import flags as _flags
@@ -59,7 +59,9 @@ from .options import merge as _merge
 from .options import quiet as _quiet
 from .support import Stage, pairs, write_output
 from .delay import delay_output
-from ..errors import CriticalityError
+from .guard import command_guard
+from ..budget import BudgetExpired
+from ..errors import ComputationLimitError, CriticalityError
 
 __all__ = ["main", "build_parser", "add_analysis_options", "analyse_from_args",
            "EXIT_OK", "EXIT_USAGE", "EXIT_INTERNAL", "EXIT_INTERRUPTED"]
@@ -76,8 +78,9 @@ def _point_options(parser, digits: int) -> None:
                         type=lambda s: pairs([s], "--at"),
                         help="evaluate at this parameter value (repeatable, exact text such as "
                         "8/3); model defaults fill the rest")
-    parser.add_argument("--digits", type=int, default=digits,
-                        help=f"significant digits of numeric values (default {digits})")
+    parser.add_argument("--digits", type=ranges.integer("--digits", ranges.DIGITS),
+                        default=digits, help="significant digits of numeric values (default "
+                        f"{digits}, at most {ranges.DIGITS[1]})")
 
 
 def _output_options(parser) -> None:
@@ -215,7 +218,8 @@ def _add_subcommands(sub) -> None:
     add_analysis_options(p)
     _point_options(p, 20)
     _output_options(p)
-    p.add_argument("--width", type=int, default=100, help="line width (default 100)")
+    p.add_argument("--width", type=ranges.integer("--width", ranges.WIDTH), default=100,
+                   help=f"line width (default 100; {ranges.WIDTH[0]} to {ranges.WIDTH[1]})")
     p = _subcommand(sub, "report", _report, "LaTeX derivation report",
                     "Write the derivation as a standalone LaTeX document (pdflatex).")
     add_analysis_options(p)
@@ -240,10 +244,22 @@ def _add_subcommands(sub) -> None:
     p.add_argument("--output-dir", metavar="DIR",
                    help="also write the model, the LaTeX report and the JSON into DIR")
     p.add_argument("-f", "--force", action="store_true", help="overwrite files in DIR")
-    p.add_argument("--digits", type=int, default=20, help="digits of the numeric evaluation")
+    p.add_argument("--digits", type=ranges.integer("--digits", ranges.DIGITS), default=20,
+                   help="digits of the numeric evaluation")
 
 
 # -- entry point -----------------------------------------------------------------------------
+
+
+_PARSER: list = []
+
+
+def _shared_parser() -> argparse.ArgumentParser:
+    """One parser per process: building it costs more than most failing
+    command lines (parse_args keeps no state between calls)."""
+    if not _PARSER:
+        _PARSER.append(build_parser())
+    return _PARSER[0]
 
 
 def _report_error(exc: BaseException, debug: bool) -> None:
@@ -256,7 +272,7 @@ def _report_error(exc: BaseException, debug: bool) -> None:
 def main(argv: Sequence[str] | None = None) -> int:
     """Run the command line with ``argv`` (default: ``sys.argv[1:]``); returns
     the exit status (see the module docstring)."""
-    parser = build_parser()
+    parser = _shared_parser()
     try:
         args = parser.parse_args(argv)
     except SystemExit as exc:  # --help, --version, or a usage error (already printed)
@@ -267,7 +283,8 @@ def main(argv: Sequence[str] | None = None) -> int:
         return EXIT_USAGE
     debug = bool(getattr(args, "debug", False))
     try:
-        return int(handler(args))
+        with command_guard(args, hard=argv is None):
+            return int(handler(args))
     except _UsageError as exc:
         parser.print_usage(sys.stderr)
         print(f"criticality: error: {exc}", file=sys.stderr)
@@ -278,6 +295,9 @@ def main(argv: Sequence[str] | None = None) -> int:
     except KeyboardInterrupt:
         print("criticality: interrupted", file=sys.stderr)
         return EXIT_INTERRUPTED
+    except BudgetExpired:  # a stop delivered just as the budget ended
+        print("criticality: error: the command stopped at its time limit", file=sys.stderr)
+        return ComputationLimitError.exit_code
     except Exception as exc:  # a bug: say so in one paragraph
         if debug:
             traceback.print_exc()

@@ -23,6 +23,8 @@ from typing import Any
 import argparse
 import sys
 
+from .ranges import time_limit_value
+
 __all__ = ["register"]
 
 
@@ -90,7 +92,7 @@ def register(subparsers: Any) -> None:
     p.add_argument("--out-dir", required=True, metavar="DIR", help="an existing folder")
     p.add_argument("-p", "--parameter", help="the bifurcation parameter of every model "
                    "(default: each file's own)")
-    p.add_argument("--time-limit", type=float, metavar="SECONDS",
+    p.add_argument("--time-limit", type=time_limit_value, metavar="SECONDS",
                    help="wall-clock budget per model")
     p.add_argument("--scheduler", metavar="ADDRESS", help="a dask scheduler address")
     p.add_argument("-f", "--force", action="store_true", help="overwrite existing files")
@@ -150,11 +152,13 @@ def _is_number(text: str) -> bool:
 
 
 def _batch(args) -> int:
+    from .support import typo_warnings
     from ..checks.batch import analyse_many
 
-    summary = analyse_many(args.models, parameter=args.parameter, out_dir=args.out_dir,
-                           time_limit=args.time_limit, force=args.force,
-                           scheduler=args.scheduler)
+    with typo_warnings():
+        summary = analyse_many(args.models, parameter=args.parameter, out_dir=args.out_dir,
+                               time_limit=args.time_limit, force=args.force,
+                               scheduler=args.scheduler)
     if not getattr(args, "quiet", False):
         for row in summary.rows:
             line = (f"{row.path}: {row.classification}, {row.parameter} = {row.critical_value}"

@@ -10,9 +10,10 @@ from __future__ import annotations
 
 import argparse
 
+from . import ranges
 from .support import Stage, equilibrium_choice, name_list, pairs, read_model, split_top_level
 
-__all__ = ["UsageError", "flags", "add_analysis_options", "merge", "quiet", "analyse_from_args"]
+__all__ = ["UsageError", "flags", "time_limit_option", "add_analysis_options", "merge", "quiet", "analyse_from_args"]
 
 
 class UsageError(Exception):
@@ -25,6 +26,17 @@ def flags(parser) -> None:
                         help="no progress messages on standard error")
     parser.add_argument("--debug", action="store_true", default=argparse.SUPPRESS,
                         help="show the traceback of an error")
+
+
+def time_limit_option(parser) -> None:
+    """``--time-limit SECONDS|none``: the budget of the whole command (reading,
+    analysis, output), :data:`~.ranges.DEFAULT_TIME_LIMIT` by default."""
+    parser.add_argument("--time-limit", type=ranges.time_limit_value,
+                        default=ranges.DEFAULT_TIME_LIMIT, metavar="SECONDS",
+                        help="stop after this many seconds with a message naming the stage "
+                        "reached and ways to make the problem smaller (exit code 7; default "
+                        f"{ranges.DEFAULT_TIME_LIMIT:g}; none: no limit)")
+    parser.set_defaults(command_budget=True)
 
 
 def add_analysis_options(parser) -> None:
@@ -47,16 +59,14 @@ def add_analysis_options(parser) -> None:
     parser.add_argument("--assume", action="append", default=[], metavar="NAME=SIGN",
                         type=lambda s: pairs([s], "--assume"),
                         help="a sign assumption, e.g. --assume x_eq=positive (repeatable)")
-    parser.add_argument("--order", type=int, default=3, help="order of the normal form: 3 "
-                        "gives l1, 5 also l2 (default 3)")
-    parser.add_argument("--branch", type=int, default=None,
+    parser.add_argument("--order", type=ranges.integer("--order", ranges.ORDER, odd=True),
+                        default=3, help="order of the normal form: 3 gives l1, 5 also l2 "
+                        f"(default 3; an odd number up to {ranges.ORDER[1]})")
+    parser.add_argument("--branch", type=ranges.integer("--branch", ranges.BRANCH), default=None,
                         help="branch of the critical set (default 0)")
     parser.add_argument("--backend", choices=("flint", "sympy"), default="flint",
                         help="exact arithmetic of the parameter field (default flint)")
-    parser.add_argument("--time-limit", type=float, default=None, metavar="SECONDS",
-                        help="stop the analysis after this many seconds with a message "
-                        "naming the stage reached and ways to make the problem smaller "
-                        "(exit code 7; default: no limit)")
+    time_limit_option(parser)
     parser.add_argument("--guess", type=lambda s: pairs(split_top_level(s), "--guess"),
                         metavar="NAME=VALUE,...",
                         help="numeric mode for equilibria without closed form: starting values "

@@ -16,10 +16,10 @@ import time
 import warnings
 from contextlib import contextmanager
 
-from ..errors import CriticalityError, NameTypoWarning
+from ..errors import NameTypoWarning, OutputError
 
 __all__ = ["pairs", "split_top_level", "equilibrium_choice", "name_list", "Stage",
-           "read_model", "write_output", "EQUILIBRIUM_WORDS"]
+           "read_model", "typo_warnings", "write_output", "is_terminal", "EQUILIBRIUM_WORDS"]
 
 #: equilibrium choices that ask the engine to solve and select
 EQUILIBRIUM_WORDS = ("positive", "nonnegative", "nonzero")
@@ -112,8 +112,13 @@ class Stage:
         print(f"criticality: {self.name} ...", file=self.stream or sys.stderr, flush=True)
 
     def __enter__(self):
+        from ..budget import reporting, stage
+
         self._start = time.perf_counter()
-        if not self.quiet:
+        if self.stream is None and not is_terminal(sys.stderr):
+            self.quiet = True  # progress only for a person watching
+        stage(self.name)
+        if not self.quiet and not reporting():  # else the budget announces the stages
             self._timer = threading.Timer(self.after, self._announce)
             self._timer.daemon = True
             self._timer.start()
@@ -130,23 +135,82 @@ class Stage:
         return False
 
 
+def is_terminal(stream) -> bool:
+    try:
+        return bool(stream.isatty())
+    except (AttributeError, ValueError, OSError):
+        return False
+
+
+def _read_stdin(stdin=None) -> str:
+    """Standard input, capped like a model file (a stream of zeros must not
+    fill the memory)."""
+    from ..errors import ModelFileError, ModelFileSyntaxError
+    from ..model.toml_file import MAX_FILE_CHARS
+
+    stream = stdin if stdin is not None else sys.stdin
+    cap = 4 * MAX_FILE_CHARS
+    raw = getattr(stream, "buffer", None)
+    data = (raw if raw is not None else stream).read(cap + 1)
+    if len(data) > cap:
+        raise ModelFileError(f"standard input holds more than {cap // 1_000_000} MB; a model "
+                             "file is at most that long")
+    if isinstance(data, bytes):
+        raw_bytes: bytes = data
+        try:
+            data = raw_bytes.decode("utf-8")
+        except UnicodeDecodeError as exc:
+            line = raw_bytes[:exc.start].count(b"\n") + 1
+            raise ModelFileSyntaxError(f"standard input is not UTF-8 text (byte {exc.start}, "
+                                       f"line {line})", source="<stdin>", line=line) from None
+    return data
+
+
+def _check_model_path(path) -> None:
+    """A model path must name a regular file: a named pipe would block and a
+    device never ends."""
+    import stat
+
+    from ..errors import ModelFileError
+
+    try:
+        info = os.stat(path)
+    except (OSError, TypeError, ValueError):
+        return  # Model.from_file reports a missing or unusable path
+    if stat.S_ISDIR(info.st_mode):
+        raise ModelFileError(f"cannot read model file {path!r}: it is a folder")
+    if not stat.S_ISREG(info.st_mode):
+        raise ModelFileError(f"cannot read model file {path!r}: it is not a regular file (a "
+                             "named pipe or a device); pass - to read standard input")
+
+
 def read_model(path: str, *, stdin=None):
     """The model in ``path`` (``"-"``: standard input)."""
     from ..model.core import Model
 
+    with typo_warnings():
+        if path == "-":
+            return Model.from_text(_read_stdin(stdin), source="<stdin>")
+        _check_model_path(path)
+        return Model.from_file(path)
+
+
+@contextmanager
+def typo_warnings(prefix: str = ""):
+    """Show the library's NameTypoWarning as ``criticality: warning: ...``
+    lines on standard error (other warnings pass on unchanged)."""
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", NameTypoWarning)
-        if path == "-":
-            stream = stdin if stdin is not None else sys.stdin
-            model = Model.from_text(stream.read(), source="<stdin>")
-        else:
-            model = Model.from_file(path)
-    for w in caught:
-        if issubclass(w.category, NameTypoWarning):
-            print(f"criticality: warning: {w.message}", file=sys.stderr)
-        else:
-            warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
-    return model
+        try:
+            yield
+        finally:
+            shown = set()
+            for w in caught:
+                if not issubclass(w.category, NameTypoWarning):
+                    warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
+                elif str(w.message) not in shown:
+                    shown.add(str(w.message))
+                    print(f"criticality: warning: {prefix}{w.message}", file=sys.stderr)
 
 
 @contextmanager
@@ -154,7 +218,7 @@ def _os_errors(path: str):
     try:
         yield
     except OSError as exc:
-        raise CriticalityError(f"cannot write {path}: {exc.strerror or exc}") from None
+        raise OutputError(f"cannot write {path}: {exc.strerror or exc}") from None
 
 
 def write_output(text: str, path: str | None, *, force: bool = False, stdout=None) -> str | None:

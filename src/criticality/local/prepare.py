@@ -153,6 +153,9 @@ def choose_equilibrium(model, equilibrium, eliminate, assumptions, full=None,
     default = getattr(model, "equilibrium_hint", None)
     if equilibrium is None and default:
         return given_equilibrium(model, default)
+    stage("solving f(x) = 0 for the equilibria (sympy's solve)")
+    hint("give the equilibrium in closed form (equilibrium={...}, -e \"x=..., y=...\") or "
+         "parametrise the family by it (eliminate=[...], --eliminate)")
     candidates = solve_equilibria(model)
     ctx = context_for(model.parameter_symbols, assumptions)
     return select_equilibrium(model, candidates, equilibrium, ctx)

@@ -39,7 +39,7 @@ if TYPE_CHECKING:
     from ..hopf_analysis.results import HopfResult
 
 __all__ = ["PlaneDiagram", "AmplitudePlot", "plot_parameter_plane", "plot_amplitude",
-           "save_figure", "write_curve_csv", "curve_data", "axis_label"]
+           "save_figure", "figure_bytes", "write_curve_csv", "curve_data", "axis_label"]
 
 _STYLE = {"supercritical": dict(color="tab:blue", linestyle="-", linewidth=2.0),
           "subcritical": dict(color="tab:red", linestyle="--", linewidth=2.0)}
@@ -411,6 +411,13 @@ def save_figure(figure: Any, path: str | os.PathLike[str], *, force: bool = Fals
     PNG).  Raises :class:`~criticality.errors.OutputExistsError` if the file
     exists and ``force`` is False.
     """
+    return write_bytes_atomic(path, figure_bytes(figure, path, dpi=dpi), force=force)
+
+
+def figure_bytes(figure, path, *, dpi: int | None = None) -> bytes:
+    """The image :func:`save_figure` would write to ``path`` (format from the
+    suffix), as bytes; for writing several files at once
+    (:func:`criticality.files.write_all`)."""
     figure = _figure_of(figure)
     path = os.fspath(path)
     fmt = os.path.splitext(path)[1].lstrip(".").lower()
@@ -419,4 +426,4 @@ def save_figure(figure: Any, path: str | os.PathLike[str], *, force: bool = Fals
                              f"{', '.join('.' + f for f in _FORMATS)}")
     buffer = io.BytesIO()
     figure.savefig(buffer, format=fmt, dpi=dpi if dpi is not None else figure.dpi)
-    return write_bytes_atomic(path, buffer.getvalue(), force=force)
+    return buffer.getvalue()
