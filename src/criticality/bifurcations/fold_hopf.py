@@ -298,10 +298,20 @@ def fold_hopf_all(model: Model, parameters: str | Sequence[str], second: str | N
     u1, u2 = prep.symbol(p1), prep.symbol(p2)
     conditions = _conditions(prep, u1, u2)
     unfolding = _unfolding(prep, u1, u2, *conditions)
+    return collect_points(_located(prep, u1, u2, point, conditions),
+                          lambda sp1, sp2: _point(prep, sp1, sp2, (p1, p2), unfolding), point,
+                          f"a zero eigenvalue and a pair +-i omega in '{p1}' and '{p2}'")
+
+
+def collect_points(candidates: Any, build: Any, point: object, what: str) -> tuple:
+    """The result built from every located candidate ``(sp1, sp2)``.  A
+    degenerate candidate (or one that divides by zero) is set aside; with
+    none left, the first such error is raised for a given ``point``, else
+    NoHopfPointError saying that no closed-form point has ``what``."""
     out, errors = [], []
-    for sp1, sp2 in _located(prep, u1, u2, point, conditions):
+    for sp1, sp2 in candidates:
         try:
-            out.append(_point(prep, sp1, sp2, (p1, p2), unfolding))
+            out.append(build(sp1, sp2))
         except DegenerateBifurcationError as exc:
             errors.append(exc)
         except ZeroDivisionError:
@@ -312,9 +322,8 @@ def fold_hopf_all(model: Model, parameters: str | Sequence[str], second: str | N
         return tuple(out)
     if point is not None and errors:
         raise errors[0]
-    raise NoHopfPointError(
-        f"no closed-form point with a zero eigenvalue and a pair +-i omega in '{p1}' and "
-        f"'{p2}'" + (f" ({errors[0]})" if errors else ""), reason="empty_critical_set")
+    raise NoHopfPointError(f"no closed-form point with {what}"
+                           + (f" ({errors[0]})" if errors else ""), reason="empty_critical_set")
 
 
 @guarded("the fold-Hopf analysis")

@@ -60,7 +60,7 @@ from ..local.prepare import EquilibriumSpec, expr, prepare, sign_word
 from ..local.projection import projection_c1
 from ..renderers import Rendered
 from .bogdanov_takens import _solve_pair
-from .fold_hopf import _located, _names
+from .fold_hopf import _located, _names, collect_points
 from .map_normal_form import solve_complex
 
 if TYPE_CHECKING:
@@ -368,23 +368,8 @@ def hopf_hopf_all(model: Model, parameters: str | Sequence[str], second: str | N
         located = _solve_pair(prep, u1, u2, c0, c1)
     else:
         located = _located(prep, u1, u2, point)
-    out, errors = [], []
-    for sp1, sp2 in located:
-        try:
-            out.append(_point(prep, sp1, sp2, (p1, p2)))
-        except DegenerateBifurcationError as exc:
-            errors.append(exc)
-        except ZeroDivisionError:
-            errors.append(DegenerateBifurcationError(
-                "a candidate point makes a denominator of the model or of the equilibrium "
-                "vanish", reason="undefined"))
-    if out:
-        return tuple(out)
-    if point is not None and errors:
-        raise errors[0]
-    raise NoHopfPointError(
-        f"no closed-form point with two pairs of eigenvalues on the imaginary axis in '{p1}' "
-        f"and '{p2}'" + (f" ({errors[0]})" if errors else ""), reason="empty_critical_set")
+    return collect_points(located, lambda sp1, sp2: _point(prep, sp1, sp2, (p1, p2)), point,
+                          f"two pairs of eigenvalues on the imaginary axis in '{p1}' and '{p2}'")
 
 
 @guarded("the Hopf-Hopf analysis")
