@@ -282,8 +282,9 @@ def _cycle(B, model, bc, omega, verdict, stab, mu):
             rho2 = B.expr(k) * offset
         else:
             rho2 = sympy.Pow(B.expr(k) * offset, sympy.Rational(1, j))
+        inv_qq = 4 / eb.qq  # one inverse in the radical extension, not one per state
         for name, a, v in zip(model.states, eb.Av, eb.v):
-            sj = 4 * (a * a + eb.W * v * v) / eb.qq  # amplitude_j^2 = sj rho^2
+            sj = (a * a + eb.W * v * v) * inv_qq  # amplitude_j^2 = sj rho^2
             if not sj:
                 amps[name] = sympy.Integer(0)
                 if j == 1:
