@@ -67,6 +67,25 @@ def test_flint_to_sympy_builds_sympys_own_canonical_form(x):
         assert mine.args == ref.args
 
 
+
+def test_flint_to_sympy_order_on_mixed_symbols_and_large_polynomials():
+    """The precomputed sort keys order the terms exactly as sympy's own
+    comparisons do, also for symbols of different assumptions, a Dummy
+    generator, exponents above 9 and polynomials with hundreds of terms."""
+    from criticality.algebra.flint_field import FlintPolynomialRing
+    syms = (sympy.Symbol("mm", positive=True), sympy.Symbol("d", real=True),
+            sympy.Symbol("b1"), sympy.Dummy("g0", real=True), sympy.Symbol("B", real=True))
+    R = FlintPolynomialRing(syms)
+    rng = random.Random(12)
+    for _ in range(40):
+        data = {tuple(rng.choice((0, 0, 1, 2, 3, 11)) for _ in syms):
+                rng.choice((1, -1, 2, -3, 10**20)) for _ in range(rng.randint(0, 300))}
+        poly = R.from_dict(data)
+        mine = R.to_sympy(poly)
+        ref = sympy.Add(*[sympy.Integer(int(c)) * sympy.Mul(*(s ** e for s, e in zip(syms, m)))
+                          for m, c in poly.to_dict().items()])
+        assert mine == ref and mine.args == ref.args and sympy.srepr(mine) == sympy.srepr(ref)
+
 def test_quadratic_extension_arithmetic():
     """(1 + s)(1 - s) = 1 - G and inverses in Q(a)(sqrt(G)) and its nu-extension."""
     K = FlintRationalFunctionField((a,))

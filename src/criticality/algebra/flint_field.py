@@ -18,8 +18,6 @@ from fractions import Fraction
 
 import flint
 import sympy
-from sympy.core.add import _addsort
-from sympy.core.mul import _mulsort
 
 from .field import Field, PolynomialRing
 
@@ -455,7 +453,14 @@ def _poly_to_sympy(syms, poly) -> sympy.Expr:
     already in sympy's canonical form, so the general constructors'
     flattening (and its assumption queries, which dominate for large
     results) is skipped; the outcome is identical to
-    ``sympy.Add(*(c * x**e ...))``."""
+    ``sympy.Add(*(c * x**e ...))``.
+
+    The arguments are sorted by :func:`_order_key`, which orders them the
+    way sympy's ``Basic.compare`` does (the order ``_addsort`` and
+    ``_mulsort`` produce) but is computed once per argument instead of once
+    per comparison; for polynomials with thousands of terms the comparisons
+    cost more than the rest of the conversion."""
+    memo: dict = {}
     terms = []
     for monom, coeff in poly.to_dict().items():
         c = sympy.Integer(int(coeff))
@@ -463,13 +468,49 @@ def _poly_to_sympy(syms, poly) -> sympy.Expr:
         if c != 1 or not factors:
             factors.insert(0, c)
         if len(factors) == 1:
-            terms.append(factors[0])
+            terms.append((_order_key(factors[0], memo), factors[0]))
             continue
-        _mulsort(factors)
-        terms.append(sympy.Mul._from_args(factors))
+        keyed = sorted((_order_key(f, memo), f) for f in factors)
+        term = sympy.Mul._from_args([f for _, f in keyed])
+        terms.append(((_MUL_RANK, len(keyed), tuple(k for k, _ in keyed)), term))
     if not terms:
         return sympy.Integer(0)
     if len(terms) == 1:
-        return terms[0]
-    _addsort(terms)
-    return sympy.Add._from_args(terms)
+        return terms[0][1]
+    terms.sort(key=lambda kt: kt[0])
+    return sympy.Add._from_args([t for _, t in terms])
+
+
+_CLASS_INDEX = {name: i for i, name in enumerate(sympy.core.basic.ordering_of_classes)}
+_UNKNOWN_CLASS = len(_CLASS_INDEX) + 1
+
+
+def _class_rank(cls) -> tuple:
+    """The position of a class in ``Basic.compare``: its index in sympy's
+    ``ordering_of_classes``, or after all of them by name."""
+    i = _CLASS_INDEX.get(cls.__name__)
+    return (i, "") if i is not None else (_UNKNOWN_CLASS, cls.__name__)
+
+
+_MUL_RANK = _class_rank(sympy.Mul)
+
+
+def _order_key(e, memo: dict) -> tuple:
+    """A sort key that orders sympy objects as ``Basic.compare`` does: class
+    rank, then the length of the hashable content, then the content item by
+    item (sub-objects by this same key, plain values by ``<``)."""
+    hit = memo.get(e)
+    if hit is not None:
+        return hit
+    content = e._hashable_content()
+    key = (_class_rank(type(e)), len(content),
+           tuple(_order_key(x, memo) if isinstance(x, sympy.Basic) else _plain(x)
+                 for x in content))
+    memo[e] = key
+    return key
+
+
+def _plain(x):
+    if isinstance(x, frozenset):  # compare() orders these as Basic(*x); not met here
+        raise TypeError("internal: unordered content in a polynomial term")
+    return x
