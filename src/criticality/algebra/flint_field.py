@@ -98,6 +98,10 @@ class RationalFunction:
             return self.field.zero
         if b.is_one() and d.is_one():
             return RationalFunction(a * c, b, self.field)
+        if other is self or (a == c and b == d):
+            # a square of a reduced fraction is reduced, and den**2 has a
+            # positive leading coefficient: no gcd needed
+            return RationalFunction(a * a, b * b, self.field)
         g1 = a.gcd(d)
         g2 = c.gcd(b)
         if not g1.is_one():
@@ -209,6 +213,32 @@ class FlintRationalFunctionField(Field):
             den = self._one_poly * int(q.q)
             return RationalFunction(num, den, self)
         raise TypeError(f"cannot convert {value!r} into {self}")
+
+    def norm_form(self, a, b, d) -> RationalFunction:
+        """``a**2 - b**2 d``, the norm of ``a + b sqrt(d)``.
+
+        Formed over ``lcm(den a, den b)**2 den d`` and reduced against the
+        factors ``lcm``, ``lcm`` and ``den d`` one at a time: each gcd then
+        meets a denominator, not its square, which for large norms (the
+        divisions in a radical extension) costs a fraction of the plain
+        ``a*a - b*b*d``.  The result is the same reduced fraction."""
+        a, b, d = self(a), self(b), self(d)
+        an, ad, bn, bd, dn, dd = a.num, a.den, b.num, b.den, d.num, d.den
+        g = ad.gcd(bd)
+        lcm = ad * (bd / g)
+        ua, ub = lcm / ad, lcm / bd
+        num = an * an * ua * ua * dd - bn * bn * dn * ub * ub
+        if num.is_zero():
+            return self.zero
+        den = self._one_poly
+        for part in (lcm, lcm, dd):
+            if part.is_one():
+                continue
+            h = num.gcd(part)
+            if not h.is_one():
+                num, part = num / h, part / h
+            den = den * part
+        return self._normalised(num, den, reduced=True)
 
     def from_polynomials(self, num, den) -> RationalFunction:
         """Element ``num/den`` from two ``fmpz_mpoly`` of this field's context."""
