@@ -277,7 +277,8 @@ def _cycle(B, model, bc, omega, verdict, stab, mu):
         side = {POSITIVE: "above", NEGATIVE: "below"}.get(fs_k.sign, "undecided")
         side_cond = None if side != "undecided" else sympy.StrictGreaterThan(B.expr(k), 0)
         lower_exact_zero = all(not c for c in bc.c_center[:j - 1])
-        slope = omega * B.expr(beta_nu - beta1 * S / R) if lower_exact_zero else sympy.nan
+        # beta_nu - beta1 S / R, with the one division by R (a norm) already in k
+        slope = omega * B.expr(beta_nu + k * S) if lower_exact_zero else sympy.nan
         if j == 1:
             rho2 = B.expr(k) * offset
         else:
