@@ -21,7 +21,7 @@ Examples
 >>> "latex" in FORMATS and "html" in FORMATS
 True
 >>> sorted(PROVIDERS)[:3]
-['bautin', 'bogdanov_takens', 'fold']
+['bautin', 'bogdanov_takens', 'flip']
 """
 
 from __future__ import annotations
