@@ -94,7 +94,7 @@ class Case:
         """Draw one admissible point of the free parameters as exact rationals."""
         for _ in range(tries):
             point = {p: _random_rational(rng, *self.box[p]) for p in self.free_parameters}
-            if all(float(c.xreplace(point)) > 0 for c in self.conditions):
+            if all(_positive_at(c, point) for c in self.conditions):
                 return point
         raise RuntimeError(f"case {self.name}: no admissible point found in {tries} tries")
 
@@ -102,6 +102,14 @@ class Case:
         """``count`` admissible points, reproducible from the case name and ``seed``."""
         rng = random.Random(f"{seed}:{self.name}")
         return [self.sample(rng) for _ in range(count)]
+
+
+def _positive_at(expr, point) -> bool:
+    """``expr > 0`` at ``point``; False where it is not real there."""
+    try:
+        return float(expr.xreplace(point)) > 0
+    except TypeError:  # a complex value (a negative radicand)
+        return False
 
 
 def _random_rational(rng: random.Random, low, high, denominator: int = 24) -> sp.Rational:
@@ -222,6 +230,88 @@ def foodchain() -> Case:
             {R: r_star, C: c_star, P: p_star})),
     )
 
+
+
+def _foodchain_in_k(name: str, general: bool) -> Case:
+    """The food chain with the carrying capacity K as bifurcation parameter.
+
+    R' = r R (1 - R/K) - a R C
+    C' = C (c a R - m) - b C P/(1 + C)
+    P' = epsilon P (b C/(1 + C) - d)
+
+    (``general``: all eight coefficients symbolic; otherwise r = a = c = 1,
+    b = 2, the four-parameter model of ``foodchain``.)  The interior
+    equilibrium is rational: C* = d/(b - d), R* = K (1 - a C*/r),
+    P* = (c a R* - m)(1 + C*)/b.  The equilibrium is linear in K, and
+    a1 a2 - a3 (n = 3) is quadratic in K after clearing denominators, so the
+    Hopf value needs a square root: K_c = (-k1 + sqrt(k1^2 - 4 k2 k0))/(2 k2)
+    for the coefficients k_j of K^j, computed here by plain sympy
+    (``together`` and ``Poly``), independently of the engine (in the general
+    case sympy's numerator comes out with the opposite overall sign, and the
+    same root has the minus sign).  omega^2 = a2 at K_c.  This root is the
+    one whose other eigenvalue is negative at the sampled points
+    (``--check-cases`` confirms it).
+    """
+    R, C, P = sp.symbols("R C P", real=True)
+    K, m, d, eps = _symbols("K m d epsilon", "positive")
+    if general:
+        r, a, b, c = _symbols("r a b c", "positive")
+    else:
+        r, a, b, c = sp.Integer(1), sp.Integer(1), sp.Integer(2), sp.Integer(1)
+    equations = (r * R * (1 - R / K) - a * R * C,
+                 C * (c * a * R - m) - b * C * P / (1 + C),
+                 eps * P * (b * C / (1 + C) - d))
+    c_star = d / (b - d)
+    r_star = K * (1 - a * c_star / r)
+    p_star = (c * a * r_star - m) * (1 + c_star) / b
+    point = {R: r_star, C: c_star, P: p_star}
+    J = sp.Matrix(equations).jacobian([R, C, P]).xreplace(point)
+    a1 = sp.together(-J.trace())
+    a2 = sp.together(sum(J[i, i] * J[j, j] - J[i, j] * J[j, i]
+                         for i in range(3) for j in range(i + 1, 3)))
+    a3 = sp.together(-J.det(method="berkowitz"))
+    hurwitz = sp.numer(sp.together(a1 * a2 - a3))
+    k2, k1, k0 = (sp.factor(hurwitz.expand().coeff(K, j)) for j in (2, 1, 0))
+    if sp.Poly(hurwitz, K).degree() != 2:
+        raise RuntimeError("the Hopf condition is expected to be quadratic in K")
+    discriminant = sp.factor(k1**2 - 4 * k2 * k0)
+    # the root that continues the four-parameter one (sympy's numerator has
+    # the opposite overall sign in the general case)
+    sign = -1 if general else 1
+    critical = (-k1 + sign * sp.sqrt(discriminant)) / (2 * k2)
+    omega2 = a2.xreplace({K: critical})
+    params = {K: "positive", m: "positive", d: "positive", eps: "positive"}
+    box = {m: (0, 2), d: (0, 1), eps: (sp.Rational(1, 10), 4)}
+    # the discriminant first: the later conditions are complex where it is negative
+    conditions = [discriminant, 1 - d, critical, omega2, a1.xreplace({K: critical}),
+                  (c * a * r_star - m).xreplace({K: critical})]
+    if general:
+        params.update({s: "positive" for s in (r, a, b, c)})
+        box.update({r: (sp.Rational(3, 4), sp.Rational(3, 2)),
+                    a: (sp.Rational(3, 4), sp.Rational(3, 2)),
+                    b: (sp.Rational(3, 2), 3), c: (sp.Rational(3, 4), sp.Rational(3, 2))})
+        conditions[1] = b - d
+        conditions.append(r - a * c_star)
+    return Case(
+        name=name,
+        description="Three-species food chain with the carrying capacity K as the "
+        "bifurcation parameter: the Hopf value needs a square root; "
+        + ("r, K, a, b, m, c, epsilon, d symbolic." if general else
+           "K, m, d, epsilon symbolic."),
+        states=(R, C, P), equations=equations, parameters=params, bifurcation=K,
+        equilibrium=point, critical_value=critical, omega_squared=omega2, box=box,
+        conditions=tuple(conditions),
+    )
+
+
+def foodchain_k4() -> Case:
+    """Food chain in K, four symbolic parameters (see :func:`_foodchain_in_k`)."""
+    return _foodchain_in_k("foodchain_K4", general=False)
+
+
+def foodchain_k8() -> Case:
+    """Food chain in K, eight symbolic parameters (see :func:`_foodchain_in_k`)."""
+    return _foodchain_in_k("foodchain_K8", general=True)
 
 def _minus_trace(states, equations, point) -> sp.Expr:
     """-trace of the Jacobian at ``point`` (the leading Hurwitz coefficient a1)."""
@@ -430,6 +520,8 @@ _BUILDERS: dict[str, Callable[[], Case]] = {
     "planar": planar,
     "lorenz": lorenz,
     "foodchain": foodchain,
+    "foodchain_K4": foodchain_k4,
+    "foodchain_K8": foodchain_k8,
     "coupled": coupled,
     **{f"ring_{c}": (lambda c=c: ring(c)) for c in (3, 4, 5, 6, 8, 10)},
     **{f"rational_{n}": (lambda n=n: rational(n)) for n in (5, 10, 20, 30)},

@@ -350,11 +350,30 @@ def targets(results: list[CaseResult], import_time: float | None) -> list[tuple[
         out.append((f"{name} engine < {limit:g} s",
                     *_verdict(None if not ran else (t is not None and t < limit),
                               "not run" if not ran else f"{_fmt(t, '.3f')} s")))
+    out.extend(_foodchain_targets(results))
     out.append(("import criticality < 1 s",
                 *_verdict(import_time is not None and import_time < 1,
                           "import failed" if import_time is None else f"{import_time:.3f} s")))
     out.append(_memory_target(results))
     out.append(_size_target(results))
+    return out
+
+
+def _foodchain_targets(results: list[CaseResult]) -> list[tuple[str, str, str]]:
+    """The food chain in K (issue 12): four parameters under 2 s, eight under
+    30 s and 500 MiB."""
+    out = []
+    for name, limit, mib in (("foodchain_K4", 2.0, None), ("foodchain_K8", 30.0, 500.0)):
+        run = next((r for r in results if r.name == name), None)
+        eng = run.routes["engine"] if run is not None else None
+        label = f"{name} engine < {limit:g} s" + (f" and < {mib:g} MiB" if mib else "")
+        if eng is None or eng.status == "not run":
+            out.append((label, "n/a", "not run"))
+            continue
+        ok = eng.status == "ok" and eng.seconds < limit and (mib is None or eng.memory_mib < mib)
+        detail = (f"{_fmt(eng.seconds, '.3f')} s, {_fmt(eng.memory_mib, '.0f')} MiB"
+                  if eng.status == "ok" else eng.status)
+        out.append((label, *_verdict(ok, detail)))
     return out
 
 

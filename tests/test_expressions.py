@@ -9,6 +9,7 @@ from hypothesis import assume, example, given, settings, strategies as st
 from criticality.errors import (CriticalityError, ExpressionError, ExpressionLimitError,
                                 ExpressionSyntaxError, ForbiddenExpressionError,
                                 UnknownSymbolError)
+from criticality.model.syntax import constant_out_of_range
 from criticality.model.expressions import (FUNCTIONS, MAX_EXPONENT, MAX_NESTING, MAX_TRANSCENDENTAL,
                                      convert_sympy, format_expression, name_problem,
                                      parse_expression)
@@ -380,6 +381,13 @@ def test_print_then_parse_round_trip(expr):
     assume(_readable(expr) and _numeric_radicals(expr) <= 1 and _nesting(expr) <= MAX_NESTING
            and not _fraction_over_sum(expr))
     text = format_expression(expr)
+    out_of_range = [a for a in sympy.preorder_traversal(expr)
+                    if isinstance(a, sympy.Basic) and a.is_number and constant_out_of_range(a)]
+    if out_of_range:
+        # a constant beyond 2^+-MAX_CONSTANT_BITS (exp(707281)) is refused by its value
+        with pytest.raises(ExpressionLimitError, match="too large or too small"):
+            parse_expression(text)
+        return
     assert parse_expression(text) == expr, text
 
 

@@ -421,3 +421,19 @@ def test_values_keyed_by_sympy_symbols_are_still_accepted():
     a = CUBIC.symbols["a"]
     r = hopf(CUBIC, "mu", equilibrium=ORIGIN, values={a: 1})
     assert r.l1 == -sympy.Rational(3, 2)  # -3(a + 1)/4 at a = 1 (see above)
+
+
+def test_model_from_file_refuses_a_named_pipe_and_a_folder(tmp_path):
+    """Model.from_file on a FIFO used to block forever (the CLI checked, the
+    Python API did not); the check now sits where the file is opened."""
+    import os
+
+    from criticality import Model
+    from criticality.errors import ModelFileError
+
+    fifo = tmp_path / "model.toml"
+    os.mkfifo(fifo)
+    with pytest.raises(ModelFileError, match="not a regular file"):
+        Model.from_file(fifo)
+    with pytest.raises(ModelFileError, match="it is a folder"):
+        Model.from_file(tmp_path)

@@ -30,6 +30,7 @@ import os
 import secrets
 import stat
 from dataclasses import dataclass
+from typing import Any, Mapping
 
 from .errors import OutputError, OutputExistsError
 
@@ -82,7 +83,7 @@ def _target(path, force: bool) -> _Target:
     return _Target(path, real, "file", stat.S_IMODE(info.st_mode))
 
 
-def check_writable(path, force: bool) -> str:
+def check_writable(path: str | os.PathLike[str], force: bool) -> str:
     """Raise :class:`OutputError` (:class:`OutputExistsError` for an existing
     file without ``force``) unless ``path`` can be written by the rules of
     this module; returns the path."""
@@ -129,17 +130,17 @@ def _stream(target: _Target, data: bytes) -> None:
         os.close(fd)
 
 
-def write_bytes_atomic(path, data: bytes, *, force: bool = False) -> str:
+def write_bytes_atomic(path: str | os.PathLike[str], data: bytes, *, force: bool = False) -> str:
     """Write ``data`` to ``path`` by the rules of this module; returns the path."""
     return write_all({path: data}, force=force)[0]
 
 
-def write_text_atomic(path, text: str, *, force: bool = False) -> str:
+def write_text_atomic(path: str | os.PathLike[str], text: str, *, force: bool = False) -> str:
     """Write ``text`` (UTF-8) to ``path`` by the rules of this module; returns the path."""
     return write_bytes_atomic(path, text.encode("utf-8"), force=force)
 
 
-def write_all(items, *, force: bool = False) -> tuple:
+def write_all(items: Mapping[Any, str | bytes], *, force: bool = False) -> tuple:
     """Write several files all or nothing: ``items`` maps each path to its
     bytes (or text, written as UTF-8).  Returns the paths in order.
 

@@ -20,8 +20,8 @@ Examples
 --------
 >>> "latex" in FORMATS and "html" in FORMATS
 True
->>> sorted(PROVIDERS)[:2]
-['bautin', 'bogdanov_takens']
+>>> sorted(PROVIDERS)[:3]
+['bautin', 'bogdanov_takens', 'flip']
 """
 
 from __future__ import annotations

@@ -263,7 +263,7 @@ class RealAlgebraicRoot(sympy.Function):
     """
 
     @classmethod
-    def eval(cls, lam, k, bound=None):
+    def eval(cls, lam: Any, k: Any, bound: Any = None) -> Any:
         if not isinstance(lam, sympy.Lambda) or not k.is_Integer:
             return None
         body = lam.expr

@@ -19,8 +19,6 @@ from typing import Any, Sequence
 
 import flint
 import sympy
-from sympy.core.add import _addsort
-from sympy.core.mul import _mulsort
 
 from .field import Element, Field, PolynomialRing, RingElement
 
@@ -101,6 +99,10 @@ class RationalFunction:
             return self.field.zero
         if b.is_one() and d.is_one():
             return RationalFunction(a * c, b, self.field)
+        if other is self or (a == c and b == d):
+            # a square of a reduced fraction is reduced, and den**2 has a
+            # positive leading coefficient: no gcd needed
+            return RationalFunction(a * a, b * b, self.field)
         g1 = a.gcd(d)
         g2 = c.gcd(b)
         if not g1.is_one():
@@ -212,6 +214,32 @@ class FlintRationalFunctionField(Field):
             den = self._one_poly * int(q.q)
             return RationalFunction(num, den, self)
         raise TypeError(f"cannot convert {value!r} into {self}")
+
+    def norm_form(self, a: Any, b: Any, d: Any) -> RationalFunction:
+        """``a**2 - b**2 d``, the norm of ``a + b sqrt(d)``.
+
+        Formed over ``lcm(den a, den b)**2 den d`` and reduced against the
+        factors ``lcm``, ``lcm`` and ``den d`` one at a time: each gcd then
+        meets a denominator, not its square, which for large norms (the
+        divisions in a radical extension) costs a fraction of the plain
+        ``a*a - b*b*d``.  The result is the same reduced fraction."""
+        a, b, d = self(a), self(b), self(d)
+        an, ad, bn, bd, dn, dd = a.num, a.den, b.num, b.den, d.num, d.den
+        g = ad.gcd(bd)
+        lcm = ad * (bd / g)
+        ua, ub = lcm / ad, lcm / bd
+        num = an * an * ua * ua * dd - bn * bn * dn * ub * ub
+        if num.is_zero():
+            return self.zero
+        den = self._one_poly
+        for part in (lcm, lcm, dd):
+            if part.is_one():
+                continue
+            h = num.gcd(part)
+            if not h.is_one():
+                num, part = num / h, part / h
+            den = den * part
+        return self._normalised(num, den, reduced=True)
 
     def from_polynomials(self, num: RingElement, den: RingElement) -> RationalFunction:
         """Element ``num/den`` from two ``fmpz_mpoly`` of this field's context."""
@@ -456,7 +484,14 @@ def _poly_to_sympy(syms, poly) -> sympy.Expr:
     already in sympy's canonical form, so the general constructors'
     flattening (and its assumption queries, which dominate for large
     results) is skipped; the outcome is identical to
-    ``sympy.Add(*(c * x**e ...))``."""
+    ``sympy.Add(*(c * x**e ...))``.
+
+    The arguments are sorted by :func:`_order_key`, which orders them the
+    way sympy's ``Basic.compare`` does (the order ``_addsort`` and
+    ``_mulsort`` produce) but is computed once per argument instead of once
+    per comparison; for polynomials with thousands of terms the comparisons
+    cost more than the rest of the conversion."""
+    memo: dict = {}
     terms = []
     for monom, coeff in poly.to_dict().items():
         c = sympy.Integer(int(coeff))
@@ -464,13 +499,49 @@ def _poly_to_sympy(syms, poly) -> sympy.Expr:
         if c != 1 or not factors:
             factors.insert(0, c)
         if len(factors) == 1:
-            terms.append(factors[0])
+            terms.append((_order_key(factors[0], memo), factors[0]))
             continue
-        _mulsort(factors)
-        terms.append(sympy.Mul._from_args(factors))
+        keyed = sorted((_order_key(f, memo), f) for f in factors)
+        term = sympy.Mul._from_args([f for _, f in keyed])
+        terms.append(((_MUL_RANK, len(keyed), tuple(k for k, _ in keyed)), term))
     if not terms:
         return sympy.Integer(0)
     if len(terms) == 1:
-        return terms[0]
-    _addsort(terms)
-    return sympy.Add._from_args(terms)
+        return terms[0][1]
+    terms.sort(key=lambda kt: kt[0])
+    return sympy.Add._from_args([t for _, t in terms])
+
+
+_CLASS_INDEX = {name: i for i, name in enumerate(sympy.core.basic.ordering_of_classes)}
+_UNKNOWN_CLASS = len(_CLASS_INDEX) + 1
+
+
+def _class_rank(cls) -> tuple:
+    """The position of a class in ``Basic.compare``: its index in sympy's
+    ``ordering_of_classes``, or after all of them by name."""
+    i = _CLASS_INDEX.get(cls.__name__)
+    return (i, "") if i is not None else (_UNKNOWN_CLASS, cls.__name__)
+
+
+_MUL_RANK = _class_rank(sympy.Mul)
+
+
+def _order_key(e, memo: dict) -> tuple:
+    """A sort key that orders sympy objects as ``Basic.compare`` does: class
+    rank, then the length of the hashable content, then the content item by
+    item (sub-objects by this same key, plain values by ``<``)."""
+    hit = memo.get(e)
+    if hit is not None:
+        return hit
+    content = e._hashable_content()
+    key = (_class_rank(type(e)), len(content),
+           tuple(_order_key(x, memo) if isinstance(x, sympy.Basic) else _plain(x)
+                 for x in content))
+    memo[e] = key
+    return key
+
+
+def _plain(x):
+    if isinstance(x, frozenset):  # compare() orders these as Basic(*x); not met here
+        raise TypeError("internal: unordered content in a polynomial term")
+    return x

@@ -102,6 +102,9 @@ class QuadraticElement:
 
     def norm(self) -> Element:
         """``a**2 - b**2 d``, an element of the base field."""
+        kernel = getattr(self.ext.base, "norm_form", None)
+        if kernel is not None:
+            return kernel(self.a, self.b, self.ext.radicand)
         return self.a * self.a - self.b * self.b * self.ext.radicand
 
     def conjugate(self) -> "QuadraticElement":

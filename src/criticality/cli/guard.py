@@ -20,12 +20,14 @@ mathematics here.
 
 from __future__ import annotations
 
+import argparse
 import os
 import signal
 import socket
 import sys
 import threading
 from contextlib import contextmanager
+from typing import Any
 
 from .support import is_terminal
 from ..budget import time_limit
@@ -50,7 +52,7 @@ def _overdue(message: str) -> None:
 
 
 @contextmanager
-def command_guard(args, *, hard: bool = False):
+def command_guard(args: argparse.Namespace, *, hard: bool = False) -> Any:
     """Run a subcommand handler under its budget, with progress and (for the
     real command, ``hard``) the Ctrl-C and overdue exits."""
     limit = getattr(args, "time_limit", None) if getattr(args, "command_budget", False) else None

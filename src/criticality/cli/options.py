@@ -9,6 +9,7 @@ main command (:mod:`.main`) and the subcommand modules (:mod:`.analyses`,
 from __future__ import annotations
 
 import argparse
+from typing import Any, Iterable, Mapping
 
 from . import ranges
 from .support import Stage, equilibrium_choice, name_list, pairs, read_model, split_top_level
@@ -20,7 +21,7 @@ class UsageError(Exception):
     """A command line that parses but does not make sense."""
 
 
-def flags(parser) -> None:
+def flags(parser: argparse.ArgumentParser) -> None:
     """``-q/--quiet`` and ``--debug``, accepted before or after a subcommand."""
     parser.add_argument("-q", "--quiet", action="store_true", default=argparse.SUPPRESS,
                         help="no progress messages on standard error")
@@ -28,7 +29,7 @@ def flags(parser) -> None:
                         help="show the traceback of an error")
 
 
-def time_limit_option(parser) -> None:
+def time_limit_option(parser: argparse.ArgumentParser) -> None:
     """``--time-limit SECONDS|none``: the budget of the whole command (reading,
     analysis, output), :data:`~.ranges.DEFAULT_TIME_LIMIT` by default."""
     parser.add_argument("--time-limit", type=ranges.time_limit_value,
@@ -39,7 +40,7 @@ def time_limit_option(parser) -> None:
     parser.set_defaults(command_budget=True)
 
 
-def add_analysis_options(parser) -> None:
+def add_analysis_options(parser: argparse.ArgumentParser) -> None:
     """The options that choose what to analyse (shared by the subcommands)."""
     parser.add_argument("model", help="TOML model file, or - to read standard input")
     parser.add_argument("-p", "--parameter", help="the bifurcation parameter (default: the "
@@ -74,7 +75,7 @@ def add_analysis_options(parser) -> None:
                         "the other parameters need values (--set or the model file)")
 
 
-def merge(dicts, option: str) -> dict:
+def merge(dicts: Iterable[Mapping], option: str) -> dict:
     out = {}
     for d in dicts:
         for key, value in d.items():
@@ -84,11 +85,11 @@ def merge(dicts, option: str) -> dict:
     return out
 
 
-def quiet(args) -> bool:
+def quiet(args: argparse.Namespace) -> bool:
     return bool(getattr(args, "quiet", False))
 
 
-def analyse_from_args(args):
+def analyse_from_args(args: argparse.Namespace) -> Any:
     """Read the model named by ``args`` and run the Hopf analysis the options
     ask for; returns the :class:`~criticality.HopfResult`."""
     from ..registry import get

@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import argparse
 import math
+from typing import Any, Callable
 
 __all__ = ["DEFAULT_TIME_LIMIT", "integer", "real", "real_list", "time_limit_value", "range_bound", "OrderedPair",
            "WIDTH", "DPI", "SIZE", "POINTS", "RANGE_BOUND", "OFFSETS", "TOLERANCE",
@@ -50,7 +51,7 @@ def _number(text: str, kind, what: str):
     return value
 
 
-def integer(option: str, bounds: tuple, *, odd: bool = False):
+def integer(option: str, bounds: tuple, *, odd: bool = False) -> Callable[[str], int]:
     """An argparse type: an integer within ``bounds`` (inclusive)."""
     low, high = bounds
 
@@ -66,7 +67,7 @@ def integer(option: str, bounds: tuple, *, odd: bool = False):
     return parse
 
 
-def real(option: str, bounds: tuple):
+def real(option: str, bounds: tuple) -> Callable[[str], float]:
     """An argparse type: a finite number within ``bounds`` (inclusive)."""
     low, high = bounds
 
@@ -81,7 +82,8 @@ def real(option: str, bounds: tuple):
     return parse
 
 
-def real_list(option: str, bounds: tuple, *, signed: bool = False):
+def real_list(option: str, bounds: tuple, *,
+              signed: bool = False) -> Callable[[str], tuple]:
     """An argparse type: comma-separated numbers, each within ``bounds`` (in
     magnitude when ``signed``)."""
     one = real(option, bounds)
@@ -112,7 +114,7 @@ def time_limit_value(text: str) -> float | None:
         raise argparse.ArgumentTypeError(f"{exc} (seconds, or none for no limit)") from None
 
 
-def range_bound(option: str):
+def range_bound(option: str) -> Callable[[str], float]:
     """The type of each number of ``--x-range``/``--y-range``."""
     return real(option, (-RANGE_BOUND, RANGE_BOUND))
 
@@ -121,7 +123,8 @@ class OrderedPair(argparse.Action):
     """``--x-range LOW HIGH`` (with ``type=range_bound(...)``): LOW < HIGH,
     with a spread that floating point can resolve."""
 
-    def __call__(self, parser, namespace, values, option_string=None):
+    def __call__(self, parser: argparse.ArgumentParser, namespace: argparse.Namespace,
+                 values: Any, option_string: str | None = None) -> None:
         option = option_string or self.dest
         low, high = values
         if not low < high or (high - low) <= 1e-9 * max(abs(low), abs(high)):

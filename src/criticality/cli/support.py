@@ -15,6 +15,7 @@ import threading
 import time
 import warnings
 from contextlib import contextmanager
+from typing import Any, Iterable, Iterator
 
 from ..errors import NameTypoWarning, OutputError
 
@@ -45,7 +46,7 @@ def split_top_level(text: str) -> list:
     return [p for p in (x.strip() for x in parts) if p]
 
 
-def pairs(items, what: str) -> dict:
+def pairs(items: Iterable[str], what: str) -> dict:
     """``NAME=VALUE`` items (each may hold several, comma-separated) as a dict.
 
     Raises
@@ -67,7 +68,7 @@ def pairs(items, what: str) -> dict:
     return out
 
 
-def equilibrium_choice(text: str):
+def equilibrium_choice(text: str) -> Any:
     """The ``--equilibrium`` value: a mapping, an index or a sign word.
 
     >>> equilibrium_choice("x=0, y=1/2"), equilibrium_choice("2"), equilibrium_choice("positive")
@@ -100,7 +101,8 @@ class Stage:
     Use as ``with Stage("analysing", quiet=False): ...``.
     """
 
-    def __init__(self, name: str, *, quiet: bool = False, after: float = 1.0, stream=None):
+    def __init__(self, name: str, *, quiet: bool = False, after: float = 1.0,
+                 stream: Any = None) -> None:
         self.name, self.quiet, self.after = name, quiet, after
         self.stream = stream
         self._timer = None
@@ -135,7 +137,7 @@ class Stage:
         return False
 
 
-def is_terminal(stream) -> bool:
+def is_terminal(stream: Any) -> bool:
     try:
         return bool(stream.isatty())
     except (AttributeError, ValueError, OSError):
@@ -166,37 +168,18 @@ def _read_stdin(stdin=None) -> str:
     return data
 
 
-def _check_model_path(path) -> None:
-    """A model path must name a regular file: a named pipe would block and a
-    device never ends."""
-    import stat
-
-    from ..errors import ModelFileError
-
-    try:
-        info = os.stat(path)
-    except (OSError, TypeError, ValueError):
-        return  # Model.from_file reports a missing or unusable path
-    if stat.S_ISDIR(info.st_mode):
-        raise ModelFileError(f"cannot read model file {path!r}: it is a folder")
-    if not stat.S_ISREG(info.st_mode):
-        raise ModelFileError(f"cannot read model file {path!r}: it is not a regular file (a "
-                             "named pipe or a device); pass - to read standard input")
-
-
-def read_model(path: str, *, stdin=None):
+def read_model(path: str, *, stdin: Any = None) -> Any:
     """The model in ``path`` (``"-"``: standard input)."""
     from ..model.core import Model
 
     with typo_warnings():
         if path == "-":
             return Model.from_text(_read_stdin(stdin), source="<stdin>")
-        _check_model_path(path)
         return Model.from_file(path)
 
 
 @contextmanager
-def typo_warnings(prefix: str = ""):
+def typo_warnings(prefix: str = "") -> Iterator[None]:
     """Show the library's NameTypoWarning as ``criticality: warning: ...``
     lines on standard error (other warnings pass on unchanged)."""
     with warnings.catch_warnings(record=True) as caught:
@@ -221,7 +204,8 @@ def _os_errors(path: str):
         raise OutputError(f"cannot write {path}: {exc.strerror or exc}") from None
 
 
-def write_output(text: str, path: str | None, *, force: bool = False, stdout=None) -> str | None:
+def write_output(text: str, path: str | None, *, force: bool = False,
+                 stdout: Any = None) -> str | None:
     """Write ``text`` to ``path`` atomically (temporary file in the same
     folder, then :func:`os.replace`), or to standard output for None or
     ``"-"``.  An existing file is kept unless ``force``

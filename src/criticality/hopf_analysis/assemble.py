@@ -299,13 +299,15 @@ def _cycle(B, model, bc, omega, verdict, stab, mu):
         fs_k = _raw(B.tower, k, B.ctx)
         side, side_cond = _cycle_side(B, fs_k.sign, beta1, R, k)
         lower_exact_zero = all(not c for c in bc.c_center[:j - 1])
-        slope = omega * B.expr(beta_nu - beta1 * S / R) if lower_exact_zero else sympy.nan
+        # beta_nu - beta1 S / R, with the one division by R (a norm) already in k
+        slope = omega * B.expr(beta_nu + k * S) if lower_exact_zero else sympy.nan
         if j == 1:
             rho2 = B.expr(k) * offset
         else:
             rho2 = sympy.Pow(B.expr(k) * offset, sympy.Rational(1, j))
+        inv_qq = 4 / eb.qq  # one inverse in the radical extension, not one per state
         for name, a, v in zip(model.states, eb.Av, eb.v):
-            sj = 4 * (a * a + eb.W * v * v) / eb.qq  # amplitude_j^2 = sj rho^2
+            sj = (a * a + eb.W * v * v) * inv_qq  # amplitude_j^2 = sj rho^2
             if not sj:
                 amps[name] = sympy.Integer(0)
                 if j == 1:

@@ -71,7 +71,7 @@ class Eigenbasis:
     qq: Any  # an element of ``field``
     field: Any
     nu_field: Any  # the extension K(nu), nu^2 = -W
-    gram: tuple  # ((w.e1, w.e2), (wA.e1, wA.e2), determinant)
+    gram: tuple  # the inverse of ((w.e1, w.e2), (wA.e1, wA.e2)), row by row
 
     def center_coordinates(self, y: Sequence[Element]) -> tuple[Element, Element]:
         """Coordinates ``(xi1, xi2)`` of the center part of a real vector ``y``
@@ -79,8 +79,8 @@ class Eigenbasis:
         K = self.field
         r1 = dot(K, self.w, y)
         r2 = dot(K, self.wA, y)
-        (a11, a12), (a21, a22), det = self.gram
-        return (a22 * r1 - a12 * r2) / det, (a11 * r2 - a21 * r1) / det
+        (b11, b12), (b21, b22) = self.gram
+        return b11 * r1 + b12 * r2, b21 * r1 + b22 * r2
 
 
 def _smallest(K, vectors):
@@ -127,5 +127,8 @@ def critical_eigenbasis(K: Any, A: list[list[Element]], W: Element,
     e2 = [-x for x in v]
     a11, a12 = dot(K, w, Av), dot(K, w, e2)
     a21, a22 = dot(K, wA, Av), dot(K, wA, e2)
-    gram = ((a11, a12), (a21, a22), a11 * a22 - a12 * a21)
+    # inverted once here: center_coordinates runs once per monomial, and a
+    # division in a radical extension costs a norm and an inverse each time
+    inv_det = 1 / (a11 * a22 - a12 * a21)
+    gram = ((a22 * inv_det, -a12 * inv_det), (-a21 * inv_det, a11 * inv_det))
     return Eigenbasis(A, A2, W, v, Av, q, pbar, w, wA, qq, K, nu_field, gram)

@@ -169,7 +169,7 @@ def check_eliminate(eliminate: Any) -> tuple | None:
     return tuple(eliminate)
 
 
-def equilibrium_count_bound(model) -> int | None:
+def equilibrium_count_bound(model: Any) -> int | None:
     """Bezout's bound on the number of isolated equilibria of a polynomial
     model (the product of the total degrees in the states), or None when a
     right-hand side is not polynomial in the states.  (Bezout's theorem;
@@ -189,7 +189,7 @@ def equilibrium_count_bound(model) -> int | None:
     return total
 
 
-def check_equilibrium(equilibrium: Any, model=None) -> Any:
+def check_equilibrium(equilibrium: Any, model: Any = None) -> Any:
     """``None``, a mapping ``{state: value}`` (no value None, NaN or
     infinite), an index ``>= 0`` (below Bezout's bound for a polynomial
     model) or one of :data:`EQUILIBRIUM_WORDS`; checked before any
@@ -242,7 +242,7 @@ def refuse_unused(mode: str, **given: Any) -> None:
                              f"{'it' if len(used) == 1 else 'them'} out")
 
 
-def check_options(model=None, *, parameter: Any = None, equilibrium: Any = None,
+def check_options(model: Any = None, *, parameter: Any = None, equilibrium: Any = None,
                   eliminate: Any = None, values: Any = None, assume: Any = None,
                   order: Any = 3, backend: Any = "flint", low_order: int = 2) -> dict:
     """Every option of :func:`~criticality.local.prepare.prepare`, checked

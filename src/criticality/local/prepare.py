@@ -124,7 +124,7 @@ class PreparedProblem:
                        self.state_names)
 
 
-def assumption_map(model, assume: Mapping | None) -> dict:
+def assumption_map(model: Any, assume: Mapping | None) -> dict:
     """``{symbol: assumption}`` for the model's parameters, changed or
     extended by ``assume`` (names -> one of the model's assumption words)."""
     out = {}
@@ -136,8 +136,8 @@ def assumption_map(model, assume: Mapping | None) -> dict:
     return out
 
 
-def choose_equilibrium(model, equilibrium, eliminate, assumptions, full=None,
-                       fixed=None) -> EquilibriumChoice:
+def choose_equilibrium(model: Any, equilibrium: Any, eliminate: Any, assumptions: Mapping,
+                       full: Any = None, fixed: Mapping | None = None) -> EquilibriumChoice:
     """Choose the equilibrium.  A given mapping is read against the model as
     written (``full``), so it may name parameters fixed by ``values``; their
     values (``fixed``) are then substituted."""
@@ -161,7 +161,8 @@ def choose_equilibrium(model, equilibrium, eliminate, assumptions, full=None,
     return select_equilibrium(model, candidates, equilibrium, ctx)
 
 
-def resolve_parameter(model, parameter: str | None, values: Mapping | None = None):
+def resolve_parameter(model: Any, parameter: str | None,
+                      values: Mapping | None = None) -> tuple[Any, str]:
     """``(model with the fixed values applied, name of the parameter)``: the
     first step of every analysis, the numeric mode's included.  The name
     defaults to the model file's choice; a state, an unknown name (with a
@@ -181,7 +182,8 @@ def resolve_parameter(model, parameter: str | None, values: Mapping | None = Non
     return model, name
 
 
-def prepare(model, parameter: str | None = None, *, equilibrium=None, eliminate=None,
+def prepare(model: Any, parameter: str | None = None, *, equilibrium: Any = None,
+            eliminate: Any = None,
             values: Mapping | None = None, assume: Mapping | None = None, order: int = 3,
             backend: str = "flint",
             extra: Callable[[Any, EquilibriumChoice], Iterable] | None = None,
@@ -234,8 +236,10 @@ def prepare(model, parameter: str | None = None, *, equilibrium=None, eliminate=
                    choice.point, more, vary)
 
 
-def prepare_system(equations, states, parameters, parameter, equilibrium, order: int = 3,
-                   backend: str = "flint", state_names=(), assumptions=None) -> PreparedProblem:
+def prepare_system(equations: Sequence, states: Sequence, parameters: Sequence, parameter: Any,
+                   equilibrium: Sequence, order: int = 3, backend: str = "flint",
+                   state_names: Sequence[str] = (),
+                   assumptions: Mapping | None = None) -> PreparedProblem:
     """:func:`prepare` for a system given as sympy objects (no model, no
     choice of equilibrium): the equations, the state and parameter symbols,
     the parameter varied (a symbol) and the equilibrium point."""

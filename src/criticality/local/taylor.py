@@ -98,7 +98,7 @@ def raw_taylor(equations: Sequence[sympy.Expr], states: Sequence[sympy.Symbol],
 MAX_EXPANDED_TERMS = 5_000
 
 
-def expanded_terms_bound(f) -> int:
+def expanded_terms_bound(f: sympy.Expr) -> int:
     """An upper bound on the number of terms of ``expand(f)``: sums add,
     products multiply, ``g^e`` has at most ``C(t + e - 1, e)`` terms for a
     ``g`` of ``t`` terms (the number of monomials of degree ``e`` in ``t``

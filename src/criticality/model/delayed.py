@@ -16,7 +16,7 @@ argument is a state, is checked by the model (:mod:`criticality.model.checks`).
 
 from __future__ import annotations
 
-from typing import Iterable
+from typing import Any, Iterable
 
 import sympy
 
@@ -38,7 +38,7 @@ class Delayed(sympy.Function):
     nargs = 2
 
     @classmethod
-    def eval(cls, state, delay):
+    def eval(cls, state: Any, delay: Any) -> Any:
         if not isinstance(state, sympy.Symbol):
             raise TypeError(f"a delayed state is a state symbol at t - delay, not {state}")
         if delay.is_number:

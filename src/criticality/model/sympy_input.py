@@ -59,7 +59,7 @@ def _float_value(number, exact: bool, where: dict | None) -> sympy.Expr:
     return value if exact else sympy.Float(number)
 
 
-def convert_sympy(expr, symbols: Mapping[str, sympy.Expr] | None = None, *,
+def convert_sympy(expr: Any, symbols: Mapping[str, sympy.Expr] | None = None, *,
                   context: str | None = None, line: int | None = None, exact: bool = True,
                   on_unknown: Callable[[str, None], object] | None = None) -> sympy.Expr:
     """Check a sympy expression (or a Python number) against the model syntax.

@@ -14,7 +14,7 @@ import keyword
 import re
 import unicodedata
 from types import MappingProxyType
-from typing import Callable, Mapping
+from typing import Any, Callable, Mapping
 
 import sympy
 
@@ -328,7 +328,7 @@ def _decimal_to_rational(intpart: str, frac: str, exp: str) -> sympy.Rational:
 MAX_CONSTANT_BITS = 100_000
 
 
-def constant_out_of_range(value) -> bool:
+def constant_out_of_range(value: Any) -> bool:
     """True when the constant ``value`` (a sympy number) is beyond
     ``2^+-MAX_CONSTANT_BITS`` or cannot be evaluated at all
     (``exp(exp(1000))``): its size is read from a 15-digit evaluation."""

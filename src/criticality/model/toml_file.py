@@ -12,6 +12,7 @@ from __future__ import annotations
 import os
 import re
 import sys
+from typing import Any
 
 from .syntax import _suggest
 from ..errors import InvalidModelFileError, ModelFileError, ModelFileSyntaxError
@@ -105,7 +106,7 @@ def _load(text: str, source: str) -> dict:
                                    "values are nested too deeply)", source=source) from None
 
 
-def read_model_text(cls, text: str, source: str | None = None):
+def read_model_text(cls: Any, text: str, source: str | None = None) -> Any:
     """Build ``cls`` (the Model class) from the text of a model file."""
     source = source or "<text>"
     if not isinstance(text, str):
@@ -134,10 +135,11 @@ def read_model_text(cls, text: str, source: str | None = None):
                             lines=lines.equation_lines(), error=InvalidModelFileError)
 
 
-def read_model_file(cls, path):
+def read_model_file(cls: Any, path: str | os.PathLike[str]) -> Any:
     """Build ``cls`` from a model file on disk."""
     try:
         name = os.fspath(path)
+        _check_regular(name)
         with open(name, "rb") as handle:
             data = handle.read(4 * MAX_FILE_CHARS + 1)
     except TypeError:
@@ -157,6 +159,23 @@ def read_model_file(cls, path):
         raise ModelFileSyntaxError(f"{name} is not UTF-8 text (byte {exc.start}, line {line})",
                                    source=name, line=line) from None
     return read_model_text(cls, text, name)
+
+
+def _check_regular(name: str) -> None:
+    """A model path must name a regular file (after links): a named pipe would
+    block the reader and a device never ends."""
+    import stat
+
+    try:
+        info = os.stat(name)
+    except (OSError, TypeError, ValueError):
+        return  # open() reports a missing or unusable path
+    if stat.S_ISDIR(info.st_mode):
+        raise ModelFileError(f"cannot read model file {str(name)!r}: it is a folder")
+    if not stat.S_ISREG(info.st_mode):
+        raise ModelFileError(f"cannot read model file {str(name)!r}: it is not a regular file "
+                             "(a named pipe or a device); on the command line, pass - to read "
+                             "standard input")
 
 
 # -- writing --------------------------------------------------------------------
@@ -191,7 +210,7 @@ def _parameter_entry(parameter) -> str:
     return "{ " + ", ".join(fields) + " }"
 
 
-def model_to_toml(model) -> str:
+def model_to_toml(model: Any) -> str:
     """The text of a model file that reads back to ``model``."""
     out = ["# criticality model file (TOML); the schema is in docs/model-files.md"]
     if model.name is not None:

@@ -414,7 +414,7 @@ def save_figure(figure: Any, path: str | os.PathLike[str], *, force: bool = Fals
     return write_bytes_atomic(path, figure_bytes(figure, path, dpi=dpi), force=force)
 
 
-def figure_bytes(figure, path, *, dpi: int | None = None) -> bytes:
+def figure_bytes(figure: Any, path: str | os.PathLike[str], *, dpi: int | None = None) -> bytes:
     """The image :func:`save_figure` would write to ``path`` (format from the
     suffix), as bytes; for writing several files at once
     (:func:`criticality.files.write_all`)."""
