@@ -180,7 +180,7 @@ def compact(expr: sympy.Expr) -> sympy.Expr:
     >>> compact((-a**2/2 - 1)/(a*(2*a**2 + 1)))
     -(a**2 + 2)/(2*a*(2*a**2 + 1))
     """
-    expr = sympy.sympify(expr)
+    expr = sympy.sympify(expr, strict=True)
     if expr.is_Atom or larger_than([expr], COMPACT_NODES):
         return expr
     if expr.is_Relational:

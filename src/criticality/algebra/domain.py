@@ -134,7 +134,7 @@ def collect_atoms(exprs: Iterable[sympy.Expr], parameter_symbols: Iterable[sympy
         raise ClosedFormUnavailableError(f"cannot represent {e} in the parameter field")
 
     for ex in exprs:
-        walk(sympy.sympify(ex))
+        walk(sympy.sympify(ex, strict=True))
     return sorted(found, key=sympy.default_sort_key)
 
 
@@ -356,7 +356,7 @@ class Tower:
     # -- conversion ------------------------------------------------------------------------
     def convert(self, expr: sympy.Expr) -> Element:
         """A sympy expression in the parameters and atoms as a tower element."""
-        expr = sympy.sympify(expr)
+        expr = sympy.sympify(expr, strict=True)
         try:
             return self._convert(expr)
         except ZeroDivisionError as exc:

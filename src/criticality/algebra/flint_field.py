@@ -248,7 +248,7 @@ class FlintRationalFunctionField(Field):
         return self._normalised(num, den)
 
     def from_sympy(self, expr: sympy.Expr) -> RationalFunction:
-        num, den = sympy.fraction(sympy.together(sympy.sympify(expr)))
+        num, den = sympy.fraction(sympy.together(sympy.sympify(expr, strict=True)))
         return self._from_sympy_poly(num) / self._from_sympy_poly(den)
 
     def _from_sympy_poly(self, expr) -> RationalFunction:

@@ -62,7 +62,7 @@ class SympyRationalFunctionField(Field):
         return self._field.field_new(value) if hasattr(self._field, "field_new") else self._field(value)
 
     def from_sympy(self, expr: sympy.Expr) -> Element:
-        expr = sympy.sympify(expr)
+        expr = sympy.sympify(expr, strict=True)
         if not self.symbols:
             if not expr.is_Rational:
                 raise ValueError(f"{expr} is not a rational number")

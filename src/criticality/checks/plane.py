@@ -387,7 +387,7 @@ def feasibility_grid(result: HopfResult, x: str, y: str, *, feasible: Any = None
     vals = _off_axes(values, x, y)
     ok = np.ones(X.shape, dtype=bool)
     for state, sign in signs.items():
-        fn = grid_function(result, sympy.sympify(result.equilibrium[state]), [x, y], vals)[0]
+        fn = grid_function(result, sympy.sympify(result.equilibrium[state], strict=True), [x, y], vals)[0]
         with np.errstate(all="ignore"):
             v = np.broadcast_to(np.asarray(fn(X, Y), dtype=complex), X.shape)
         real = np.isfinite(v) & (np.abs(v.imag) <= 1e-12 * (1 + np.abs(v.real)))
@@ -400,7 +400,7 @@ def _number(result, name, raw) -> float:
     if isinstance(raw, str):
         value = result.model.parse(raw, context=f"value of {name!r}")
     elif isinstance(raw, (int, float, sympy.Expr)) and not isinstance(raw, bool):
-        value = sympy.sympify(raw)
+        value = sympy.sympify(raw, strict=True)
     else:
         raise ParameterError(f"the value of {name!r} must be a number, got {raw!r}")
     if value.free_symbols:

@@ -56,7 +56,7 @@ def _mp(e, digits):
 
 
 def _expected(result, table, digits):
-    num = lambda e: _mp(sympy.sympify(e).xreplace(table), digits)  # noqa: E731
+    num = lambda e: _mp(sympy.sympify(e, strict=True).xreplace(table), digits)  # noqa: E731
     if hasattr(result, "omega1"):
         w1, w2 = num(result.omega1), num(result.omega2)
         return [1j * w1, -1j * w1, 1j * w2, -1j * w2]
@@ -74,7 +74,7 @@ def _resolved(result, model, values):
     table = dict(given)
     found = getattr(result, "values", None) or getattr(result, "critical_values", {})
     for name, e in found.items():
-        table[sympy.Symbol(name, real=True)] = sympy.sympify(e)
+        table[sympy.Symbol(name, real=True)] = sympy.sympify(e, strict=True)
     for _ in range(len(table) + 1):
         table = {k: v.xreplace(table) for k, v in table.items()}
     return table
@@ -97,7 +97,7 @@ def spectrum_check(result: Any, model: Model, values: Mapping[str, object] | Non
     """
     table = _resolved(result, model, values)
     point = getattr(result, "equilibrium", None) or getattr(result, "fixed_point")
-    at = {model.symbols[s]: sympy.sympify(v).xreplace(table) for s, v in point.items()}
+    at = {model.symbols[s]: sympy.sympify(v, strict=True).xreplace(table) for s, v in point.items()}
     f = sympy.Matrix(model.equations)
     J = f.jacobian(model.state_symbols).xreplace(table).xreplace(at)
     shift = sympy.Matrix(model.state_symbols) if model.kind == "map" else sympy.zeros(len(at), 1)

@@ -172,7 +172,7 @@ def _irrational(expr) -> bool:
 def _tidy(expr):
     """A compact form: factored where the expression is rational in the
     parameters (and pi); kept as substituted where it holds radicals or acos."""
-    expr = sympy.sympify(expr)
+    expr = sympy.sympify(expr, strict=True)
     if _irrational(expr):
         return expr
     expr = sympy.cancel(expr)
@@ -186,7 +186,7 @@ def _at(crossing, expr, T=None):
     """An internal expression at the first crossing (positive symbols kept)."""
     T = crossing.delay_value_pos if T is None else T
     omega = crossing.omega.xreplace(crossing.to_positive)
-    return _tidy(sympy.sympify(expr).xreplace({crossing.T: T}).xreplace({crossing.w: omega}))
+    return _tidy(sympy.sympify(expr, strict=True).xreplace({crossing.T: T}).xreplace({crossing.w: omega}))
 
 
 OMEGA, TAU0 = sympy.Symbol("omega", positive=True), sympy.Symbol("tau_0", positive=True)
@@ -198,9 +198,9 @@ def _named(crossing, expr):
     radicals or acos."""
     omega = crossing.omega.xreplace(crossing.to_positive)
     if _irrational(omega):
-        return sympy.sympify(expr).xreplace({crossing.w: OMEGA, crossing.T: TAU0}).xreplace(
+        return sympy.sympify(expr, strict=True).xreplace({crossing.w: OMEGA, crossing.T: TAU0}).xreplace(
             crossing.to_model)
-    value = sympy.sympify(expr).xreplace({crossing.w: omega, crossing.T: TAU0})
+    value = sympy.sympify(expr, strict=True).xreplace({crossing.w: omega, crossing.T: TAU0})
     return _tidy(value).xreplace(crossing.to_model)
 
 

@@ -94,7 +94,7 @@ class Crossing:
     def at_critical(self, expr: sympy.Expr) -> sympy.Expr:
         """An internal expression (in w, T, positive symbols) at the first crossing,
         in the model's symbols."""
-        value = sympy.sympify(expr).xreplace({self.T: self.delay_value_pos}).xreplace(
+        value = sympy.sympify(expr, strict=True).xreplace({self.T: self.delay_value_pos}).xreplace(
             {self.w: self.omega.xreplace(self.to_positive)})
         return value.xreplace(self.to_model)
 
@@ -118,7 +118,7 @@ def positive_symbols(model: Model) -> tuple[dict, dict]:
 def decide_sign(expr: sympy.Expr) -> int | None:
     """+1, -1 or 0 where sympy's assumptions settle the sign of ``expr`` factor by
     factor (symbols carry their declared signs), else None."""
-    expr = sympy.sympify(expr)
+    expr = sympy.sympify(expr, strict=True)
     if not expr.free_symbols:
         return _numeric_sign(expr)
     expr = sympy.factor(sympy.cancel(expr))

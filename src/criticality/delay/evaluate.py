@@ -105,7 +105,7 @@ def _point(result, values: Mapping) -> dict:
 
 
 def _mp(expr, sub, digits):
-    value = sympy.sympify(expr).xreplace(sub)
+    value = sympy.sympify(expr, strict=True).xreplace(sub)
     value = sympy.N(value, digits + 10)
     re, im = value.as_real_imag()
     # through the binary value: no decimal string, so no limit on the digits
@@ -199,7 +199,7 @@ def _numeric_c1(result, full, omega):
     """The projection form with numeric matrices (independent of the symbolic route)."""
     from .linearize import delay_forms
     model = result.model
-    point = tuple(sympy.sympify(result.equilibrium[s]) for s in model.states)
+    point = tuple(sympy.sympify(result.equilibrium[s], strict=True) for s in model.states)
     forms = delay_forms(model, point).substitute(full)
     mats = [mpmath.matrix([[_mp(M[i, j], {}, mpmath.mp.dps) for j in range(M.cols)]
                            for i in range(M.rows)]) for M in forms.matrices]

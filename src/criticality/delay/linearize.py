@@ -133,7 +133,7 @@ class DelayForms:
     def substitute(self, mapping: dict) -> "DelayForms":
         """A copy with ``mapping`` (symbol -> expression) substituted everywhere."""
         def s(e):
-            return sympy.sympify(e).xreplace(mapping)
+            return sympy.sympify(e, strict=True).xreplace(mapping)
         return DelayForms(self.states, tuple(s(p) for p in self.point),
                           tuple(s(d) for d in self.delays), self.slots,
                           tuple(m.xreplace(mapping) for m in self.matrices),

@@ -85,10 +85,10 @@ def _field_for(exprs, extra):
     from ..algebra.domain import make_base_field
     symbols = {s for s in extra if isinstance(s, sympy.Symbol)}
     for e in exprs:
-        symbols |= sympy.sympify(e).free_symbols
+        symbols |= sympy.sympify(e, strict=True).free_symbols
     symbols = sorted(symbols, key=sympy.default_sort_key)
     for e in exprs:
-        e = sympy.sympify(e)
+        e = sympy.sympify(e, strict=True)
         if not e.is_rational_function(*symbols) or e.has(sympy.pi, sympy.E):
             return None
     return make_base_field(symbols)
@@ -116,7 +116,7 @@ def center_data(forms: DelayForms, crossing: Crossing, mu_pos: sympy.Symbol) -> 
     slope_exprs = [m.diff(mu_pos)[i, j] for m in forms.matrices for i in range(m.rows)
                    for j in range(m.cols)] if crossing.mode == "parameter" else []
     if crossing.mode == "parameter":
-        slope_exprs = [sympy.sympify(e).xreplace({mu_pos: crossing.mu_of_w})
+        slope_exprs = [sympy.sympify(e, strict=True).xreplace({mu_pos: crossing.mu_of_w})
                        for e in slope_exprs]
     K = _field_for(exprs + slope_exprs, (crossing.w, crossing.T))
     if K is None:

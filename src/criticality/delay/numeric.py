@@ -227,7 +227,7 @@ class _Problem:
         self.third = [{k: lam(v) for k, v in t.items()} for t in forms.third]
         leftover = set()
         for e in [*model.equations, *forms.delays]:
-            leftover |= sympy.sympify(e).xreplace(fixed).free_symbols
+            leftover |= sympy.sympify(e, strict=True).xreplace(fixed).free_symbols
         leftover -= set(args)
         leftover = {s for s in leftover if not isinstance(s, sympy.Dummy)}
         if leftover:

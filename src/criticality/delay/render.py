@@ -48,7 +48,7 @@ def _text(expr) -> str:
     if isinstance(expr, sympy.core.relational.Relational):
         return f"{_text(expr.lhs)} {expr.rel_op} {_text(expr.rhs)}"
     try:
-        return format_expression(sympy.sympify(expr))
+        return format_expression(sympy.sympify(expr, strict=True))
     except Exception:       # Piecewise, complex values: sympy's own text
         return sympy.sstr(expr)
 
@@ -101,7 +101,7 @@ def _direction(r) -> str:
 
 def _latex(expr) -> str:
     names = {}
-    for s in sympy.sympify(expr).free_symbols:
+    for s in sympy.sympify(expr, strict=True).free_symbols:
         if isinstance(s, sympy.Symbol):
             names[s] = latex_name(s.name)
     return sympy.latex(expr, symbol_names=names)

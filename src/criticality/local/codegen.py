@@ -218,7 +218,7 @@ def generate_source(exprs: Sequence, args: Sequence, backend: str, *, cse: bool 
     if backend not in BACKENDS:
         raise ParameterError(f"unknown numeric back end {backend!r}; expected one of "
                              f"{', '.join(BACKENDS)}")
-    exprs = [sympy.sympify(e) for e in exprs]  # sympy objects only (no strings reach here)
+    exprs = [sympy.sympify(e, strict=True) for e in exprs]  # sympy objects only (no strings reach here)
     names = {s: f"a{i}" for i, s in enumerate(args)}
     unknown = set().union(*(e.free_symbols for e in exprs)) - set(names) if exprs else set()
     if unknown:

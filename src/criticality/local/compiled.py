@@ -97,7 +97,7 @@ class CompiledTaylor:
         args = {s: k for k, s in enumerate(self.states)}
         args.update({s: self.n + k for k, s in enumerate(self.parameters)})
         cache: dict = {}
-        roots = [graph.from_sympy(sympy.sympify(f), args, cache) for f in equations]
+        roots = [graph.from_sympy(sympy.sympify(f, strict=True), args, cache) for f in equations]
         entries: list = []
         for i, f in enumerate(roots):
             checkpoint()

@@ -59,7 +59,7 @@ class ExpressionGraph:
         return k
 
     def const(self, value: Any) -> int:
-        return self._node(("c", sympy.sympify(value)))
+        return self._node(("c", sympy.sympify(value, strict=True)))
 
     def arg(self, k: int) -> int:
         return self._node(("a", k))
@@ -95,7 +95,7 @@ class ExpressionGraph:
 
     def power(self, a: int, e: Any) -> int:
         """``a ** e`` for a sympy number ``e`` (an integer or a rational)."""
-        e = sympy.sympify(e)
+        e = sympy.sympify(e, strict=True)
         va = self.value(a)
         if e == 0:
             return self.one

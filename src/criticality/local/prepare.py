@@ -231,7 +231,7 @@ def prepare(model: Any, parameter: str | None = None, *, equilibrium: Any = None
     if vary and not any(e.has(mu) for e in eqs) and not any(x.has(mu) for x in choice.point):
         raise NoHopfPointError(f"the bifurcation parameter '{name}' does not occur in the model",
                                reason="parameter_absent")
-    more = tuple(sympy.sympify(e) for e in (extra(model, choice) if extra else ()))
+    more = tuple(sympy.sympify(e, strict=True) for e in (extra(model, choice) if extra else ()))
     return _fields(model, name, mu, choice, eqs, params, assumptions, order, backend,
                    choice.point, more, vary)
 
@@ -245,9 +245,9 @@ def prepare_system(equations: Sequence, states: Sequence, parameters: Sequence, 
     the parameter varied (a symbol) and the equilibrium point."""
     states = tuple(states)
     names = tuple(state_names) or tuple(str(s) for s in states)
-    choice = EquilibriumChoice(tuple(sympy.sympify(x) for x in equilibrium), "given", {}, ())
+    choice = EquilibriumChoice(tuple(sympy.sympify(x, strict=True) for x in equilibrium), "given", {}, ())
     return _fields(None, str(parameter), parameter, choice,
-                   tuple(sympy.sympify(e) for e in equations), tuple(parameters),
+                   tuple(sympy.sympify(e, strict=True) for e in equations), tuple(parameters),
                    dict(assumptions or {}), order, backend, choice.point, (), True,
                    states=states, names=names)
 

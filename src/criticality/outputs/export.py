@@ -49,7 +49,7 @@ def _safe(name: str, language: str) -> str:
 
 
 def _usable(expr) -> bool:
-    expr = sympy.sympify(expr)
+    expr = sympy.sympify(expr, strict=True)
     return not expr.has(sympy.I, sympy.nan, sympy.zoo, sympy.oo, -sympy.oo)
 
 
@@ -77,7 +77,7 @@ def exported_quantities(result: HopfResult) -> dict:
     for state, slope in result.cycle.amplitude_coefficients.items():
         table[f"amplitude_squared_slope_{state}"] = (
             f"k in amplitude({state})^2 = k ({name} - {name}_c), half peak-to-peak", slope)
-    return {key: (words, sympy.sympify(e)) for key, (words, e) in table.items() if _usable(e)}
+    return {key: (words, sympy.sympify(e, strict=True)) for key, (words, e) in table.items() if _usable(e)}
 
 
 def export_arguments(result: HopfResult, quantities: dict | None = None) -> tuple:

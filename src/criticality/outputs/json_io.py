@@ -47,7 +47,7 @@ def _expr(value):
     """An exact expression as a string of the model syntax (or a marker)."""
     if value is None:
         return None
-    value = sympy.sympify(value)
+    value = sympy.sympify(value, strict=True)
     if value.has(sympy.nan, sympy.zoo, sympy.oo, -sympy.oo):
         return None
     text = try_model_text(value)
@@ -360,7 +360,7 @@ def result_expressions(result: HopfResult) -> dict:
     for p in result.model.parameters:
         if p.default is not None:
             table[f"model.parameters.{p.name}.value"] = p.default
-    return {path: sympy.sympify(value) for path, value in table.items() if path in paths}
+    return {path: sympy.sympify(value, strict=True) for path, value in table.items() if path in paths}
 
 
 register_renderer("hopf", "json", result_to_json)

@@ -173,7 +173,7 @@ class TexWriter:
         ``L_{k}`` and defined once, after the first block that uses it."""
         counts: dict = {}
         for e in exprs:
-            for node in sympy.preorder_traversal(sympy.sympify(e)):
+            for node in sympy.preorder_traversal(sympy.sympify(e, strict=True)):
                 if _non_polynomial(node):
                     counts[node] = counts.get(node, 0) + 1
         for node, count in sorted(counts.items(), key=lambda kv: sympy.default_sort_key(kv[0])):
@@ -262,7 +262,7 @@ class TexWriter:
         """``e`` with wide inner sums replaced by named factors, and the
         numerator or denominator of a fraction that is still too wide named
         as a whole."""
-        e = compact(sympy.sympify(e))
+        e = compact(sympy.sympify(e, strict=True))
         if e.is_Relational:
             return e.func(self._rebuild(e.lhs, True), self._rebuild(e.rhs, True),
                           evaluate=False)
@@ -355,7 +355,7 @@ class TexWriter:
     def align_rows(self, lhs: str, e: sympy.Expr, width: float | None = None, relation: str = "=",
                    fit: bool = True) -> list:
         """Rows of an ``align*`` block for ``lhs = e`` (``e`` shortened here)."""
-        short = self.shorten(e) if fit else self._rebuild(sympy.sympify(e), True)
+        short = self.shorten(e) if fit else self._rebuild(sympy.sympify(e, strict=True), True)
         lines = self.pieces(short, width)
         rows = [f"{lhs} &{relation} {lines[0]}"]
         rows += [f"&\\qquad {line}" for line in lines[1:]]

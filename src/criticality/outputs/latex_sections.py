@@ -55,7 +55,7 @@ def _named_candidates(result, bases) -> list:
         exprs.append(result.supercritical_where.lhs)
     out = []
     for e in exprs:
-        e = sympy.sympify(e)
+        e = sympy.sympify(e, strict=True)
         if bases:
             e = e.xreplace({p: sympy.Dummy() for p in e.atoms(sympy.Pow)
                             if p.base in bases and p.exp.is_Rational and p.exp.q == 2})
@@ -72,7 +72,7 @@ class Document:
         self.zero_left = zero_left
         names = set(result.model.symbols) | set(result.substitutions) | {result.parameter}
         for value in result.equilibrium.values():
-            names |= {s.name for s in sympy.sympify(value).free_symbols}
+            names |= {s.name for s in sympy.sympify(value, strict=True).free_symbols}
         names |= {p.name for p, _ in getattr(result, "fixed_parameters", ())}
         self.names = frozenset(names) | frozenset(result.model.states)
         self.notation = Notation(sorted(names))
@@ -85,7 +85,7 @@ class Document:
         self.lam_tex = self.notation.names["~lambda"]
         self.re_dlambda = (f"\\operatorname{{Re}}\\frac{{d{self.lam_tex}}}{{d{self.mu}}}"
                            f"\\Big|_{{{self.mu_c}}}")
-        self._omega_expr = sympy.sympify(result.omega)
+        self._omega_expr = sympy.sympify(result.omega, strict=True)
         self._bases = _radical_bases(self._omega_expr)
         self.writer.name_atoms(_named_candidates(result, self._bases))
 
@@ -100,7 +100,7 @@ class Document:
     def with_omega(self, e: sympy.Expr) -> sympy.Expr:
         """``e`` with the frequency written as the symbol omega where it
         appears as a factor (``l1 = R / omega`` rather than a radical)."""
-        e = sympy.sympify(e)
+        e = sympy.sympify(e, strict=True)
         if not self._bases:
             return e
         if e.is_Add:
@@ -119,7 +119,7 @@ class Document:
 
     def over_omega(self, e: sympy.Expr) -> sympy.Expr:
         """``e`` written as ``(e*omega)/omega`` (for ``l_k = Re(c_k)/omega``)."""
-        e = sympy.sympify(e)
+        e = sympy.sympify(e, strict=True)
         if not self._bases:
             return e
         t = e * self._omega_expr

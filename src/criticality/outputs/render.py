@@ -96,7 +96,7 @@ def split_complex(expr: sympy.Expr) -> tuple:
     >>> split_complex(a + sympy.I*b/2)
     (a, b/2)
     """
-    expr = sympy.sympify(expr)
+    expr = sympy.sympify(expr, strict=True)
     if not expr.has(sympy.I):
         return expr, sympy.Integer(0)
     re_terms, im_terms = [], []

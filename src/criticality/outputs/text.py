@@ -80,7 +80,7 @@ def _named(result) -> dict:
              *(c.expr for c in result.conditions)]
     counts: dict = {}
     for e in exprs:
-        for node in sympy.preorder_traversal(sympy.sympify(e)):
+        for node in sympy.preorder_traversal(sympy.sympify(e, strict=True)):
             if _non_polynomial(node) and len(sympy.sstr(node)) > 12:
                 counts[node] = counts.get(node, 0) + 1
     taken = set(result.model.symbols)
@@ -91,7 +91,7 @@ def _named(result) -> dict:
 
 
 def _shown(expr):
-    expr = sympy.sympify(expr)
+    expr = sympy.sympify(expr, strict=True)
     if _NAMED and not expr.is_Atom:
         expr = expr.xreplace(_NAMED)
     return decimal(compact(expr))
