@@ -41,7 +41,7 @@ from typing import TYPE_CHECKING, Any, ClassVar, Mapping, Sequence
 import sympy
 
 from ..kinds import FoldKind, Sign, coerce
-from ..local.prepare import EquilibriumSpec, expr, prepare, sign_word, solve_for
+from ..local.prepare import EquilibriumSpec, expr, prepare, sign_word, solve_for, unknown_symbol
 from ..model.expressions import format_expression
 from ..renderers import Rendered, render
 from ..algebra.linalg import determinant, dot, kernel, matvec, solve, transpose
@@ -251,7 +251,7 @@ def fold_all(model: Model, parameter: str, *, solve_for_name: str | None = None,
     prep = prepare(model, parameter, equilibrium=equilibrium, eliminate=eliminate,
                    values=values, assume=assume, order=3, backend=backend,
                    extra=lambda m, c: _f_mu(m, c, m.symbols[parameter or m.bifurcation_parameter]))
-    unknown = _unknown(prep, solve_for_name)
+    unknown = unknown_symbol(prep, solve_for_name)
     det = determinant(prep.tower.top, prep.taylor.jacobian())
     points, unsolved = solve_for(prep.tower, det, unknown)
     found: list = []
@@ -275,16 +275,6 @@ def fold_all(model: Model, parameter: str, *, solve_for_name: str | None = None,
                 f"'{unknown}'; the points listed are the closed-form ones only")
         found = [replace(r, notes=r.notes + (note,)) for r in found]
     return tuple(found)
-
-
-def _unknown(prep, name):
-    if name is not None:
-        return prep.symbol(name)
-    if prep.mu in prep.params:
-        return prep.mu
-    if prep.choice.new_symbols:
-        return prep.choice.new_symbols[0]
-    return prep.symbol(prep.parameter)
 
 
 @guarded("the fold analysis")

@@ -32,7 +32,7 @@ from ..algebra import upoly
 from ..algebra.linalg import identity
 from ..algebra.quadratic import lower
 from ..local.linear import hurwitz_determinants
-from ..local.prepare import prepare, sign_word
+from ..local.prepare import prepare, sign_word, unknown_symbol
 
 if TYPE_CHECKING:
     import sympy
@@ -106,18 +106,6 @@ def inside_unit_circle(K: Any, poly: Sequence[Element]) -> list[Element]:
     out = [lead / poly[-1]]  # (-1)^n chi(-1) > 0: no root at or beyond -1 crosses
     out += hurwitz_determinants(K, transformed) if len(transformed) > 1 else []
     return out
-
-
-def unknown_symbol(prep: PreparedProblem, name: str | None) -> sympy.Symbol:
-    """The symbol solved for: ``name``, else the parameter if still free, else
-    the first free fixed-point coordinate of a parametrised family."""
-    if name is not None:
-        return prep.symbol(name)
-    if prep.mu in prep.params:
-        return prep.mu
-    if prep.choice.new_symbols:
-        return prep.choice.new_symbols[0]
-    return prep.symbol(prep.parameter)
 
 
 def condition_status(tower: Tower, x: Any, ctx: SignContext | None, want: str = "positive") -> str:

@@ -12,7 +12,7 @@ from typing import TYPE_CHECKING, Any, ClassVar, Mapping
 import sympy
 
 from ..hopf_analysis.results import CyclePrediction
-from ..renderers import render
+from ..renderers import Rendered, render
 from ..kinds import Classification, coerce
 
 if TYPE_CHECKING:
@@ -56,7 +56,7 @@ DELAY_CONVENTIONS = DelayConventions()
 
 
 @dataclass(frozen=True)
-class DelayHopfResult:
+class DelayHopfResult(Rendered):
     """Hopf bifurcation of a retarded equation, in closed form.
 
     Attributes
@@ -193,27 +193,17 @@ class DelayHopfResult:
         from .evaluate import evaluate_result
         return evaluate_result(self, values or {}, digits)
 
-    def summary(self) -> str:
-        """The result as plain text, with conventions and cautions."""
-        return render(self, "text")
-
-    def details(self) -> str:
-        """The full plain text (the summary holds every quantity)."""
-        return render(self, "details")
-
-    def to_latex(self) -> str:
-        """A LaTeX report (a complete document body fragment, see :func:`latex_document`)."""
-        return render(self, "latex")
-
     def latex_document(self) -> str:
         """The report as a complete LaTeX document."""
         return render(self, "report")
 
-    def to_json(self, *, point: Mapping | None = None, digits: int = 30) -> str:
+    def to_json(self, *, point: Mapping | None = None,  # type: ignore[override]
+                digits: int = 30) -> str:  # narrower than Rendered: the delay JSON takes a point
         """The result as JSON in the shared envelope (with numbers at ``point``)."""
         return render(self, "json", point=point, digits=digits)
 
-    def to_dict(self, *, point: Mapping | None = None, digits: int = 30) -> dict:
+    def to_dict(self, *, point: Mapping | None = None,  # type: ignore[override]
+                digits: int = 30) -> dict:
         """The JSON document as a dictionary."""
         return render(self, "dict", point=point, digits=digits)
 
@@ -222,23 +212,11 @@ class DelayHopfResult:
         from .simulate import validate_delay
         return validate_delay(self, values or {}, **options)
 
-    def _repr_latex_(self):
-        return render(self, "notebook_latex")
-
-    def _repr_html_(self) -> str:
-        return render(self, "html")
-
-    def _repr_markdown_(self) -> str:
-        return render(self, "markdown")
-
     def to_latex_inline(self) -> str:
         from .render import latex_inline
         return latex_inline(self)
 
     def _sympystr(self, printer=None):
-        return self.summary()
-
-    def __str__(self) -> str:
         return self.summary()
 
     def __repr__(self) -> str:

@@ -41,7 +41,7 @@ EquilibriumSpec = Union[Mapping[str, object], Sequence[object], int, str, None]
 
 __all__ = ["EquilibriumSpec", "PreparedProblem", "prepare", "prepare_system", "check_order",
            "resolve_parameter", "assumption_map", "choose_equilibrium", "SolvedPoint", "solve_for",
-           "sign_word", "expr"]
+           "sign_word", "expr", "unknown_symbol"]
 
 @dataclass(frozen=True)
 class PreparedProblem:
@@ -319,3 +319,15 @@ def _check_equilibrium(tower, taylor, names):
         raise NotAnEquilibriumError(
             f"the given point is not an equilibrium: {parts} there instead of 0. Check the "
             "equilibrium coordinates, or let the engine solve for the equilibrium.")
+
+
+def unknown_symbol(prep: PreparedProblem, name: str | None) -> sympy.Symbol:
+    """The symbol solved for: ``name``, else the parameter if still free, else
+    the first free fixed-point coordinate of a parametrised family."""
+    if name is not None:
+        return prep.symbol(name)
+    if prep.mu in prep.params:
+        return prep.mu
+    if prep.choice.new_symbols:
+        return prep.choice.new_symbols[0]
+    return prep.symbol(prep.parameter)
