@@ -65,6 +65,50 @@ def test_flint_norm_form_and_squares_match_plain_arithmetic(x, y, d):
     assert L.element(fx, fy).norm() == plain
 
 
+@settings(max_examples=25, deadline=None)
+@given(x=rational_functions(), y=rational_functions(), u=rational_functions(),
+       v=rational_functions(), d=rational_functions())
+@example(x=a, y=sympy.Integer(0), u=sympy.Integer(0), v=1 / a, d=a)  # t * t/a = 1 cancels fully
+def test_common_denominator_elements_match_the_generic_pairs(x, y, u, v, d):
+    """Over a python-flint field a quadratic extension keeps a + b t as
+    (A + B t)/D over one reduced denominator.  Every operation gives the
+    same element as the generic pair arithmetic (two reduced fractions,
+    :class:`QuadraticElement`) in the same extension (common practice, no
+    source: the field axioms of K(t), t^2 = d)."""
+    from criticality.algebra.quadratic import QuadraticElement
+
+    F = FlintRationalFunctionField(SYMS)
+    fd = F.from_sympy(d)
+    if not fd:
+        fd = F.from_sympy(a)
+    L = QuadraticExtension(F, fd, "s")
+    assert type(L.zero).__name__ == "CommonDenominatorElement"
+
+    def both(p, q):
+        fp, fq = F.from_sympy(p), F.from_sympy(q)
+        return L.element(fp, fq), QuadraticElement(fp, fq, L)
+
+    (fx, sx), (fy, sy) = both(x, y), both(u, v)
+    c = F.from_sympy(u)
+    results = [(fx + fy, sx + sy), (fx - fy, sx - sy), (fx * fy, sx * sy), (-fx, -sx),
+               (fx * c, sx * c), (fx + c, sx + c), (c - fx, c - sx), (fx * 3, sx * 3),
+               (fx.conjugate(), sx.conjugate()), (fx * fx, sx * sx), (fx ** 3, sx ** 3)]
+    for f, s in [(fx, sx), (fy, sy)]:
+        if s.norm():
+            results.append((1 / f, 1 / s))
+            results.append((fy / f, sy / s))
+    if c:
+        results.append((fx / c, sx / c))
+    for f, s in results:
+        assert type(f).__name__ == "CommonDenominatorElement"
+        assert f.a == s.a and f.b == s.b
+        # the representation is the reduced one, so equality is structural
+        assert f.D.gcd(f.A).gcd(f.B).is_one() and f.D.leading_coefficient() > 0
+        assert f == L.element(s.a, s.b) and hash(f) == hash(L.element(s.a, s.b))
+        assert bool(f) == bool(s)
+    assert fx.norm() == sx.norm()
+
+
 @pytest.mark.slow
 @settings(max_examples=80, deadline=None)
 @given(x=rational_functions())

@@ -427,7 +427,7 @@ class Tower:
             db = self.derivative(x.b, symbol)
             dG = self.derivative(ext.radicand, symbol)
             coeff = db + x.b * dG / (2 * ext.radicand) if dG else db
-            return QuadraticElement(ext.base(da), ext.base(coeff), ext)
+            return ext.element(da, coeff)
         return self.base.derivative(self.base(x), symbol)
 
     def substitute(self, x: Element, symbol: sympy.Symbol, value: Element, target: "Tower",

@@ -21,6 +21,7 @@ import flint
 import sympy
 
 from .field import Element, Field, PolynomialRing, RingElement
+from .flint_quadratic import CommonDenominatorElement
 
 __all__ = ["FlintRationalFunctionField", "FlintRationalField", "RationalFunction",
            "FlintPolynomialRing"]
@@ -179,6 +180,9 @@ class FlintRationalFunctionField(Field):
     """
 
     backend = "flint"
+    #: the element class of quadratic extensions of this field: one common
+    #: denominator for both coordinates
+    quadratic_element = CommonDenominatorElement
 
     def __init__(self, symbols: Sequence[sympy.Symbol]) -> None:
         symbols = tuple(symbols)

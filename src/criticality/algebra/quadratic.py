@@ -18,6 +18,7 @@ constructor does not prove this, and a division by a zero divisor raises
 from __future__ import annotations
 
 from fractions import Fraction
+from typing import Any
 
 import sympy
 
@@ -216,18 +217,34 @@ class QuadraticExtension(Field):
         self.level = getattr(base, "level", 0) + 1
         self.backend = base.backend
         self.symbols = base.symbols
-        self.zero = QuadraticElement(base.zero, base.zero, self)
-        self.one = QuadraticElement(base.one, base.zero, self)
-        self.gen = QuadraticElement(base.zero, base.one, self)
+        # a base field may name its own element class for extensions: over a
+        # python-flint parameter field elements share one denominator (see
+        # criticality.algebra.flint_quadratic); elsewhere they are pairs
+        common = getattr(base, "quadratic_element", None)
+        self._common = common is not None
+        if common is not None:
+            rad: Any = self.radicand
+            self._radicand_parts = (rad.num, rad.den)
+            self._from_pair = common.from_pair
+        self.zero = self._element(base.zero, base.zero)
+        self.one = self._element(base.one, base.zero)
+        self.gen = self._element(base.zero, base.one)
+
+    def _element(self, a: Element, b: Element) -> QuadraticElement:
+        if self._common:
+            return self._from_pair(a, b, self)
+        return QuadraticElement(a, b, self)
 
     def __call__(self, value: object) -> QuadraticElement:
         if isinstance(value, QuadraticElement) and value.ext is self:
+            if self._common and type(value) is QuadraticElement:
+                return self._element(value.a, value.b)
             return value
-        return QuadraticElement(self.base(value), self.base.zero, self)
+        return self._element(self.base(value), self.base.zero)
 
     def element(self, a: Element, b: Element) -> QuadraticElement:
         """``a + b*t`` from two elements of the base field."""
-        return QuadraticElement(self.base(a), self.base(b), self)
+        return self._element(self.base(a), self.base(b))
 
     def contains(self, x: Element) -> bool:
         return isinstance(x, QuadraticElement) and x.ext is self
@@ -243,6 +260,8 @@ class QuadraticExtension(Field):
         return self.base.to_sympy(a) + self.base.to_sympy(b) * self.root
 
     def size(self, x: Element) -> int:
+        if self._common and self.contains(x) and hasattr(x, "D"):
+            return len(x.A) + len(x.B) + len(x.D)
         a, b = self.components(x)
         return self.base.size(a) + self.base.size(b)
 
