@@ -132,11 +132,12 @@ def triangular_eliminations(numerators: Sequence[sympy.Expr], pool: Sequence[sym
     dens = [K.ring.from_sympy(_integral(sympy.expand(e.xreplace(replace)))) for e in denominators]
     inside = {gens.index(h): {gens.index(s) for s in a.free_symbols if s in pool}
               for a, h in zip(atoms, holders)}
-    state = _State(K, tuple(gens.index(u) for u in pool), frozenset(gens.index(u) for u in required),
-                   frozenset(gens.index(u) for u in nonzero_unknowns), inside, limit, collect)
+    state = _State(K, tuple(gens.index(u) for u in pool),
+                   frozenset(gens.index(u) for u in required), frozenset(gens.index(u) for u in nonzero_unknowns), inside, limit, collect)
     _descend(state, tuple(enumerate(polys)), (), frozenset())
     back = dict(zip(holders, atoms))
-    found = tuple(_finish(state, steps, polys, dens, back) for steps in state.found.values())
+    found = tuple(e for e in (_finish(state, steps, polys, dens, back)
+                              for steps in state.found.values()) if e is not None)
     return EliminationSearch(found, state.steps, state.capped)
 
 
@@ -248,8 +249,9 @@ def _substituted(state, remaining, u, num, den, used):
     return tuple(out)
 
 
-def _finish(state, steps, polys, dens, back) -> Elimination:
-    """Back-substitute one elimination in the field; expressions as sympy."""
+def _finish(state, steps, polys, dens, back) -> Elimination | None:
+    """Back-substitute one elimination in the field; expressions as sympy
+    (None where a denominator of the model vanishes there identically)."""
     K = state.K
     values: dict = {}
     for index, u, num, den, aside in reversed(steps):
@@ -257,7 +259,10 @@ def _finish(state, steps, polys, dens, back) -> Elimination:
                         K.from_polynomials(den, K.ring.one), values)
     pivots = [_at(K, K.from_polynomials(p, K.ring.one), values)
               for _, _, _, den, aside in steps for p in (den, *aside)]
-    pivots += [_at(K, K.from_polynomials(p, K.ring.one), values) for p in dens]
+    at_dens = [_at(K, K.from_polynomials(p, K.ring.one), values) for p in dens]
+    if any(not d for d in at_dens):
+        return None  # a denominator of the model vanishes identically there
+    pivots += at_dens
     atomic = any(_locked(state, p) & set(values) for p in polys)
     checked = not atomic and all(not _at(K, K.from_polynomials(p, K.ring.one), values)
                                  for p in polys)

@@ -25,8 +25,8 @@ from ..algebra import Tower, collect_atoms
 from ..algebra.domain import algebraic_atom_rules
 from ..algebra.signs import NEGATIVE, NONPOSITIVE, ZERO, SignContext, context_for, truth
 from ..budget import hint, stage
-from ..errors import (ClosedFormUnavailableError, EquilibriumNotFoundError, NoHopfPointError, NotAnalyticError,
-                      NotAnEquilibriumError, ParameterError)
+from ..errors import (ClosedFormUnavailableError, EquilibriumNotFoundError, NoHopfPointError,
+                      NotAnalyticError, NotAnEquilibriumError, ParameterError)
 from .options import (AUTO_ELIMINATE, check_assume, check_name, check_options, check_order,
                       check_values)
 from .equilibria import (EquilibriumChoice, automatic_equilibrium, given_equilibrium,
@@ -170,16 +170,19 @@ def choose_equilibrium(model: Any, equilibrium: Any, eliminate: Any, assumptions
     stage("solving f(x) = 0 for the equilibria (sympy's solve)")
     hint("give the equilibrium in closed form (equilibrium={...}, -e \"x=..., y=...\") or "
          "parametrise the family by it (eliminate=[...], --eliminate)")
+    candidates: list = []
     try:
         candidates = solve_equilibria(model)
+        ctx = context_for(model.parameter_symbols, assumptions)
+        choice = select_equilibrium(model, candidates, equilibrium, ctx)
     except EquilibriumNotFoundError as exc:
-        advice = radical_free_advice(model, parameter, assumptions, keep=keep) if parameter \
-            else ""
+        # none in closed form, or a choice to make among equilibria with radicals
+        wanted = not candidates or any(has_radical(x) for p in candidates for x in p)
+        advice = radical_free_advice(model, parameter, assumptions, keep=keep) \
+            if parameter and wanted else ""
         if not advice:
             raise
         raise EquilibriumNotFoundError(str(exc) + advice) from exc
-    ctx = context_for(model.parameter_symbols, assumptions)
-    choice = select_equilibrium(model, candidates, equilibrium, ctx)
     if parameter is not None and any(has_radical(x) for x in choice.point):
         advice = radical_free_advice(model, parameter, assumptions, keep=keep)
         if advice:
