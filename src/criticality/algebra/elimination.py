@@ -133,7 +133,8 @@ def triangular_eliminations(numerators: Sequence[sympy.Expr], pool: Sequence[sym
     inside = {gens.index(h): {gens.index(s) for s in a.free_symbols if s in pool}
               for a, h in zip(atoms, holders)}
     state = _State(K, tuple(gens.index(u) for u in pool),
-                   frozenset(gens.index(u) for u in required), frozenset(gens.index(u) for u in nonzero_unknowns), inside, limit, collect)
+                   frozenset(gens.index(u) for u in required),
+                   frozenset(gens.index(u) for u in nonzero_unknowns), inside, limit, collect)
     _descend(state, tuple(enumerate(polys)), (), frozenset())
     back = dict(zip(holders, atoms))
     found = tuple(e for e in (_finish(state, steps, polys, dens, back)
