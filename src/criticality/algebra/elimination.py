@@ -117,7 +117,7 @@ def triangular_eliminations(numerators: Sequence[sympy.Expr], pool: Sequence[sym
     >>> x, y, a, b = sympy.symbols("x y a b")
     >>> s = triangular_eliminations([a - x, b*x - x**2*y], [y, a], required=[a])
     >>> [(e.unknowns, e.values) for e in s.found]
-    [((y, a), {a: x, y: b/x})]
+    [((a, y), {y: b/x, a: x})]
     """
     pool = tuple(pool)
     everything = list(numerators) + list(denominators)

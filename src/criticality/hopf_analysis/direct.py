@@ -25,6 +25,7 @@ from typing import TYPE_CHECKING, Any
 import sympy
 
 from ..algebra.polyops import resultant_factors
+from ..algebra.signs import NEGATIVE, POSITIVE, context_for
 
 if TYPE_CHECKING:
     from .results import HopfResult
@@ -51,9 +52,10 @@ class DirectForms:
         the family's critical value is one of them, which one may change with
         the parameters (the coordinate tells them apart).
     l1_boundary : sympy.Expr or None
-        A polynomial in the original parameters that vanishes where ``l1``
-        vanishes on the Hopf set (None where ``l1`` has one sign, or where it
-        could not be eliminated).
+        A product of polynomials in the original parameters that vanishes
+        wherever the sign of ``l1`` can change on the Hopf set (the zero set
+        of l1 and the factors of undecided sign, the coordinate eliminated);
+        None where ``l1`` has one sign, or where it could not be eliminated.
     note : str
         What exists and what does not, in one or two sentences.
     """
@@ -118,32 +120,58 @@ def direct_forms(result: HopfResult) -> DirectForms:
         root = sympy.sqrt(sympy.factor(a1 ** 2 - 4 * a2 * a0))
         candidates = tuple(sympy.factor(-a1 / (2 * a2)) + sign * root / sympy.factor(2 * a2)
                            for sign in (1, -1))
-    boundary = None
-    zero = result.l1_zero_set
-    if zero is not None:
-        boundary = _boundary(zero.lhs - zero.rhs, relation.xreplace({mu: mu_c}), c,
-                             {a: family[a]})
-    words = _words(result, c, hopf, degree, explicit, zero, boundary)
+    deciding = [rel.lhs - rel.rhs for rel in (result.l1_zero_set, result.supercritical_where)
+                if rel is not None]
+    boundary = _boundary(deciding, relation.xreplace({mu: mu_c}), c, {a: family[a]}) \
+        if deciding else None
+    definite = False
+    if boundary is not None and boundary is not _TOO_LARGE:
+        boundary, definite = _undecided(result, boundary)
+    zero = deciding or None
+    words = _words(result, c, hopf, degree, explicit, zero, boundary, definite)
     return DirectForms(hopf, degree, explicit, None if boundary is _TOO_LARGE else boundary,
                        words, candidates)
 
 
-def _boundary(z, relation, c, family):
-    """The factors of ``Res_c(z, relation)`` that meet the zero set ``z = 0``
-    of l1 on the family (a common factor with ``z`` once ``a = E`` is put
-    back)."""
-    factors = resultant_factors(z, relation, c)
-    if factors is None:
-        return _TOO_LARGE
-    if not factors:
+def _boundary(deciding, relation, c, family):
+    """Where the sign of l1 can change on the Hopf set, in the original
+    parameters: each irreducible factor of the deciding expressions (the
+    zero set of l1 and the factors of undecided sign) that holds the
+    coordinate is eliminated by a resultant with the relation ``a = E``, and
+    the factors of the resultant that meet it on the family (a common factor
+    once ``a = E`` is put back) are kept; factors free of the coordinate are
+    kept as they are."""
+    kept: dict = {}
+    for expr in deciding:
+        for part in sympy.fraction(sympy.together(expr)):
+            for f, _ in sympy.factor_list(part)[1]:
+                if not f.free_symbols:
+                    continue
+                if not f.has(c):
+                    kept.setdefault(f, None)
+                    continue
+                factors = resultant_factors(f, relation, c)
+                if factors is None:
+                    return _TOO_LARGE
+                for g in factors:
+                    back = sympy.fraction(sympy.together(g.xreplace(family)))[0]
+                    if g.free_symbols and sympy.gcd(back, f).free_symbols:
+                        kept.setdefault(g, None)
+    if not kept:
         return None
-    zs = [f for f, _ in sympy.factor_list(sympy.fraction(sympy.together(z))[0])[1]]
-    kept = []
-    for f in factors:
-        back = sympy.fraction(sympy.together(f.xreplace(family)))[0]
-        if any(sympy.gcd(back, g).free_symbols for g in zs):
-            kept.append(f)
-    return sympy.Mul(*kept) if kept else None
+    return sympy.Mul(*sorted(kept, key=sympy.default_sort_key))
+
+
+def _undecided(result, boundary):
+    """``(product of the factors of undecided sign, whether every factor had
+    a known sign)`` under the declared assumptions of the original
+    parameters."""
+    names = {str(s) for s in boundary.free_symbols}
+    symbols = [s for s in result.model.parameter_symbols if s.name in names]
+    ctx = context_for(symbols, {s: result.assumptions.get(s.name, "real") for s in symbols})
+    open_ = [f for f in sympy.Mul.make_args(boundary)
+             if f.free_symbols and ctx.polynomial_sign(f) not in (POSITIVE, NEGATIVE)]
+    return (sympy.Mul(*open_) if open_ else None), not open_
 
 
 def _has_root(expr) -> bool:
@@ -151,7 +179,7 @@ def _has_root(expr) -> bool:
                for x in sympy.preorder_traversal(expr))
 
 
-def _words(result, c, hopf, degree, explicit, zero, boundary) -> str:
+def _words(result, c, hopf, degree, explicit, zero, boundary, definite) -> str:
     mu = result.parameter
     text = f"in the original parameters the Hopf set is {sympy.sstr(hopf)} = 0 ({c} eliminated)"
     if explicit is not None:
@@ -163,10 +191,15 @@ def _words(result, c, hopf, degree, explicit, zero, boundary) -> str:
         text += (f"; of degree {degree} in {mu}, so no closed form in radicals is given for the "
                  "critical value in the original parameters")
     if boundary is _TOO_LARGE:
-        text += "; the zero set of l1 was too large to eliminate"
+        text += "; the factors that decide the sign of l1 were too large to eliminate"
     elif boundary is not None:
-        text += f"; l1 vanishes on the Hopf set where {sympy.sstr(boundary)} = 0"
+        text += (f"; the sign of l1 on the Hopf set can change only where "
+                 f"{sympy.sstr(boundary)} = 0")
+    elif definite:
+        text += ("; the factors that decide the sign of l1, taken to the original parameters, "
+                 "do not vanish under the declared signs, so l1 keeps its sign along each "
+                 "connected piece of the Hopf set")
     elif zero is not None:
-        text += ("; the zero set of l1 on the family has no counterpart in the original "
-                 "parameters")
+        text += ("; the factors that decide the sign of l1 have no zero in the original "
+                 "parameters on the family")
     return text

@@ -276,6 +276,14 @@ def _sign_status(ctx_user, ctx_positive, value, declared) -> str:
     return _IF_POSITIVE if ctx_positive.sign(value) in ok else _OPEN
 
 
+def _sign_of_factor(ctx, f):
+    """The sign of a factor assumed non-zero: by its terms where it is a
+    polynomial, by its structure (``exp(...)`` > 0) where not."""
+    if f.is_polynomial(*f.free_symbols):
+        return ctx.polynomial_sign(f)
+    return ctx.structural_sign(f)
+
+
 def _ranked(model, search, assumptions, coordinate_assumptions) -> ParametrisationSearch:
     declared = {model.symbols[p.name]: p.assumption for p in model.parameters}
     declared.update(assumptions or {})
@@ -293,8 +301,8 @@ def _ranked(model, search, assumptions, coordinate_assumptions) -> Parametrisati
                        _sign_status(ctx_user, ctx_pos, value, declared[model.symbols[name]]))
                       for name, value in par.eliminated
                       if declared.get(model.symbols[name], "real") != "real")
-        nonzero = tuple(f for f in par.nonzero
-                        if ctx_user.polynomial_sign(f) not in (POSITIVE, NEGATIVE))
+        nonzero = tuple(f for f in par.nonzero if _sign_of_factor(ctx_user, f)
+                        not in (POSITIVE, NEGATIVE))
         implied = _implied(par, declared, model, coord_words)
         if implied:
             user.update({sympy.Symbol(c, real=True): w for c, w in implied})
