@@ -96,6 +96,18 @@ def test_a_parameter_inside_a_function_is_not_linear():
     assert search.found == () and "enters a function" in search.reason
 
 
+@pytest.mark.parametrize("constant", ["pi", "sqrt(2)", "sin(1)"])
+def test_irrational_constants_are_carried(constant):
+    """Constants outside QQ (pi, sqrt(2), sin(1)) are carried through the
+    elimination as atoms: a = x_eq^3/(k b) with k the constant (common
+    practice, no source)."""
+    m = Model(["x", "y"], {"x": f"{constant}*a - x^2*y", "y": "x - b*y"},
+              {"a": "positive", "b": "positive"})
+    best = find_parametrisations(m, "b").best
+    k = m.parse(constant)
+    assert sympy.simplify(dict(best.eliminated)["a"] - _sym("x_eq") ** 3 / (k * _sym("b"))) == 0
+
+
 def test_a_zero_denominator_is_no_parametrisation():
     """Rosenzweig-MacArthur in K: b = -x_eq would solve the equations on the
     predator-free branch but makes the denominator b + x vanish; every

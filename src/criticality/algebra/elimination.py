@@ -143,11 +143,13 @@ def triangular_eliminations(numerators: Sequence[sympy.Expr], pool: Sequence[sym
 
 
 def _atoms(expr):
-    """The non-polynomial sub-expressions (functions, non-integer powers)."""
+    """The sub-expressions that are not polynomial over QQ (functions,
+    non-integer powers, constants such as pi, floats)."""
     out = set()
     for node in sympy.preorder_traversal(expr):
-        if isinstance(node, sympy.Function) or (
-                isinstance(node, sympy.Pow) and not (node.exp.is_Integer and node.exp >= 0)):
+        if isinstance(node, (sympy.Function, sympy.NumberSymbol, sympy.Float)) or (
+                isinstance(node, sympy.Pow) and not (node.exp.is_Integer and node.exp >= 0)) or (
+                node.is_number and node.is_Atom and not node.is_Rational):
             out.add(node)
     return {a for a in out if not any(a != b and b.has(a) for b in out)}
 

@@ -25,6 +25,7 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any, Mapping, Sequence
 
 import sympy
+from sympy.polys.polyerrors import BasePolynomialError
 
 from ..errors import EquilibriumNotFoundError, ParameterError
 from ..algebra.signs import NEGATIVE, NONNEGATIVE, POSITIVE, ZERO, SignContext
@@ -270,5 +271,5 @@ def radical_free_advice(model: Model, parameter: str, assumptions: Mapping | Non
     exists and how to ask for it, or ``""``."""
     try:
         return find_parametrisations(model, parameter, assumptions, keep=keep).advice()
-    except (sympy.PolynomialError, NotImplementedError, ValueError):
-        return ""
+    except (BasePolynomialError, NotImplementedError, ValueError):
+        return ""  # the advice is a courtesy: a model the finder cannot read gets none

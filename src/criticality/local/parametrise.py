@@ -92,11 +92,6 @@ class Parametrisation:
     how: str = "automatic"
     implied: tuple = ()
 
-    @property
-    def substitutions(self) -> dict:
-        """``{parameter symbol: expression}`` (the model's own symbols)."""
-        return {sympy.Symbol(name, real=True): value for name, value in self.eliminated}
-
     def describe(self) -> str:
         """One line: ``equilibrium coordinates x_eq as parameters; a = ... eliminated``."""
         coords = ", ".join(map(str, self.coordinates))
