@@ -25,7 +25,7 @@ and gives the smallest expressions, in that order.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import TYPE_CHECKING, Any, Iterable, Mapping
+from typing import TYPE_CHECKING, Iterable, Mapping
 
 import sympy
 
@@ -40,8 +40,6 @@ __all__ = ["Parametrisation", "ParametrisationSearch", "find_parametrisations",
 
 #: elimination steps the search explores at most (each one a few small polynomial operations)
 SEARCH_LIMIT = 3000
-#: complete parametrisations collected before ranking
-_COLLECT = 24
 
 _PROVED, _IF_POSITIVE, _OPEN = "proved", "where the coordinates are positive", "not proved"
 
@@ -204,9 +202,10 @@ def find_parametrisations(model: Model, parameter: str, assumptions: Mapping | N
     else:
         reason = (f"the equilibrium equations are not linear or triangular in any set of "
                   f"{len(model.states)} unknowns among the parameters "
-                  f"{', '.join(map(repr, params))} and the states (each such set leaves an "
-                  "equation of degree >= 2 in its unknown, or one in which it enters a "
-                  "function)")
+                  f"{', '.join(map(repr, params))} and the states (in every order some "
+                  "equation is of degree >= 2 in each unknown left or holds it inside a "
+                  "function, or a solution would fix a parameter at 0 or make a denominator "
+                  "vanish)")
         others = [p for p in (p.name for p in model.parameters) if p not in params]
         if others and _search(model, [p.name for p in model.parameters], limit).found:
             reason += (f"; only sets that eliminate {', '.join(map(repr, others))} exist, and "
