@@ -332,7 +332,7 @@ ANALYSIS_OPTIONS = ("equilibrium", "eliminate", "branch", "order", "values", "as
 NEAR_VALID = {
     "equilibrium": st.sampled_from([None, {"x": 0, "y": 0}, {"x": "0", "y": "a - a"},
                                     {"x": 1, "y": 0}, {"x": 0}, 0, "positive", 3]),
-    "eliminate": st.sampled_from([None, ["a", "y"], ["mu", "y"], ["x"], []]),
+    "eliminate": st.sampled_from([None, ["a", "y"], ["mu", "y"], ["x"], [], "auto"]),
     "branch": st.sampled_from([None, 0, 1, 2]),
     "order": st.sampled_from([3, 5, 7, 21, 23]),
     "values": st.sampled_from([None, {"a": 2}, {"a": "1/3", "b": 0}, {"a": -1}, {"mu": 1},

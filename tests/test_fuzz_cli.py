@@ -81,7 +81,7 @@ def _options(folder: str):
         _option("-p", NAMES), _option("--second", NAMES),
         _option("-e", st.one_of(PAIR, st.sampled_from(["0", "1", "99", "nonzero",
                                                        "nonnegative", "", "x=0, y=0"]))),
-        _option("--eliminate", st.sampled_from(["a", "a,mu", "x", "", "zz,zz"])),
+        _option("--eliminate", st.sampled_from(["a", "a,mu", "x", "", "zz,zz", "auto"])),
         _option("--set", PAIR), _option("--assume", PAIR), _option("--at", PAIR),
         _option("--order", NUMBER_TEXT), _option("--branch", NUMBER_TEXT),
         _option("--backend", st.sampled_from(["flint", "sympy", "numpy"])),

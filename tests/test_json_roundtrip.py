@@ -21,7 +21,7 @@ TOP_KEYS = {"schema", "schema_version", "generator", "analysis", "status", "conv
             "omega_squared", "omega", "period", "transversality", "eigenvalue_derivative", "c1",
             "l1", "planar_coefficient", "lyapunov_coefficients", "q_norm_squared",
             "classification", "verdict", "supercritical_where", "l1_zero_set", "conditions",
-            "cycle", "routes_agree", "notes", "cautions", "numeric"}
+            "cycle", "routes_agree", "parametrisation", "notes", "cautions", "numeric"}
 
 
 def _canonical(e):

@@ -86,6 +86,7 @@ def test_radicals_and_long_coefficients_compile(tmp_path):
 @pytest.mark.slow
 @pytest.mark.parametrize("name, options", [
     ("plankton_grazer", {}), ("firing_rate_unit", {}), ("lagged_oscillator", {}),
+    ("plankton_grazer", {"eliminate": "auto"}),
     ("cooled_reactor", {"eliminate": ["k", "T0"],
                         "assume": {"c_eq": "positive", "T_eq": "positive"}}),
 ])

@@ -19,7 +19,11 @@ import sympy
 from .field import Element
 from .flint_field import FlintRationalField, FlintRationalFunctionField
 
-__all__ = ["NumeratorFactor", "numerator_factors", "pair_resultant", "value_at"]
+__all__ = ["NumeratorFactor", "numerator_factors", "pair_resultant", "value_at",
+           "resultant_factors", "MAX_RESULTANT_TERMS"]
+
+#: polynomials above this many terms are not eliminated by :func:`resultant_factors`
+MAX_RESULTANT_TERMS = 400
 
 
 class NumeratorFactor:
@@ -113,3 +117,32 @@ def value_at(K: Any, x: Element, point: Sequence[int]) -> Element | None:
 def rational_field(K: Any) -> FlintRationalField | None:
     """QQ on the backend of ``K``."""
     return FlintRationalField() if isinstance(K, FlintRationalFunctionField) else None
+
+
+def resultant_factors(p: sympy.Expr, q: sympy.Expr, symbol: sympy.Symbol) -> list | None:
+    """The distinct irreducible factors of ``Res_symbol(num p, num q)``, as
+    sympy expressions (python-flint's resultant and factorisation); None when
+    a numerator is not a polynomial with rational coefficients or has more
+    than :data:`MAX_RESULTANT_TERMS` terms.
+
+    Examples
+    --------
+    >>> x, a, b = sympy.symbols("x a b")
+    >>> resultant_factors(b - 1 - x**2, a - x, x)
+    [a**2 - b + 1]
+    """
+    nums = [sympy.fraction(sympy.together(e))[0] for e in (p, q)]
+    symbols = sorted(set().union(*(e.free_symbols for e in nums)) | {symbol},
+                     key=sympy.default_sort_key)
+    try:
+        polys = [sympy.Poly(e, *symbols, domain="QQ") for e in nums]
+    except (sympy.PolynomialError, sympy.CoercionFailed):
+        return None
+    if any(len(f.terms()) > MAX_RESULTANT_TERMS for f in polys):
+        return None
+    ring = FlintRationalFunctionField(symbols).ring
+    flints = [ring.from_sympy(f.clear_denoms()[1].as_expr()) for f in polys]
+    R = flints[0].resultant(flints[1], str(symbol))
+    if R.is_zero():
+        return []
+    return [ring.to_sympy(f) for f, _ in R.factor()[1]]

@@ -193,7 +193,8 @@ def bautin_points(model: Model, parameter: str, second: str, *,
     """
     check_second(parameter or getattr(model, "bifurcation_parameter", None), second)
     prep = prepare(model, parameter, equilibrium=equilibrium, eliminate=eliminate,
-                   values=values, assume=assume, order=5, backend=backend, vary=True)
+                   values=values, assume=assume, order=5, backend=backend, vary=True,
+                   keep=(second,))
     sec = prep.symbol(second)
     out = run_engine(prep)
     found, unsolved = [], []

@@ -193,7 +193,7 @@ def bogdanov_takens_all(model: Model, parameter: str, second: str, *,
     """Every closed-form Bogdanov-Takens point (see :func:`bogdanov_takens`)."""
     check_second(parameter or getattr(model, "bifurcation_parameter", None), second)
     prep = prepare(model, parameter, equilibrium=equilibrium, eliminate=eliminate,
-                   values=values, assume=assume, order=2, backend=backend)
+                   values=values, assume=assume, order=2, backend=backend, keep=(second,))
     u1, u2 = prep.symbol(parameter), prep.symbol(second)
     chi = characteristic_polynomial(prep.tower.top, prep.taylor.jacobian())
     out = []

@@ -294,7 +294,7 @@ def fold_hopf_all(model: Model, parameters: str | Sequence[str], second: str | N
     p1, p2 = _names(parameters, second)
     model.require_kind("flow", "the fold-Hopf analysis")
     prep = prepare(model, p1, equilibrium=equilibrium, eliminate=eliminate, values=values,
-                   assume=assume, order=2, backend=backend)
+                   assume=assume, order=2, backend=backend, keep=(p2,))
     u1, u2 = prep.symbol(p1), prep.symbol(p2)
     conditions = _conditions(prep, u1, u2)
     unfolding = _unfolding(prep, u1, u2, *conditions)

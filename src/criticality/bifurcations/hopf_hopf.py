@@ -361,7 +361,7 @@ def hopf_hopf_all(model: Model, parameters: str | Sequence[str], second: str | N
     p1, p2 = _names(parameters, second)
     model.require_kind("flow", "the Hopf-Hopf analysis")
     prep = prepare(model, p1, equilibrium=equilibrium, eliminate=eliminate, values=values,
-                   assume=assume, order=3, backend=backend)
+                   assume=assume, order=3, backend=backend, keep=(p2,))
     u1, u2 = prep.symbol(p1), prep.symbol(p2)
     if point is None:
         c0, c1 = _conditions(prep)

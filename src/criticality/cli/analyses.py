@@ -32,7 +32,8 @@ from typing import Any
 
 from .options import flags as _flags
 from .options import UsageError, time_limit_option
-from .support import Stage, equilibrium_choice, name_list, pairs, read_model, write_output
+from .support import (Stage, eliminate_option, equilibrium_choice, pairs,
+                      read_model, write_output)
 from ..budget import time_limit
 
 __all__ = ["register"]
@@ -49,8 +50,9 @@ def _options(parser, analysis) -> None:
     parser.add_argument("-e", "--equilibrium", type=equilibrium_choice, metavar="CHOICE",
                         help='the equilibrium: "x=0, y=1", an index, or positive / '
                         "nonnegative / nonzero")
-    parser.add_argument("--eliminate", type=name_list, metavar="NAMES",
-                        help="parametrise the family by the equilibrium (see `analyse --help`)")
+    parser.add_argument("--eliminate", type=eliminate_option, metavar="NAMES",
+                        help="parametrise the family by the equilibrium: names, or auto "
+                        "(see `analyse --help`)")
     parser.add_argument("--set", dest="values", action="append", default=[],
                         metavar="NAME=VALUE", type=lambda s: pairs([s], "--set"),
                         help="fix a parameter to an exact value first (repeatable)")

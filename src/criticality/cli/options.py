@@ -12,7 +12,8 @@ import argparse
 from typing import Any, Iterable, Mapping
 
 from . import ranges
-from .support import Stage, equilibrium_choice, name_list, pairs, read_model, split_top_level
+from .support import (Stage, eliminate_option, equilibrium_choice, pairs, read_model,
+                      split_top_level)
 
 __all__ = ["UsageError", "flags", "time_limit_option", "add_analysis_options", "merge", "quiet", "analyse_from_args"]
 
@@ -49,10 +50,11 @@ def add_analysis_options(parser: argparse.ArgumentParser) -> None:
                         help='the equilibrium: "x=0, y=sqrt(b*(r-1))", an index (0, 1, ...) of '
                         "the solved equilibria, or positive / nonnegative / nonzero (default: "
                         "the model file's, else the only one)")
-    parser.add_argument("--eliminate", type=name_list, metavar="NAMES",
+    parser.add_argument("--eliminate", type=eliminate_option, metavar="NAMES",
                         help="parametrise the family by the equilibrium: solve f(x0) = 0 for "
                         "these names (comma-separated, one per state); the other states "
-                        "become free symbols <state>_eq")
+                        "become free symbols <state>_eq. 'auto' lets the engine choose "
+                        "parameters in which f(x0) = 0 is linear or triangular (no radicals)")
     parser.add_argument("--set", dest="values", action="append", default=[], metavar="NAME=VALUE",
                         type=lambda s: pairs([s], "--set"),
                         help="fix a parameter to an exact value before the analysis, e.g. "

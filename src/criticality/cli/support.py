@@ -19,7 +19,8 @@ from typing import Any, Iterable, Iterator
 
 from ..errors import NameTypoWarning, OutputError
 
-__all__ = ["pairs", "split_top_level", "equilibrium_choice", "name_list", "Stage",
+__all__ = ["pairs", "split_top_level", "equilibrium_choice", "name_list", "eliminate_option",
+           "Stage",
            "read_model", "typo_warnings", "write_output", "is_terminal", "EQUILIBRIUM_WORDS"]
 
 #: equilibrium choices that ask the engine to solve and select
@@ -92,6 +93,12 @@ def name_list(text: str) -> list:
     if not names:
         raise argparse.ArgumentTypeError("expected one or more names separated by commas")
     return names
+
+
+def eliminate_option(text: str) -> list | str:
+    """``--eliminate``: comma-separated names, or ``auto`` (the engine finds
+    a linear or triangular set)."""
+    return "auto" if text.strip() == "auto" else name_list(text)
 
 
 class Stage:

@@ -13,6 +13,7 @@ from dataclasses import replace
 from typing import TYPE_CHECKING, Mapping, Sequence, Union
 
 from .assemble import build_result
+from .direct import direct_forms
 from ..local.boundary import guarded
 from ..budget import hint, stage
 from ..budget import time_limit as time_limit_
@@ -53,10 +54,17 @@ def hopf(model: Model, parameter: str | None = None, *, equilibrium: Equilibrium
         ``f(x) = 0``, the index of the equilibrium or one of ``"positive"``,
         ``"nonnegative"``, ``"nonzero"``.  Default: the model file's
         equilibrium, else the only equilibrium.
-    eliminate : sequence of str, optional
+    eliminate : sequence of str or "auto", optional
         Parametrise the family by the equilibrium: these names (parameters or
         states, one per state) are solved from ``f(x0) = 0``; the other states
-        become free symbols ``<state>_eq``.
+        become free symbols ``<state>_eq``.  ``"auto"`` lets the engine choose
+        parameters (never ``parameter``) in which ``f(x0) = 0`` is linear or
+        triangular, so that no radical appears
+        (:mod:`criticality.local.parametrise`); the result's
+        ``parametrisation`` says which, and ``direct_forms`` gives the Hopf
+        condition back in the original parameters as far as it exists.  Not
+        the default: where the solved equilibrium has radicals, the result's
+        notes (or the refusal) name the parametrisation this would use.
     branch : int, optional
         Which branch of the critical set to return when there are several
         (default 0; all branches: :func:`hopf_all`).
@@ -149,6 +157,9 @@ def _analyse(model, parameter, equilibrium, eliminate, order, values, assume, ba
             "omega^2 <= 0 on this branch under the declared assumptions: the two eigenvalues "
             "that sum to zero are a real pair +-kappa (a neutral saddle), not a pair crossing "
             "the imaginary axis", reason="omega_squared_nonpositive")
+    if prep.choice.parametrisation is not None:
+        stage("the Hopf condition in the original parameters (eliminating the coordinate)")
+        results = [replace(r, direct_forms=direct_forms(r)) for r in results]
     if values:  # the outputs list the parameters fixed before the analysis
         fixed = model.value_substitution(values)
         records = tuple((model.parameter(s.name), v) for s, v in fixed.items())

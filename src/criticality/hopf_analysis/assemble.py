@@ -160,6 +160,7 @@ def build_result(model: Model, name: str, mu: sympy.Symbol, choice: EquilibriumC
         notes=tuple(_notes(model, choice, out, bc)),
         assumptions={str(k): v for k, v in assumptions.items()},
         _details=_Details(B, bc, omega, model),
+        parametrisation=choice.parametrisation,
     )
 
 

@@ -190,6 +190,13 @@ class HopfResult:
     _details: Any = field(default=None, repr=False, compare=False)
     #: ``(parameter record, value)`` of the parameters fixed before the analysis (``values=``)
     fixed_parameters: tuple = ()
+    #: how the family was parametrised by the equilibrium (``eliminate=``), or None:
+    #: a :class:`~criticality.local.parametrise.Parametrisation` (unknowns, coordinates,
+    #: eliminated parameters, factors assumed non-zero)
+    parametrisation: Any = None
+    #: the Hopf condition back in the original parameters, as far as it exists
+    #: (:class:`~criticality.hopf_analysis.direct.DirectForms`), for a parametrised family
+    direct_forms: Any = None
 
     def __post_init__(self) -> None:
         coerce(self, classification=Classification)
@@ -238,6 +245,31 @@ class HopfResult:
             if c.key == key:
                 return c
         raise KeyError(key)
+
+    def family_point(self, values: Mapping | None = None, **kwargs: object) -> dict:
+        """The point in the original parameters that a point of a
+        parametrised family stands for: the eliminated parameters and the
+        critical value at the given free symbols (``x_eq=1, b=2``), exact.
+
+        This is the forward direction (rational in the coordinates); the
+        way back, from the original parameters to the coordinates, solves
+        the equilibrium equations and is what :attr:`direct_forms` states
+        as far as it exists.
+        """
+        from ..checks.numeric import parameter_values
+        from ..local.options import check_point
+
+        merged = dict(values or {})
+        merged.update(kwargs)
+        exact = parameter_values(self, check_point(merged))
+        table = {s: exact[s.name] for e in (self.critical_value, *self.substitutions.values())
+                 for s in e.free_symbols if s.name in exact}
+        mu_c = sympy.cancel(self.critical_value.xreplace(table))
+        out = {name: sympy.cancel(v.xreplace(table).xreplace({self.parameter_symbol: mu_c}))
+               for name, v in self.substitutions.items()}
+        out[self.parameter] = mu_c
+        out.update({k: v for k, v in exact.items() if k in self.model.symbols})
+        return out
 
     # -- the user's own symbols -------------------------------------------------------------
     def with_declared_symbols(self) -> "HopfResult":

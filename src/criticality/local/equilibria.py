@@ -13,24 +13,29 @@ Three ways to fix the steady state ``x0`` the analysis shifts to:
 * parametrised: the caller names as many unknowns (parameters or states) as
   there are states; they are solved from ``f(x0) = 0`` while the remaining
   states become free symbols ``<state>_eq`` of the family.  This is the usual
-  practice for models whose equilibrium has no closed form.
+  practice for models whose equilibrium has no closed form;
+* parametrised automatically (``eliminate="auto"``): the unknowns are found by
+  :mod:`criticality.local.parametrise`, where the equations are linear or
+  triangular in them, so that no radical appears.
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import TYPE_CHECKING, Any, Sequence
+from typing import TYPE_CHECKING, Any, Mapping, Sequence
 
 import sympy
+from sympy.polys.polyerrors import BasePolynomialError
 
 from ..errors import EquilibriumNotFoundError, ParameterError
 from ..algebra.signs import NEGATIVE, NONNEGATIVE, POSITIVE, ZERO, SignContext
+from .parametrise import Parametrisation, coordinate_symbols, find_parametrisations
 
 if TYPE_CHECKING:
     from ..model.core import Model
 
 __all__ = ["EquilibriumChoice", "given_equilibrium", "solve_equilibria", "select_equilibrium",
-           "parametrised_equilibrium"]
+           "parametrised_equilibrium", "automatic_equilibrium", "radical_free_advice"]
 
 _CONDITIONS = ("positive", "nonnegative", "nonzero")
 
@@ -51,6 +56,10 @@ class EquilibriumChoice:
     new_symbols : tuple of sympy.Symbol
         Free symbols introduced for equilibrium coordinates.
     note : str
+    parametrisation : Parametrisation or None
+        The parametrisation of the family (parametrised mode): which
+        unknowns were solved for, named by the caller or found
+        automatically, and the factors assumed non-zero.
     """
 
     point: tuple
@@ -58,6 +67,7 @@ class EquilibriumChoice:
     substitutions: dict
     new_symbols: tuple
     note: str = ""
+    parametrisation: Parametrisation | None = None
 
 
 def given_equilibrium(model: Model, mapping: Any) -> EquilibriumChoice:
@@ -199,13 +209,7 @@ def parametrised_equilibrium(model: Model, eliminate: Sequence[str]) -> Equilibr
         if name not in model.symbols:
             model.parameter(name)  # raises a ParameterError with a suggestion
     free_states = [s for s in model.states if s not in eliminate]
-    taken = set(model.symbols)
-    new = {}
-    for s in free_states:
-        name = f"{s}_eq"
-        while name in taken:
-            name += "_"
-        new[s] = sympy.Symbol(name, real=True)
+    new = coordinate_symbols(model, free_states)
     repl = {model.symbols[s]: new[s] for s in free_states}
     eqs = [e.xreplace(repl) for e in model.equations]
     unknowns = [model.symbols[u] for u in eliminate]
@@ -228,4 +232,44 @@ def parametrised_equilibrium(model: Model, eliminate: Sequence[str]) -> Equilibr
     note = ("family parametrised by the equilibrium: " +
             ", ".join(f"{k} = {v}" for k, v in subs.items()) +
             (f" (solution 1 of {len(sols)})" if len(sols) > 1 else ""))
-    return EquilibriumChoice(point, "parametrised", subs, tuple(new[s] for s in free_states), note)
+    coords = tuple(new[s] for s in free_states)
+    record = Parametrisation(tuple(eliminate), "named", point,
+                             tuple((str(k), v) for k, v in subs.items()), coords, (), (),
+                             how="named")
+    return EquilibriumChoice(point, "parametrised", subs, coords, note, record)
+
+
+def automatic_equilibrium(model: Model, parameter: str, assumptions: Mapping | None = None, *,
+                          keep: Sequence[str] = (),
+                          coordinate_assumptions: Mapping | None = None) -> EquilibriumChoice:
+    """The family parametrised by the equilibrium in the unknowns that
+    :func:`~criticality.local.parametrise.find_parametrisations` ranks first
+    (``eliminate="auto"``).
+
+    Raises
+    ------
+    EquilibriumNotFoundError
+        When no linear or triangular set exists, saying why.
+    """
+    search = find_parametrisations(model, parameter, assumptions, keep=keep,
+                                   coordinate_assumptions=coordinate_assumptions)
+    best = search.best
+    if best is None:
+        raise EquilibriumNotFoundError(
+            f"eliminate='auto' found no radical-free parametrisation of the equilibrium: "
+            f"{search.reason}. Name the unknowns to solve for (eliminate=[...]), give the "
+            "equilibrium, or use the numeric mode (guess={...})")
+    subs = {model.symbols[name]: value for name, value in best.eliminated}
+    note = "; ".join((f"family parametrised automatically ({best.kind} in "
+                      f"{', '.join(best.unknowns)}): {best.describe()}",) + best.sign_notes())
+    return EquilibriumChoice(best.point, "parametrised", subs, best.coordinates, note, best)
+
+
+def radical_free_advice(model: Model, parameter: str, assumptions: Mapping | None = None, *,
+                        keep: Sequence[str] = ()) -> str:
+    """A clause for a refusal or a note: the automatic parametrisation that
+    exists and how to ask for it, or ``""``."""
+    try:
+        return find_parametrisations(model, parameter, assumptions, keep=keep).advice()
+    except (BasePolynomialError, NotImplementedError, ValueError):
+        return ""  # the advice is a courtesy: a model the finder cannot read gets none

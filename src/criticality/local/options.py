@@ -24,8 +24,8 @@ from ..model.parameter import ASSUMPTIONS
 
 __all__ = ["MAX_ORDER", "BACKENDS", "EQUILIBRIUM_WORDS", "check_order", "check_branch",
            "check_backend", "check_values", "check_assume", "check_equilibrium",
-           "check_eliminate", "check_second", "check_digits", "check_point", "check_name", "refuse_unused",
-           "check_options", "equilibrium_count_bound", "pick_branch"]
+           "check_eliminate", "AUTO_ELIMINATE", "check_second", "check_digits", "check_point",
+           "check_name", "refuse_unused", "check_options", "equilibrium_count_bound", "pick_branch"]
 
 #: highest normal-form order (l1 .. l10); each order costs a series solve
 MAX_ORDER = 21
@@ -158,14 +158,20 @@ def check_assume(assume: Any) -> dict | None:
     return out
 
 
-def check_eliminate(eliminate: Any) -> tuple | None:
-    """A sequence of names (parameters or states) to solve for."""
-    if eliminate is None:
-        return None
+#: the value of eliminate= that lets the engine choose the unknowns (local.parametrise)
+AUTO_ELIMINATE = "auto"
+
+
+def check_eliminate(eliminate: Any) -> tuple | str | None:
+    """A sequence of names (parameters or states) to solve for, or
+    :data:`AUTO_ELIMINATE` (the engine finds a linear or triangular set)."""
+    if eliminate is None or eliminate == AUTO_ELIMINATE:
+        return eliminate
     if isinstance(eliminate, str) or not isinstance(eliminate, (list, tuple)) or not all(
             isinstance(n, str) and n for n in eliminate):
         raise ParameterError("eliminate must be a list of names (one parameter or state per "
-                             f"state), e.g. ['a', 'b']; got {_shown(eliminate)}")
+                             f"state), e.g. ['a', 'b'], or '{AUTO_ELIMINATE}' to let the engine "
+                             f"choose them; got {_shown(eliminate)}")
     return tuple(eliminate)
 
 

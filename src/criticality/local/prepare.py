@@ -25,11 +25,13 @@ from ..algebra import Tower, collect_atoms
 from ..algebra.domain import algebraic_atom_rules
 from ..algebra.signs import NEGATIVE, NONPOSITIVE, ZERO, SignContext, context_for, truth
 from ..budget import hint, stage
-from ..errors import (ClosedFormUnavailableError, NoHopfPointError, NotAnalyticError,
-                      NotAnEquilibriumError, ParameterError)
-from .options import check_assume, check_name, check_options, check_order, check_values
-from .equilibria import (EquilibriumChoice, given_equilibrium, parametrised_equilibrium,
-                         select_equilibrium, solve_equilibria)
+from ..errors import (ClosedFormUnavailableError, EquilibriumNotFoundError, NoHopfPointError,
+                      NotAnalyticError, NotAnEquilibriumError, ParameterError)
+from .options import (AUTO_ELIMINATE, check_assume, check_name, check_options, check_order,
+                      check_values)
+from .equilibria import (EquilibriumChoice, automatic_equilibrium, given_equilibrium,
+                         parametrised_equilibrium, radical_free_advice, select_equilibrium,
+                         solve_equilibria)
 from .sign_words import expr, sign_word
 from .solve import SolvedPoint, solve_for
 from .taylor import RawTaylor, TaylorForms, raw_taylor
@@ -41,7 +43,7 @@ EquilibriumSpec = Union[Mapping[str, object], Sequence[object], int, str, None]
 
 __all__ = ["EquilibriumSpec", "PreparedProblem", "prepare", "prepare_system", "check_order",
            "resolve_parameter", "assumption_map", "choose_equilibrium", "SolvedPoint", "solve_for",
-           "sign_word", "expr", "unknown_symbol"]
+           "sign_word", "expr", "unknown_symbol", "has_radical"]
 
 @dataclass(frozen=True)
 class PreparedProblem:
@@ -137,13 +139,25 @@ def assumption_map(model: Any, assume: Mapping | None) -> dict:
 
 
 def choose_equilibrium(model: Any, equilibrium: Any, eliminate: Any, assumptions: Mapping,
-                       full: Any = None, fixed: Mapping | None = None) -> EquilibriumChoice:
+                       full: Any = None, fixed: Mapping | None = None, *,
+                       parameter: str | None = None, keep: Sequence[str] = (),
+                       assume: Mapping | None = None) -> EquilibriumChoice:
     """Choose the equilibrium.  A given mapping is read against the model as
     written (``full``), so it may name parameters fixed by ``values``; their
-    values (``fixed``) are then substituted."""
+    values (``fixed``) are then substituted.  ``eliminate="auto"`` keeps
+    ``parameter`` and ``keep`` as parameters of the family; where the solved
+    equilibrium needs radicals (or none is found), the radical-free
+    parametrisation that exists is named in the note (or the error)."""
     if eliminate is not None:
         if equilibrium is not None:
             raise ParameterError("give either an equilibrium or eliminate=..., not both")
+        if eliminate == AUTO_ELIMINATE:
+            if parameter is None:
+                raise ParameterError("eliminate='auto' needs the bifurcation parameter, which "
+                                     "it keeps as a parameter of the family")
+            stage("finding a radical-free parametrisation of the equilibrium")
+            return automatic_equilibrium(model, parameter, assumptions, keep=keep,
+                                         coordinate_assumptions=assume)
         return parametrised_equilibrium(model, eliminate)
     if isinstance(equilibrium, Mapping):
         choice = given_equilibrium(full if full is not None else model, equilibrium)
@@ -156,9 +170,31 @@ def choose_equilibrium(model: Any, equilibrium: Any, eliminate: Any, assumptions
     stage("solving f(x) = 0 for the equilibria (sympy's solve)")
     hint("give the equilibrium in closed form (equilibrium={...}, -e \"x=..., y=...\") or "
          "parametrise the family by it (eliminate=[...], --eliminate)")
-    candidates = solve_equilibria(model)
-    ctx = context_for(model.parameter_symbols, assumptions)
-    return select_equilibrium(model, candidates, equilibrium, ctx)
+    candidates: list = []
+    try:
+        candidates = solve_equilibria(model)
+        ctx = context_for(model.parameter_symbols, assumptions)
+        choice = select_equilibrium(model, candidates, equilibrium, ctx)
+    except EquilibriumNotFoundError as exc:
+        # none in closed form, or a choice to make among equilibria with radicals
+        wanted = not candidates or any(has_radical(x) for p in candidates for x in p)
+        advice = radical_free_advice(model, parameter, assumptions, keep=keep) \
+            if parameter and wanted else ""
+        if not advice:
+            raise
+        raise EquilibriumNotFoundError(str(exc) + advice) from exc
+    if parameter is not None and any(has_radical(x) for x in choice.point):
+        advice = radical_free_advice(model, parameter, assumptions, keep=keep)
+        if advice:
+            note = "the solved equilibrium has radicals" + advice
+            choice = replace(choice, note="; ".join(n for n in (choice.note, note) if n))
+    return choice
+
+
+def has_radical(expr: sympy.Expr) -> bool:
+    """Whether ``expr`` holds a root of a non-constant expression."""
+    return any(not a.exp.is_Integer and a.base.free_symbols
+               for a in sympy.preorder_traversal(expr) if isinstance(a, sympy.Pow))
 
 
 def resolve_parameter(model: Any, parameter: str | None,
@@ -187,7 +223,7 @@ def prepare(model: Any, parameter: str | None = None, *, equilibrium: Any = None
             values: Mapping | None = None, assume: Mapping | None = None, order: int = 3,
             backend: str = "flint",
             extra: Callable[[Any, EquilibriumChoice], Iterable] | None = None,
-            vary: bool = False) -> PreparedProblem:
+            vary: bool = False, keep: Sequence[str] = ()) -> PreparedProblem:
     """Build the problem of an analysis once.
 
     Parameters
@@ -206,6 +242,9 @@ def prepare(model: Any, parameter: str | None = None, *, equilibrium: Any = None
         The analysis varies ``parameter`` across a critical value (Hopf,
         Bautin): it must stay free, occur in the model and not occur inside a
         transcendental function at the equilibrium.
+    keep : sequence of str
+        Further parameters ``eliminate="auto"`` must not eliminate (a second
+        parameter of the analysis).
     """
     if getattr(model, "kind", "flow") == "map":
         model.require_kind("flow", "this analysis", "for maps use flip(), neimark_sacker() or "
@@ -219,13 +258,15 @@ def prepare(model: Any, parameter: str | None = None, *, equilibrium: Any = None
     model, name = resolve_parameter(model, parameter, values)
     assumptions = assumption_map(model, assume)
     stage("choosing the equilibrium")
-    choice = choose_equilibrium(model, equilibrium, eliminate, assumptions, full, fixed)
+    choice = choose_equilibrium(model, equilibrium, eliminate, assumptions, full, fixed,
+                                parameter=name, keep=keep, assume=assume)
     eqs = tuple(e.xreplace(choice.substitutions) for e in model.equations)
     mu = model.symbols[name]
     if vary and any(s == mu for s in choice.substitutions):
         raise ParameterError(f"the bifurcation parameter '{name}' cannot be eliminated")
+    implied = dict(choice.parametrisation.implied) if choice.parametrisation else {}
     for s in choice.new_symbols:
-        assumptions.setdefault(s, (assume or {}).get(s.name, "real"))
+        assumptions.setdefault(s, (assume or {}).get(s.name, implied.get(s.name, "real")))
     params = tuple(s for s in model.parameter_symbols if s not in choice.substitutions)
     params += tuple(choice.new_symbols)
     if vary and not any(e.has(mu) for e in eqs) and not any(x.has(mu) for x in choice.point):
@@ -272,11 +313,16 @@ def _fields(model, name, mu, choice, eqs, params, assumptions, order, backend, p
     atoms = collect_atoms(list(raw.coefficients()) + list(equilibrium) + list(more), params)
     inside = [a for a in atoms if a.has(mu)] if vary else []
     if inside:
+        advice = ""
+        if model is not None and choice.how != "parametrised":
+            advice = radical_free_advice(model, name, assumptions).lstrip("; ")
+            advice = f" {advice[0].upper()}{advice[1:]}." if advice else ""
         raise ClosedFormUnavailableError(
             f"the bifurcation parameter '{mu}' occurs inside {inside[0]} at the "
             "equilibrium, so its critical value is not algebraic in closed form. Parametrise "
-            "the family by the equilibrium (eliminate=[...]) so that it occurs polynomially, "
-            "choose another bifurcation parameter, or use the numeric mode (guess={...}).")
+            "the family by the equilibrium (eliminate=[...] or eliminate='auto') so that it "
+            "occurs polynomially, choose another bifurcation parameter, or use the numeric "
+            f"mode (guess={{...}}).{advice}")
     tower = Tower(params, atoms, backend, lambda e: truth(plain.sign(e)))
     x0 = [tower.convert(e) for e in equilibrium]
     taylor = TaylorForms.from_raw(raw, x0, tower.convert, tower.base)

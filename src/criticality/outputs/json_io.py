@@ -133,6 +133,25 @@ def _numeric_fields(num, digits: int) -> dict:
     }
 
 
+def _parametrisation(result) -> dict | None:
+    """How the family was parametrised by the equilibrium, and the Hopf
+    condition in the original parameters (``null`` for a given or solved
+    equilibrium)."""
+    par = getattr(result, "parametrisation", None)
+    if par is None:
+        return None
+    direct = getattr(result, "direct_forms", None)
+    return {"how": par.how, "kind": par.kind, "unknowns": list(par.unknowns),
+            "coordinates": [str(c) for c in par.coordinates],
+            "nonzero": [_expr(e) for e in par.nonzero],
+            "description": par.describe(),
+            "direct": None if direct is None else {
+                "hopf_set": _expr(direct.hopf_set),
+                "degree": None if direct.degree is None else int(direct.degree),
+                "critical_value": _expr(direct.critical_value),
+                "l1_boundary": _expr(direct.l1_boundary), "note": direct.note}}
+
+
 def result_to_dict(result: HopfResult, *, point: Mapping | None = None, digits: int = 30) -> dict:
     """The result as plain Python data in the JSON schema (see
     :func:`result_to_json`)."""
@@ -165,6 +184,7 @@ def result_to_dict(result: HopfResult, *, point: Mapping | None = None, digits: 
                         "relation": c.relation, "status": c.status} for c in result.conditions],
         "cycle": _cycle(result.cycle),
         "routes_agree": bool(result.routes_agree),
+        "parametrisation": _parametrisation(result),
     }
     return envelope(SCHEMA, "hopf", body, status=result.status,
                     conventions={k: getattr(conventions, k) for k in _CONVENTION_KEYS},
@@ -275,6 +295,12 @@ def _walk(doc: dict) -> list:
     eq = _object(doc.get("equilibrium"), "equilibrium")
     for part in ("point", "eliminated"):
         add_named(f"equilibrium.{part}", eq.get(part))
+    par = _object(doc.get("parametrisation"), "parametrisation")
+    for k, value in enumerate(_array(par.get("nonzero"), "parametrisation.nonzero")):
+        add(f"parametrisation.nonzero.{k}", value)
+    direct = _object(par.get("direct"), "parametrisation.direct")
+    for key in ("hopf_set", "critical_value", "l1_boundary"):
+        add(f"parametrisation.direct.{key}", direct.get(key))
     cycle = _object(doc.get("cycle"), "cycle")
     add_relation("cycle.side_condition", cycle.get("side_condition"))
     for key in ("radius_squared", "period", "frequency_slope"):
@@ -351,6 +377,12 @@ def result_expressions(result: HopfResult) -> dict:
         table[f"equilibrium.point.{name}"] = value
     for name, value in result.substitutions.items():
         table[f"equilibrium.eliminated.{name}"] = value
+    par, direct = getattr(result, "parametrisation", None), getattr(result, "direct_forms", None)
+    for k, value in enumerate(par.nonzero if par is not None else ()):
+        table[f"parametrisation.nonzero.{k}"] = value
+    for key in ("hopf_set", "critical_value", "l1_boundary"):
+        if direct is not None and getattr(direct, key) is not None:
+            table[f"parametrisation.direct.{key}"] = getattr(direct, key)
     for name, value in result.cycle.amplitude_coefficients.items():
         table[f"cycle.amplitude_squared_slopes.{name}"] = value
     for name, value in result.cycle.amplitudes.items():

@@ -18,8 +18,8 @@ import sympy
 from .escape import tex_text
 from .latex_expr import Notation, TexWriter, latex_name
 from .prose import prose_to_tex
-from .render import (CAUTIONS, classification_sentence, per_offset, reduced_system_or_none,
-                      split_complex, transversality_sentence)
+from .render import (CAUTIONS, classification_sentence, parametrisation_sentences, per_offset,
+                     reduced_system_or_none, split_complex, transversality_sentence)
 from ..hopf_analysis.results import CONVENTIONS
 
 if TYPE_CHECKING:
@@ -257,7 +257,12 @@ def _section_equilibrium(doc: Document) -> str:
         rows += w.align_rows("{" + latex_name(state) + "}^{*}", value)
     for name, value in r.substitutions.items():
         rows += w.align_rows(latex_name(name), value)
-    return _section("Equilibrium", text, doc.math(rows))
+    parts = [text, doc.math(rows)]
+    parts += [doc.text(sentence) for sentence in parametrisation_sentences(r)]
+    direct = getattr(r, "direct_forms", None)
+    if direct is not None and direct.hopf_set is not None:
+        parts.append(doc.math(w.align_rows("0", direct.hopf_set)))
+    return _section("Equilibrium", *parts)
 
 
 def _section_linear(doc: Document) -> str:

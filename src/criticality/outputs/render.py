@@ -22,7 +22,7 @@ if TYPE_CHECKING:
     from ..hopf_analysis.results import HopfResult, ReducedSystemView
 
 __all__ = ["split_complex", "model_text", "try_model_text", "wrap_expression", "CAUTIONS",
-           "classification_sentence", "cycle_sentences", "transversality_sentence",
+           "parametrisation_sentences", "classification_sentence", "cycle_sentences", "transversality_sentence",
            "reduced_system_or_none", "per_offset"]
 
 #: the cautions every output states, in this order
@@ -277,3 +277,20 @@ def per_offset(result: HopfResult, expr: sympy.Expr) -> sympy.Expr:
     offset = result.parameter_symbol - result.critical_value
     k = sympy.Mul(expr, sympy.Pow(offset, -1))
     return None if k.has(result.parameter_symbol) else k
+
+
+def parametrisation_sentences(result: Any) -> list:
+    """Plain sentences on the parametrisation of the family (``eliminate=``)
+    and the Hopf condition back in the original parameters; empty for a
+    given or solved equilibrium."""
+    par = getattr(result, "parametrisation", None)
+    if par is None:
+        return []
+    how = (f"automatic, {par.kind} in {', '.join(par.unknowns)}" if par.how == "automatic"
+           else f"named: {', '.join(par.unknowns)} solved for")
+    out = [f"Parametrisation ({how}): {par.describe()}."]
+    direct = getattr(result, "direct_forms", None)
+    if direct is not None and direct.note:
+        note = direct.note
+        out.append(f"Direct form: {note[0].upper()}{note[1:]}.")
+    return out

@@ -21,6 +21,7 @@ import sympy
 from ..algebra.canonical import compact
 from ..renderers import register_renderer
 from .render import (CAUTIONS, classification_sentence, cycle_sentences, model_text,
+                      parametrisation_sentences,
                       per_offset, split_complex, transversality_sentence, wrap_expression)
 
 if TYPE_CHECKING:
@@ -168,6 +169,8 @@ def _header(result, width: int) -> list:
         out += _expr_lines(f"{state} = ", value, width, "  ")
     for name, value in result.substitutions.items():
         out += _expr_lines(f"{name} = ", value, width, "  ")
+    for sentence in parametrisation_sentences(result):
+        out += _paragraph(sentence, width)
     return out
 
 
@@ -390,6 +393,10 @@ def _short_cycle(result, width: int, lines: int) -> list:
 def _summary_sections(result, width: int, lines: int) -> list:
     head = _header(result, width)
     head = head[:head.index("")]
+    family = parametrisation_sentences(result)[:1]
+    if family:  # one line: which parametrisation (in full in the details)
+        line = family[0]
+        head.append(line if len(line) <= width else line[:width - 3] + "...")
     status = "closed form" if result.status == "closed form" else result.status
     return [head, _table(_rows(result), width, status, lines=lines), *_definitions(width),
             ["Classification: " + result.classification], _short_verdict(result, width, lines),
