@@ -96,11 +96,12 @@ def test_critical_pair_against_mpmath_eigenvalues(name, results):
     r = results[name]
     num = r.evaluate(POINTS[name], digits=30)
     with mpmath.workdps(40):
-        values = {R(k): v for k, v in num.values.items()}
+        own = dict(r.model.symbols, **{s.name: s for s in r.l1.free_symbols})
+        values = {own[k]: v for k, v in num.values.items()}
         values[r.parameter_symbol] = sympy.Float(mpmath.nstr(num.critical_value, 35), 35)
         for k, v in r.substitutions.items():
-            values[R(k)] = sympy.N(v.xreplace(values), 40)
-        states = [R(s) for s in r.model.states]
+            values[own[k]] = sympy.N(v.xreplace(values), 40)
+        states = [own[s] for s in r.model.states]
         rhs = [sympy.lambdify(states, e.xreplace(values), "mpmath") for e in r.model.equations]
         x0 = [mpmath.mpf(mpmath.nstr(num.equilibrium[s], 35)) for s in r.model.states]
         n = len(states)

@@ -137,14 +137,16 @@ def assumption_map(model: Any, assume: Mapping | None) -> dict:
 
 
 def choose_equilibrium(model: Any, equilibrium: Any, eliminate: Any, assumptions: Mapping,
-                       full: Any = None, fixed: Mapping | None = None) -> EquilibriumChoice:
+                       full: Any = None, fixed: Mapping | None = None,
+                       assume: Mapping | None = None) -> EquilibriumChoice:
     """Choose the equilibrium.  A given mapping is read against the model as
     written (``full``), so it may name parameters fixed by ``values``; their
-    values (``fixed``) are then substituted."""
+    values (``fixed``) are then substituted.  ``assume`` (names -> words) gives
+    the free equilibrium coordinates of a parametrised family their signs."""
     if eliminate is not None:
         if equilibrium is not None:
             raise ParameterError("give either an equilibrium or eliminate=..., not both")
-        return parametrised_equilibrium(model, eliminate)
+        return parametrised_equilibrium(model, eliminate, assume)
     if isinstance(equilibrium, Mapping):
         choice = given_equilibrium(full if full is not None else model, equilibrium)
         if fixed:
@@ -219,7 +221,8 @@ def prepare(model: Any, parameter: str | None = None, *, equilibrium: Any = None
     model, name = resolve_parameter(model, parameter, values)
     assumptions = assumption_map(model, assume)
     stage("choosing the equilibrium")
-    choice = choose_equilibrium(model, equilibrium, eliminate, assumptions, full, fixed)
+    choice = choose_equilibrium(model, equilibrium, eliminate, assumptions, full, fixed,
+                                assume)
     eqs = tuple(e.xreplace(choice.substitutions) for e in model.equations)
     mu = model.symbols[name]
     if vary and any(s == mu for s in choice.substitutions):
