@@ -58,7 +58,7 @@ def test_fold_hopf_coefficients_of_the_truncated_normal_form():
               {"A": "positive", "B": "positive", "C": "positive", "D": "positive"})
     (r,) = fold_hopf_all(m, ("b2", "u_eq"), eliminate=["b1", "x", "y"])
     assert r.values == {"b1": 0, "b2": 0, "u_eq": 0} or r.values["b2"] == 0
-    a, b, c, d = (sympy.Symbol(n, real=True) for n in "ABCD")
+    a, b, c, d = A, B, C, D  # the model's own symbols: the declared positive ones
     assert _eq(r.G200, 2 * a) and _eq(r.G011, 2 * b)
     assert _eq(r.G110, c + sympy.I * d)
     assert r.s == 1 and _eq(r.theta, c / (2 * a)) and r.theta_sign == "positive"

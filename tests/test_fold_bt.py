@@ -244,7 +244,8 @@ def test_a_parameter_inside_a_transcendental_atom_is_not_solved_as_a_polynomial(
     the transcendental factor is reported, not dropped. On the branch x = 0
     the two branches cross at h = exp(r) - 1 (common practice, no source)."""
     m = Model(["x"], {"x": "x*exp(r*(1 - x)) - h*x - x"}, {"r": "positive", "h": "positive"})
-    with pytest.raises(ClosedFormUnavailableError, match=r"log\(1/\(h \+ 1\)\)"):
+    # sympy writes log(1/(h + 1)) as -log(h + 1) for the positive h
+    with pytest.raises(ClosedFormUnavailableError, match=r"r - log\(h \+ 1\) = 0"):
         fold(m, "h", equilibrium=1)
     at_zero = fold(m, "h", equilibrium=0)
     r = next(s for s in at_zero.critical_values["h"].free_symbols if s.name == "r")

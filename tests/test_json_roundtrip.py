@@ -108,8 +108,8 @@ def test_numeric_section_matches_mpmath():
     numeric = doc["numeric"]
     assert numeric["digits"] == 40 and numeric["point"] == {"sigma": "10", "b": "8/3"}
     back = read_expressions(text)
-    values = {sympy.Symbol("sigma", real=True): 10, sympy.Symbol("b", real=True):
-              sympy.Rational(8, 3)}
+    own = model.symbols  # the document is read back in the model's own symbols
+    values = {own["sigma"]: 10, own["b"]: sympy.Rational(8, 3)}
     with mpmath.workdps(50):
         for key in ("critical_value", "omega", "l1", "transversality"):
             exact = mpmath.mpf(sympy.N(back[key].xreplace(values), 50))

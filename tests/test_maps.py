@@ -66,10 +66,10 @@ def test_logistic_map_period_doubling_at_three_supercritical():
     r = flip(LOGISTIC, "r", equilibrium=1)
     assert r.critical_values == {"r": 3}
     assert r.coefficient_sign == "positive" and r.verdict.startswith("supercritical")
-    rr = sympy.Symbol("r", real=True)
+    rr = sympy.Symbol("r", positive=True)  # r is declared positive, and so is r_c
     exact_half_width_sq = (rr + 1) * (rr - 3) / (4 * rr ** 2)
     slope = sympy.limit(exact_half_width_sq / (rr - 3), rr, 3)
-    predicted = r.amplitude_squared["x"].subs(sympy.Symbol("r_c", real=True), 3)
+    predicted = r.amplitude_squared["x"].subs(sympy.Symbol("r_c", positive=True), 3)
     assert _eq(predicted, slope * (rr - 3))
 
 

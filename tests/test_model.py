@@ -22,7 +22,12 @@ def R(name):
     return sympy.Symbol(name, real=True)
 
 
-x, y, z, a, b, mu = (R(n) for n in ("x", "y", "z", "a", "b", "mu"))
+def P(name):
+    return sympy.Symbol(name, positive=True)
+
+
+x, y, z, a, mu = (R(n) for n in ("x", "y", "z", "a", "mu"))
+b = P("b")  # declared positive wherever these tests use it
 
 
 def toy(**extra):
@@ -41,13 +46,16 @@ def test_public_names_are_reachable_from_the_package():
 
 
 def test_basic_model_fields():
-    """States keep their order, equations align with them, symbols are real."""
+    """States keep their order, equations align with them, states are real
+    symbols and each parameter's symbol carries its declared assumption."""
     m = toy(name="toy", description="invented")
     assert m.states == ("x", "y")
     assert m.equations == (mu * x - y + a * x**2, x - b * y)
     assert [p.name for p in m.parameters] == ["a", "b", "mu"]
     assert m.state_symbols == (x, y) and m.parameter_symbols == (a, b, mu)
-    assert all(s.is_real and s.is_positive is None for s in m.symbols.values())
+    assert all(s.is_real for s in m.symbols.values())
+    assert [n for n, s in m.symbols.items() if s.is_positive] == ["b"]
+    assert m.symbols["b"] == sympy.Symbol("b", positive=True) != R("b")
     assert dict(m.symbols) == {"x": x, "y": y, "a": a, "b": b, "mu": mu}
     assert m.parameter("b") == Parameter("b", "positive", sympy.Rational(1, 2))
     assert m.parameter("mu").declared is False
@@ -98,19 +106,26 @@ def test_parameter_checks_itself():
 
 
 def test_sympy_input_is_matched_by_name_whatever_the_assumptions():
-    """User symbols with assumptions become the model's plain real symbols of the same name."""
+    """User symbols are matched by name and become the model's own symbols; a
+    symbol carrying the declared assumption is the model's symbol itself, one
+    with other assumptions is noted."""
     bp, xs = sympy.Symbol("b", positive=True), sympy.Symbol("x")
     m = Model([xs, "y"], {xs: -bp * xs + sympy.sqrt(bp * (mu - 1)) * R("y"), "y": xs},
               {bp: "positive"})
-    # sympy split the radical when the user built it with a positive b; the
-    # model keeps that form on its own real symbols and says so in a note
+    # sympy splits the radical with a positive b, the user's symbol and the model's alike
     assert m.equations[0] == -b * x + sympy.sqrt(b) * sympy.sqrt(mu - 1) * R("y")
-    assert all(s.assumptions0.get("positive") is None for s in m.equations[0].free_symbols)
+    assert m.symbols["b"] == bp and m.equations[0].free_symbols == {b, x, R("y"), mu}
     assert m.parameter("b").assumption == "positive"
-    assert any("'b' came with assumptions (positive=True)" in note for note in m.notes)
-    plain = Model(["x"], {"x": -b * x + sympy.sqrt(b * (mu - 1))}, {"b": "positive"})
-    assert plain.equations[0] == -b * x + sympy.sqrt(b * (mu - 1))
-    assert not any("came with assumptions" in note for note in plain.notes)
+    assert not any("came with assumptions" in note for note in m.notes)
+    text = Model(["x"], {"x": "-b*x + sqrt(b*(mu - 1))"}, {"b": "positive"})
+    assert text.equations[0] == -b * x + sympy.sqrt(b) * sympy.sqrt(mu - 1)
+    other = Model(["x"], {"x": -bp * x + sympy.sqrt(bp * (mu - 1))}, {"b": "real"})
+    assert other.symbols["b"] == R("b") and other.equations[0].free_symbols == {R("b"), x, mu}
+    assert any("'b' came with assumptions (positive=True)" in note and "own real symbol" in note
+               for note in other.notes)
+    negative = Model(["x"], {"x": -bp * x}, {"b": "negative"})
+    assert negative.equations[0] == -sympy.Symbol("b", negative=True) * x
+    assert any("own negative symbol" in note for note in negative.notes)
 
 
 def test_sympy_floats_become_exact_with_a_note():
@@ -133,7 +148,7 @@ def test_special_names_as_states_and_parameters():
               {"beta": "positive", "gamma": "positive", "N": "positive", "lambda": "positive"})
     assert m.states == ("S", "I", "E")
     assert {p.name for p in m.parameters} == {"beta", "gamma", "N", "lambda", "O", "Q", "zeta"}
-    assert m.equations[1] == R("beta") * R("S") * R("I") / R("N") - R("gamma") * R("I")
+    assert m.equations[1] == P("beta") * R("S") * R("I") / P("N") - P("gamma") * R("I")
 
 
 # -- validation collects every problem --------------------------------------------------
@@ -256,7 +271,7 @@ def test_with_values_refuses_bad_values():
         m.with_values(d=-1)
     with pytest.raises(ParameterError, match="constant"):
         m.with_values(d="x")
-    assert m.with_values({"lambda": 2}).parameter_symbols == (R("b"), R("c"), R("d"))
+    assert m.with_values({"lambda": 2}).parameter_symbols == (P("b"), R("c"), R("d"))
 
 
 def test_models_are_immutable_values():
@@ -300,7 +315,8 @@ def test_documented_example_file_reads():
     assert m.states == ("u", "v", "w") and m.bifurcation_parameter == "mu"
     assert [p.name for p in m.parameters] == ["mu", "gamma", "lambda", "E", "K"]
     assert m.notes == ()
-    assert m.equations[2] == -R("lambda") * R("w") + R("u")**2 / (R("K")**2 + R("u")**2)
+    assert m.equations[2] == -P("lambda") * R("w") + R("u")**2 / (P("K")**2 + R("u")**2)
+    assert m.symbols["E"] == sympy.Symbol("E", nonnegative=True)
     lines = block.split("\n")
     assert lines[m.lines["u"] - 1].startswith("u = ")
     assert lines[m.lines["w"] - 1] == "-lambda*w"

@@ -97,7 +97,7 @@ def test_exothermic_reactor_with_exponential_rate():
                   equations={"u": "-u + Da*(1 - u)*exp(T)",
                              "T": "-(1 + beta)*T + B*Da*(1 - u)*exp(T)"})
     results = hopf_all(model, "beta", eliminate=["Da", "u"], assume={"T_eq": "positive"})
-    B, T0, beta = model.symbols["B"], sympy.Symbol("T_eq", real=True), model.symbols["beta"]
+    B, T0, beta = model.symbols["B"], sympy.Symbol("T_eq", positive=True), model.symbols["beta"]
     point = {B: 14, T0: 3}
     r = next(r for r in results if r.omega_squared.xreplace(point) > 0)
     e = r.evaluate(B=14, T_eq=3, digits=30)

@@ -229,7 +229,7 @@ def test_planar_conversion_factor_with_a_symbolic_frequency():
     (common practice to evaluate, formula from the same source), and the
     reported l1 = 2 a / omega = -3/(4 w): the factor 2/omega of
     docs/conventions.md, checked with omega != 1."""
-    w = sympy.Symbol("w", real=True)
+    w = sympy.Symbol("w", positive=True)  # as declared
     model = Model(["x", "y"], {"x": "mu*x - w*y - x^3", "y": "w*x + mu*y"},
                   {"mu": "real", "w": "positive"})
     result = hopf(model, "mu", equilibrium={"x": 0, "y": 0})

@@ -42,8 +42,11 @@ GRAY_SCOTT = Model(["u", "v"], {"u": "F*(1 - u) - u*v^2", "v": "u*v^2 - (F + k)*
                    {"F": "positive", "k": "positive"})
 
 
-def _sym(name: str) -> sympy.Symbol:
-    return sympy.Symbol(name, real=True)
+def _sym(name: str, model: Model | None = None, word: str = "real") -> sympy.Symbol:
+    """The model's symbol for ``name``, else a coordinate with its sign word."""
+    if model is not None and name in model.symbols:
+        return model.symbols[name]
+    return sympy.Symbol(name, **{word: True})
 
 
 # -- the finder -----------------------------------------------------------------------------
@@ -63,9 +66,10 @@ def test_brusselator_is_parametrised_by_x_eq():
     A declared positive makes x_eq positive."""
     best = find_parametrisations(BRUSSELATOR, "B").best
     assert best.unknowns == ("y", "A") and best.kind == "linear"
-    assert best.eliminated == (("A", _sym("x_eq")),)
-    assert best.point == (_sym("x_eq"), _sym("B") / _sym("x_eq"))
-    assert best.nonzero == (_sym("x_eq"),)
+    x = _sym("x_eq", word="positive")
+    assert best.eliminated == (("A", x),)
+    assert best.point == (x, _sym("B", BRUSSELATOR) / x)
+    assert best.nonzero == (x,)
     assert best.implied == (("x_eq", "positive"),)
 
 
@@ -105,7 +109,9 @@ def test_irrational_constants_are_carried(constant):
               {"a": "positive", "b": "positive"})
     best = find_parametrisations(m, "b").best
     k = m.parse(constant)
-    assert sympy.simplify(dict(best.eliminated)["a"] - _sym("x_eq") ** 3 / (k * _sym("b"))) == 0
+    (x,) = best.coordinates
+    assert x.name == "x_eq"
+    assert sympy.simplify(dict(best.eliminated)["a"] - x ** 3 / (k * _sym("b", m))) == 0
 
 
 def test_a_zero_denominator_is_no_parametrisation():
@@ -113,10 +119,13 @@ def test_a_zero_denominator_is_no_parametrisation():
     predator-free branch but makes the denominator b + x vanish; every
     parametrisation found keeps b + x_eq non-zero."""
     found = find_parametrisations(ROSENZWEIG_MACARTHUR, "K").found
-    x, b = _sym("x_eq"), _sym("b")
-    assert found and all(sympy.cancel(v + x) != 0 for p in found for n, v in p.eliminated
-                         if n == "b")
-    assert all(b + x in p.nonzero
+    b = _sym("b", ROSENZWEIG_MACARTHUR)
+
+    def x_of(p):
+        return next(c for c in p.coordinates if c.name == "x_eq")
+    assert found and all(sympy.cancel(v + x_of(p)) != 0 for p in found
+                         for n, v in p.eliminated if n == "b")
+    assert all(b + x_of(p) in p.nonzero
                for p in found if "y" in p.unknowns)
 
 
@@ -152,7 +161,7 @@ def test_brusselator_hopf_condition_in_both_forms():
     Nonlinear Dynamics and Chaos, 1994, Exercise 8.3.1, from memory), and the
     Hopf point is supercritical."""
     r = hopf(BRUSSELATOR, "B", eliminate="auto")
-    x, A, B = _sym("x_eq"), _sym("A"), _sym("B")
+    x, A, B = _sym("x_eq", word="positive"), _sym("A", BRUSSELATOR), _sym("B", BRUSSELATOR)
     assert sympy.expand(r.critical_value - (1 + x ** 2)) == 0 and r.omega == x
     assert r.classification == "supercritical"
     assert r.parametrisation.how == "automatic" and r.substitutions == {"A": x}
@@ -170,8 +179,8 @@ def test_rosenzweig_macarthur_hump_criterion():
     K_c = b (a c + d)/(a c - d) in the original parameters.  The onset is
     supercritical for positive prey density (from memory)."""
     r = hopf(ROSENZWEIG_MACARTHUR, "K", eliminate="auto", assume={"x_eq": "positive"})
-    x = _sym("x_eq")
-    a, b, c, d = (_sym(n) for n in "abcd")
+    x = _sym("x_eq", word="positive")
+    a, b, c, d = (_sym(n, ROSENZWEIG_MACARTHUR) for n in "abcd")
     assert sympy.expand(r.critical_value - (b + 2 * x)) == 0
     assert sympy.cancel(r.direct_forms.critical_value - b * (a * c + d) / (a * c - d)) == 0
     assert r.classification == "supercritical"
@@ -180,7 +189,7 @@ def test_rosenzweig_macarthur_hump_criterion():
     (name,) = eliminated
     # the eliminated parameter, put back at x_eq = x*, gives the model's own value
     star = b * d / (a * c - d)
-    assert sympy.cancel(eliminated[name].subs(x, star) - _sym(name)) == 0
+    assert sympy.cancel(eliminated[name].subs(x, star) - _sym(name, ROSENZWEIG_MACARTHUR)) == 0
 
 
 @pytest.mark.slow
@@ -204,7 +213,8 @@ def test_radical_equilibrium_agrees_with_the_numeric_mode():
             assert abs(mpmath.mpf(getattr(exact, key)) - mpmath.mpf(getattr(num, key))) < 1e-25
     # the Hopf set in the original parameters vanishes there; it is quadratic in A
     d = r.direct_forms
-    at = {_sym("A"): point["A"], _sym("B"): 2, _sym("c"): point["c"]}
+    at = {_sym("A", QUADRATIC_LOSS): point["A"], _sym("B", QUADRATIC_LOSS): 2,
+          _sym("c", QUADRATIC_LOSS): point["c"]}
     assert d.degree == 2 and d.hopf_set.xreplace(at) == 0
     # where l1 can change sign on the Hopf set: a polynomial in the original parameters
     assert d.l1_boundary is not None and d.l1_boundary.free_symbols <= set(at)
@@ -246,7 +256,10 @@ def test_outputs_say_which_parametrisation():
     details = " ".join(r.details().split())
     assert "A = x_eq eliminated" in details
     assert "Direct form: In the original parameters the Hopf set is A**2 - B + 1 = 0" in details
-    assert "x\\_eq" in r.to_latex() and "Hopf set in the original parameters" in r.to_latex()
+    latex = r.to_latex()  # the names in math mode, not as escaped code
+    assert "$x_{\\mathrm{eq}}$" in latex and "x\\_eq" not in latex
+    assert "Hopf set in the original parameters" in latex
+    assert "A = x_eq" not in r.to_report() and "$x_{\\mathrm{eq}} \\neq 0$" in r.to_report()
     assert "Parametrisation (automatic" in r.to_report(fragment=True)
     text = r.to_json()
     doc = json.loads(text)["parametrisation"]

@@ -391,6 +391,9 @@ class Tower:
                 acc = acc + self._convert(a)
             return acc
         if e.is_Mul:
+            merged = self._merged_radicals(e)
+            if merged is not None:
+                return merged
             acc = K.one
             for a in e.args:
                 acc = acc * self._convert(a)
@@ -404,6 +407,35 @@ class Tower:
         if atom in self._atom_index:
             return self._gen_index[self._atom_index[atom].symbol] ** power
         raise CriticalityError(f"internal: {e} was not registered as an atom")
+
+    def _merged_radicals(self, e):
+        """A product with several square roots, ``sqrt(b)*sqrt(r - 1)``, as one
+        radical ``sqrt(b*(r - 1))`` times the rest, or None.
+
+        Sympy splits ``sqrt(b*(r - 1))`` so when ``b`` is declared positive;
+        taking each root as a generator of its own would double the
+        extensions.  ``sqrt(B) sqrt(C) = sqrt(B C)`` holds where at most one
+        radicand can be negative, so the roots merge only then (a root whose
+        radicand's sign is unknown stays apart when there are two such)."""
+        roots = [a for a in e.args if _is_radical_power(a)]
+        if len(roots) < 2:
+            return None
+        unsigned = [r for r in roots if not _nonnegative(r.base, self.positivity)]
+        if len(unsigned) > 1:
+            roots = [r for r in roots if r not in unsigned] + unsigned[:1]
+            if len(roots) < 2:
+                return None
+        acc = self.base.one
+        for a in e.args:
+            if a not in roots:
+                acc = acc * self._convert(a)
+        radicand = self.base.one
+        for r in roots:
+            base = self._convert(r.base)
+            radicand = radicand * base
+            acc = acc * base ** ((int(r.exp.p) - 1) // 2)
+        root_expr = sympy.Mul(*[sympy.sqrt(r.base) for r in roots])
+        return acc * self.sqrt(radicand, root_expr)
 
     def to_sympy(self, x: Element) -> sympy.Expr:
         """A tower element as a sympy expression (atoms restored)."""
@@ -541,6 +573,14 @@ def _sign_of(expr, positivity):
     if positivity is None:
         return None
     return positivity(expr)
+
+
+def _nonnegative(expr, positivity) -> bool:
+    """Whether ``expr`` is known to be >= 0 (its symbols' assumptions, or the
+    tower's sign oracle)."""
+    if expr.is_nonnegative:
+        return True
+    return positivity is not None and _positive(expr, positivity)
 
 
 def _positive(expr, positivity) -> bool:

@@ -98,13 +98,13 @@ class BautinPoint(Rendered):
         """The numeric values of the point's quantities at ``values``
         (names of the remaining parameters -> numbers)."""
         digits = check_digits(digits, 5, 10000)
-        subs = {sympy.Symbol(k, real=True): parse_expression(v, {}) if isinstance(v, str)
+        subs = {k: parse_expression(v, {}) if isinstance(v, str)
                 else sympy.sympify(v, strict=True) for k, v in check_point(values).items()}
         out = {}
         with mpmath.workdps(digits):
             for key in ("second_value", "critical_value", "omega_squared", "l2", "l1_slope"):
                 e = getattr(self, key)
-                e = e.xreplace({s: subs[s] for s in e.free_symbols if s in subs})
+                e = e.xreplace({s: subs[s.name] for s in e.free_symbols if s.name in subs})
                 out[key] = sympy.N(e, digits)
         return out
 

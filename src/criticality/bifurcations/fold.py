@@ -43,6 +43,7 @@ import sympy
 from ..kinds import FoldKind, Sign, coerce
 from ..local.prepare import EquilibriumSpec, expr, prepare, sign_word, solve_for, unknown_symbol
 from ..model.expressions import format_expression
+from ..model.parameter import critical_symbol
 from ..renderers import Rendered, render
 from ..algebra.linalg import determinant, dot, kernel, matvec, solve, transpose
 from ..errors import ClosedFormUnavailableError, DegenerateBifurcationError, NoHopfPointError
@@ -221,7 +222,7 @@ def _result(prep, sp, unknown):
     point = {s: E(sp.substitute(prep.tower.convert(v)))
              for s, v in zip(prep.model.states, prep.choice.point)}
     y = sympy.Symbol("y")
-    dmu = mu - sympy.Symbol(f"{prep.parameter}_c", real=True)
+    dmu = mu - critical_symbol(mu)
     nf = E(t) * dmu + (E(speed) * dmu * y if speed is not None else 0) + E(a) * y ** 2
     if kind == "pitchfork":
         nf += E(d) * y ** 3

@@ -46,6 +46,7 @@ from ..algebra import upoly
 from ..algebra.quadratic import lower
 from ..errors import DegenerateBifurcationError, DegenerateHopfError, NoHopfPointError
 from ..kinds import PointStatus, Sign, coerce
+from ..model.parameter import critical_symbol
 from ..local.options import check_branch, pick_branch
 from ..local.critical import cofactor_hurwitz, find_critical_branches
 from ..algebra.linalg import characteristic_polynomial
@@ -201,7 +202,7 @@ def _conditions(target, ctx, E, items):
 
 
 def _delta(unknown):
-    return unknown - sympy.Symbol(f"{unknown.name}_c", real=True)
+    return unknown - critical_symbol(unknown)
 
 
 # -- flip ----------------------------------------------------------------------------

@@ -25,6 +25,7 @@ from dataclasses import dataclass
 import sympy
 
 from ..errors import ParameterError, ValidationRunError
+from ..model.parameter import critical_symbol
 
 if TYPE_CHECKING:
     from ..bifurcations.maps import FlipResult, NeimarkSackerResult
@@ -100,7 +101,7 @@ def _setup(result, model, values, offset):
     given.pop(mu, None)
     mu_c = _number(result.critical_values[result.parameter], given, "the critical value")
     k = {s: _number(v.xreplace({mu: mu_c + 1}).xreplace(
-        {sympy.Symbol(f"{result.parameter}_c", real=True): mu_c}), given,
+        {critical_symbol(mu): mu_c}), given,
         f"the amplitude coefficient of {s}") for s, v in result.amplitude_squared.items()}
     side = 1.0 if sum(k.values()) > 0 else -1.0
     mu_v = mu_c + side * abs(offset)

@@ -23,6 +23,7 @@ import mpmath
 import sympy
 
 from ..errors import ParameterError
+from ..model.parameter import symbol_for
 
 if TYPE_CHECKING:
     from ..model.core import Model
@@ -74,7 +75,7 @@ def _resolved(result, model, values):
     table = dict(given)
     found = getattr(result, "values", None) or getattr(result, "critical_values", {})
     for name, e in found.items():
-        table[sympy.Symbol(name, real=True)] = sympy.sympify(e, strict=True)
+        table[model.symbols.get(name, symbol_for(name))] = sympy.sympify(e, strict=True)
     for _ in range(len(table) + 1):
         table = {k: v.xreplace(table) for k, v in table.items()}
     return table

@@ -52,8 +52,6 @@ __all__ = ["Crossing", "quasi_polynomial_parts", "delay_crossing", "parameter_cr
 LAMBDA = sympy.Symbol("lambda")
 S_OMEGA2 = sympy.Symbol("s")                     # s = omega^2 in F(s)
 J_INDEX = sympy.Symbol("j", integer=True, nonnegative=True)
-_ASSUME = {"positive": {"positive": True}, "nonnegative": {"nonnegative": True},
-           "negative": {"negative": True}, "nonzero": {"nonzero": True}}
 
 
 @dataclass(frozen=True)
@@ -104,13 +102,14 @@ class Crossing:
 
 
 def positive_symbols(model: Model) -> tuple[dict, dict]:
-    """Maps from the model's real symbols to symbols carrying their declared sign, and back."""
+    """Maps from the model's symbols to symbols carrying their declared sign,
+    and back.  The model's own symbols carry them already, so both maps are
+    usually empty; they cover a symbol whose sympy assumptions differ from
+    its parameter's declaration."""
     forward, back = {}, {}
     for p in model.parameters:
-        kw = _ASSUME.get(p.assumption)
-        if kw:
-            s = model.symbols[p.name]
-            new = sympy.Symbol(p.name, real=True, **kw)
+        s, new = model.symbols[p.name], p.symbol
+        if new != s:
             forward[s], back[new] = new, s
     return forward, back
 

@@ -18,7 +18,7 @@ import json
 import sympy
 
 from ..errors import ExpressionError, ModelFileError
-from ..outputs.envelope import envelope, read_document
+from ..outputs.envelope import document_symbols, envelope, read_document
 from ..outputs.escape import tex_text
 from ..outputs.notebook import html_table, markdown_table
 from ..renderers import register_renderer
@@ -246,21 +246,28 @@ def read_delay_json(text: str) -> dict:
             or not isinstance(equations, dict)):
         raise ModelFileError(f"{SCHEMA} document: 'model' must hold 'states' (a list of "
                              "names) and 'equations' (an object)")
+    symbols = document_symbols(doc)
+
+    def read(text, context, **more):
+        return parse_expression(text, symbols, context=context, on_unknown=_any_name, **more)
+
     out = {}
     try:
         for key in _EXPRESSION_FIELDS:
-            out[key] = parse_expression(field(doc, key, key), context=f"JSON field {key!r}")
-        out["equations"] = {s: parse_expression(field(equations, s, f"model.equations.{s}"),
-                                                context=f"JSON equation for {s!r}",
-                                                delayed=states)
+            out[key] = read(field(doc, key, key), f"JSON field {key!r}")
+        out["equations"] = {s: read(field(equations, s, f"model.equations.{s}"),
+                                    f"JSON equation for {s!r}", delayed=states)
                             for s in equations}
         c1 = doc.get("c1")
-        out["c1"] = (parse_expression(field(c1, "re", "c1.re"), context="JSON field 'c1.re'")
-                     + sympy.I * parse_expression(field(c1, "im", "c1.im"),
-                                                  context="JSON field 'c1.im'"))
+        out["c1"] = (read(field(c1, "re", "c1.re"), "JSON field 'c1.re'")
+                     + sympy.I * read(field(c1, "im", "c1.im"), "JSON field 'c1.im'"))
     except ExpressionError as exc:
         raise ModelFileError(f"{SCHEMA} document: {exc}") from None
     return out
+
+
+def _any_name(name: str, column: int) -> None:
+    """Names a document's expressions may use beyond the model's (read as real)."""
 
 
 # -- the renderers of the result kind "hopf_delay" ----------------------------------------------

@@ -100,7 +100,7 @@ def direct_forms(result: HopfResult) -> DirectForms:
     (c,) = par.coordinates
     mu, mu_c = result.parameter_symbol, result.critical_value
     (name, value), = par.eliminated
-    a = sympy.Symbol(name, real=True)
+    a = result.model.symbols[name]
     if any(e.has(sympy.Pow) and _has_root(e) for e in (mu_c, value)):
         return _unavailable("the parametrised critical value has a root; no polynomial "
                             "elimination was attempted")

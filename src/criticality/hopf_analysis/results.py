@@ -10,7 +10,7 @@ that a number copied into a paper can be traced to its normalisation and sign.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field, fields, is_dataclass, replace
+from dataclasses import dataclass, field, is_dataclass
 from functools import cached_property
 from typing import TYPE_CHECKING, Any, ClassVar, Mapping, Sequence
 
@@ -273,11 +273,10 @@ class HopfResult:
 
     # -- the user's own symbols -------------------------------------------------------------
     def with_declared_symbols(self) -> "HopfResult":
-        """This result with every expression in the model's
-        :attr:`~criticality.Model.declared_symbols` (each symbol carries its
-        declared assumption), so that ``sympy.Symbol("A", positive=True)``
-        matches.  The result itself uses :attr:`~criticality.Model.symbols`
-        (``Symbol(name, real=True)``), the symbols the computation ran in.
+        """This result, unchanged; kept for compatibility.  A result already
+        speaks in the model's :attr:`~criticality.Model.symbols`, which carry
+        the declared assumptions, so ``sympy.Symbol("A", positive=True)``
+        matches a parameter declared positive.
 
         Examples
         --------
@@ -286,25 +285,12 @@ class HopfResult:
         >>> m = Model(["x", "y"], {"x": "A - (B + 1)*x + x^2*y", "y": "B*x - x^2*y"},
         ...           {"A": "positive", "B": "positive"})
         >>> r = hopf(m, "B")
-        >>> r.critical_value.subs(m.symbols["A"], 2)
-        5
-        >>> A = sympy.Symbol("A", positive=True)
-        >>> r.with_declared_symbols().critical_value.subs(A, 2)
+        >>> r.with_declared_symbols() is r
+        True
+        >>> r.critical_value.subs(sympy.Symbol("A", positive=True), 2)
         5
         """
-        declared = self.model.declared_symbols
-        sub = {s: declared[name] for name, s in self.model.symbols.items()
-               if declared[name] is not s and declared[name] != s}
-        extra = {s: sympy.Symbol(s.name, real=True, **{self.assumptions[s.name]: True})
-                 for e in (self.critical_value, self.l1) for s in e.free_symbols
-                 if s not in sub and self.assumptions.get(s.name, "real") != "real"}
-        sub.update(extra)
-        if not sub:
-            return self
-        changes = {f.name: _swap(getattr(self, f.name), sub) for f in fields(self)
-                   if f.init and f.name not in ("model", "conventions", "assumptions",
-                                                "_details", "fixed_parameters")}
-        return replace(self, _details=_SwappedDetails(self._details, sub), **changes)
+        return self
 
     # -- numeric ---------------------------------------------------------------------------
     def evaluate(self, values: Mapping | None = None, *, digits: int = 30,
@@ -428,21 +414,6 @@ class StoredDetails:
         return self.p
 
 
-def _swap(value, sub: dict):
-    """``value`` (an expression, or a container or dataclass of them) with
-    the symbols replaced."""
-    if isinstance(value, (sympy.Basic, sympy.MatrixBase)):
-        return value.xreplace(sub)
-    if isinstance(value, Mapping):
-        return {k: _swap(v, sub) for k, v in value.items()}
-    if isinstance(value, tuple):
-        return tuple(_swap(v, sub) for v in value)
-    if is_dataclass(value) and not isinstance(value, type):
-        return replace(value, **{f.name: _swap(getattr(value, f.name), sub)
-                                 for f in fields(value) if f.init})
-    return value
-
-
 # -- pickling expressions in the shape they were built in ---------------------------------
 # sympy pickles an expression as its class and arguments and rebuilds it with evaluation;
 # the engine builds some products and roots unevaluated (to spare sympy's assumption
@@ -496,29 +467,3 @@ def _keep_shape(value):
         copy.__dict__.update({k: _keep_shape(v) for k, v in value.__dict__.items()})
         return copy
     return value
-
-
-class _SwappedDetails:
-    """The display-oriented parts of a result, in other symbols."""
-
-    def __init__(self, inner, sub: dict) -> None:
-        self._inner, self._sub = inner, sub
-        self.portable = getattr(inner, "portable", False)
-
-    def _swapped(self, name: str):
-        return _swap(getattr(self._inner, name)(), self._sub)
-
-    def reduced_system(self) -> ReducedSystemView:
-        return self._swapped("reduced_system")
-
-    def jacobian(self) -> sympy.Matrix:
-        return self._swapped("jacobian")
-
-    def characteristic_polynomial(self) -> sympy.Expr:
-        return self._swapped("characteristic_polynomial")
-
-    def eigenvector_q(self) -> tuple:
-        return self._swapped("eigenvector_q")
-
-    def eigenvector_p(self) -> tuple:
-        return self._swapped("eigenvector_p")

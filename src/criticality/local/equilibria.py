@@ -196,9 +196,25 @@ def _has_signs(point, sign_context, wanted) -> bool:
     return all(ctx.sign(x) in wanted for x in point)
 
 
-def parametrised_equilibrium(model: Model, eliminate: Sequence[str]) -> EquilibriumChoice:
+def _solve_as_real(eqs: Sequence[sympy.Expr], unknowns: Sequence[sympy.Symbol]) -> list:
+    """``sympy.solve(eqs, unknowns, dict=True)`` with every unknown taken as
+    merely real: sympy would drop the solutions that contradict an unknown's
+    sign assumption (a parameter declared positive), and the engine checks
+    those signs itself, with the declared assumptions and the family's side
+    conditions."""
+    stand_in = {u: sympy.Dummy(u.name, real=True) for u in unknowns}
+    back = {d: u for u, d in stand_in.items()}
+    sols = sympy.solve([e.xreplace(stand_in) for e in eqs], [stand_in[u] for u in unknowns],
+                       dict=True)
+    return [{back.get(k, k): v.xreplace(back) for k, v in sol.items()} for sol in sols]
+
+
+def parametrised_equilibrium(model: Model, eliminate: Sequence[str],
+                             assume: Mapping[str, str] | None = None) -> EquilibriumChoice:
     """Solve ``f(x0) = 0`` for the names in ``eliminate`` (parameters and
-    states, as many as there are states); other states become free symbols."""
+    states, as many as there are states); other states become free symbols
+    ``<state>_eq``, real or carrying the assumption ``assume`` gives them
+    (``Symbol("T_eq", positive=True)`` for ``assume={"T_eq": "positive"}``)."""
     eliminate = list(eliminate)
     n = len(model.states)
     if len(eliminate) != n:
@@ -209,12 +225,12 @@ def parametrised_equilibrium(model: Model, eliminate: Sequence[str]) -> Equilibr
         if name not in model.symbols:
             model.parameter(name)  # raises a ParameterError with a suggestion
     free_states = [s for s in model.states if s not in eliminate]
-    new = coordinate_symbols(model, free_states)
+    new = coordinate_symbols(model, free_states, assume)
     repl = {model.symbols[s]: new[s] for s in free_states}
     eqs = [e.xreplace(repl) for e in model.equations]
     unknowns = [model.symbols[u] for u in eliminate]
     try:
-        sols = sympy.solve(eqs, unknowns, dict=True)
+        sols = _solve_as_real(eqs, unknowns)
     except (NotImplementedError, ValueError, TypeError) as exc:
         raise EquilibriumNotFoundError(
             f"sympy could not solve the equilibrium equations for {', '.join(eliminate)}; choose "

@@ -31,6 +31,7 @@ import sympy
 
 from ..algebra.elimination import triangular_eliminations
 from ..algebra.signs import NEGATIVE, NONNEGATIVE, POSITIVE, ZERO, context_for
+from ..model.parameter import symbol_for
 
 if TYPE_CHECKING:
     from ..model.core import Model
@@ -106,8 +107,8 @@ class Parametrisation:
         """Sentences on the declared signs of the eliminated parameters."""
         out = []
         for name, word in self.implied:
-            source = next(n for n, v in self.eliminated if v.free_symbols == {sympy.Symbol(
-                name, real=True)})
+            source = next(n for n, v in self.eliminated
+                          if {str(f) for f in v.free_symbols} == {name})
             out.append(f"'{name}' is taken {word}, since '{source}' = "
                        f"{sympy.sstr(dict(self.eliminated)[source])} is declared so")
         for name, declared, status in self.signs:
@@ -150,16 +151,18 @@ class ParametrisationSearch:
                 f"{', '.join(best.unknowns)} instead: {best.describe()}")
 
 
-def coordinate_symbols(model: Model, free_states: Iterable[str]) -> dict:
-    """``{state name: Symbol('<state>_eq', real=True)}``, each name clear of the
-    model's own names."""
+def coordinate_symbols(model: Model, free_states: Iterable[str],
+                       assume: Mapping[str, str] | None = None) -> dict:
+    """``{state name: Symbol('<state>_eq', ...)}``, each name clear of the
+    model's own names, real or carrying the word ``assume`` gives it
+    (``Symbol("T_eq", positive=True)`` for ``{"T_eq": "positive"}``)."""
     taken = set(model.symbols)
     out = {}
     for s in free_states:
         name = f"{s}_eq"
         while name in taken:
             name += "_"
-        out[s] = sympy.Symbol(name, real=True)
+        out[s] = symbol_for(name, (assume or {}).get(name, "real"))
     return out
 
 
@@ -193,7 +196,7 @@ def find_parametrisations(model: Model, parameter: str, assumptions: Mapping | N
     """
     kept = {parameter, *keep}
     params = [p.name for p in model.parameters if p.name not in kept]
-    search = _search(model, params, limit)
+    search = _search(model, params, limit, coordinate_assumptions)
     if search.found or search.capped:
         return _ranked(model, search, assumptions, coordinate_assumptions)
     if not params:
@@ -207,13 +210,14 @@ def find_parametrisations(model: Model, parameter: str, assumptions: Mapping | N
                   "function, or a solution would fix a parameter at 0 or make a denominator "
                   "vanish)")
         others = [p for p in (p.name for p in model.parameters) if p not in params]
-        if others and _search(model, [p.name for p in model.parameters], limit).found:
+        if others and _search(model, [p.name for p in model.parameters], limit,
+                                    coordinate_assumptions).found:
             reason += (f"; only sets that eliminate {', '.join(map(repr, others))} exist, and "
                        "the analysis' parameter must stay a parameter of the result")
     return ParametrisationSearch((), reason, search.steps, False)
 
 
-def _search(model, params, limit) -> ParametrisationSearch:
+def _search(model, params, limit, coordinate_assumptions=None) -> ParametrisationSearch:
     """The eliminations of the kernel, checked against the model and
     completed into :class:`Parametrisation` records (unranked)."""
     pool = tuple(model.state_symbols) + tuple(model.symbols[p] for p in params)
@@ -225,17 +229,19 @@ def _search(model, params, limit) -> ParametrisationSearch:
     chosen = tuple(model.symbols[p] for p in params)
     search = triangular_eliminations(numerators, pool, required=chosen, nonzero_unknowns=chosen,
                                      denominators=denominators, limit=limit)
-    out = tuple(p for p in (_complete(model, e) for e in search.found) if p is not None)
+    out = tuple(p for p in (_complete(model, e, coordinate_assumptions) for e in search.found)
+                if p is not None)
     reason = (f"the search stopped after {search.steps} elimination steps" if search.capped
               else "")
     return ParametrisationSearch(out, reason, search.steps, search.capped)
 
 
-def _complete(model, elimination) -> Parametrisation | None:
+def _complete(model, elimination, coordinate_assumptions=None) -> Parametrisation | None:
     """An elimination as a :class:`Parametrisation`, in the free coordinates."""
     values = elimination.values
     solved = {str(u) for u in elimination.unknowns}
-    coords = coordinate_symbols(model, [s for s in model.states if s not in solved])
+    coords = coordinate_symbols(model, [s for s in model.states if s not in solved],
+                                coordinate_assumptions)
     rename = {model.symbols[s]: c for s, c in coords.items()}
     values = {u: v.xreplace(rename) for u, v in values.items()}
     everything = {**values, **rename}
@@ -299,12 +305,15 @@ def _ranked(model, search, assumptions, coordinate_assumptions) -> Parametrisati
                         not in (POSITIVE, NEGATIVE))
         implied = _implied(par, declared, model, coord_words)
         if implied:
-            user.update({sympy.Symbol(c, real=True): w for c, w in implied})
+            by_name = {str(c): c for c in par.coordinates}
+            user.update({by_name[c]: w for c, w in implied if c in by_name})
             ctx_user = context_for(symbols, user)
             signs = tuple((n, d, _sign_status(ctx_user, ctx_pos, dict(par.eliminated)[n], d))
                           for n, d, _ in signs)
         par = Parametrisation(par.unknowns, par.kind, par.point, par.eliminated,
                               par.coordinates, nonzero, signs, implied=implied)
+        if implied:  # the coordinates' symbols carry the signs the declarations imply
+            par = _signed_coordinates(par, dict(implied))
         touched = sum(1 for f in model.equations
                       if f.has(*[model.symbols[n] for n, _ in par.eliminated]))
         size = sum(sympy.count_ops(v) for v in par.point) + sum(
@@ -316,6 +325,18 @@ def _ranked(model, search, assumptions, coordinate_assumptions) -> Parametrisati
     scored.sort(key=lambda item: item[0])
     return ParametrisationSearch(tuple(p for _, p in scored), search.reason, search.steps,
                                  search.capped)
+
+
+def _signed_coordinates(par: Parametrisation, words: Mapping[str, str]) -> Parametrisation:
+    """``par`` with each coordinate named in ``words`` replaced by the symbol
+    that carries its word."""
+    rename = {c: symbol_for(c.name, words[c.name]) for c in par.coordinates if c.name in words}
+    return Parametrisation(par.unknowns, par.kind,
+                           tuple(v.xreplace(rename) for v in par.point),
+                           tuple((n, v.xreplace(rename)) for n, v in par.eliminated),
+                           tuple(rename.get(c, c) for c in par.coordinates),
+                           tuple(f.xreplace(rename) for f in par.nonzero),
+                           par.signs, par.how, par.implied)
 
 
 _FLIP = {"positive": "negative", "negative": "positive", "nonzero": "nonzero"}

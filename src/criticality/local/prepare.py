@@ -158,7 +158,7 @@ def choose_equilibrium(model: Any, equilibrium: Any, eliminate: Any, assumptions
             stage("finding a radical-free parametrisation of the equilibrium")
             return automatic_equilibrium(model, parameter, assumptions, keep=keep,
                                          coordinate_assumptions=assume)
-        return parametrised_equilibrium(model, eliminate)
+        return parametrised_equilibrium(model, eliminate, assume)
     if isinstance(equilibrium, Mapping):
         choice = given_equilibrium(full if full is not None else model, equilibrium)
         if fixed:

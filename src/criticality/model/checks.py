@@ -21,7 +21,7 @@ from .delayed import delayed_terms
 from .delay_checks import delay_problems
 from .expressions import convert_sympy, format_expression, name_problem, parse_expression
 from .parameter import (_NUMBER_TYPES, _PARAMETER_KEYS, Parameter, _assumption_problem,
-                        _constant, _name_of, _sign_problem)
+                        _constant, _name_of, _sign_problem, assumption_of, symbol_for)
 
 __all__: list[str] = []
 
@@ -238,7 +238,7 @@ class _Assembler:
                 return parse_expression(raw, symbols, context=context, on_unknown=on_unknown,
                                         line=self.line(*place, True), delayed=delayed)
             self.note_floats(raw, context)
-            self.note_assumptions(raw)
+            self.note_assumptions(raw, symbols)
             value = convert_sympy(raw, symbols, context=context, on_unknown=on_unknown,
                                   line=self.line(*place))
             if delayed is None and delayed_terms(value):
@@ -258,21 +258,25 @@ class _Assembler:
                               f"in the {context} was read as the exact fraction "
                               f"{format_expression(value)}")
 
-    def note_assumptions(self, raw: object) -> None:
-        """Note user symbols whose sympy assumptions the model drops."""
+    def note_assumptions(self, raw: object, symbols: Mapping) -> None:
+        """Note user symbols whose sympy assumptions differ from the model's
+        symbol of that name (plain and real symbols are matched silently)."""
         if not isinstance(raw, sympy.Basic):
             return
         for symbol in sorted(raw.free_symbols, key=str):
-            plain = sympy.Symbol(symbol.name).assumptions0
-            real = sympy.Symbol(symbol.name, real=True).assumptions0
-            if symbol.assumptions0 not in (plain, real) and symbol.name not in self.noted_symbols:
+            own = symbols.get(symbol.name)
+            if own is None:
+                own = symbol_for(symbol.name)  # an undeclared name becomes a real parameter
+            accepted = (sympy.Symbol(symbol.name).assumptions0, own.assumptions0)
+            if symbol.assumptions0 not in accepted and symbol.name not in self.noted_symbols:
                 self.noted_symbols.add(symbol.name)
                 given = getattr(symbol, "_assumptions_orig", None) or symbol.assumptions0
                 given = ", ".join(f"{k}={v}" for k, v in sorted(given.items())
                                   if k not in ("commutative", "real"))
+                kept = assumption_of(own)
                 self.notes.append(
                     f"the sympy symbol {symbol.name!r} came with assumptions ({given or 'other'});"
-                    " the model uses its own real symbol of that name, but sympy may already "
+                    f" the model uses its own {kept} symbol of that name, but sympy may already "
                     "have rewritten your expression with them (e.g. sqrt(b*c) as sqrt(b)*sqrt(c))")
 
     def undeclared(self, unknown: dict, known: list[str]) -> list[Parameter]:
@@ -366,8 +370,8 @@ class _Assembler:
                   "description": self.text("description", description)}
         state_names = self.states(states)
         declared = self.clashes(state_names, self.parameters(parameters))
-        names = [*state_names, *(p.name for p in declared)]
-        symbols = {n: sympy.Symbol(n, real=True) for n in names}
+        symbols = {n: symbol_for(n) for n in state_names}
+        symbols.update((p.name, p.symbol) for p in declared)
         rhs, unknown = self.equations(equations, state_names, symbols)
         unknown = {n: c for n, c in unknown.items() if n not in self.bad_names}
         extra = self.undeclared(unknown, list(symbols))

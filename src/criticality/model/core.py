@@ -7,10 +7,17 @@ model file (:meth:`Model.from_text`, :meth:`Model.from_file`; the schema is in
 ``docs/model-files.md``).  Validation collects every problem and raises one
 :class:`~criticality.errors.InvalidModelError` listing them all.
 
-Every state and parameter is the model's own ``Symbol(name, real=True)``.
-Signs (positive, nonnegative, ...) are kept as metadata in
-:attr:`Parameter.assumption`, not as sympy assumptions, so that sympy does not
-split radicals such as ``sqrt(b*(r - 1))`` behind the engine's back.
+Every state is the model's own ``Symbol(name, real=True)``; every parameter
+is a symbol carrying its declared assumption with the keyword a user would
+write (``Symbol(name, positive=True)`` for a positive parameter,
+``Symbol(name, real=True)`` for a real one;
+:func:`~criticality.model.parameter.symbol_for`).  Every
+result speaks in exactly these symbols (:attr:`Model.symbols`), so a user's
+own ``sympy.Symbol("A", positive=True)`` substitutes into it.  Sympy applies
+the assumptions as it builds expressions (``Abs(A)`` is ``A``,
+``sqrt(b*(r - 1))`` is ``sqrt(b)*sqrt(r - 1)`` for a positive ``b``); the
+engine's tower of fields merges such split radicals again
+(:mod:`criticality.algebra.domain`).
 """
 
 from __future__ import annotations
@@ -88,7 +95,7 @@ class Model:
     ((mu,), ("parameter 'mu' was not declared; assumed real",))
     """
 
-    __slots__ = _FIELDS
+    __slots__ = tuple("_symbols" if k == "symbols" else k for k in _FIELDS)
 
     name: str | None
     description: str | None
@@ -100,7 +107,7 @@ class Model:
     notes: tuple[str, ...]
     lines: Mapping[str, int]
     source: str | None
-    symbols: Mapping[str, sympy.Symbol]
+    _symbols: Mapping[str, sympy.Symbol]
     kind: str
 
     def __init__(self, states: Sequence[str], equations: Mapping[str, object] | Sequence[object],
@@ -119,7 +126,7 @@ class Model:
     def _fill(self, fields: dict, lines: Mapping[str, int]) -> None:
         fields = dict(fields, lines=MappingProxyType(dict(lines)))
         for key in _FIELDS:
-            object.__setattr__(self, key, fields[key])
+            object.__setattr__(self, "_symbols" if key == "symbols" else key, fields[key])
 
     @classmethod
     def _build(cls, fields: dict, lines: Mapping[str, int]) -> "Model":
@@ -191,25 +198,43 @@ class Model:
         return tuple(self.symbols[p.name] for p in self.parameters)
 
     @property
-    def declared_symbols(self) -> dict:
-        """Name -> a sympy symbol carrying the declared assumption
-        (``Symbol("A", positive=True)`` for a positive parameter; states and
-        ``real`` parameters are ``Symbol(name, real=True)``, the same as
-        :attr:`symbols`).  ``result.with_declared_symbols()`` rewrites a
-        result in these, so that a user's own ``sympy.Symbol("A",
-        positive=True)`` matches.
+    def symbols(self) -> Mapping[str, sympy.Symbol]:
+        """Name -> the model's sympy symbol, for states and parameters alike
+        (read-only).
 
-        >>> m = Model(["x"], {"x": "a - b*x"}, {"a": "positive", "b": "real"})
-        >>> m.symbols["a"] == sympy.Symbol("a", real=True)
+        States are ``Symbol(name, real=True)``; a parameter's symbol carries
+        its declared assumption with the keyword a user would write:
+        ``Symbol(name, positive=True)`` for ``"positive"`` (likewise
+        ``negative``, ``nonnegative``, ``nonzero``) and ``Symbol(name,
+        real=True)`` for ``"real"`` and for names the model did not declare.
+        Every result uses exactly these symbols, so a symbol made by hand with
+        the declared assumption is the same symbol and substitutes into it.
+
+        Examples
+        --------
+        >>> import sympy
+        >>> from criticality import hopf
+        >>> m = Model(["x", "y"], {"x": "A - (B + 1)*x + x^2*y", "y": "B*x - x^2*y"},
+        ...           {"A": "positive", "B": "positive"})
+        >>> m.symbols["A"] == sympy.Symbol("A", positive=True)
         True
-        >>> m.declared_symbols["a"] == sympy.Symbol("a", positive=True)
+        >>> m.symbols["x"] == sympy.Symbol("x", real=True)
         True
+        >>> r = hopf(m, "B")
+        >>> r.critical_value
+        A**2 + 1
+        >>> r.critical_value.subs(sympy.Symbol("A", positive=True), 2)
+        5
+        >>> r.critical_value.subs(m.symbols["A"], 2)
+        5
         """
-        out = dict(self.symbols)
-        for p in self.parameters:
-            if p.assumption != "real":
-                out[p.name] = sympy.Symbol(p.name, real=True, **{p.assumption: True})
-        return out
+        return self._symbols
+
+    @property
+    def declared_symbols(self) -> Mapping[str, sympy.Symbol]:
+        """The same mapping as :attr:`symbols`, kept for compatibility: the
+        model's own symbols carry the declared assumptions."""
+        return self._symbols
 
     @property
     def delays(self) -> tuple:

@@ -522,4 +522,15 @@ def parse_expression(text: str, symbols: Mapping[str, sympy.Expr] | None = None,
         raise where.error(ExpressionLimitError, f"the sum could not be formed ({exc})") from None
     if result.has(*_NOT_FINITE):
         raise where.error(ForbiddenExpressionError, "the expression is not finite")
+    if result.has(sympy.I):
+        raise where.error(ForbiddenExpressionError, "the expression is not real under the "
+                          f"declared signs: sympy evaluates it to {_short_text(result)}, with "
+                          "the imaginary unit I (an even root of a quantity the assumptions make "
+                          "negative, such as sqrt(-b) for b positive); check the signs declared "
+                          "for its parameters")
     return result
+
+
+def _short_text(expr: sympy.Expr, limit: int = 80) -> str:
+    text = sympy.sstr(expr)
+    return text if len(text) <= limit else text[:limit - 3] + "..."

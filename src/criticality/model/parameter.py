@@ -17,7 +17,7 @@ from .syntax import _suggest
 from ..errors import ExpressionError, ParameterError
 from .expressions import convert_sympy, format_expression, name_problem, parse_expression
 
-__all__ = ["Parameter", "ASSUMPTIONS"]
+__all__ = ["Parameter", "ASSUMPTIONS", "symbol_for", "assumption_of", "critical_symbol"]
 
 #: the sign assumptions a parameter may carry
 ASSUMPTIONS = ("real", "positive", "nonnegative", "nonzero", "negative")
@@ -25,6 +25,48 @@ _SIGN_TEST = {"positive": ("is_positive", "> 0"), "nonnegative": ("is_nonnegativ
               "negative": ("is_negative", "< 0"), "nonzero": ("is_nonzero", "!= 0")}
 _PARAMETER_KEYS = ("assume", "value", "description", "unit")
 _NUMBER_TYPES = (int, float, Fraction, sympy.Expr)
+
+
+def symbol_for(name: str, assumption: str = "real") -> sympy.Symbol:
+    """The model's symbol for a name with a declared assumption.
+
+    It carries exactly the keyword a user would write, ``Symbol(name,
+    positive=True)`` for ``"positive"`` (likewise ``negative``,
+    ``nonnegative``, ``nonzero``, each of which implies real in sympy) and
+    ``Symbol(name, real=True)`` for ``"real"``, so that the user's own symbol
+    is the same symbol.
+
+    >>> symbol_for("A", "positive") == sympy.Symbol("A", positive=True)
+    True
+    >>> symbol_for("x").is_real
+    True
+    """
+    if assumption not in ASSUMPTIONS:
+        raise ParameterError(f"unknown assumption {assumption!r} for {name!r} "
+                             f"(one of {', '.join(ASSUMPTIONS)})")
+    return sympy.Symbol(name, **{assumption: True})
+
+
+def assumption_of(symbol: sympy.Symbol) -> str:
+    """The assumption word a symbol made by :func:`symbol_for` carries
+    (``"real"`` for any other symbol).
+
+    >>> assumption_of(symbol_for("b", "nonnegative"))
+    'nonnegative'
+    """
+    given = getattr(symbol, "_assumptions_orig", None) or {}
+    return next((word for word in ASSUMPTIONS if given.get(word) is True), "real")
+
+
+def critical_symbol(symbol: sympy.Symbol) -> sympy.Symbol:
+    """The symbol ``<name>_c`` that stands for the critical value of a
+    parameter in a result (``mu - mu_c``); it carries the parameter's
+    assumption, as a value of that parameter.
+
+    >>> critical_symbol(symbol_for("r", "positive")) == sympy.Symbol("r_c", positive=True)
+    True
+    """
+    return symbol_for(f"{symbol.name}_c", assumption_of(symbol))
 
 
 def _assumption_problem(assumption: object) -> str | None:
@@ -77,10 +119,11 @@ class Parameter:
     Attributes
     ----------
     name : str
-        The parameter's name (its symbol is ``Symbol(name, real=True)``).
+        The parameter's name.
     assumption : str
         One of ``"real"``, ``"positive"``, ``"nonnegative"``, ``"nonzero"``,
-        ``"negative"``; kept as metadata, not as a sympy assumption.
+        ``"negative"``; the parameter's symbol carries it as the sympy
+        assumption of that name (see :attr:`symbol`).
     default : sympy.Expr or None
         An exact real constant (e.g. ``Rational(1, 2)``) or None.  Text, Python
         numbers and sympy numbers are accepted and converted exactly.
@@ -120,8 +163,10 @@ class Parameter:
 
     @property
     def symbol(self) -> sympy.Symbol:
-        """The model's symbol for this parameter, ``Symbol(name, real=True)``."""
-        return sympy.Symbol(self.name, real=True)
+        """The model's symbol for this parameter: ``Symbol(name, positive=True)``
+        for a positive parameter, ``Symbol(name, real=True)`` for a real one
+        (see :func:`symbol_for`)."""
+        return symbol_for(self.name, self.assumption)
 
 
 def _name_of(key: object) -> Any:

@@ -20,8 +20,10 @@ from typing import Any, Mapping, Sequence
 
 from .render import CAUTIONS
 from ..errors import ModelFileError
+from ..model.parameter import ASSUMPTIONS, symbol_for
 
-__all__ = ["SCHEMA_VERSION", "READABLE_VERSIONS", "envelope", "read_envelope", "read_document"]
+__all__ = ["SCHEMA_VERSION", "READABLE_VERSIONS", "envelope", "read_envelope", "read_document",
+           "document_symbols"]
 
 #: the version every document is written with
 SCHEMA_VERSION = 1
@@ -88,3 +90,47 @@ def read_document(text: str, schema: str | None = None) -> dict:
         raise ModelFileError("not a JSON document this reader accepts: arrays or objects are "
                              "nested too deeply") from None
     return read_envelope(doc, schema)
+
+
+def document_symbols(doc: Mapping[str, Any]) -> dict:
+    """Name -> the sympy symbol a result used, rebuilt from a document: the
+    states real, each parameter with the assumption the document declares
+    for it (``model.parameters``, a list of objects with ``name`` and
+    ``assumption`` or an object name -> assumption), and further free symbols
+    (``x_eq`` of a parametrised family) with the word under ``assumptions``.
+    These are the model's own symbols (:attr:`criticality.Model.symbols`), so
+    expressions read back equal the result's.
+
+    Raises
+    ------
+    ModelFileError
+        For an assumption word the model syntax does not know.
+
+    >>> table = document_symbols({"model": {"states": ["x"], "parameters": [
+    ...     {"name": "a", "assumption": "positive"}]}})
+    >>> table["a"].is_positive, table["x"].is_real
+    (True, True)
+    """
+    model = doc.get("model")
+    model = model if isinstance(model, Mapping) else {}
+    declared: dict[str, object] = {}
+    extra = doc.get("assumptions")
+    if isinstance(extra, Mapping):
+        declared.update((str(k), v) for k, v in extra.items())
+    listed = model.get("parameters")
+    if isinstance(listed, Mapping):
+        declared.update((str(k), v) for k, v in listed.items())
+    elif isinstance(listed, list):
+        declared.update((str(p.get("name")), p.get("assumption", "real")) for p in listed
+                        if isinstance(p, Mapping) and isinstance(p.get("name"), str))
+    out = {}
+    for name, word in declared.items():
+        if word not in ASSUMPTIONS:
+            raise ModelFileError(f"the document declares {name!r} as {str(word)[:40]!r}; "
+                                 f"expected one of {', '.join(ASSUMPTIONS)}")
+        out[name] = symbol_for(name, str(word))
+    states = model.get("states")
+    for name in states if isinstance(states, list) else ():
+        if isinstance(name, str):
+            out[name] = symbol_for(name)
+    return out

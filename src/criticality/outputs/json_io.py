@@ -24,7 +24,7 @@ from typing import TYPE_CHECKING, Any, Mapping
 import mpmath
 import sympy
 
-from .envelope import SCHEMA_VERSION, envelope, read_document
+from .envelope import SCHEMA_VERSION, document_symbols, envelope, read_document
 from .render import CAUTIONS, split_complex, try_model_text
 from ..renderers import register_renderer
 from ..errors import ModelFileError, ParameterError
@@ -330,8 +330,11 @@ def read_expressions(json_text: str, *, exact: bool | None = None) -> dict:
     -------
     dict
         Dotted path (``"l1"``, ``"c1.re"``, ``"cycle.amplitudes.x"``,
-        ``"conditions.transversal.expression"``, ...) -> sympy expression;
-        every name is read as a real symbol, like the model's own.
+        ``"conditions.transversal.expression"``, ...) -> sympy expression in
+        the model's own symbols, rebuilt from the document
+        (:func:`~criticality.outputs.envelope.document_symbols`: states real,
+        each parameter with its declared assumption), so that they equal the
+        result's expressions; any other name is read as a real symbol.
 
     Raises
     ------
@@ -342,10 +345,16 @@ def read_expressions(json_text: str, *, exact: bool | None = None) -> dict:
     doc = read_document(json_text, SCHEMA)
     if exact is None:
         exact = not str(doc.get("status", "")).startswith("numeric")
+    symbols = document_symbols(doc)
     out = {}
     for path, text in _walk(doc):
-        out[path] = parse_expression(text, context=f"JSON field {path!r}", exact=exact)
+        out[path] = parse_expression(text, symbols, context=f"JSON field {path!r}", exact=exact,
+                                     on_unknown=_any_name)
     return out
+
+
+def _any_name(name: str, column: int) -> None:
+    """Names a document's expressions may use beyond the model's (read as real)."""
 
 
 def result_expressions(result: HopfResult) -> dict:

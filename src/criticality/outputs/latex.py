@@ -29,8 +29,7 @@ import sympy
 
 from ..renderers import register_renderer
 from .latex_expr import latex_name
-from .latex_sections import Document, report_body
-from .render import parametrisation_sentences
+from .latex_sections import Document, parametrisation_head, report_body
 
 if TYPE_CHECKING:
     from ..hopf_analysis.results import HopfResult
@@ -70,7 +69,7 @@ def _quantity_rows(doc: Document) -> list:
         rows += doc.inequality_rows(r.supercritical_where)
     direct = getattr(r, "direct_forms", None)
     if r.parametrisation is not None:
-        rows.append(f"&\\text{{{doc.text(parametrisation_sentences(r)[0])}}}")
+        rows.append(f"&\\text{{{parametrisation_head(doc)}}}")
     if direct is not None and direct.hopf_set is not None:
         rows.append("&\\text{Hopf set in the original parameters}")
         rows += w.align_rows("0", direct.hopf_set)

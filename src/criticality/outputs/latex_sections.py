@@ -18,7 +18,7 @@ import sympy
 from .escape import tex_text
 from .latex_expr import Notation, TexWriter, latex_name
 from .prose import prose_to_tex
-from .render import (CAUTIONS, classification_sentence, parametrisation_sentences, per_offset,
+from .render import (CAUTIONS, classification_sentence, per_offset,
                      reduced_system_or_none, split_complex, transversality_sentence)
 from ..hopf_analysis.results import CONVENTIONS
 
@@ -258,11 +258,59 @@ def _section_equilibrium(doc: Document) -> str:
     for name, value in r.substitutions.items():
         rows += w.align_rows(latex_name(name), value)
     parts = [text, doc.math(rows)]
-    parts += [doc.text(sentence) for sentence in parametrisation_sentences(r)]
-    direct = getattr(r, "direct_forms", None)
-    if direct is not None and direct.hopf_set is not None:
-        parts.append(doc.math(w.align_rows("0", direct.hopf_set)))
+    parts += parametrisation_tex(doc)
     return _section("Equilibrium", *parts)
+
+
+def parametrisation_head(doc: Document) -> str:
+    """One sentence, math in math mode: which parametrisation the family
+    uses, its free coordinates and where it holds; ``""`` without one."""
+    par = getattr(doc.result, "parametrisation", None)
+    if par is None:
+        return ""
+    w = doc.writer
+    names = ", ".join(f"${latex_name(n)}$" for n in par.unknowns)
+    how = (f"automatic, {doc.text(par.kind)} in {names}" if par.how == "automatic"
+           else f"named: {names} solved for")
+    coords = ", ".join(f"${latex_name(str(c))}$" for c in par.coordinates)
+    gone = ", ".join(f"${latex_name(n)}$" for n, _ in par.eliminated)
+    text = (f"Parametrisation ({how}): the equilibrium coordinate"
+            f"{'s' if len(par.coordinates) > 1 else ''} {coords} "
+            f"{'are' if len(par.coordinates) > 1 else 'is a'} free parameter"
+            f"{'s' if len(par.coordinates) > 1 else ''}")
+    if gone:
+        text += f", and {gone} {'is' if len(par.eliminated) == 1 else 'are'} eliminated"
+    if par.nonzero:
+        text += " (where " + ", ".join(f"${w.tex(f)} \\neq 0$" for f in par.nonzero) + ")"
+    return text + "."
+
+
+def parametrisation_tex(doc: Document) -> list:
+    """The parametrisation sentence and the Hopf condition back in the
+    original parameters (display math), for the equilibrium section."""
+    head = parametrisation_head(doc)
+    if not head:
+        return []
+    parts, w = [head], doc.writer
+    direct = getattr(doc.result, "direct_forms", None)
+    if direct is None or direct.hopf_set is None:
+        return parts
+    mu = doc.mu
+    parts.append("In the original parameters the Hopf set is")
+    parts.append(doc.math(w.align_rows("0", direct.hopf_set)))
+    if direct.critical_value is not None:
+        parts.append(f"that is, ${mu} = {w.tex(direct.critical_value)}$.")
+    elif direct.degree == 2:
+        parts.append(f"The critical value is one of the two roots of this quadratic in ${mu}$; "
+                     "which one can change with the parameters.")
+    elif direct.degree > 2:
+        parts.append(f"It is of degree {direct.degree} in ${mu}$, so no closed form in radicals "
+                     "is given for the critical value in the original parameters.")
+    if direct.l1_boundary is not None:
+        parts.append("The sign of the first Lyapunov coefficient on the Hopf set can change "
+                     "only where")
+        parts.append(doc.math(w.align_rows("0", direct.l1_boundary)))
+    return parts
 
 
 def _section_linear(doc: Document) -> str:

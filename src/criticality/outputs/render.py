@@ -17,6 +17,7 @@ import sympy
 from ..errors import CriticalityError
 from ..kinds import Classification, Side
 from ..model.expressions import format_expression
+from ..model.parameter import ASSUMPTIONS, assumption_of, symbol_for
 
 if TYPE_CHECKING:
     from ..hopf_analysis.results import HopfResult, ReducedSystemView
@@ -233,10 +234,6 @@ def cycle_sentences(result: HopfResult, show: Any = None) -> list:
     return out
 
 
-_SIGN_KEYWORDS: dict[str | None, dict[str, bool]] = {"positive": {"positive": True}, "negative": {"negative": True},
-                  "nonnegative": {"nonnegative": True}}
-
-
 def _sign(expr, assumptions=None) -> int:
     """+1, -1 or 0 (unknown) for a small expression, using the declared signs."""
     if expr.is_number:
@@ -248,10 +245,10 @@ def _sign(expr, assumptions=None) -> int:
     if sympy.count_ops(expr) > 300:
         return 0
     repl = {}
-    for symbol in expr.free_symbols:
-        keywords = _SIGN_KEYWORDS.get((assumptions or {}).get(symbol.name))
-        if keywords:
-            repl[symbol] = sympy.Symbol(symbol.name, real=True, **keywords)
+    for symbol in expr.free_symbols:  # the analysis' assumptions, where assume= changed them
+        word = (assumptions or {}).get(symbol.name)
+        if word in ASSUMPTIONS and word != assumption_of(symbol):
+            repl[symbol] = symbol_for(symbol.name, word)
     expr = expr.xreplace(repl)
     if expr.is_positive:
         return 1
