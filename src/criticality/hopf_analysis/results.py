@@ -23,6 +23,7 @@ if TYPE_CHECKING:
     from ..checks.numeric import NumericHopfResult
     from ..local.critical import Condition
     from ..model.core import Model
+    from .radical_view import RadicalView
 
 __all__ = ["Conventions", "CONVENTIONS", "CyclePrediction", "ReducedSystemView", "StoredDetails",
            "HopfResult"]
@@ -305,6 +306,26 @@ class HopfResult:
         merged = dict(values or {})
         merged.update(kwargs)
         return evaluate_result(self, merged, digits=digits)
+
+    def in_radicals(self, *, trigonometric: bool = False) -> "RadicalView":
+        """The critical value, omega^2, omega, the transversality and l1 with
+        each algebraic critical value (``RealAlgebraicRoot``, a root of a
+        polynomial of degree 3 or more) in closed form, where one in real
+        radicals exists: binomials (``b^3 = a^2`` gives ``a^(2/3)``), cubics
+        with one real root (Cardano), quartics in ``mu^2``.  A cubic with
+        three real roots has none (the casus irreducibilis):
+        ``trigonometric=True`` gives its cosine form.  The view states the
+        sign conditions the form relies on that the declared assumptions do
+        not decide (:class:`~criticality.hopf_analysis.radical_view.RadicalView`).
+
+        Raises
+        ------
+        ClosedFormUnavailableError
+            Where no such form exists or a sign it needs is proved false.
+        """
+        from .radical_view import radical_view
+
+        return radical_view(self, trigonometric=trigonometric)
 
     def evaluate_many(self, points: Mapping,
                       quantities: Sequence[str] = ("critical_value", "omega", "l1"),
