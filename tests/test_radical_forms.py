@@ -142,3 +142,21 @@ def test_shapes_without_a_real_radical_form_are_refused_by_name():
         real_radical_form(sympy.Lambda(x, x ** 3 - s), 1, None, ctx)
     form = real_radical_form(sympy.Lambda(x, x ** 3 + s), 0, None, ctx)
     assert form.expr == -sympy.cbrt(s) and form.conditions == ()
+
+
+def test_the_command_line_gives_the_form_or_the_reason(tmp_path, capsys):
+    """``analyse --in-radicals`` appends the form and its condition; for the
+    casus irreducibilis it names the reason and ``--cosine-form``."""
+    from criticality.cli.main import main
+
+    path = tmp_path / "cubic.toml"
+    path.write_text('states = ["x", "y"]\nbifurcation_parameter = "mu"\n[parameters]\n'
+                    'mu = { assume = "real" }\ns = { assume = "positive" }\n[equations]\n'
+                    'x = "y"\ny = "(mu^3 - s*mu - 1)*y - x - x^2*y"\n')
+    assert main(["analyse", str(path), "--in-radicals"]) == 0
+    out = capsys.readouterr().out
+    assert "by the Cardano form of real root 1" in out and "valid where 4*s**3 - 27 < 0" in out
+    assert main(["analyse", str(path), "--in-radicals", "--set", "s=3"]) == 0
+    assert "casus irreducibilis" in capsys.readouterr().out
+    assert main(["analyse", str(path), "--cosine-form", "--set", "s=3"]) == 0
+    assert "by the trigonometric form of real root 1" in capsys.readouterr().out

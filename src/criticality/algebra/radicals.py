@@ -225,7 +225,8 @@ def _cubic(coeffs, k, bound, signs: _Signs, trigonometric: bool):
     if not trigonometric:
         raise ClosedFormUnavailableError(
             "the cubic has three real roots (q^2/4 + p^3/27 < 0): the casus irreducibilis, "
-            "which has no form in real radicals; in_radicals(trigonometric=True) gives the "
+            "which has no form in real radicals; in_radicals(trigonometric=True) (on the "
+            "command line --cosine-form) gives the "
             "cosine form")
     signs.require(D, False, "the cosine form needs three real roots, q^2/4 + p^3/27 < 0")
     # p < 0 follows from D < 0

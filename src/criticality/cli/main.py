@@ -100,12 +100,31 @@ def _analyse(args) -> int:
     if getattr(result, "kind", "") in ("hopf_delay", "hopf_delay_numeric"):
         return delay_output(args, result, "text")
     text = result_summary(result, width=args.width)
+    if args.in_radicals or args.cosine_form:
+        text += "\n" + _radical_block(result, args.cosine_form)
     point = _merge(args.point, "--at")
     if point:
         with Stage("numeric evaluation", quiet=_quiet(args)):
             text += "\n" + numeric_summary(result.evaluate(point, digits=args.digits))
     write_output(text, args.output, force=args.force)
     return EXIT_OK
+
+
+def _radical_block(result, cosine: bool) -> str:
+    """The closed form of an algebraic critical value (``--in-radicals``), or
+    the reason there is none."""
+    from ..errors import ClosedFormUnavailableError
+
+    head = "In closed form (on request; the forms hold where the conditions hold)"
+    if not hasattr(result, "in_radicals"):
+        return f"{head}\n  not available: this result is numeric\n"
+    try:
+        view = result.in_radicals(trigonometric=cosine)
+    except ClosedFormUnavailableError as exc:
+        return f"{head}\n  not available: {exc}\n"
+    if not view.forms:
+        return f"{head}\n  the critical value is already in radicals\n"
+    return head + "\n" + "".join(f"  {line}\n" for line in str(view).splitlines())
 
 
 def _report(args) -> int:
@@ -220,6 +239,12 @@ def _add_subcommands(sub) -> None:
     _output_options(p)
     p.add_argument("--width", type=ranges.integer("--width", ranges.WIDTH), default=100,
                    help=f"line width (default 100; {ranges.WIDTH[0]} to {ranges.WIDTH[1]})")
+    p.add_argument("--in-radicals", action="store_true",
+                   help="also give an algebraic critical value (a root of degree 3 or 4) in "
+                   "real radicals where they exist, with the conditions the form needs")
+    p.add_argument("--cosine-form", action="store_true",
+                   help="as --in-radicals, with the cosine form for a cubic with three real "
+                   "roots (which has no form in real radicals)")
     p = _subcommand(sub, "report", _report, "LaTeX derivation report",
                     "Write the derivation as a standalone LaTeX document (pdflatex).")
     add_analysis_options(p)

@@ -58,7 +58,11 @@ class RadicalView:
     def __str__(self) -> str:
         lines = [f"{name} = {sympy.sstr(e)}" for name, e in self.quantities.items()]
         for root, form in self.forms.items():
-            lines.append(f"{sympy.sstr(root)} by the {form.how} form")
+            lam, k, bound = _defining(root)
+            which = "positive root" if bound is not None else "real root"
+            lines.append(f"by the {form.how} form of {which} {k + 1} (in increasing order) of "
+                         f"{sympy.sstr(lam.expr.xreplace({lam.variables[0]: sympy.Symbol('x')}))}"
+                         " = 0")
         if self.conditions:
             lines.append("valid where " + ", ".join(sympy.sstr(c) for c in self.conditions))
         return "\n".join(lines)
