@@ -93,7 +93,7 @@ def test_terminal_summary_sections(pair):
              "Cycle near onset", "The cycle exists for mu > mu_c",
              "It is orbitally stable", "squared radius rho^2 = K*(mu - mu_c)", "Conventions",
              "<a, b> = conj(a)^T b", "Cautions", "The analysis is local",
-             "abrupt, hysteretic onset", "Verify the result",
+             "abrupt, hysteretic onset", "verify the result",
              "licensed engineering practice"]
     positions = [text.find(piece) for piece in order]
     assert all(p >= 0 for p in positions), [o for o, p in zip(order, positions) if p < 0]

@@ -320,7 +320,7 @@ _CONVENTION_LINE = ("Conventions: <a, b> = conj(a)^T b; A q = i omega q, <q, q> 
                     "full: result.details()")
 _CAUTION_PHRASES = ("Cautions: The analysis is local to the bifurcation point;",
                     "a subcritical result means an abrupt, hysteretic onset;",
-                    "Verify the result before relying on it,",
+                    "verify the result before relying on it,",
                     "and defer to applicable codes and licensed engineering practice.")
 
 
