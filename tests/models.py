@@ -27,6 +27,10 @@ BRUSSELATOR = Model(states=["x", "y"],
                     equations={"x": "A - (B + 1)*x + x^2*y", "y": "B*x - x^2*y"},
                     parameters={"A": "positive", "B": "positive"})
 BRUSSELATOR_EQUILIBRIUM = {"x": "A", "y": "B/A"}
+#: the same model as a model file, for the command-line tests
+BRUSSELATOR_TOML = ('name = "brusselator"\nstates = ["x", "y"]\nbifurcation_parameter = "B"\n'
+                    '[parameters]\nA = { assume = "positive" }\nB = { assume = "positive" }\n'
+                    '[equations]\nx = "A - (B + 1)*x + x^2*y"\ny = "B*x - x^2*y"\n')
 
 #: A van der Pol type oscillator x' = y, y' = -x + mu y - x^2 y: supercritical at
 #: mu = 0 with the cycle amplitude 2 sqrt(mu) in x (common practice, no source).

@@ -12,7 +12,7 @@ import mpmath
 import pytest
 
 from criticality import Model, hopf
-from models import LORENZ, LORENZ_EQUILIBRIUM
+from models import BRUSSELATOR_TOML, LORENZ, LORENZ_EQUILIBRIUM
 from criticality.cli.main import main
 
 CASES = {
@@ -106,9 +106,7 @@ def test_c_code_compiles_and_matches_evaluate(case, tmp_path):
 def test_export_from_the_command_line(tmp_path, capsys):
     """criticality export writes the numpy module and the C code."""
     model = tmp_path / "bru.toml"
-    model.write_text('states = ["x", "y"]\nbifurcation_parameter = "B"\n[parameters]\n'
-                     'A = { assume = "positive" }\nB = { assume = "positive" }\n'
-                     '[equations]\nx = "A - (B+1)*x + x^2*y"\ny = "B*x - x^2*y"\n')
+    model.write_text(BRUSSELATOR_TOML)
     assert main(["export", str(model), "--to", "numpy", "-q"]) == 0
     assert "def l1(A):" in capsys.readouterr().out
     target = tmp_path / "bru.c"

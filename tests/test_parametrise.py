@@ -20,7 +20,7 @@ from criticality.cli.main import main
 from criticality.local.parametrise import find_parametrisations
 from criticality.outputs.json_io import read_expressions, result_expressions
 
-from models import BRUSSELATOR, LORENZ
+from models import BRUSSELATOR, BRUSSELATOR_TOML, LORENZ
 
 #: Invented kinetics for these tests (no source): the Brusselator scheme with a
 #: second-order loss c x^2 of the intermediate x.  Its positive equilibrium is
@@ -281,9 +281,7 @@ def test_cli_eliminate_auto(tmp_path, capsys):
     """--eliminate auto on the command line: the summary names the
     parametrisation, the JSON carries it."""
     model = tmp_path / "b.toml"
-    model.write_text('name = "brusselator"\nstates = ["x", "y"]\nbifurcation_parameter = "B"\n'
-                     '[parameters]\nA = "positive"\nB = "positive"\n[equations]\n'
-                     'x = "A - (B + 1)*x + x^2*y"\ny = "B*x - x^2*y"\n')
+    model.write_text(BRUSSELATOR_TOML)
     assert main(["analyse", str(model), "--eliminate", "auto", "-q"]) == 0
     assert "Parametrisation (automatic" in capsys.readouterr().out
     assert main(["json", str(model), "--eliminate", "auto", "-q"]) == 0

@@ -79,7 +79,7 @@ def radical_view(result: Any, *, trigonometric: bool = False) -> RadicalView:
     symbols = result.model.symbols
     words = {symbols[n]: w for n, w in result.assumptions.items() if n in symbols}
     free = {s for e in values.values() for s in e.free_symbols}
-    context = context_for(free, {s: words.get(s, str(_word(s))) for s in free})
+    context = context_for(free, {s: words.get(s) or _word(s) for s in free})
     forms: dict[sympy.Expr, RadicalForm] = {
         r: real_radical_form(*_defining(r), context, trigonometric=trigonometric)
         for r in roots}

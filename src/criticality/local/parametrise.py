@@ -24,7 +24,7 @@ and gives the smallest expressions, in that order.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import TYPE_CHECKING, Iterable, Mapping
 
 import sympy
@@ -331,12 +331,10 @@ def _signed_coordinates(par: Parametrisation, words: Mapping[str, str]) -> Param
     """``par`` with each coordinate named in ``words`` replaced by the symbol
     that carries its word."""
     rename = {c: symbol_for(c.name, words[c.name]) for c in par.coordinates if c.name in words}
-    return Parametrisation(par.unknowns, par.kind,
-                           tuple(v.xreplace(rename) for v in par.point),
-                           tuple((n, v.xreplace(rename)) for n, v in par.eliminated),
-                           tuple(rename.get(c, c) for c in par.coordinates),
-                           tuple(f.xreplace(rename) for f in par.nonzero),
-                           par.signs, par.how, par.implied)
+    return replace(par, point=tuple(v.xreplace(rename) for v in par.point),
+                   eliminated=tuple((n, v.xreplace(rename)) for n, v in par.eliminated),
+                   coordinates=tuple(rename.get(c, c) for c in par.coordinates),
+                   nonzero=tuple(f.xreplace(rename) for f in par.nonzero))
 
 
 _FLIP = {"positive": "negative", "negative": "positive", "nonzero": "nonzero"}
