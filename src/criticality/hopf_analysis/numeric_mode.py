@@ -20,12 +20,16 @@ number of correct digits is estimated from the condition number of the Newton
 matrix (``cond * eps``, the first-order bound), the last Newton correction and
 the agreement of two routes to ``c1`` (a dense complex projection formula
 and the engine's realified one).  If that estimate falls short of the digits
-asked, or more digits are asked, the float64 point is refined in mpmath, and
-the analysis runs twice, at ``digits + 15`` and ``2 digits + 15`` significant
-digits; the number of digits on which the two runs agree (critical value,
-equilibrium, omega, transversality and Lyapunov coefficients) is reported as
-the number of correct digits, and the values of the more precise run,
-rounded to ``digits``, are returned.
+asked, or more digits are asked, the float64 point is refined in mpmath and
+the analysis runs once at ``digits + 15`` significant digits (at order 3 with
+ball linear algebra, :mod:`criticality.local.numeric_balls`).  Its correct
+digits are judged from that one run: the digits the float64 run lost on this
+point (its agreement with the precise run) are lost at the higher precision
+too, and the condition number, the two routes to ``c1`` and the radii of the
+balls bound them further.  Where that judgement falls short of the digits
+asked (or float64 could not judge the point), a second run at
+``2 digits + 15`` digits decides, and the number of digits on which the two
+runs agree is reported.  The values are rounded to ``digits``.
 """
 
 from __future__ import annotations
@@ -383,8 +387,8 @@ def hopf_numeric(model: Model, parameter: str | None, guess: Mapping, *, digits:
         correct, lost = _one_run_digits(run, d, pt, digits, dps)
         how = (f"numeric mode: the Hopf point was located by Newton's method from the guess "
                f"and refined to {dps} significant digits; the double-precision run lost {lost} "
-               f"of its digits on this point, so the same computation at {dps} digits keeps {correct} "
-               f"(also bounded by the condition number, two routes to c1 and the rounding "
+               f"of its digits on this point, so the same computation at {dps} digits keeps "
+               f"{correct} (also bounded by the condition number, two routes to c1 and the rounding "
                f"radii of the ball arithmetic); {where}")
     if correct < digits:  # too ill-conditioned to judge from float64: run a second time
         high = run_mp(setup, system, pt, 2 * digits + 15, order, digits)
