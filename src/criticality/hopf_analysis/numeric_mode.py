@@ -20,12 +20,16 @@ number of correct digits is estimated from the condition number of the Newton
 matrix (``cond * eps``, the first-order bound), the last Newton correction and
 the agreement of two routes to ``c1`` (a dense complex projection formula
 and the engine's realified one).  If that estimate falls short of the digits
-asked, or more digits are asked, the float64 point is refined in mpmath, and
-the analysis runs twice, at ``digits + 15`` and ``2 digits + 15`` significant
-digits; the number of digits on which the two runs agree (critical value,
-equilibrium, omega, transversality and Lyapunov coefficients) is reported as
-the number of correct digits, and the values of the more precise run,
-rounded to ``digits``, are returned.
+asked, or more digits are asked, the float64 point is refined in mpmath and
+the analysis runs once at ``digits + 15`` significant digits (at order 3 with
+ball linear algebra, :mod:`criticality.local.numeric_balls`).  Its correct
+digits are judged from that one run: the digits the float64 run lost on this
+point (its agreement with the precise run) are lost at the higher precision
+too, and the condition number, the two routes to ``c1`` and the radii of the
+balls bound them further.  Where that judgement falls short of the digits
+asked (or float64 could not judge the point), a second run at
+``2 digits + 15`` digits decides, and the number of digits on which the two
+runs agree is reported.  The values are rounded to ``digits``.
 """
 
 from __future__ import annotations
@@ -38,13 +42,14 @@ import mpmath
 import sympy
 
 from ..local.boundary import guarded
-from ..errors import NoHopfPointError, ParameterError
+from ..errors import DegenerateHopfError, NoHopfPointError, ParameterError
 from ..local.compiled import CompiledTaylor
 from ..local.lyapunov import complex_normal_form
 from ..local.prepare import check_order, resolve_parameter
 from ..local.numeric_hopf import (FloatField, HopfSystem, MpField, eigen_data, engine_eigenbasis,
                                   numpy_projection_c1, numpy_projection_c1_real,
-                                  mp_projection_c1, numpy_transversality)
+                                  numpy_transversality)
+from ..local.numeric_balls import ball_coefficients
 from ..local.projection import projection_c1
 
 if TYPE_CHECKING:
@@ -200,10 +205,12 @@ def run_float(setup: NumericSetup, pt: HopfPoint, order: int) -> dict:
 
 # -- mpmath ---------------------------------------------------------------------------------
 
-def run_mp(setup: NumericSetup, system: HopfSystem, pt: HopfPoint, dps: int, order: int,
-           routes: bool = True) -> dict:
-    """Every quantity at ``dps`` digits (mpmath), from the float64 point;
-    without ``routes`` (order 3) only the projection formula gives ``c1``."""
+def run_mp(setup: NumericSetup, system: HopfSystem, pt: HopfPoint, dps: int,
+           order: int, digits: int) -> dict:
+    """Every quantity at ``dps`` digits, from the float64 point refined in
+    mpmath: at order 3 by the ball kernels (:mod:`criticality.local.numeric_balls`,
+    two routes to ``c1``), above by the engine's projection formula and
+    normalization method over mpmath numbers."""
     import numpy as np
 
     ct = setup.compiled
@@ -213,45 +220,51 @@ def run_mp(setup: NumericSetup, system: HopfSystem, pt: HopfPoint, dps: int, ord
         pm = list(exact)
         pm[setup.mu_index] = mu
         vals = ct.values(x, pm, "mpmath")
-        A, pbar = eigen_data(ct, vals, om, q, "mpmath")
-        K = MpField()
-        eb = engine_eigenbasis(A, om, q, pbar, K)
-        taylor = ct.taylor_forms(vals, K, order)
-        N = eb.nu_field
-        c1p = projection_c1(taylor, eb) / eb.qq
-        if order > 3:
-            cs = complex_normal_form(taylor, eb, order)
-        elif routes:  # the second route: complex solves on the compiled tensors
-            c1 = mp_projection_c1(ct, vals, A, om, q, pbar)
-            cs = (N.element(mpmath.re(c1), mpmath.im(c1) / om),)
+        if order == 3:
+            b = ball_coefficients(ct, vals, om, q, dps, mpmath.mpf(10) ** -digits)
+            A, pbar, qq = b["A"], b["pbar"], b["qq"]
+            c1p, cs, dlam, rounding = b["c1_real"], [b["c1"]], b["dlam"], b["rounding"]
         else:
-            cs = (c1p,)
-        n = ct.n
-        f_mu = mpmath.matrix(n, 1)
-        for i, pos in ct.layout.f_p[0]:
-            f_mu[i] = vals[pos]
-        dx = mpmath.lu_solve(mpmath.matrix(A), -f_mu)
-        dxN = [N(dx[i]) for i in range(n)]
-        dA_q = [N.zero] * n
-        for i, j, pos in ct.layout.J_p[0]:
-            dA_q[i] = dA_q[i] + N(vals[pos]) * eb.q[j]
-        Bq = taylor.form(2, eb.q, dxN)
-        dlam = sum((a * (b + c) for a, b, c in zip(eb.pbar, dA_q, Bq)), N.zero)
-
-        def cv(z):
-            a, b = N.components(z)
-            return mpmath.mpc(a, b * om)
-
+            A, pbar, c1p, cs, dlam = _engine_mp(ct, vals, om, q, order)
+            qq, rounding = mpmath.fsum(abs(z) ** 2 for z in q), 0.0
         others, lam = _others_max_re(np, [[float(a) for a in row] for row in A], float(om))
-        root = mpmath.sqrt(eb.qq)
+        root = mpmath.sqrt(qq)
         return {
             "x0": list(x), "mu_c": mu, "omega": om, "W": om ** 2,
-            "c": [cv(c) for c in cs], "c1_projection": cv(c1p), "dlam": cv(dlam),
-            "q": [cv(z) / root for z in eb.q],
-            "p": [mpmath.conj(cv(z)) * root for z in eb.pbar],
+            "c": list(cs), "c1_projection": c1p, "dlam": dlam,
+            "q": [z / root for z in q], "p": [mpmath.conj(z) * root for z in pbar],
             "A": [list(row) for row in A], "eigenvalues": [mpmath.mpc(complex(z)) for z in lam],
-            "others_max_re": mpmath.mpf(float(others)),
+            "others_max_re": mpmath.mpf(float(others)), "rounding": rounding,
         }
+
+
+def _engine_mp(ct: CompiledTaylor, vals: list, om: Any, q: list, order: int) -> tuple:
+    """``(A, conj(p), c1 by projection, (c1, c2, ...) by normalization,
+    d lambda / d mu)`` by the engine over mpmath numbers (orders above 3)."""
+    A, pbar = eigen_data(ct, vals, om, q, "mpmath")
+    K = MpField()
+    eb = engine_eigenbasis(A, om, q, pbar, K)
+    taylor = ct.taylor_forms(vals, K, order)
+    N = eb.nu_field
+
+    def cv(z):
+        a, b = N.components(z)
+        return mpmath.mpc(a, b * om)
+
+    c1p = projection_c1(taylor, eb) / eb.qq
+    cs = complex_normal_form(taylor, eb, order)
+    n = ct.n
+    f_mu = mpmath.matrix(n, 1)
+    for i, pos in ct.layout.f_p[0]:
+        f_mu[i] = vals[pos]
+    dx = mpmath.lu_solve(mpmath.matrix(A), -f_mu)
+    dxN = [N(dx[i]) for i in range(n)]
+    dA_q = [N.zero] * n
+    for i, j, pos in ct.layout.J_p[0]:
+        dA_q[i] = dA_q[i] + N(vals[pos]) * eb.q[j]
+    Bq = taylor.form(2, eb.q, dxN)
+    dlam = sum((a * (b + c) for a, b, c in zip(eb.pbar, dA_q, Bq)), N.zero)
+    return A, pbar, cv(c1p), [cv(c) for c in cs], cv(dlam)
 
 
 def _agreement(a, b, digits, cap):
@@ -354,24 +367,56 @@ def hopf_numeric(model: Model, parameter: str | None, guess: Mapping, *, digits:
     pt = system.solve(start[:-1], start[-1], radius=float(radius))
     where = (f"the Hopf point lies at scaled distance {pt.distance:.3g} from the guess "
              f"(Newton: {pt.iterations} steps within the trust radius {float(radius):g})")
-    if digits <= FLOAT64_DIGITS:
-        d = run_float(setup, pt, order)
-        if d["correct"] >= digits:
-            routes = abs(d["c1_projection"] - d["c"][0]) <= 10.0 ** (-digits) * \
-                max(1, abs(d["c"][0]))
-            how = (f"numeric mode (float64): the Hopf point was located by Newton's method from "
-                   f"the guess; the error estimate (condition number, last correction, two "
-                   f"routes to c1) gives {d['correct']} correct digits; {where}")
-            return numeric_result(model, parameter, d, digits, digits, d["correct"], routes,
-                                  order, how)
-    low = run_mp(setup, system, pt, digits + 15, order, routes=False)
-    high = run_mp(setup, system, pt, 2 * digits + 15, order)
-    with mpmath.workdps(2 * digits + 15):
-        correct = _agreement(low, high, digits, digits + 15)
-        routes = abs(high["c1_projection"] - high["c"][0]) <= mpmath.mpf(10) ** (-digits) * \
-            max(1, abs(high["c"][0]))
-    how = (f"numeric mode: the Hopf point was located by Newton's method from the guess; runs "
-           f"at {digits + 15} and {2 * digits + 15} significant digits agree to {correct} "
-           f"digits, so {min(correct, digits)} digits are reported as correct; {where}")
-    return numeric_result(model, parameter, high, digits, min(correct, digits), correct,
+    try:
+        d: dict | None = run_float(setup, pt, order)
+    except DegenerateHopfError:
+        if digits <= FLOAT64_DIGITS:
+            raise
+        d = None  # float64 cannot judge this point: two mpmath runs below
+    if d is not None and digits <= FLOAT64_DIGITS and d["correct"] >= digits:
+        routes = abs(d["c1_projection"] - d["c"][0]) <= 10.0 ** (-digits) * \
+            max(1, abs(d["c"][0]))
+        how = (f"numeric mode (float64): the Hopf point was located by Newton's method from "
+               f"the guess; the error estimate (condition number, last correction, two "
+               f"routes to c1) gives {d['correct']} correct digits; {where}")
+        return numeric_result(model, parameter, d, digits, digits, d["correct"], routes,
+                              order, how)
+    dps = digits + 15
+    run = run_mp(setup, system, pt, dps, order, digits)
+    with mpmath.workdps(dps):
+        correct, lost = _one_run_digits(run, d, pt, digits, dps)
+        how = (f"numeric mode: the Hopf point was located by Newton's method from the guess "
+               f"and refined to {dps} significant digits; the double-precision run lost {lost} "
+               f"of its digits on this point, so the same computation at {dps} digits keeps "
+               f"{correct} (also bounded by the condition number, two routes to c1 and the rounding "
+               f"radii of the ball arithmetic); {where}")
+    if correct < digits:  # too ill-conditioned to judge from float64: run a second time
+        high = run_mp(setup, system, pt, 2 * digits + 15, order, digits)
+        with mpmath.workdps(2 * digits + 15):
+            correct = _agreement(run, high, digits, dps)
+        how = (f"numeric mode: the Hopf point was located by Newton's method from the guess; "
+               f"runs at {dps} and {2 * digits + 15} significant digits agree to {correct} "
+               f"digits, so {min(correct, digits)} digits are reported as correct; {where}")
+        run = high
+    with mpmath.workdps(dps):
+        routes = abs(run["c1_projection"] - run["c"][0]) <= mpmath.mpf(10) ** (-digits) * \
+            max(1, abs(run["c"][0]))
+    return numeric_result(model, parameter, run, digits, min(correct, digits), correct,
                           routes, order, how)
+
+
+def _one_run_digits(run: dict, d: dict | None, pt: HopfPoint, digits: int, dps: int) -> tuple:
+    """``(correct, lost)``: the digits of a run at ``dps`` digits judged from
+    one run.  Rounding errors grow with the unit roundoff through the same
+    computation, so the digits float64 lost on this point (``lost``, from its
+    agreement with the run) are lost at ``dps`` digits too; further bounds:
+    the condition number of the Newton matrix times the refinement's residual
+    tolerance, the agreement of the two routes to c1, and the radii of the
+    balls (rounding of the final stage).  Two digits are kept in reserve."""
+    lost = 16 if d is None else 16 - _agreement(d, run, 15, 16)
+    bounds = [dps - lost - 2, dps - 5 - int(math.ceil(math.log10(max(pt.condition, 1.0))))]
+    spread = abs(run["c1_projection"] - run["c"][0]) / max(abs(run["c"][0]), 1e-300)
+    for err in (spread, run["rounding"]):
+        if err:
+            bounds.append(int(math.floor(-math.log10(float(err)))) - 1)
+    return max(0, min(dps, *bounds)), lost

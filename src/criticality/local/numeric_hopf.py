@@ -44,7 +44,7 @@ from .eigenbasis import Eigenbasis
 
 __all__ = ["FloatField", "MpField", "HopfSystem", "HopfPoint", "eigen_data",
            "numpy_projection_c1", "numpy_projection_c1_real", "engine_eigenbasis",
-           "numpy_transversality", "mp_projection_c1"]
+           "numpy_transversality"]
 
 
 class FloatField:
@@ -503,44 +503,6 @@ def numpy_projection_c1_real(dense: Any, vals: Any, A: Any, omega: Any, q: Any, 
     t2 = pbar @ dense.form(vals, 2, q, h11.astype(complex))
     t3 = pbar @ dense.form(vals, 2, qb, h20)
     return (0.5 * t1 - t2 + 0.5 * t3) / float(np.sum(q.real ** 2 + q.imag ** 2))
-
-
-def mp_projection_c1(compiled: Any, vals: Any, A: Any, omega: Any, q: Any, pbar: Any) -> Any:
-    """``c1`` in the unit convention by the projection formula with complex
-    mpmath solves and the compiled derivative tensors (the second route of
-    the mpmath run at order 3; the engine's realified formula is the first)."""
-    n = len(q)
-    tensors = compiled.dense().tensors
-
-    def form(k, *vectors):
-        out = [mpmath.mpc(0)] * n
-        if k not in tensors:
-            return out
-        rows, cols, pos = tensors[k]
-        for r, cs, p in zip(rows.tolist(), cols.tolist(), pos.tolist()):
-            t = vals[p]
-            for v, j in zip(vectors, cs):
-                t = t * v[j]
-            out[r] += t
-        return out
-
-    def dot(a, b):
-        return mpmath.fsum(x * y for x, y in zip(a, b))
-
-    qb = [mpmath.conj(z) for z in q]
-    M = mpmath.matrix(A)
-    S = mpmath.matrix(n, n)
-    for i in range(n):
-        for j in range(n):
-            S[i, j] = -A[i][j]
-        S[i, i] += mpmath.mpc(0, 2 * omega)
-    h11 = mpmath.lu_solve(M, mpmath.matrix(form(2, q, qb)))
-    h20 = mpmath.lu_solve(S, mpmath.matrix(form(2, q, q)))
-    h11 = [h11[i] for i in range(n)]
-    h20 = [h20[i] for i in range(n)]
-    c1 = dot(pbar, form(3, q, q, qb)) / 2 - dot(pbar, form(2, q, h11)) + \
-        dot(pbar, form(2, qb, h20)) / 2
-    return c1 / mpmath.fsum(abs(z) ** 2 for z in q)
 
 
 def numpy_transversality(dense: Any, vals: Any, A: Any, q: Any, pbar: Any, k: int) -> Any:
