@@ -108,6 +108,9 @@ def test_watt_governor_l2_agrees_with_the_numeric_mode():
             < 1e-20
         assert abs(mpmath.mpf(str(r.l1))) < 1e-20
         assert abs(mpmath.mpf(str(r.l2)) - mpmath.mpf(str(at["l2"]))) < 1e-20
+    # l1 vanishes to the computed digits, so l2 < 0 decides: an attracting cycle whose
+    # amplitude grows like the fourth root of the distance to the critical value
+    assert r.cycle.amplitude_power == 4 and r.cycle.stable is True
 
 
 def test_bautin_errors_and_renderers():

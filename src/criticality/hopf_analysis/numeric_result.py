@@ -113,19 +113,36 @@ class _Amplitudes(Mapping):
         return repr(dict(self.items()))
 
 
-def _cycle(d, digits, mu, mu_c, states, stable_others):
+def _cycle(d, digits, mu, mu_c, states, stable_others, correct):
+    """The cycle near onset from the first ``c_j`` whose real part is not zero
+    to the computed accuracy (``correct`` digits): ``rho^(2j) = -beta / Re c_j``
+    as in the exact engine; undecided where every computed ``Re c_j`` is zero."""
     beta = mpmath.re(d["dlam"])
-    c1 = d["c"][0]
-    R = mpmath.re(c1)
+    omega = d["omega"]
+    tol = mpmath.mpf(10) ** (-correct)
+    j, R, S = 0, None, None
+    for index, c in enumerate(d["c"], start=1):
+        if abs(mpmath.re(c)) >= tol * max(1, abs(c) / omega):
+            j, R, S = index, mpmath.re(c), mpmath.im(c)
+            break
+    period = 2 * sympy.pi / _f(omega, digits)
+    if not j:
+        return CyclePrediction(Side.UNDECIDED, None, None, sympy.nan, {}, {}, period, sympy.nan)
     k = -beta / R
     offset = mu - mu_c
-    coeffs = {s: _f(4 * k * abs(x) ** 2, digits) for s, x in zip(states, d["q"])}
-    amps = _Amplitudes(coeffs, offset)
     side = Side.ABOVE if k > 0 else Side.BELOW
-    slope = mpmath.im(d["dlam"]) - beta * mpmath.im(c1) / R
     stable = bool(R < 0 and stable_others)
-    return CyclePrediction(side, None, stable, _f(k, digits) * offset, amps, coeffs,
-                           2 * sympy.pi / _f(d["omega"], digits), _f(slope, digits))
+    if j == 1:
+        coeffs = {s: _f(4 * k * abs(x) ** 2, digits) for s, x in zip(states, d["q"])}
+        slope = _f(mpmath.im(d["dlam"]) - beta * S / R, digits)
+        return CyclePrediction(side, None, stable, _f(k, digits) * offset,
+                               _Amplitudes(coeffs, offset), coeffs, period, slope)
+    root = sympy.Pow(_f(k, digits) * offset, sympy.Rational(1, 2 * j))
+    amps = {s: _f(2 * abs(x), digits) * root for s, x in zip(states, d["q"])}
+    # the lower Re c_i vanish only to the computed accuracy, their Im c_i need not: the
+    # frequency is then not linear in mu - mu_c to leading order
+    return CyclePrediction(side, None, stable, sympy.Pow(_f(k, digits) * offset, sympy.Rational(1, j)),
+                           amps, {}, period, sympy.nan, 2 * j)
 
 
 def numeric_result(original: Model, parameter: str, d: dict, digits: int, correct: int,
@@ -160,7 +177,8 @@ def numeric_result(original: Model, parameter: str, d: dict, digits: int, correc
             c1=_c(c1, digits), l1=_f(l1, digits), planar_coefficient=_f(mpmath.re(c1) / 2, digits),
             lyapunov_coefficients=lyap, classification=cls, verdict=verdict,
             supercritical_where=None, l1_zero_set=None, conditions=conds,
-            cycle=_cycle(d, digits, mu, mu_c, model.states, conds[2].status == ConditionStatus.HOLDS),
+            cycle=_cycle(d, digits, mu, mu_c, model.states,
+                         conds[2].status == ConditionStatus.HOLDS, correct),
             q_norm_squared=sympy.Integer(1), routes_agree=bool(routes), branch_index=0,
             branch_count=1, substitutions={},
             notes=tuple(getattr(original, "notes", ())) + (note,),
