@@ -140,3 +140,46 @@ def test_a_sweep_marks_the_points_of_the_other_equilibrium():
     assert not numpy.any(wrong.admissible) and numpy.all(right.admissible)
     sheet = sweep(results[0], results[0].condition("on_chosen_sheet").expr, grid)
     assert list(numpy.asarray(sheet.values) > 0) == [True] + [False] * 6
+
+
+def test_evaluate_names_the_branch_where_omega_squared_is_negative():
+    """evaluate() on the branch of the other equilibrium at B = 2, c = 3/4
+    raises the project's error (not mpmath's TypeError): omega^2 = -8 there
+    (the saddle x = -2: det = x^2 (1 + 2 c x) = -8 by hand), and the other
+    sign of the root is named; the branch of the chosen equilibrium
+    evaluates to A_c = 11/16, omega^2 = 7/16 (by hand: x = 1/2)."""
+    from criticality import InadmissiblePointError, ParameterError
+    wrong, right = hopf_all(_lossy(), "A", equilibrium=0, values={"c": "3/4"})
+    with pytest.raises(InadmissiblePointError) as info:
+        wrong.evaluate(B=2)
+    err = info.value
+    assert isinstance(err, ParameterError) and err.quantity == "omega_squared"
+    assert abs(err.value + 8) < 1e-20
+    text = str(err)
+    assert "omega^2 = -8.0 < 0" in text and "branch 1 of 2" in text and "B = 2" in text
+    assert "other sign of a root" in text and "on_chosen_sheet" in text
+    at = right.evaluate(B=2)
+    assert abs(at.critical_value - mpmath.mpf(11) / 16) < 1e-25
+    assert abs(at.omega_squared - mpmath.mpf(7) / 16) < 1e-25
+
+
+def test_evaluate_refuses_a_critical_value_that_is_not_real():
+    """For B + c^2 < 1 the critical values are complex (the root of
+    B + c^2 - 1): an InadmissiblePointError naming the critical value."""
+    from criticality import InadmissiblePointError
+    results = hopf_all(_lossy(), "A", equilibrium=0, values={"c": "1/10"})
+    for r in results:
+        with pytest.raises(InadmissiblePointError, match="not a real number") as info:
+            r.evaluate(B="1/10")
+        assert info.value.quantity == "critical_value"
+
+
+@pytest.mark.slow
+def test_validate_reports_the_inadmissible_point_instead_of_a_wrong_cause():
+    """validate() used to turn the TypeError into 'l1 = 0'; it now passes the
+    error that says what is wrong."""
+    pytest.importorskip("scipy")
+    from criticality import InadmissiblePointError, validate
+    wrong, _right = hopf_all(_lossy(), "A", equilibrium=0, values={"c": "3/4"})
+    with pytest.raises(InadmissiblePointError, match="omega\\^2 = -8"):
+        validate(wrong, {"B": 2})
