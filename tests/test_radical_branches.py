@@ -183,3 +183,29 @@ def test_validate_reports_the_inadmissible_point_instead_of_a_wrong_cause():
     wrong, _right = hopf_all(_lossy(), "A", equilibrium=0, values={"c": "3/4"})
     with pytest.raises(InadmissiblePointError, match="omega\\^2 = -8"):
         validate(wrong, {"B": 2})
+
+
+@pytest.mark.slow
+def test_a_root_of_the_parameter_through_a_cubic_norm():
+    """With c the bifurcation parameter (A = 1/2, B = 3) the norm is the
+    cubic 8 c^3 - 32 c^2 + 4 c + 7; of its three real roots only
+    c = 3.8083... zeroes the trace at the positive equilibrium (mpmath:
+    findroot on the trace there), the others are dropped as another
+    equilibrium's, and the determinant there equals omega^2 > 0."""
+    results = hopf_all(_lossy(), "c", equilibrium=0, values={"A": "1/2", "B": 3})
+    assert len(results) == 1
+    (r,) = results
+    assert all(c.status == "holds" for c in r.conditions[:2])
+    assert any("other sign of sqrt(2*c + 1)" in n for n in r.notes)
+    with mpmath.workdps(30):
+        A, B = mpmath.mpf(1) / 2, mpmath.mpf(3)
+
+        def trace(c):
+            x = (-1 + mpmath.sqrt(1 + 4 * A * c)) / (2 * c)  # the positive root, by hand
+            return B - 1 - 2 * c * x - x ** 2
+
+        c_ref = mpmath.findroot(trace, 2)
+        at = r.evaluate({}, digits=25)
+        assert abs(at.critical_value - c_ref) < mpmath.mpf(10) ** -20
+        (x, _y), tr, det = _trace_det(A, B, c_ref, _positive_start(A, B, c_ref))
+        assert abs(tr) < mpmath.mpf(10) ** -20 and abs(det - at.omega_squared) < 1e-20
