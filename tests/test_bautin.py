@@ -122,3 +122,19 @@ def test_bautin_errors_and_renderers():
     assert "l2" in p.summary() and "fold of cycles" in p.summary()
     assert "\\begin{align*}" in p.to_latex()
     assert json.loads(p.to_json())["quantities"]["l2"] == "-4"
+
+
+def test_evaluate_where_the_bautin_point_has_no_pair():
+    """x'' = -q x + (mu + k x^2 - x^4) x' (invented) has its Bautin point at
+    mu = k = 0 with omega^2 = q; at q = -2 (a saddle) and q = 0 evaluate()
+    raises the project's error naming omega^2 instead of returning the
+    complex l2 (a root of q) or a division by zero."""
+    from criticality import InadmissiblePointError
+    m = Model(["x", "y"], {"x": "y", "y": "-q*x + mu*y + k*x**2*y - x**4*y"},
+              parameters={"q": "real", "mu": "real", "k": "real"})
+    (p,) = bautin_points(m, "mu", "k", equilibrium={"x": 0, "y": 0})
+    assert abs(p.evaluate({"q": 2})["omega_squared"] - 2) < 1e-25
+    for q in (-2, 0):
+        with pytest.raises(InadmissiblePointError, match="omega\\^2 = .* <= 0") as info:
+            p.evaluate({"q": q})
+        assert info.value.quantity == "omega_squared"

@@ -242,6 +242,17 @@ def test_spectrum_check_confirms_the_located_points():
     assert spectrum_check(hopf_hopf(h, ("m1", "m2"), equilibrium=0), h).agrees
 
 
+def test_spectrum_check_refuses_an_imaginary_frequency():
+    """On the Roessler fold-Hopf point omega^2 = 2 - a^2: at a = 2 the pair is
+    real (+-sqrt(2)), which the spectrum would also contain; the check says
+    there is no pair instead of agreeing."""
+    from criticality import InadmissiblePointError, spectrum_check
+    m = Model(["x", "y", "z"], {"x": "-y - z", "y": "x + a*y", "z": "b + z*(x - c)"})
+    (r,) = fold_hopf_all(m, ("c", "x_eq"), eliminate=["b", "y", "z"])
+    with pytest.raises(InadmissiblePointError, match="a = 2: omega = .* not a positive real"):
+        spectrum_check(r, m, {"a": 2})
+
+
 @pytest.mark.slow
 def test_latex_of_the_new_results_compiles(tmp_path):
     """The align* blocks of flip, Neimark-Sacker, fold-Hopf and Hopf-Hopf results compile

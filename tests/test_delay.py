@@ -434,3 +434,20 @@ def test_latex_of_a_delay_named_with_a_subscript_compiles(tmp_path):
     tex = r.latex_document()
     assert r"{\tau_{1}}_{0} &=" in tex and r"\tau_{1}_" not in tex
     compile_report(tex, tmp_path)
+
+
+@pytest.mark.slow
+def test_evaluate_where_no_root_crosses_raises_the_projects_error():
+    """x' = -a x - b x(t - tau) - x^3 has roots i omega with
+    omega^2 = b^2 - a^2 (for b > a > 0; Hayes, J. London Math. Soc. 25 (1950),
+    from memory); at a = 2, b = 1 evaluate() says omega^2 = -3 < 0 instead of
+    letting sympy's comparison of a complex number fail."""
+    from criticality import InadmissiblePointError
+    m = Model(states=["x"], equations={"x": "-a*x - b*x(t - tau) - x**3"},
+              parameters={"a": "positive", "b": "positive", "tau": "positive"})
+    r = hopf(m, "tau", equilibrium={"x": 0})
+    with mpmath.workdps(30):
+        assert abs(r.evaluate({"a": 1, "b": 2}).omega - mpmath.sqrt(3)) < 1e-25
+    with pytest.raises(InadmissiblePointError, match=r"omega\^2 = -3\.0 < 0") as info:
+        r.evaluate({"a": 2, "b": 1})
+    assert info.value.quantity == "omega_squared"

@@ -26,7 +26,7 @@ EXPECTED = {
     "CriticalityError", "ModelError", "ExpressionError", "ExpressionSyntaxError",
     "ForbiddenExpressionError", "ExpressionLimitError", "UnknownSymbolError",
     "InvalidModelError", "ModelFileError", "ModelFileSyntaxError", "InvalidModelFileError",
-    "ParameterError", "OrderError", "EquilibriumError", "NotAnEquilibriumError",
+    "ParameterError", "OrderError", "InadmissiblePointError", "EquilibriumError", "NotAnEquilibriumError",
     "EquilibriumNotFoundError",
     "NotAnalyticError", "NoHopfPointError", "DegenerateBifurcationError", "DegenerateHopfError",
     "ClosedFormUnavailableError", "ComputationLimitError", "MissingExtraError", "OutputError",

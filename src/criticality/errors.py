@@ -28,6 +28,7 @@ __all__ = [
     "ModelKindError",
     "ParameterError",
     "OrderError",
+    "InadmissiblePointError",
     "EquilibriumError",
     "NotAnEquilibriumError",
     "EquilibriumNotFoundError",
@@ -185,6 +186,30 @@ class ParameterError(CriticalityError):
 class OrderError(ParameterError, ValueError):
     """The order of a normal form is not an odd integer >= 3 (the one check
     is :func:`criticality.local.prepare.check_order`)."""
+
+
+class InadmissiblePointError(ParameterError):
+    """A result was evaluated at parameter values where its branch has no
+    Hopf point (``omega^2 <= 0``, a critical value that is not real, or the
+    critical value of another equilibrium).
+
+    Attributes
+    ----------
+    quantity : str
+        What fails at the point: ``"omega_squared"``, ``"critical_value"``,
+        ``"on_chosen_sheet"``, ...
+    value : object
+        Its value there (an mpmath number), or None.
+    branch : str
+        Which branch, in words (``"branch 1 of 2, A_c = ..."``).
+    """
+
+    def __init__(self, message: str, *, quantity: str = "", value: object = None,
+                 branch: str = "") -> None:
+        self.quantity = quantity
+        self.value = value
+        self.branch = branch
+        super().__init__(message)
 
 
 class EquilibriumError(CriticalityError):

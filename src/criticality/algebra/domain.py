@@ -277,7 +277,9 @@ class Tower:
         outside, inside = [], []
         for f in sympy.Mul.make_args(expr):
             base, k = f.as_base_exp()
-            if k.is_Integer and k >= 2 and not base.is_number and _positive(base, self.positivity):
+            if f.is_Rational and f > 0 and sympy.sqrt(f).is_Rational:
+                outside.append(sympy.sqrt(f))  # 4 (B + c - 1) -> 2 sqrt(B + c - 1)
+            elif k.is_Integer and k >= 2 and not base.is_number and _positive(base, self.positivity):
                 outside.append(base ** (int(k) // 2))
                 if int(k) % 2:
                     inside.append(base)
@@ -481,15 +483,30 @@ class Tower:
                        value_expr: sympy.Expr | None = None,
                        zeros: Iterable[Element] = ()) -> dict:
         """Adjoin to ``target`` the images of this tower's radicals under
-        ``symbol -> value`` and return the map extension -> image.
+        ``symbol -> value`` and return the map extension -> image (see
+        :meth:`sheet_images`, which also says where the choice of sheet is
+        not proved)."""
+        return self.sheet_images(symbol, value, target, value_expr, zeros)[0]
 
-        ``zeros`` are elements ``a + b s`` (``s`` the generator of one of this
-        tower's levels) known to vanish at ``value`` or at a conjugate of it:
-        there ``G(value)`` is the square of ``r = -a/b``, and the image of
-        ``s`` is ``r`` or ``-r``, whichever is the principal root (decided
-        exactly at numeric values, by the sign rules otherwise), instead of a
-        new (zero-divisor) extension."""
+    def sheet_images(self, symbol: sympy.Symbol, value: Element, target: "Tower",
+                     value_expr: sympy.Expr | None = None,
+                     zeros: Iterable[Element] = ()) -> tuple[dict, tuple]:
+        """``(images, open_sheets)``: the images of this tower's radicals
+        under ``symbol -> value``, adjoined to ``target``.
+
+        Every image is the principal root of the substituted radicand, the
+        sheet the tower's elements were written on.  ``zeros`` are elements
+        ``a + b s`` (``s`` the generator of one of this tower's levels) known
+        to vanish at ``value`` or at a conjugate of it: there ``G(value)`` is
+        the square of ``r = -a/b``, and the image of ``s`` is ``r`` where
+        ``r`` is proved non-negative, ``-r`` where it is proved negative
+        (exactly at numeric values, by the sign rules otherwise), instead of
+        a new (zero-divisor) extension.  Where the sign of ``r`` is not
+        decided the image is ``r`` and ``(ext, r)`` is listed in
+        ``open_sheets``: the result holds on the principal sheet only where
+        ``r > 0``, a condition the caller must state."""
         images: dict = {}
+        open_sheets: list = []
         hints = {z.ext: z for z in zeros if isinstance(z, QuadraticElement)}
         for ext in self.levels:
             radicand = self.substitute(ext.radicand, symbol, value, target, images)
@@ -501,21 +518,26 @@ class Tower:
                 if b:
                     r = -self.substitute(z.a, symbol, value, target, images) / b
                     if r * r == radicand:
-                        root = target.principal(r)
+                        sign = target.root_sign(r)
+                        root = -r if sign == -1 else r
+                        if sign is None:
+                            open_sheets.append((ext, r))
             images[ext] = root if root is not None else target.sqrt(radicand, root_expr)
-        return images
+        return images, tuple(open_sheets)
 
-    def principal(self, r: Element) -> Element:
-        """``r`` or ``-r``: the one that is the principal square root of
-        ``r**2`` (positive for a positive radicand)."""
+    def root_sign(self, r: Element) -> int | None:
+        """``1`` (``r >= 0`` proved), ``-1`` (``r < 0`` proved) or None: certified
+        enclosures at numeric values, the sign rules otherwise."""
         from .certified import certified_sign, is_numeric
+        if not r:
+            return 1
         if is_numeric(self):
-            return -r if certified_sign(r) == -1 else r
-        sign = self._sign(r)
-        if sign is None:
-            expr = self.to_sympy(r)
-            sign = expr.is_positive
-        return -r if sign is False else r
+            sign = certified_sign(r)
+            return None if sign is None else (-1 if sign == -1 else 1)
+        decided = self._sign(r)
+        if decided is None:
+            decided = self.to_sympy(r).is_positive
+        return None if decided is None else (1 if decided else -1)
 
     def _sign(self, x):
         """True (positive), False (negative) or None for an element, from the

@@ -40,7 +40,7 @@ from ..local.prepare import EquilibriumSpec, expr, prepare, sign_word, solve_for
 from ..renderers import Rendered, render
 from ..algebra.quadratic import lower
 from ..hopf_analysis.engine import run_engine
-from ..errors import NoHopfPointError
+from ..errors import InadmissiblePointError, NoHopfPointError
 from ..kinds import Sign, coerce
 from ..local.boundary import guarded
 from ..local.options import check_digits, check_point, check_second
@@ -106,7 +106,31 @@ class BautinPoint(Rendered):
                 e = getattr(self, key)
                 e = e.xreplace({s: subs[s.name] for s in e.free_symbols if s.name in subs})
                 out[key] = sympy.N(e, digits)
+        _require_point(self, subs, out)
         return out
+
+
+def _require_point(point, subs, out) -> None:
+    """Raise :class:`InadmissiblePointError` where the evaluated Bautin point
+    is not one: a value undefined (a vanishing denominator) or not real, or
+    ``omega^2 <= 0`` (no pair +-i omega)."""
+    at = ", ".join(f"{k} = {sympy.sstr(v)}" for k, v in subs.items()) or "these values"
+    which = f"the Bautin point at {point.second} = {sympy.sstr(point.second_value)}"
+    w2 = out["omega_squared"]
+    if w2.is_number and not w2.has(sympy.zoo, sympy.nan) and sympy.im(w2) == 0 and w2 <= 0:
+        raise InadmissiblePointError(
+            f"at {at}: omega^2 = {sympy.sstr(w2)} <= 0 at {which}: no pair +-i omega there, so "
+            "it is not a Bautin point at these values", quantity="omega_squared", value=w2,
+            branch=which)
+    for key, v in out.items():
+        if v.has(sympy.zoo, sympy.nan, sympy.oo, -sympy.oo):
+            raise InadmissiblePointError(
+                f"at {at}: {key} of {which} is undefined (a denominator vanishes), so the "
+                "point does not exist there", quantity=key, value=None, branch=which)
+        if v.is_number and abs(sympy.im(v)) > 0:
+            raise InadmissiblePointError(
+                f"at {at}: {key} of {which} is {v}, not a real number, so the point does not "
+                "exist there", quantity=key, value=v, branch=which)
 
 
 def _scenario(l2_sign, slope_sign, second, value_text):

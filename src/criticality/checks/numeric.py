@@ -19,7 +19,7 @@ import mpmath
 import sympy
 
 from ..local.boundary import guarded
-from ..errors import ParameterError
+from ..errors import InadmissiblePointError, ParameterError
 from ..kinds import Classification, coerce
 from ..local.options import check_digits, check_point
 from ..renderers import render
@@ -28,7 +28,8 @@ from ..renderers import render
 #: type-only import back would make the two modules import each other
 ResultLike = Any
 
-__all__ = ["NumericHopfResult", "evaluate_result", "parameter_values"]
+__all__ = ["NumericHopfResult", "evaluate_result", "parameter_values", "require_hopf_point",
+           "branch_words"]
 
 
 @dataclass(frozen=True)
@@ -176,6 +177,57 @@ def _mpf(x, digits):
     return mpmath.mpf(mpf) if mpf is not None else mpmath.mpf(str(value))  # NaN
 
 
+def branch_words(result: ResultLike) -> str:
+    """``"branch 1 of 2 (hopf_all()[0]), mu_c = ..."``: which branch a result is."""
+    index, count = getattr(result, "branch_index", 0), getattr(result, "branch_count", 1)
+    value = sympy.sstr(result.critical_value)
+    if len(value) > 80:
+        value = value[:77] + "..."
+    return (f"branch {index + 1} of {count} (hopf_all()[{index}]), "
+            f"{result.parameter}_c = {value}")
+
+
+def require_hopf_point(result: ResultLike, values: Mapping, critical_value: Any,
+                       omega_squared: Any, sheets: Mapping[str, Any], digits: int) -> None:
+    """Raise :class:`InadmissiblePointError` where the branch has no Hopf
+    point at ``values``: a critical value that is not real or not defined,
+    ``omega^2 <= 0`` (the eigenvalues that sum to zero are real, or zero), or
+    a critical value that belongs to the equilibrium with the other sign of
+    one of its roots (a condition ``on_chosen_sheet`` negative there).  The
+    numbers are the closed forms evaluated at the point."""
+    at = ", ".join(f"{k} = {sympy.sstr(v)}" for k, v in values.items()) or "these values"
+    which = branch_words(result)
+    show = lambda v: mpmath.nstr(v, min(digits, 15))  # noqa: E731
+    other = [k for k, v in sheets.items() if isinstance(v, mpmath.mpf) and v < 0]
+    sheet = (" The critical value there belongs to the equilibrium with the other sign of a "
+             "root in the chosen one (the condition "
+             f"'{other[0]}' is {show(sheets[other[0]])} < 0): the chosen equilibrium has no "
+             "Hopf point on this branch at these values.") if other else ""
+    if not isinstance(critical_value, mpmath.mpf) or not mpmath.isfinite(critical_value):
+        raise InadmissiblePointError(
+            f"at {at}: the critical value of {which} is {show(critical_value)}, not a real "
+            "number, so there is no Hopf point on this branch there; try the other branches "
+            "(hopf_all) or other values." + sheet,
+            quantity="critical_value", value=critical_value, branch=which)
+    if isinstance(omega_squared, mpmath.mpc) or not omega_squared > 0:
+        if isinstance(omega_squared, mpmath.mpf) and omega_squared == 0:
+            what = ("omega^2 = 0: a double zero eigenvalue (Bogdanov-Takens territory), not a "
+                    "pair +-i omega")
+        elif isinstance(omega_squared, mpmath.mpf) and omega_squared < 0:
+            what = (f"omega^2 = {show(omega_squared)} < 0: the two eigenvalues that sum to "
+                    "zero are a real pair +-kappa (a neutral saddle), not +-i omega")
+        else:
+            what = f"omega^2 = {show(omega_squared)} is not a positive real number"
+        raise InadmissiblePointError(
+            f"at {at}: {what}, so there is no Hopf point on {which} there (the conditions of "
+            "the result say where there is one)." + sheet,
+            quantity="omega_squared", value=omega_squared, branch=which)
+    if other:
+        raise InadmissiblePointError(
+            f"at {at}: {which} is not a Hopf point of the chosen equilibrium." + sheet,
+            quantity=other[0], value=sheets[other[0]], branch=which)
+
+
 @guarded("the evaluation of the result")
 def evaluate_result(result: ResultLike, values: Mapping, *, digits: int = 30) -> NumericHopfResult:
     """Evaluate every quantity of ``result`` at ``values``."""
@@ -190,6 +242,9 @@ def evaluate_result(result: ResultLike, values: Mapping, *, digits: int = 30) ->
         at_c = dict(subs)
         at_c[result.parameter_symbol] = sympy.Float(mu_c, digits + 5) if isinstance(
             mu_c, mpmath.mpf) else mu_c
+        require_hopf_point(result, exact, mu_c, _num(result.omega_squared, subs, digits + 5),
+                           {c.key: _num(c.expr, subs, digits + 5) for c in result.conditions
+                            if c.key.startswith("on_chosen_sheet")}, digits)
         omega = _num(result.omega, subs, digits + 5, "frequency omega")
         l1 = _num(result.l1, subs, digits + 5)
         lyap = tuple(_num(e, subs, digits + 5) for e in result.lyapunov_coefficients)

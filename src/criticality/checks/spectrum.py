@@ -22,7 +22,7 @@ from dataclasses import dataclass
 import mpmath
 import sympy
 
-from ..errors import ParameterError
+from ..errors import InadmissiblePointError, ParameterError
 from ..model.parameter import symbol_for
 
 if TYPE_CHECKING:
@@ -56,18 +56,34 @@ def _mp(e, digits):
     return mpmath.mpc(mpmath.mpf(str(re)), mpmath.mpf(str(im)))
 
 
-def _expected(result, table, digits):
+def _expected(result, table, digits, values=None):
     num = lambda e: _mp(sympy.sympify(e, strict=True).xreplace(table), digits)  # noqa: E731
     if hasattr(result, "omega1"):
-        w1, w2 = num(result.omega1), num(result.omega2)
+        w1, w2 = (_frequency(result, w, num, values) for w in ("omega1", "omega2"))
         return [1j * w1, -1j * w1, 1j * w2, -1j * w2]
     if hasattr(result, "G200"):
-        w = num(result.omega)
+        w = _frequency(result, "omega", num, values)
         return [mpmath.mpc(0), 1j * w, -1j * w]
     if hasattr(result, "multiplier"):
         lam = num(result.multiplier)
         return [lam, mpmath.conj(lam)]
     return [mpmath.mpc(-1)]
+
+
+def _frequency(result, name, num, values):
+    """The frequency ``name`` of ``result`` at the point; an imaginary one
+    (``omega^2 < 0``: a real pair, which the spectrum would match as well) is
+    no critical pair, and raises :class:`InadmissiblePointError`."""
+    w = num(getattr(result, name))
+    if abs(mpmath.im(w)) > abs(mpmath.re(w)) * mpmath.mpf(10) ** (-mpmath.mp.dps // 2) or \
+            not mpmath.re(w) > 0:
+        raise InadmissiblePointError(
+            f"at {', '.join(f'{k} = {v}' for k, v in (values or {}).items()) or 'this point'}: "
+            f"{name} = {mpmath.nstr(w, 12)} is not a positive real number "
+            f"({name}^2 = {mpmath.nstr(w * w, 12)}): the point has no pair +-i {name} there, "
+            "so there is nothing to check", quantity=name, value=w,
+            branch=f"{getattr(result, 'result_kind', 'the point')}")
+    return mpmath.re(w)
 
 
 def _resolved(result, model, values):
@@ -110,7 +126,7 @@ def spectrum_check(result: Any, model: Model, values: Mapping[str, object] | Non
     with mpmath.workdps(digits):
         M = mpmath.matrix([[_mp(e, digits) for e in row] for row in J.tolist()])
         ev = list(mpmath.eig(M, left=False, right=False))
-        expected = _expected(result, table, digits)
+        expected = _expected(result, table, digits, values)
         dist = max(min(abs(e - x) for e in ev) for x in expected)
         residual = max(abs(_mp(e, digits)) for e in res)
         tol = mpmath.mpf(10) ** (-digits // 2)

@@ -9,7 +9,8 @@ sympy expression in its parameters) into a numpy function with common
 subexpressions removed (:mod:`criticality.local.codegen`), compiled once, and
 evaluates it over a grid of parameter values in float64 chunks (serially, or
 as tasks on a dask cluster with ``scheduler=``).  Points where the Hopf point
-does not exist (``omega^2 <= 0``, or the critical value outside the parameter's declared range) are marked in
+does not exist (``omega^2 <= 0``, the critical value outside the parameter's declared range,
+or a root of the equilibrium on its other sheet: another equilibrium) are marked in
 :attr:`Sweep.admissible`.  A sweep that runs longer than a couple of seconds
 reports its progress on standard error (or to a callback); pass
 ``progress=False`` to keep it silent.
@@ -211,7 +212,8 @@ class _First:
 
 def _admissible_expressions(result) -> list:
     return [(c.expr, c.relation) for c in result.conditions
-            if c.key in ("omega_squared_positive", "critical_value_admissible")]
+            if c.key in ("omega_squared_positive", "critical_value_admissible")
+            or c.key.startswith("on_chosen_sheet")]
 
 
 class _Progress:

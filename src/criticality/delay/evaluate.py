@@ -24,7 +24,7 @@ import sympy
 
 from ..local.boundary import guarded
 from ..local.options import check_digits
-from ..errors import ParameterError
+from ..errors import InadmissiblePointError, ParameterError
 from ..kinds import Classification, coerce
 from ..model.expressions import convert_sympy, parse_expression
 
@@ -129,6 +129,7 @@ def evaluate_result(result: ResultLike, values: Mapping,
         raise ParameterError(f"values must be a mapping {{name: number}}; got {values!r:.60}")
     sub = _point(result, values)
     with mpmath.workdps(digits + 10):
+        _require_crossing(result, sub, digits)
         mu_c = _mp(result.critical_value, sub, digits)
         full = dict(sub)
         full[result.parameter_symbol] = sympy.Float(mu_c, digits + 10)
@@ -147,6 +148,24 @@ def evaluate_result(result: ResultLike, values: Mapping,
             amplitude_coefficients=coefficients, residual=residual, numeric_c1=num_c1,
             numeric_slope=slope)
     return out
+
+
+def _require_crossing(result, sub, digits) -> None:
+    """Raise :class:`InadmissiblePointError` where the closed forms have no
+    crossing at the point: ``omega^2`` not positive (the frequency would be
+    imaginary, and the phase ``acos`` of a complex number)."""
+    w2 = _mp(result.omega ** 2, sub, digits)
+    if isinstance(w2, mpmath.mpf) and w2 > 0:
+        return
+    at = ", ".join(f"{k} = {sympy.sstr(v)}" for k, v in sub.items()) or "these values"
+    shown = mpmath.nstr(w2, min(digits, 15))
+    what = (f"omega^2 = {shown} < 0" if isinstance(w2, mpmath.mpf) and w2 < 0 else
+            f"omega^2 = {shown}, not a positive real number")
+    raise InadmissiblePointError(
+        f"at {at}: {what}, so no pair of roots of the characteristic quasi-polynomial crosses "
+        f"the imaginary axis at i omega on this crossing (omega = {sympy.sstr(result.omega)}) "
+        "there; the result's conditions say where it does", quantity="omega_squared",
+        value=w2, branch=f"the crossing at omega = {sympy.sstr(result.omega)}")
 
 
 def _matrices(result, full):

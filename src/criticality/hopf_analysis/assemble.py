@@ -75,13 +75,22 @@ class _Branch:
         return factored(self.tower, x, self.ctx)
 
 
-def _admissibility(B, mu_name, mu_assumption, value, W):
+def _admissibility(B, mu_name, mu_assumption, value, W, sheets=()):
     conds, sides = [], []
     fs_w = _raw(B.tower, W, B.ctx)
     conds.append(Condition("omega_squared_positive", "omega^2 > 0: the pair is imaginary, not a "
                            "real pair +-kappa", B.expr(W), ">", _status(fs_w)))
     if _side(fs_w) is not None:
         sides.append(_side(fs_w))
+    for k, (root, r) in enumerate(sheets, start=1):
+        fs_r = _raw(B.tower, r, B.ctx)
+        key = "on_chosen_sheet" if len(sheets) == 1 else f"on_chosen_sheet_{k}"
+        conds.append(Condition(key, f"the value of {sympy.sstr(root)} at the critical value is "
+                               "its principal (positive) root: the Hopf point belongs to the "
+                               "chosen equilibrium, not to the one with the other sign of the "
+                               "root", B.expr(r), ">", _status(fs_r)))
+        if _side(fs_r) is not None:
+            sides.append(_side(fs_r))
     if mu_assumption in ("positive", "nonnegative", "negative", "nonzero"):
         x = -value if mu_assumption == "negative" else value
         fs_v = _raw(B.tower, x, B.ctx)
@@ -106,7 +115,8 @@ def build_result(model: Model, name: str, mu: sympy.Symbol, choice: EquilibriumC
     ctx0 = context_for(params, assumptions, tower.atoms)
     B = _Branch(bc, ctx0)
     br, eb = bc.branch, bc.eigenbasis
-    conds, sides = _admissibility(B, name, assumptions.get(mu, "real"), br.value, br.W)
+    conds, sides = _admissibility(B, name, assumptions.get(mu, "real"), br.value, br.W,
+                                  br.sheets)
     if conds[0].status == ConditionStatus.FAILS:
         return None
     ctx = ctx0.with_conditions(sides)

@@ -81,7 +81,8 @@ def run_engine(problem: PreparedProblem, select: int | None = None) -> EngineOut
         tower, problem.mu, chi, describe=lambda s: f"'{s}'",
         accept=lambda b: _may_be_positive(b, ctx),
         want=None if select is None else select + 1,
-        admissible=lambda b: _in_range(b, ctx, problem.assumptions.get(problem.mu)))
+        admissible=lambda b: _in_range(b, ctx, problem.assumptions.get(problem.mu)),
+        on_sheet=lambda b: all(_may_be_positive_element(b.tower, r, ctx) for _, r in b.sheets))
     branches, notes = critical_set.branches, list(critical_set.notes)
     if select is not None:
         if not 0 <= select < len(branches):
@@ -126,7 +127,11 @@ def _linear_hint(names) -> str:
 
 
 def _may_be_positive(branch, ctx) -> bool:
-    sign = factored(branch.tower, branch.W, ctx, restore=False).sign
+    return _may_be_positive_element(branch.tower, branch.W, ctx)
+
+
+def _may_be_positive_element(tower, x, ctx) -> bool:
+    sign = factored(tower, x, ctx, restore=False).sign
     return sign not in (NEGATIVE, NONPOSITIVE, ZERO)
 
 

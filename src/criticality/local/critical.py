@@ -50,6 +50,8 @@ class Condition:
     ----------
     key : str
         ``"omega_squared_positive"``, ``"critical_value_admissible"``,
+        ``"on_chosen_sheet"`` (the critical value belongs to the chosen
+        equilibrium, not to the one with the other sign of its root),
         ``"others_stable"``, ``"transversal"``, ...
     description : str
         One sentence in words.
@@ -97,6 +99,10 @@ class CriticalBranch:
     nu_field: Any
     images: dict
     cofactor_factors: tuple = ()
+    #: ``(sqrt(G) as a sympy expression, r)`` for each radical of the equilibrium whose image
+    #: at the critical value is ``r`` with a sign not proved: the branch lies on the chosen
+    #: sheet of that root (the chosen equilibrium) exactly where ``r > 0``
+    sheets: tuple = ()
 
 
 @dataclass(frozen=True)
@@ -145,7 +151,9 @@ def _solutions(tower_mu, mu, d, algebraic: bool = False):
         if not algebraic:
             return [("unsolved", tower_mu.to_sympy(d))]
         # radicals of mu: the zeros of d are among those of its norm over K
-        # (a polynomial in mu); _make_branch keeps the roots of d itself
+        # (a polynomial in mu), which also holds the zeros of the conjugates of d (the
+        # other signs of the roots: other equilibria); _make_branch keeps the roots of d
+        # itself on the chosen sheet and drops the others (_OtherSheet)
         d = norm_to_base(d)
         if not d:
             return []
@@ -211,9 +219,29 @@ def _branch_values(tower_mu, mu, solution):
         if sign == -1:
             target = tower_mu.fresh(drop=mu)
         c2, c1, c0 = (target.project(c) for c in data)
-        s = target.sqrt(c1 * c1 - 4 * c2 * c0)
+        s = _analytic_sqrt(target, c1 * c1 - 4 * c2 * c0)
         out.append(((-c1 + sign * s) / (2 * c2), target))
     return out
+
+
+def _analytic_sqrt(target, disc):
+    """A square root of ``disc`` (an element of the base field) that is
+    analytic in the parameters: ``g sqrt(h)`` with ``disc = g^2 h`` and ``g``
+    the product of the repeated factors of its numerator, whatever their
+    sign.  The principal root ``|g| sqrt(h)`` would swap the two roots of the
+    quadratic where ``g`` changes sign, so that one branch would jump from one
+    equilibrium (one sign of an equilibrium's radical) to the other there."""
+    K = target.base
+    if not K.symbols or not disc:
+        return target.sqrt(disc)
+    R = K.ring
+    g = K.one
+    for poly, mult in R.factor(K.numerator(disc))[1]:
+        if mult >= 2:
+            g = g * K.from_ring(poly) ** (mult // 2)
+    if g == K.one:
+        return target.sqrt(disc)
+    return g * target.sqrt(disc / (g * g))
 
 
 def _provably_negative(tower, x) -> bool:
@@ -336,11 +364,18 @@ def _pair_sums_vanish(tower, coeffs) -> bool:
     return not pair_sum_condition(tower, coeffs)
 
 
+class _OtherSheet(Exception):
+    """A zero of the norm of the pair condition that is a zero of a conjugate
+    only: on the chosen sheet of the equilibrium's roots the condition does
+    not vanish there (the point belongs to another equilibrium)."""
+
+
 def find_critical_branches(tower_mu: Tower, mu: sympy.Symbol, chi: Sequence[Element], *,
                            describe: Callable[[sympy.Symbol], str] = str,
                            accept: Callable[[CriticalBranch], bool] | None = None,
                            want: int | None = None,
-                           admissible: Callable[[CriticalBranch], bool] | None = None
+                           admissible: Callable[[CriticalBranch], bool] | None = None,
+                           on_sheet: Callable[[CriticalBranch], bool] | None = None
                            ) -> CriticalSet:
     """The closed-form branches of the critical set.
 
@@ -354,6 +389,17 @@ def find_critical_branches(tower_mu: Tower, mu: sympy.Symbol, chi: Sequence[Elem
     after all the others (so that branch 0 is admissible whenever one is),
     and do not count towards ``want``.
 
+    Where the pair condition involves a root of the equilibrium that depends
+    on ``mu`` (``sqrt(G(mu))``), its zeros come from its norm, which also
+    vanishes where a conjugate does (the other sign of the root: another
+    equilibrium).  Each candidate is checked on the chosen sheet: the
+    condition itself must vanish there with the root's image its principal
+    value (proved exactly, or by certified enclosures at numeric values);
+    candidates proved to lie on another sheet are dropped and named in the
+    notes.  Where the sign of the image is not decided, the branch keeps it in
+    ``sheets`` (stated as a condition on the result), and ``on_sheet(branch)``
+    may still prove it false (then the branch is dropped the same way).
+
     Returns a :class:`CriticalSet`; raises :class:`NoHopfPointError` when it
     is proved that no branch exists, :class:`DegenerateHopfError` when the
     only branches are degenerate, and :class:`ClosedFormUnavailableError`
@@ -364,6 +410,7 @@ def find_critical_branches(tower_mu: Tower, mu: sympy.Symbol, chi: Sequence[Elem
     branches: list = []
     degenerate: list = []
     late: list = []
+    other_sheet: list = []
     factors = factor_univariate(tower_mu, chi)
     info: dict = {"linear_in": (), "rootless": []}
     candidates = _candidates(tower_mu, mu, factors, describe, notes, info)
@@ -382,7 +429,13 @@ def find_critical_branches(tower_mu: Tower, mu: sympy.Symbol, chi: Sequence[Elem
             notes.append(f"a candidate critical value ({tower_mu.to_sympy(value)}) makes the "
                          "characteristic polynomial undefined (a denominator vanishes); skipped")
             continue
+        except _OtherSheet:
+            other_sheet.append(target.to_sympy(value))
+            continue
         if branch is None:
+            continue
+        if on_sheet is not None and branch.sheets and not on_sheet(branch):
+            other_sheet.append(target.to_sympy(value))
             continue
         if accept is not None and not accept(branch):
             rejected += 1
@@ -394,6 +447,12 @@ def find_critical_branches(tower_mu: Tower, mu: sympy.Symbol, chi: Sequence[Elem
     if rejected:
         notes.append(f"{rejected} branch(es) of the critical set have omega^2 <= 0 (neutral "
                      "saddles) and were dropped")
+    if other_sheet:
+        roots = ", ".join(sorted({sympy.sstr(e.root) for e in tower_mu.levels}))
+        notes.append(f"{len(other_sheet)} candidate critical value(s) of {describe(mu)} ("
+                     f"{', '.join(sympy.sstr(v) for v in other_sheet)}) solve the pair "
+                     f"condition only with the other sign of {roots}: they belong to another "
+                     "equilibrium, not to the chosen one, and were dropped")
     if late:
         notes.append(f"{len(late)} branch(es) of the critical set have a critical value "
                      f"outside the declared range of {describe(mu)}; they are listed last")
@@ -488,8 +547,12 @@ def _cofactor_factors(factors, sub, lam2, cofactor):
 
 
 def _make_branch(tower_mu, mu, chi, f, value, target, index, factors=(), zeros=()):
-    images = tower_mu.radical_images(mu, value, target, zeros=zeros)
+    images, sheets = tower_mu.sheet_images(mu, value, target, zeros=zeros)
     sub = lambda c: tower_mu.substitute(c, mu, value, target, images)  # noqa: E731
+    for z in zeros:
+        # a zero of the norm only (a conjugate of the condition vanishes, not the condition)
+        if isinstance(z, QuadraticElement) and sub(z):
+            raise _OtherSheet()
     f_at = [sub(c) for c in f]
     chi_at = [sub(c) for c in chi]
     E, O = upoly.even_odd_parts(f_at)
@@ -531,7 +594,8 @@ def _make_branch(tower_mu, mu, chi, f, value, target, index, factors=(), zeros=(
     den = upoly.evaluate(upoly.derivative(f_at), nu_field.gen, nu_field.zero)
     dlam = -(nu_field(num) / nu_field(den))
     return CriticalBranch(index, value, target, W, chi_at, cofactor,
-                          (dlam.a, dlam.b), nu_field, images, tuple(parts))
+                          (dlam.a, dlam.b), nu_field, images, tuple(parts),
+                          tuple((ext.root, r) for ext, r in sheets))
 
 
 def cofactor_hurwitz(branch: CriticalBranch) -> list[tuple[str, Element]]:
