@@ -145,3 +145,17 @@ def test_roots_of_quotients_stay_real_where_the_quotient_is_positive():
     l1 = sympy.lambdify(args, r.l1, "math")(*point)
     assert math.isclose(omega, float(exact.omega), rel_tol=1e-12)
     assert math.isclose(l1, float(exact.l1), rel_tol=1e-9)
+
+
+def test_a_side_condition_with_an_irrational_coefficient_is_no_polynomial():
+    """A side condition such as (5 - sqrt(5)) a - 8 > 0 has no polynomial over
+    QQ; a sign is then decided without it instead of stopping the analysis
+    with a coercion failure (common practice, no source)."""
+    from criticality.algebra.signs import NEGATIVE, POSITIVE, UNDECIDED, SignContext
+
+    a, k = sympy.symbols("a k", real=True)
+    ctx = SignContext({a: "positive", k: "real"},
+                      ((5 - sympy.sqrt(5)) * a / 8 - 1,))
+    assert ctx.polynomial_sign(a + 1) == POSITIVE
+    assert ctx.polynomial_sign(-a**2 - 2) == NEGATIVE
+    assert ctx.polynomial_sign(a - k) == UNDECIDED

@@ -142,7 +142,9 @@ class SignContext:
                 if expr.is_Rational else None
         try:
             poly = sympy.Poly(expr, *syms, domain="QQ")
-        except sympy.PolynomialError:
+        except (sympy.PolynomialError, sympy.CoercionFailed):
+            # coefficients outside QQ (a side condition with sqrt(5) in it): no polynomial
+            # over the field's ring, so the sign is left to the other tests
             return None
         idx = [self._index[s] for s in syms]
         data = {}
