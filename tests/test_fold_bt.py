@@ -7,7 +7,7 @@ import sympy
 
 from criticality import Model, hopf
 from criticality.bifurcations.bogdanov_takens import bogdanov_takens, bogdanov_takens_all
-from criticality.bifurcations.fold import fold
+from criticality.bifurcations.fold import fold, fold_all
 from criticality.registry import analyses, get
 from criticality.errors import ClosedFormUnavailableError
 
@@ -22,6 +22,25 @@ def test_fold_normal_form_read_off(backend):
     assert r.critical_values == {"x_eq": 0, "mu": 0}
     assert (r.a, r.transversality) == (-1, 1)
     assert "mu >" in r.verdict
+
+
+def test_quadratic_critical_values_are_analytic_branches(backend):
+    """x' = x (mu^2 - (a - 1)^2 b / 4) - x^3: det A = 0 at mu = +-(a - 1) sqrt(b)/2.
+    Each branch is one analytic root, (a - 1) sqrt(b)/2 and its negative, not
+    the principal |a - 1| sqrt(b)/2, which would jump from one root to the
+    other where a crosses 1; the eigenvalue speed d(mu^2 - c)/dmu = 2 mu_c
+    follows the same branch (common practice, no source)."""
+    m = Model(["x", "y"], {"x": "x*(mu^2 - (a - 1)^2*b/4) - x^3", "y": "-y + x^2"},
+              parameters={"mu": "real", "a": "real", "b": "positive"})
+    results = fold_all(m, "mu", equilibrium={"x": 0, "y": 0}, backend=backend)
+    a, b = sympy.Symbol("a", real=True), sympy.Symbol("b", positive=True)
+    root = (a - 1) * sympy.sqrt(b) / 2
+    values = [r.critical_values["mu"] for r in results]
+    assert len(values) == 2
+    assert sorted(sympy.expand(v * 2 / root) for v in values) == [-2, 2]
+    for r in results:
+        assert not r.critical_values["mu"].has(sympy.Abs)
+        assert sympy.expand(r.eigenvalue_speed - 2 * r.critical_values["mu"]) == 0
 
 
 def test_transcritical_and_pitchfork_normal_forms(backend):

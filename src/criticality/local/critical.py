@@ -33,6 +33,7 @@ from ..algebra.quadratic import QuadraticElement, QuadraticExtension, lower
 from ..errors import ClosedFormUnavailableError, DegenerateHopfError, NoHopfPointError
 from ..kinds import ConditionStatus, coerce
 from .linear import factor_univariate, hurwitz_determinant, hurwitz_determinants
+from .solve import analytic_sqrt
 
 if TYPE_CHECKING:
     from ..algebra import Tower
@@ -219,29 +220,9 @@ def _branch_values(tower_mu, mu, solution):
         if sign == -1:
             target = tower_mu.fresh(drop=mu)
         c2, c1, c0 = (target.project(c) for c in data)
-        s = _analytic_sqrt(target, c1 * c1 - 4 * c2 * c0)
+        s = analytic_sqrt(target, c1 * c1 - 4 * c2 * c0)
         out.append(((-c1 + sign * s) / (2 * c2), target))
     return out
-
-
-def _analytic_sqrt(target, disc):
-    """A square root of ``disc`` (an element of the base field) that is
-    analytic in the parameters: ``g sqrt(h)`` with ``disc = g^2 h`` and ``g``
-    the product of the repeated factors of its numerator, whatever their
-    sign.  The principal root ``|g| sqrt(h)`` would swap the two roots of the
-    quadratic where ``g`` changes sign, so that one branch would jump from one
-    equilibrium (one sign of an equilibrium's radical) to the other there."""
-    K = target.base
-    if not K.symbols or not disc:
-        return target.sqrt(disc)
-    R = K.ring
-    g = K.one
-    for poly, mult in R.factor(K.numerator(disc))[1]:
-        if mult >= 2:
-            g = g * K.from_ring(poly) ** (mult // 2)
-    if g == K.one:
-        return target.sqrt(disc)
-    return g * target.sqrt(disc / (g * g))
 
 
 def _provably_negative(tower, x) -> bool:

@@ -34,7 +34,7 @@ if TYPE_CHECKING:
     from ..algebra.field import Element
 
 __all__ = ["LINEAR", "QUADRATIC", "BIQUADRATIC", "UNSOLVED", "closed_form_solutions",
-           "branch_values", "SolvedPoint", "solve_for", "dependent_atoms"]
+           "branch_values", "analytic_sqrt", "SolvedPoint", "solve_for", "dependent_atoms"]
 
 LINEAR, QUADRATIC, BIQUADRATIC, UNSOLVED = "linear", "quadratic", "biquadratic", "unsolved"
 
@@ -115,6 +115,26 @@ def _atoms_defined(tower: Tower, target: Tower, symbol: sympy.Symbol, value: Ele
     return True
 
 
+def analytic_sqrt(target: Tower, disc: Element) -> Element:
+    """A square root of ``disc`` (an element of the base field) that is
+    analytic in the parameters: ``g sqrt(h)`` with ``disc = g^2 h`` and ``g``
+    the product of the repeated factors of its numerator, whatever their
+    sign.  The principal root ``|g| sqrt(h)`` would swap the two roots of the
+    quadratic where ``g`` changes sign, so that one branch would jump from one
+    equilibrium (one sign of an equilibrium's radical) to the other there."""
+    K = target.base
+    if not K.symbols or not disc:
+        return target.sqrt(disc)
+    R = K.ring
+    g = K.one
+    for poly, mult in R.factor(K.numerator(disc))[1]:
+        if mult >= 2:
+            g = g * K.from_ring(poly) ** (mult // 2)
+    if g == K.one:
+        return target.sqrt(disc)
+    return g * target.sqrt(disc / (g * g))
+
+
 def branch_values(tower: Tower, symbol: sympy.Symbol, solution: tuple) -> list:
     """``[(value, target tower)]`` for one solution of
     :func:`closed_form_solutions`: one value for a linear factor, two (with
@@ -130,7 +150,7 @@ def branch_values(tower: Tower, symbol: sympy.Symbol, solution: tuple) -> list:
         for sign in (1, -1):
             target = tower.fresh(drop=symbol)
             c2, c1, c0 = (target.project(c) for c in data)
-            s = target.sqrt(c1 * c1 - 4 * c2 * c0)
+            s = analytic_sqrt(target, c1 * c1 - 4 * c2 * c0)
             out.append(((-c1 + sign * s) / (2 * c2), target))
         return out
     if kind == BIQUADRATIC:
@@ -138,7 +158,7 @@ def branch_values(tower: Tower, symbol: sympy.Symbol, solution: tuple) -> list:
         out = []
         for sign in (1, -1):
             target = tower.fresh()
-            r = target.sqrt(c2 * c2 - 4 * c4 * c0)
+            r = analytic_sqrt(target, c2 * c2 - 4 * c4 * c0)
             t = (-c2 + sign * r) / (2 * c4)
             try:
                 out.append((target.sqrt(t), target))
