@@ -2,7 +2,11 @@
 
 Run by hand from the repository root (not part of the test suite)::
 
-    python benchmarks/numeric.py [--quick] [--no-cluster] [--markdown FILE]
+    python benchmarks/numeric.py [--quick] [--no-cluster] [--skip CASE ...] [--markdown FILE]
+
+``--skip`` leaves benchmark cases out of the first section (``--skip foodchain_K8``:
+its exact analysis takes minutes); ``--markdown FILE`` also writes the printed
+tables to FILE, ready to paste into docs/performance.md.
 
 Prints, in one run, with every baseline measured in the same run:
 
@@ -157,12 +161,13 @@ def _case_model(case):
                  parameters={p.name: kind for p, kind in case.parameters.items()})
 
 
-def section_cases(quick: bool) -> None:
+def section_cases(quick: bool, skip: tuple = ()) -> None:
     print("\n## numeric mode vs exact engine (benchmark cases; CPU seconds)\n")
     print("| case | n | exact [s] | numeric 30 d [s] | exact/numeric | numeric 10 d [s] | "
           "exact/numeric | stated digits | l1 agreement (digits) |")
     print("|---|---|---|---|---|---|---|---|---|")
     names = CASE_NAMES if not quick else ("planar", "lorenz", "ring_3", "rational_10")
+    names = tuple(n for n in names if n not in skip)
     ratios, agree_ok, never_slower = [], True, True
     for name in names:
         case = get_case(name)
@@ -413,10 +418,44 @@ def main(argv=None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--quick", action="store_true", help="fewer cases and smaller grids")
     parser.add_argument("--no-cluster", action="store_true", help="skip the LocalCluster part")
+    parser.add_argument("--skip", nargs="+", default=[], metavar="CASE",
+                        help="benchmark cases to leave out of the numeric-vs-exact table")
+    parser.add_argument("--markdown", metavar="FILE", help="also write the output to FILE")
     args = parser.parse_args(argv)
+    unknown = sorted(set(args.skip) - set(CASE_NAMES))
+    if unknown:
+        parser.error(f"unknown case(s) {', '.join(unknown)}; known: {', '.join(CASE_NAMES)}")
+    if args.markdown:
+        terminal = sys.stdout
+        with open(args.markdown, "w", encoding="utf-8") as out:
+            sys.stdout = _Tee(terminal, out)
+            try:
+                return _run(args)
+            finally:
+                sys.stdout = terminal
+    return _run(args)
+
+
+class _Tee:
+    """Writes to several streams (the terminal and the --markdown file)."""
+
+    def __init__(self, *streams):
+        self.streams = streams
+
+    def write(self, text: str) -> int:
+        for stream in self.streams:
+            stream.write(text)
+        return len(text)
+
+    def flush(self) -> None:
+        for stream in self.streams:
+            stream.flush()
+
+
+def _run(args) -> int:
     print(f"load average (1 min) at start: {os.getloadavg()[0]:.2f} on {os.cpu_count()} cores")
     section_targets(args.quick)
-    section_cases(args.quick)
+    section_cases(args.quick, tuple(args.skip))
     section_hand(args.quick)
     section_sweep(args.quick)
     section_curve()

@@ -174,6 +174,23 @@ def test_evaluate_refuses_a_critical_value_that_is_not_real():
         assert info.value.quantity == "critical_value"
 
 
+def test_evaluate_refuses_a_critical_value_outside_the_declared_range():
+    """x' = (mu - c) x - y - x r^2, y' = x + (mu - c) y - y r^2 (the Hopf
+    normal form, common practice, no source) has mu_c = c; with mu declared
+    positive the family's condition c > 0 is open, and at c = -3 evaluate
+    refuses mu_c = -3 instead of returning it; at c = 2 it returns 2."""
+    from criticality import InadmissiblePointError
+    m = Model(["x", "y"], {"x": "(mu - c)*x - y - x*(x^2 + y^2)",
+                           "y": "x + (mu - c)*y - y*(x^2 + y^2)"},
+              parameters={"mu": "positive", "c": "real"})
+    r = hopf(m, "mu", equilibrium={"x": 0, "y": 0})
+    assert r.condition("critical_value_admissible").status.value == "open"
+    assert r.evaluate(c=2).critical_value == 2
+    with pytest.raises(InadmissiblePointError, match="outside the declared range") as info:
+        r.evaluate(c=-3)
+    assert info.value.quantity == "critical_value" and info.value.value == -3
+
+
 @pytest.mark.slow
 def test_validate_reports_the_inadmissible_point_instead_of_a_wrong_cause():
     """validate() used to turn the TypeError into 'l1 = 0'; it now passes the

@@ -22,6 +22,7 @@ from ..local.boundary import guarded
 from ..errors import InadmissiblePointError, ParameterError
 from ..kinds import Classification, coerce
 from ..local.options import check_digits, check_point
+from ..model.parameter import assumption_of
 from ..renderers import render
 
 #: a HopfResult, typed loosely: the result imports this module at run time, and a
@@ -208,6 +209,15 @@ def require_hopf_point(result: ResultLike, values: Mapping, critical_value: Any,
             f"at {at}: the critical value of {which} is {show(critical_value)}, not a real "
             "number, so there is no Hopf point on this branch there; try the other branches "
             "(hopf_all) or other values." + sheet,
+            quantity="critical_value", value=critical_value, branch=which)
+    declared = assumption_of(result.parameter_symbol)
+    outside = {"positive": critical_value <= 0, "nonnegative": critical_value < 0,
+               "negative": critical_value >= 0, "nonzero": critical_value == 0}.get(declared)
+    if outside:
+        raise InadmissiblePointError(
+            f"at {at}: the critical value of {which} is {show(critical_value)}, outside the declared range of '{result.parameter}' "
+            f"({declared}), so there is no admissible Hopf point on this branch there; try the "
+            "other branches (hopf_all) or other values.",
             quantity="critical_value", value=critical_value, branch=which)
     if isinstance(omega_squared, mpmath.mpc) or not omega_squared > 0:
         if isinstance(omega_squared, mpmath.mpf) and omega_squared == 0:
