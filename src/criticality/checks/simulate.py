@@ -98,18 +98,17 @@ def prepare(result: HopfResult, values: Mapping, np: Any) -> Setup:
     Raises
     ------
     ParameterError
-        If a parameter lacks a value (from :meth:`HopfResult.evaluate`) or the
-        model keeps a symbol with no value.
+        If a parameter lacks a value or the branch has no Hopf point there
+        (``InadmissiblePointError``; both from :meth:`HopfResult.evaluate`),
+        or the model keeps a symbol with no value.
     ValidationRunError
         If the equilibrium or the right-hand side is not real and finite.
     """
-    try:
-        num = result.evaluate(values, digits=20)
-    except (TypeError, ZeroDivisionError, ValueError) as exc:
-        # a closed form is undefined here (e.g. k_j = -beta'/Re(c1) where l1 = 0)
-        raise ValidationRunError(
-            f"the prediction is undefined at this parameter point ({exc}); the usual cause is "
-            "l1 = 0 (a degenerate Hopf point), where the cycle is not predicted by l1") from exc
+    # evaluate raises the library's own errors, each saying what is undefined
+    # where (InadmissiblePointError for a point with no Hopf point; a pole of
+    # an amplitude coefficient, e.g. at l1 = 0, evaluates to NaN and is
+    # reported below); anything else is a defect and is not renamed here
+    num = result.evaluate(values, digits=20)
     by_name = dict(num.values)
     mu = result.parameter_symbol
     by_name.pop(result.parameter, None)
