@@ -15,7 +15,8 @@ cited below).  Random admissible points of the remaining parameters are drawn
 by :meth:`Case.sample` as exact rationals from a box, rejecting points that
 violate the case's side conditions.
 
-Public names: ``Case``, ``CASE_NAMES``, ``QUICK_CASES``, ``get_case``.
+Public names: ``Case``, ``CASE_NAMES``, ``QUICK_CASES``, ``get_case``, and for the
+numeric side ``case_model`` and ``exact_hopf_point``.
 """
 
 from __future__ import annotations
@@ -26,7 +27,7 @@ from typing import Callable
 
 import sympy as sp
 
-__all__ = ["Case", "CASE_NAMES", "QUICK_CASES", "get_case"]
+__all__ = ["Case", "CASE_NAMES", "QUICK_CASES", "get_case", "case_model", "exact_hopf_point"]
 
 _ASSUMPTIONS = {"positive": {"positive": True}, "real": {"real": True}}
 
@@ -543,3 +544,36 @@ def get_case(name: str) -> Case:
     except KeyError:
         raise KeyError(f"unknown case {name!r}; known cases: {', '.join(CASE_NAMES)}") from None
     return builder()
+
+
+def case_model(case: Case):
+    """The case as a :class:`criticality.Model` (expressions, not text)."""
+    from criticality import Model
+
+    return Model(states=[s.name for s in case.states],
+                 equations={s.name: f for s, f in zip(case.states, case.equations)},
+                 parameters={p.name: kind for p, kind in case.parameters.items()})
+
+
+def exact_hopf_point(case: Case, values: dict, digits: int):
+    """The exact engine's Hopf point of ``case`` at ``values`` (names to
+    numbers), evaluated to ``digits``: the default branch, or where it has no
+    Hopf point there (a family's branches are ordered without knowing the
+    point, and at a given point some are neutral saddles, omega^2 < 0) the
+    first branch of ``hopf_all`` that has one.  The default branch comes
+    first because ``hopf_all`` can cost far more (ring_5's second branch,
+    with its nested radicals, takes about 20 s)."""
+    from criticality import InadmissiblePointError, hopf, hopf_all
+
+    model, mu = case_model(case), case.bifurcation.name
+    equilibrium = {s.name: v for s, v in case.equilibrium.items()}
+    try:
+        return hopf(model, mu, equilibrium=equilibrium).evaluate(values, digits=digits)
+    except InadmissiblePointError:
+        pass
+    for r in hopf_all(model, mu, equilibrium=equilibrium):
+        try:
+            return r.evaluate(values, digits=digits)
+        except InadmissiblePointError:
+            continue
+    raise ValueError(f"no branch of {case.name} has a Hopf point at {values}")

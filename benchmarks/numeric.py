@@ -45,7 +45,7 @@ import sympy
 HERE = Path(__file__).resolve().parent
 sys.path.insert(0, str(HERE))
 
-from cases import CASE_NAMES, get_case  # noqa: E402
+from cases import CASE_NAMES, case_model, exact_hopf_point, get_case  # noqa: E402
 
 from criticality import Model, analyse_many, hopf, hopf_curve, sweep  # noqa: E402
 
@@ -155,12 +155,6 @@ def section_targets(quick: bool) -> None:
            f"{cms:.2f} ms CPU, {ms:.2f} ms wall")
 
 
-def _case_model(case):
-    return Model(states=[s.name for s in case.states],
-                 equations={s.name: f for s, f in zip(case.states, case.equations)},
-                 parameters={p.name: kind for p, kind in case.parameters.items()})
-
-
 def section_cases(quick: bool, skip: tuple = ()) -> None:
     print("\n## numeric mode vs exact engine (benchmark cases; CPU seconds)\n")
     print("| case | n | exact [s] | numeric 30 d [s] | exact/numeric | numeric 10 d [s] | "
@@ -171,14 +165,11 @@ def section_cases(quick: bool, skip: tuple = ()) -> None:
     ratios, agree_ok, never_slower = [], True, True
     for name in names:
         case = get_case(name)
-        model = _case_model(case)
         point = case.sample_points(1, seed=11)[0] if case.free_parameters else {}
         values = {p.name: v for p, v in point.items()}
         mu = case.bifurcation
         with Clock() as clock:
-            exact = hopf(model, mu.name,
-                         equilibrium={s.name: v for s, v in case.equilibrium.items()})
-            e = exact.evaluate(values, digits=30)
+            e = exact_hopf_point(case, values, 30)
         t_exact = clock.cpu
         with mpmath.workdps(30):
             mu_c = float(e.critical_value)
@@ -187,7 +178,7 @@ def section_cases(quick: bool, skip: tuple = ()) -> None:
         guess = {**x0, mu.name: mu_c + 0.02 * max(1.0, abs(mu_c))}
         row = []
         for digits in (30, 10):
-            fresh_model = _case_model(case)  # a new model: compilation is timed
+            fresh_model = case_model(case)  # a new model: compilation is timed
             with Clock() as clock:
                 num = hopf(fresh_model, mu.name, guess=guess, values=values or None,
                            digits=digits)
@@ -289,7 +280,7 @@ def section_hand(quick: bool) -> None:
 
 def _foodchain():
     case = get_case("foodchain")
-    model = _case_model(case)
+    model = case_model(case)
     r = hopf(model, case.bifurcation.name,
              equilibrium={s.name: v for s, v in case.equilibrium.items()})
     return model, r

@@ -11,14 +11,13 @@ import mpmath
 import pytest
 import sympy
 
-from criticality import EquilibriumNotFoundError, Model, ParameterError, hopf, hopf_all
-from criticality.errors import InadmissiblePointError
+from criticality import EquilibriumNotFoundError, Model, ParameterError, hopf
 from criticality.hopf_analysis.numeric_mode import numeric_setup
 from criticality.local.codegen import UnsupportedExpression, compile_expressions
 from criticality.local.dag import ExpressionGraph
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "benchmarks"))
-from cases import CASE_NAMES, get_case  # noqa: E402
+from cases import CASE_NAMES, case_model, exact_hopf_point, get_case  # noqa: E402
 
 
 def goodwin(stages: int, hill: int) -> Model:
@@ -60,13 +59,6 @@ def test_goodwin_secant_condition(stages, hill, digits):
         assert abs(mpmath.mpf(str(r.equilibrium["x0"])) - z) < tol * z
 
 
-def _case_model(case):
-    states = [s.name for s in case.states]
-    equations = {s.name: f for s, f in zip(case.states, case.equations)}
-    return Model(states=states, equations=equations,
-                 parameters={p.name: kind for p, kind in case.parameters.items()})
-
-
 def _within_stated_digits(value, exact, claimed, digits):
     """Whether ``value`` (a sympy Float) is within one unit of the
     ``claimed``-th significant digit of ``exact`` (an mpmath number); below
@@ -77,25 +69,6 @@ def _within_stated_digits(value, exact, claimed, digits):
         return err <= mpmath.mpf(10) ** (-claimed)
     lead = int(mpmath.floor(mpmath.log10(abs(exact))))
     return err <= mpmath.mpf(10) ** (lead - claimed + 1)
-
-
-def _hopf_point_at(model, parameter, equilibrium, values):
-    """The exact Hopf point at ``values``, evaluated to 45 digits: the default
-    branch, or where it has no Hopf point there (a family's branches are
-    ordered without knowing the point, and at a given point some of them are
-    neutral saddles, omega^2 < 0) the first of hopf_all's that has one.  The
-    default branch comes first because hopf_all can cost far more (all four
-    branches of ring_8, with their nested radicals)."""
-    try:
-        return hopf(model, parameter, equilibrium=equilibrium).evaluate(values, digits=45)
-    except InadmissiblePointError:
-        pass
-    for r in hopf_all(model, parameter, equilibrium=equilibrium):
-        try:
-            return r.evaluate(values, digits=45)
-        except InadmissiblePointError:
-            continue
-    raise AssertionError(f"no branch has a Hopf point at {values}")
 
 
 @pytest.mark.slow
@@ -110,12 +83,11 @@ def test_numeric_mode_agrees_with_exact_engine_on_benchmark_cases(name):
     mpmath run judged from float64) and at 30 digits (the default) (common
     practice, no source: two independent routes to the same numbers)."""
     case = get_case(name)
-    model = _case_model(case)
+    model = case_model(case)
     point = case.sample_points(1, seed=11)[0] if case.free_parameters else {}
     values = {p.name: v for p, v in point.items()}
     mu = case.bifurcation
-    e = _hopf_point_at(model, mu.name, {s.name: v for s, v in case.equilibrium.items()},
-                       values)
+    e = exact_hopf_point(case, values, 45)
     with mpmath.workdps(45):
         mu_c = float(e.critical_value)
         x0 = {s.name: float(sympy.N(v.xreplace(point).xreplace({mu: e.critical_value}), 20))
@@ -136,7 +108,7 @@ def test_numeric_mode_agrees_with_exact_engine_on_benchmark_cases(name):
 def test_numeric_mode_agrees_on_the_largest_benchmark_cases(name):
     """The largest benchmark cases, as above (30 digits)."""
     case = get_case(name)
-    model = _case_model(case)
+    model = case_model(case)
     mu = case.bifurcation
     exact = hopf(model, mu.name, equilibrium={s.name: v for s, v in case.equilibrium.items()})
     e = exact.evaluate(digits=40)
