@@ -47,7 +47,8 @@ sys.path.insert(0, str(HERE))
 
 from cases import CASE_NAMES, case_model, exact_hopf_point, get_case  # noqa: E402
 
-from criticality import Model, analyse_many, hopf, hopf_curve, sweep  # noqa: E402
+from criticality import (InadmissiblePointError, Model, analyse_many, hopf,  # noqa: E402
+                         hopf_all, hopf_curve, sweep)
 
 TARGETS = []
 
@@ -286,6 +287,14 @@ def _foodchain():
     return model, r
 
 
+def _has_hopf_point(result, values) -> bool:
+    try:
+        result.evaluate(values, digits=15)
+    except InadmissiblePointError:
+        return False
+    return True
+
+
 def section_sweep(quick: bool) -> None:
     print("\n## sweep vs hand-compiled numpy (foodchain l1)\n")
     model, r = _foodchain()
@@ -318,8 +327,12 @@ def section_sweep(quick: bool) -> None:
     fc = Model(["R", "C", "P"], {"R": "R*(1 - R/K) - R*C", "C": "C*(R - mm) - 2*C*P/(1 + C)",
                                  "P": "eps*P*(2*C/(1 + C) - d)"},
                {"K": "positive", "mm": "positive", "d": "positive", "eps": "positive"})
-    rk = hopf(fc, "K", equilibrium={"R": "K*(1 - d/(2 - d))", "C": "d/(2 - d)",
-                                    "P": "(K*(1 - d/(2 - d)) - mm)*(1 + d/(2 - d))/2"})
+    # of the two branches (the two signs of the root), the one with K_c > 0 on
+    # this grid: the default branch's critical value is negative there
+    branches = hopf_all(fc, "K", equilibrium={"R": "K*(1 - d/(2 - d))", "C": "d/(2 - d)",
+                                              "P": "(K*(1 - d/(2 - d)) - mm)*(1 + d/(2 - d))/2"})
+    rk = next(r for r in branches if _has_hopf_point(r, {"mm": "7/40", "eps": "7/4",
+                                                         "d": "3/4"}))
     M, E = np.meshgrid(np.linspace(0.05, 0.3, side), np.linspace(0.5, 3, side))
     D = 0.5 + 0.4 * (M - 0.05) / 0.25 * (E - 0.5) / 2.5
     cases = [("d = 3/4 fixed", {"mm": M, "eps": E}, {"d": sympy.Rational(3, 4)}),

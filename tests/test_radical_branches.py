@@ -130,14 +130,21 @@ def test_symbolic_branches_state_their_sheet_and_follow_one_equilibrium():
 @pytest.mark.slow
 def test_a_sweep_marks_the_points_of_the_other_equilibrium():
     """Over a grid of c (B = 2) the other branch is marked inadmissible
-    everywhere: for 4 B c^2 > 1 its sheet condition 1 - 2 c^2 - 2 c sqrt(c^2 + 1)
+    everywhere, with a warning that says so (every value is NaN): for 4 B c^2 > 1 its sheet condition 1 - 2 c^2 - 2 c sqrt(c^2 + 1)
     fails (the other equilibrium), below it is the chosen equilibrium's
     trace zero at x = -c - sqrt(c^2 + 1) < 0, where A = x (1 + c x) < 0."""
     numpy = pytest.importorskip("numpy")
     from criticality import sweep
     results = hopf_all(_lossy(), "A", equilibrium=0)
     grid = {"B": 2, "c": numpy.linspace(0.2, 2.0, 7)}
-    wrong, right = (sweep(r, "critical_value", grid) for r in results)
+    import warnings
+
+    from criticality.errors import NoAdmissiblePointWarning
+    with pytest.warns(NoAdmissiblePointWarning, match="branch 1 of 2"):
+        wrong = sweep(results[0], "critical_value", grid)
+    with warnings.catch_warnings():
+        warnings.simplefilter("error", NoAdmissiblePointWarning)
+        right = sweep(results[1], "critical_value", grid)
     assert not numpy.any(wrong.admissible) and numpy.all(right.admissible)
     sheet = sweep(results[0], results[0].condition("on_chosen_sheet").expr, grid)
     assert list(numpy.asarray(sheet.values) > 0) == [True] + [False] * 6

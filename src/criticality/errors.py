@@ -322,6 +322,13 @@ class NameTypoWarning(UserWarning):
     command line prints it on standard error."""
 
 
+class NoAdmissiblePointWarning(UserWarning):
+    """A sweep found no admissible point on its grid: at every point the
+    branch has no Hopf point (omega^2 <= 0, a critical value outside the
+    declared range, or the other equilibrium's), so ``admissible`` is False
+    everywhere and ``masked()`` all NaN.  Another branch (``hopf_all``) or another grid usually has them."""
+
+
 class PrecisionWarning(UserWarning):
     """A floating-point evaluation of a closed form lost digits: checked
     against the same expression at 30 digits (mpmath), some sampled values

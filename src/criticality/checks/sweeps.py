@@ -34,7 +34,7 @@ from typing import Any, Callable, Mapping, Sequence
 
 import sympy
 
-from ..errors import MissingExtraError, ParameterError, PrecisionWarning
+from ..errors import MissingExtraError, NoAdmissiblePointWarning, ParameterError, PrecisionWarning
 from ..local.options import check_values
 
 __all__ = ["Sweep", "sweep", "quantity_expression", "QUANTITIES", "grid_function",
@@ -350,6 +350,15 @@ def sweep(result: Any, quantity: str | sympy.Expr, grid: Mapping, *,
         cfn = grid_function(result, cond, names, values)[0]
         c = np.real(_evaluate(np, cfn, arrays, lambda *a: None, scheduler))
         ok &= (c > 0) if relation == ">" else (c != 0)
+    if out.size and not ok.any():
+        from .numeric import branch_words
+
+        warnings.warn(f"sweep of {quantity}: no point of the grid is admissible on "
+                      f"{branch_words(result)}: at every point its omega^2, critical value "
+                      "or sheet condition fails (admissible is False everywhere, masked() "
+                      "all NaN); another branch (hopf_all) or another grid may have the "
+                      "Hopf points",
+                      NoAdmissiblePointWarning, stacklevel=2)
     error, checked = _sampled_error(np, sub, names, arrays, out, ok)
     if error is not None and error > ERROR_WARNING:
         warnings.warn(f"sweep of {quantity}: float64 lost digits; at {checked} sampled grid "
