@@ -133,45 +133,68 @@ def model_text(expr: sympy.Expr) -> str:
     return text if text is not None else f"[sympy] {sympy.sstr(expr)}"
 
 
-def _break_points(text: str) -> list:
-    """``(position, depth, before)`` of the places a line may break."""
+def _break_points(text: str, start: int = 0, stop: int | None = None) -> list:
+    """``(position, depth, before)`` of the places a line may break in
+    ``text[start:]``, positions and depths counted from ``start``; only the
+    characters before ``stop`` (a position counted from ``start``) are
+    scanned, so that wrapping a long text reads each character once."""
+    n = len(text)
+    end = n if stop is None else min(n, start + stop)
+    rest = n - start
     points, depth = [], 0
-    for i, ch in enumerate(text):
+    for j in range(start, end):
+        ch = text[j]
+        i = j - start
         if ch == "(":
             depth += 1
         elif ch == ")":
             depth -= 1
-        elif ch in "+-" and 0 < i < len(text) - 1 and text[i - 1] == " " and text[i + 1] == " ":
+        elif ch in "+-" and 0 < i < rest - 1 and text[j - 1] == " " and text[j + 1] == " ":
             points.append((i, depth, True))
-        elif ch in "*/," and i + 1 < len(text) and text[i + 1] != "*" and text[i - 1] != "*":
+        elif ch in "*/," and i + 1 < rest and text[j + 1] != "*" and \
+                text[j - 1 if i else n - 1] != "*":
             points.append((i + 1, depth, False))
     return points
 
 
-def wrap_expression(text: str, width: int) -> list:
+def wrap_expression(text: str, width: int, max_lines: int | None = None) -> list:
     """Break a long expression text into lines of at most ``width`` characters,
     preferring the shallowest sums, then products; a line that must break
-    inside a long name or number is cut hard.
+    inside a long name or number is cut hard.  With ``max_lines``, wrapping
+    stops after that many lines (the rest of the text is not read): the
+    first lines are those of the whole wrap.
 
     >>> wrap_expression("a*b + c*d - e*f + g*h", 12)
     ['a*b + c*d', '- e*f + g*h']
     """
     width = max(width, 12)
-    lines = []
-    while len(text) > width:
-        points = [p for p in _break_points(text) if 0 < p[0] <= width]
+    lines: list = []
+    n, start = len(text), 0
+    # each line looks at the next ``width + 1`` characters only (and the text
+    # is never copied), so the work is linear in the length of the text
+    while n - start > width and (max_lines is None or len(lines) < max_lines):
+        points = [p for p in _break_points(text, start, width + 1) if 0 < p[0] <= width]
         if not points:
-            lines.append(text[:width])
-            text = text[width:]
+            lines.append(text[start:start + width])
+            start += width
             continue
         half = [p for p in points if p[0] >= width // 2] or points
-        scores = {p: p[1] + (0 if p[2] else 0.5 + 0.25 * text[p[0] - 2].isdigit()) for p in half}
+        scores = {p: p[1] + (0 if p[2] else 0.5 + 0.25 * _at(text, start, p[0] - 2).isdigit())
+                  for p in half}
         best = min(scores.values())
         cut = max(p[0] for p in half if scores[p] == best)
-        lines.append(text[:cut].rstrip())
-        text = text[cut:].lstrip()
-    lines.append(text)
+        lines.append(text[start:start + cut].rstrip())
+        start += cut
+        while start < n and text[start].isspace():
+            start += 1
+    if max_lines is None or len(lines) < max_lines:
+        lines.append(text[start:])
     return lines
+
+
+def _at(text: str, start: int, i: int) -> str:
+    """``text[start:][i]``, a negative ``i`` counting from the end as Python does."""
+    return text[start + i] if i >= 0 else text[i]
 
 
 def transversality_sentence(result: HopfResult) -> str:

@@ -110,10 +110,10 @@ def _definitions(width: int) -> list:
 def _wrapped(text: str, room: int, lines: int | None) -> list:
     """``text`` wrapped to ``room``; with ``lines``, cut after that many lines
     (the last one saying where the rest is)."""
-    pieces = wrap_expression(text, room)
+    pieces = wrap_expression(text, room, None if lines is None else lines + 1)
     if lines is None or len(pieces) <= lines:
         return pieces
-    pieces = wrap_expression(text, max(room - len(_MORE), 20))
+    pieces = wrap_expression(text, max(room - len(_MORE), 20), lines)
     return pieces[:lines - 1] + [pieces[lines - 1] + _MORE]
 
 
