@@ -67,6 +67,10 @@ class Case:
     conditions : tuple of sympy.Expr
         Expressions in the remaining parameters that must be positive at an
         admissible point (e.g. positivity of the equilibrium, omega^2 > 0).
+    branch : int
+        The engine's index of this branch among the branches of the critical
+        set (``hopf(..., branch=...)``); the benchmark worker checks that the
+        branch it gets has ``critical_value``, so a changed order fails loudly.
     """
 
     name: str
@@ -80,6 +84,7 @@ class Case:
     omega_squared: sp.Expr
     box: dict
     conditions: tuple = field(default=())
+    branch: int = 0
 
     @property
     def n(self) -> int:
@@ -302,6 +307,9 @@ def _foodchain_in_k(name: str, general: bool) -> Case:
         states=(R, C, P), equations=equations, parameters=params, bifurcation=K,
         equilibrium=point, critical_value=critical, omega_squared=omega2, box=box,
         conditions=tuple(conditions),
+        # the engine orders the two roots +sqrt, -sqrt of its own quadratic; this
+        # root is its second (the first is a neutral saddle at the sample points)
+        branch=1,
     )
 
 
@@ -557,10 +565,10 @@ def case_model(case: Case):
 
 def exact_hopf_point(case: Case, values: dict, digits: int):
     """The exact engine's Hopf point of ``case`` at ``values`` (names to
-    numbers), evaluated to ``digits``: the default branch, or where it has no
+    numbers), evaluated to ``digits``: the case's branch, or where it has no
     Hopf point there (a family's branches are ordered without knowing the
     point, and at a given point some are neutral saddles, omega^2 < 0) the
-    first branch of ``hopf_all`` that has one.  The default branch comes
+    first branch of ``hopf_all`` that has one.  The case's branch comes
     first because ``hopf_all`` can cost far more (ring_5's second branch,
     with its nested radicals, takes about 20 s)."""
     from criticality import InadmissiblePointError, hopf, hopf_all
@@ -568,7 +576,8 @@ def exact_hopf_point(case: Case, values: dict, digits: int):
     model, mu = case_model(case), case.bifurcation.name
     equilibrium = {s.name: v for s, v in case.equilibrium.items()}
     try:
-        return hopf(model, mu, equilibrium=equilibrium).evaluate(values, digits=digits)
+        return hopf(model, mu, equilibrium=equilibrium,
+                    branch=case.branch).evaluate(values, digits=digits)
     except InadmissiblePointError:
         pass
     for r in hopf_all(model, mu, equilibrium=equilibrium):

@@ -71,24 +71,23 @@ def _engine_call(case):
 
     def call():
         model = model_class(states=states, equations=equations, parameters=parameters)
-        return hopf(model, case.bifurcation.name, equilibrium=equilibrium)
+        return hopf(model, case.bifurcation.name, equilibrium=equilibrium, branch=case.branch)
 
     return call
 
 
 def _pick_branch(result, case, point: dict):
-    """The engine may return one result per branch: keep the case's branch."""
-    if not isinstance(result, (list, tuple)):
-        return result
+    """The engine may return one result per branch: keep the case's branch (a
+    single result must be the case's branch, else the run is an error)."""
     values = {p.name: v for p, v in point.items()}
     with mpmath.workdps(30):
         target = mp_eval(case.critical_value, values)
-        for branch in result:
+        for branch in (result if isinstance(result, (list, tuple)) else [result]):
             if relative_difference(mp_eval(sp.sympify(branch.critical_value), values),
                                    target) < 1e-15:
                 return branch
-    raise RuntimeError(f"none of the {len(result)} branches returned by hopf has the "
-                       f"critical value {case.critical_value}")
+    raise RuntimeError(f"the branch returned by hopf (branch={case.branch}) does not have "
+                       f"the case's critical value {case.critical_value}")
 
 
 def _values(expr, points: list) -> list:
