@@ -338,12 +338,14 @@ def _cycle(B, model, bc, omega, verdict, stab, mu, re_c1=None):
             r_expr = re_c1.as_expr() if j == 1 and re_c1 is not None else B.expr(R)
             sr = re_c1.sign if j == 1 and re_c1 is not None else _raw(B.tower, R, B.ctx).sign
             sb = _raw(B.tower, beta1, B.ctx).sign
-            k_expr = _product(-B.expr(beta1), sympy.Pow(r_expr, -1))
-            if sb in (POSITIVE, NEGATIVE) and sr in (POSITIVE, NEGATIVE):
-                side, side_cond = ("above" if sb != sr else "below"), None
+            minus_b = -B.expr(beta1)
+            k_expr = _product(minus_b, sympy.Pow(r_expr, -1))
+            sign = _sign_of_k(sb, sr)
+            if sign in (POSITIVE, NEGATIVE):
+                side, side_cond = ("above" if sign == POSITIVE else "below"), None
             else:
                 side, side_cond = "undecided", sympy.StrictGreaterThan(
-                    _product(-B.expr(beta1), r_expr), 0, evaluate=False)
+                    _product(minus_b, r_expr), 0, evaluate=False)
             slope = (_product(omega, B.expr(beta_nu) - _product(
                 B.expr(beta1), B.expr(S), sympy.Pow(r_expr, -1)))
                 if lower_exact_zero else sympy.nan)
@@ -403,15 +405,21 @@ def _cycle(B, model, bc, omega, verdict, stab, mu, re_c1=None):
                            2 * j if j else 2)
 
 
+def _sign_of_k(sb, sr):
+    """The sign of ``k = -beta' / Re c_j`` from the signs of ``beta'`` and
+    ``Re c_j`` (UNDECIDED unless both are strict)."""
+    if sb in (POSITIVE, NEGATIVE) and sr in (POSITIVE, NEGATIVE):
+        return POSITIVE if sb != sr else NEGATIVE
+    return UNDECIDED
+
+
 def _cycle_side(B, sign, beta1, R, k):
     """``(side, condition)``: on which side of the critical value the cycle
     exists, from the sign of ``k = -beta'(mu_c) / Re c_j`` (or of its two
     factors); with ``k = 0`` (no crossing) there is no side, and a condition
     that sympy decides (a number) is never left as a boolean."""
     if sign not in (POSITIVE, NEGATIVE):
-        sb, sr = _raw(B.tower, beta1, B.ctx).sign, _raw(B.tower, R, B.ctx).sign
-        if sb in (POSITIVE, NEGATIVE) and sr in (POSITIVE, NEGATIVE):
-            sign = POSITIVE if sb != sr else NEGATIVE
+        sign = _sign_of_k(_raw(B.tower, beta1, B.ctx).sign, _raw(B.tower, R, B.ctx).sign)
     if sign in (POSITIVE, NEGATIVE):
         return ("above" if sign == POSITIVE else "below"), None
     e = B.expr(k)
