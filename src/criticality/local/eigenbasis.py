@@ -57,6 +57,10 @@ class Eigenbasis:
         Real left vectors ``w`` and ``A^T w`` spanning the left center space.
     qq : element
         ``<q, q> = conj(q)^T q``.
+    dual : pair of lists
+        The rows ``(c1, c2)`` of the dual basis of ``(e1, e2)`` on the left
+        center space: ``c_i . e_j = delta_ij`` and ``c_i`` annihilates the
+        complementary subspace (combinations of ``w`` and ``A^T w``).
     """
 
     A: list
@@ -71,16 +75,14 @@ class Eigenbasis:
     qq: Any  # an element of ``field``
     field: Any
     nu_field: Any  # the extension K(nu), nu^2 = -W
-    gram: tuple  # the inverse of ((w.e1, w.e2), (wA.e1, wA.e2)), row by row
+    dual: tuple
 
     def center_coordinates(self, y: Sequence[Element]) -> tuple[Element, Element]:
         """Coordinates ``(xi1, xi2)`` of the center part of a real vector ``y``
-        in the basis ``(e1, e2) = (A v, -v)``."""
+        in the basis ``(e1, e2) = (A v, -v)``: ``(c1 . y, c2 . y)``."""
         K = self.field
-        r1 = dot(K, self.w, y)
-        r2 = dot(K, self.wA, y)
-        (b11, b12), (b21, b22) = self.gram
-        return b11 * r1 + b12 * r2, b21 * r1 + b22 * r2
+        c1, c2 = self.dual
+        return dot(K, c1, y), dot(K, c2, y)
 
 
 def _smallest(K, vectors):
@@ -127,8 +129,13 @@ def critical_eigenbasis(K: Any, A: list[list[Element]], W: Element,
     e2 = [-x for x in v]
     a11, a12 = dot(K, w, Av), dot(K, w, e2)
     a21, a22 = dot(K, wA, Av), dot(K, wA, e2)
-    # inverted once here: center_coordinates runs once per monomial, and a
-    # division in a radical extension costs a norm and an inverse each time
+    # The dual rows are the inverse of ((w.e1, w.e2), (wA.e1, wA.e2)) applied
+    # to (w, wA), formed once here: center_coordinates runs once per monomial,
+    # and two dots with them cost less than two dots with w and A^T w followed
+    # by a combination with the inverse's entries, whose large common
+    # denominator meets a gcd in every product (2.3x on the food chain in K).
     inv_det = 1 / (a11 * a22 - a12 * a21)
-    gram = ((a22 * inv_det, -a12 * inv_det), (-a21 * inv_det, a11 * inv_det))
-    return Eigenbasis(A, A2, W, v, Av, q, pbar, w, wA, qq, K, nu_field, gram)
+    b11, b12, b21, b22 = a22 * inv_det, -a12 * inv_det, -a21 * inv_det, a11 * inv_det
+    c1 = [b11 * x + b12 * y if x or y else K.zero for x, y in zip(w, wA)]
+    c2 = [b21 * x + b22 * y if x or y else K.zero for x, y in zip(w, wA)]
+    return Eigenbasis(A, A2, W, v, Av, q, pbar, w, wA, qq, K, nu_field, (c1, c2))
