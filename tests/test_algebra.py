@@ -265,6 +265,29 @@ def test_ring_view_agrees_on_both_fields_and_with_sympy(x):
         assert mine == ref_factors
 
 
+@settings(max_examples=40, deadline=None)
+@given(x=rational_functions(), point=st.tuples(*[st.fractions(-5, 5, max_denominator=7)] * 3))
+def test_rational_evaluator_agrees_with_sympy_substitution(x, point):
+    """The evaluator of the critical set's root counting gives the value of
+    sympy's own substitution at rational points, and raises at a pole
+    (sympy as the general-purpose reference)."""
+    from fractions import Fraction
+
+    from criticality.algebra.polyops import rational_evaluator
+    K = FlintRationalFunctionField(SYMS)
+    at = rational_evaluator(K, [K.from_sympy(x)])
+    subs = {s: sympy.Rational(v.numerator, v.denominator) for s, v in zip(K.symbols, point)}
+    num, den = sympy.fraction(sympy.cancel(x))
+    if den.xreplace(subs) == 0:
+        with pytest.raises(ZeroDivisionError):
+            at(point)
+        return
+    (value,) = at(point)
+    expected = sympy.Rational(num.xreplace(subs), den.xreplace(subs))
+    assert isinstance(value, Fraction) and value == Fraction(int(expected.p), int(expected.q))
+    assert rational_evaluator(SympyRationalFunctionField(SYMS), [x]) is None
+
+
 @pytest.mark.parametrize("backend", ["flint", "sympy"])
 def test_ring_view_resultant_and_coefficients_against_sympy(backend):
     """The resultant in an added variable equals sympy's resultant, and

@@ -11,7 +11,7 @@ point.  Each function works on the python-flint field (fast paths with
 from __future__ import annotations
 
 from fractions import Fraction
-from typing import Any, Sequence
+from typing import Any, Callable, Sequence
 
 import flint
 import sympy
@@ -20,7 +20,7 @@ from .field import Element
 from .flint_field import FlintRationalField, FlintRationalFunctionField
 
 __all__ = ["NumeratorFactor", "numerator_factors", "pair_resultant", "value_at",
-           "resultant_factors", "MAX_RESULTANT_TERMS"]
+           "rational_evaluator", "resultant_factors", "MAX_RESULTANT_TERMS"]
 
 #: polynomials above this many terms are not eliminated by :func:`resultant_factors`
 MAX_RESULTANT_TERMS = 400
@@ -112,6 +112,44 @@ def value_at(K: Any, x: Element, point: Sequence[int]) -> Element | None:
         return FlintRationalField()(Fraction(int(x.num(*point)), 1)) / \
             FlintRationalField()(Fraction(int(x.den(*point)), 1))
     return None
+
+
+def rational_evaluator(K: Any, elements: Sequence[Element]
+                       ) -> Callable[[Sequence[Fraction]], list[Fraction]] | None:
+    """A function from rational values of the generators (in ``K.symbols``
+    order) to the values of ``elements`` there, for many points: each element
+    is converted once, each point is then evaluated in C.  It raises
+    ``ZeroDivisionError`` at a pole.  None where the field cannot evaluate
+    cheaply (the sympy stand-in, elements of an extension).
+
+    Examples
+    --------
+    >>> a, b = sympy.symbols("a b")
+    >>> K = FlintRationalFunctionField([a, b])
+    >>> at = rational_evaluator(K, [K.from_sympy(a / b + 1)])
+    >>> at([Fraction(1, 2), Fraction(3)])
+    [Fraction(7, 6)]
+    """
+    if not isinstance(K, FlintRationalFunctionField) or not K.symbols:
+        return None
+    try:
+        xs = [K(x) for x in elements]
+    except (TypeError, ValueError):
+        return None
+    ctx = flint.fmpq_mpoly_ctx.get(tuple(str(s) for s in K.symbols), "degrevlex")
+    pairs = [(ctx.from_dict(x.num.to_dict()), ctx.from_dict(x.den.to_dict())) for x in xs]
+
+    def at(point: Sequence[Fraction]) -> list[Fraction]:
+        values = [flint.fmpq(v.numerator, v.denominator) for v in point]
+        out = []
+        for num, den in pairs:
+            d = den(*values)
+            if d == 0:
+                raise ZeroDivisionError("a pole of the element")
+            q = num(*values) / d
+            out.append(Fraction(int(q.p), int(q.q)))
+        return out
+    return at
 
 
 def rational_field(K: Any) -> FlintRationalField | None:

@@ -28,7 +28,8 @@ from fractions import Fraction
 from ..algebra import upoly
 from ..algebra.algebraic import AlgebraicElement, RealAlgebraicRoot
 from ..algebra.certified import is_numeric
-from ..algebra.polyops import numerator_factors, pair_resultant, rational_field, value_at
+from ..algebra.polyops import (numerator_factors, pair_resultant, rational_evaluator,
+                               rational_field, value_at)
 from ..algebra.quadratic import QuadraticElement, QuadraticExtension, lower
 from ..errors import ClosedFormUnavailableError, DegenerateHopfError, NoHopfPointError
 from ..kinds import ConditionStatus, coerce
@@ -259,7 +260,7 @@ def _root_values(tower_mu, mu, coeffs):
         positive = tower_mu.positivity is not None and tower_mu.positivity(mu) is True
         bound = (sympy.Integer(0),) if positive else ()
         roots = [(None, RealAlgebraicRoot(sympy.Lambda(x, body), k, *bound))
-                 for k in range(_real_root_count(body, x, positive))]
+                 for k in range(_real_root_count(probe, low, body, x, positive))]
     out = []
     for interval, root in roots:
         target = tower_mu.fresh(drop=mu)
@@ -268,25 +269,64 @@ def _root_values(tower_mu, mu, coeffs):
     return out
 
 
-def _real_root_count(body, x, positive) -> int:
-    """The largest number of real (positive) roots of ``body`` at a few
+def _real_root_count(probe, low, body, x, positive) -> int:
+    """The largest number of real (positive) roots of ``body`` (the
+    polynomial with coefficients ``low``, elements of ``probe``) at a few
     sample points of its parameters (positive rationals of several scales)."""
     symbols = sorted(body.free_symbols - {x}, key=sympy.default_sort_key)
     rng = random.Random(len(symbols))
     best = 0
-    scales = (sympy.Rational(1, 100), sympy.Rational(1, 10), 1, 10, 100)
+    scales = (Fraction(1, 100), Fraction(1, 10), 1, 10, 100)
+    sample = _sampler(probe, low, body, x, symbols)
     for trial in range(15):
-        point = {s: sympy.Rational(rng.randint(1, 97), 97) * rng.choice(scales)
-                 for s in symbols}
-        try:
-            p = sympy.Poly(body.xreplace(point), x)
-        except sympy.PolynomialError:
-            continue
-        if p.degree() != sympy.degree(body, x) or not p.is_sqf:
+        point = [Fraction(rng.randint(1, 97), 97) * rng.choice(scales) for s in symbols]
+        p = sample(point)
+        if p is None or not p.is_sqf:
             continue
         best = max(best, p.count_roots(0, None) - (1 if p.eval(0) == 0 else 0)
                    if positive else p.count_roots())
     return best
+
+
+def _sampler(probe, low, body, x, symbols):
+    """A function from a point (values of ``symbols``) to ``body`` there as a
+    polynomial in ``x`` of full degree, or None where the degree drops or a
+    coefficient is undefined.
+
+    Where the coefficients lie in the flint parameter field, each is converted
+    once and every point is evaluated in C (sympy's substitution into the
+    whole body was most of the time on the ring models' quartic factors);
+    otherwise the body is substituted point by point."""
+    degree = len(low) - 1
+    K = probe.base
+    evaluate = None
+    if not any(isinstance(c, (QuadraticElement, AlgebraicElement)) for c in low) and \
+            set(symbols) <= set(K.symbols):
+        evaluate = rational_evaluator(K, low)
+    if evaluate is not None:
+        where = [symbols.index(s) if s in symbols else None for s in K.symbols]
+
+        def sample(point):
+            full = [point[i] if i is not None else Fraction(1) for i in where]
+            try:
+                values = evaluate(full)
+            except ZeroDivisionError:
+                return None
+            if not values[-1]:
+                return None
+            return sympy.Poly([sympy.Rational(v.numerator, v.denominator)
+                               for v in reversed(values)], x, domain=sympy.QQ)
+        return sample
+
+    def sample(point):
+        values = {s: sympy.Rational(v.numerator, v.denominator)
+                  for s, v in zip(symbols, point)}
+        try:
+            p = sympy.Poly(body.xreplace(values), x)
+        except sympy.PolynomialError:
+            return None
+        return p if p.degree() == degree else None
+    return sample
 
 
 def _pair_carriers(factors):
