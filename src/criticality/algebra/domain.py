@@ -261,7 +261,10 @@ class Tower:
         if root is None:
             root = self._known_multiple(radicand)
         if root is None:
-            sym_root = root_expr if root_expr is not None else self._root_expr(radicand)
+            # the printed root is formed on first use (sympy's factor of the
+            # radicand is most of the cost of a new level)
+            sym_root = root_expr if root_expr is not None else \
+                (lambda radicand=radicand: self._root_expr(radicand))
             ext = QuadraticExtension(self.top, radicand, f"s{len(self.levels)}", root=sym_root)
             self.levels.append(ext)
             root = ext.gen

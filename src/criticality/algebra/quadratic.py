@@ -18,7 +18,7 @@ constructor does not prove this, and a division by a zero divisor raises
 from __future__ import annotations
 
 from fractions import Fraction
-from typing import Any
+from typing import Any, Callable
 
 import sympy
 
@@ -194,9 +194,12 @@ class QuadraticExtension(Field):
         ``d`` in ``t**2 = d``; must not be a square in ``base``.
     name : str
         Name of the generator (for printing).
-    root : sympy.Expr, optional
+    root : sympy.Expr or callable, optional
         The sympy expression the generator stands for in outputs, e.g.
         ``sqrt(b*(r - 1))`` or ``I*sqrt(W)``; defaults to ``Symbol(name)``.
+        A function of no arguments is called the first time the expression is
+        needed (sympy's ``sqrt`` of a large radicand costs milliseconds, and
+        many extensions never print their generator).
 
     Examples
     --------
@@ -209,11 +212,11 @@ class QuadraticExtension(Field):
     """
 
     def __init__(self, base: Field, radicand: Element, name: str,
-                 root: sympy.Expr | None = None) -> None:
+                 root: sympy.Expr | Callable[[], sympy.Expr] | None = None) -> None:
         self.base = base
         self.radicand = base(radicand) if not isinstance(radicand, QuadraticElement) else radicand
         self.name = name
-        self.root = root if root is not None else sympy.Symbol(name)
+        self._root = root if root is not None else sympy.Symbol(name)
         self.level = getattr(base, "level", 0) + 1
         self.backend = base.backend
         self.symbols = base.symbols
@@ -229,6 +232,13 @@ class QuadraticExtension(Field):
         self.zero = self._element(base.zero, base.zero)
         self.one = self._element(base.one, base.zero)
         self.gen = self._element(base.zero, base.one)
+
+    @property
+    def root(self) -> sympy.Expr:
+        """The sympy expression the generator stands for in outputs."""
+        if callable(self._root) and not isinstance(self._root, sympy.Basic):
+            self._root = self._root()
+        return self._root
 
     def _element(self, a: Element, b: Element) -> QuadraticElement:
         if self._common:

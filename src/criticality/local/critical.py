@@ -137,9 +137,10 @@ class CriticalSet:
 
 
 def nu_extension(tower: Tower, W: Element) -> QuadraticExtension:
-    """The field ``top(nu)`` with ``nu**2 = -W`` (``nu = i omega``)."""
-    W_expr = tower.to_sympy(W)
-    return QuadraticExtension(tower.top, -W, "nu", root=sympy.I * sympy.sqrt(W_expr))
+    """The field ``top(nu)`` with ``nu**2 = -W`` (``nu = i omega``); the
+    expression ``I*sqrt(W)`` is formed only if an output needs it."""
+    return QuadraticExtension(tower.top, -W, "nu",
+                              root=lambda: sympy.I * sympy.sqrt(tower.to_sympy(W)))
 
 
 def _solutions(tower_mu, mu, d, algebraic: bool = False):
