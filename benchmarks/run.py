@@ -123,12 +123,18 @@ def _follow(events: queue.Queue, timeout: float, post_timeout: float) -> dict:
             return info
 
 
-def run_child(route: str, case_name: str, timeout: float, points: int) -> RouteRun:
-    """Run one route on one case in a fresh process and collect its reports."""
+def run_child(route: str, case_name: str, timeout: float, points: int,
+              source: Path | None = None) -> RouteRun:
+    """Run one route on one case in a fresh process and collect its reports;
+    with ``source`` (a ``src`` directory) the engine is imported from there."""
     command = [sys.executable, str(HERE / "worker.py"), route, case_name, str(points)]
+    env = None
+    if source is not None:
+        env = dict(os.environ, PYTHONPATH=os.pathsep.join(
+            [str(source), *filter(None, [os.environ.get("PYTHONPATH")])]))
     with tempfile.TemporaryFile(mode="w+") as errors:
         process = subprocess.Popen(command, stdout=subprocess.PIPE, stderr=errors,
-                                   text=True, cwd=HERE)
+                                   text=True, cwd=HERE, env=env)
         events: queue.Queue = queue.Queue()
         threading.Thread(target=_pump, args=(process.stdout, events), daemon=True).start()
         try:
@@ -209,8 +215,13 @@ def _describe(run: RouteRun) -> str:
     return f"{run.status}{where} {run.message}".strip()
 
 
-def run_case(name: str, routes: tuple, repeat: int, timeout: float, points: int) -> CaseResult:
-    """All requested routes on one case, the reference values and the agreement."""
+def run_case(name: str, routes: tuple, repeat: int, timeout: float, points: int,
+             earlier: Path | None = None) -> CaseResult:
+    """All requested routes on one case, the reference values and the agreement.
+
+    With ``earlier`` (the ``src`` directory of another checkout) the engine of
+    that checkout runs too, alternating with this one run by run (A B A B:
+    a drift in the machine's speed then moves both alike)."""
     case = get_case(name)
     sample = case.sample_points(points)
     result = CaseResult(name, case.n, len(case.parameters))
@@ -225,20 +236,41 @@ def run_case(name: str, routes: tuple, repeat: int, timeout: float, points: int)
             result.routes[route] = RouteRun("skipped", message=f"no-simplify {previous.status}")
             _log(f"[{name}] simplified: skipped (the no-simplify route {previous.status})")
             continue
+        if route == "engine" and earlier is not None:
+            _engine_pair(result, repeat, timeout, points, earlier)
+            continue
         count = repeat if route == "engine" else 1
         runs = []
         for _ in range(count):
             runs.append(run_child(route, name, timeout, points))
             if runs[-1].status != "ok":
                 break
-        result.routes[route] = _combine_repeats(runs)
-        _log(f"[{name}] {route}: {_describe(result.routes[route])}")
-        for run in runs:
-            if run.message:
-                result.notes.append(f"{route}: {run.status}: {run.message}")
-                break
+        _record(result, route, runs)
+    result.routes.setdefault("earlier", RouteRun("not run"))
     _agreement(result)
     return result
+
+
+def _engine_pair(result: CaseResult, repeat: int, timeout: float, points: int,
+                 earlier: Path) -> None:
+    """This engine and the earlier checkout's, alternately, ``repeat`` times each."""
+    runs: dict = {"engine": [], "earlier": []}
+    for _ in range(repeat):
+        for key, source in (("engine", None), ("earlier", earlier)):
+            if runs[key] and runs[key][-1].status != "ok":
+                continue
+            runs[key].append(run_child("engine", result.name, timeout, points, source))
+    for key in ("engine", "earlier"):
+        _record(result, key, runs[key])
+
+
+def _record(result: CaseResult, key: str, runs: list) -> None:
+    result.routes[key] = _combine_repeats(runs)
+    _log(f"[{result.name}] {key}: {_describe(result.routes[key])}")
+    for run in runs:
+        if run.message:
+            result.notes.append(f"{key}: {run.status}: {run.message}")
+            break
 
 
 # --- import time ---------------------------------------------------------------------------
@@ -284,9 +316,29 @@ HEADER = ("case", "n", "params", "simplified [s]", "no-simplify [s]", "engine [s
           "agreement")
 
 
+EARLIER_HEADER = ("earlier [s]", "eng/earlier")
+
+
+def _with_earlier(results: list[CaseResult]) -> bool:
+    return any(r.routes.get("earlier", RouteRun("not run")).status != "not run" for r in results)
+
+
+def header(results: list[CaseResult]) -> tuple:
+    return HEADER + (EARLIER_HEADER if _with_earlier(results) else ())
+
+
+def _earlier_ratio(result: CaseResult) -> float | None:
+    """This engine's time over the earlier checkout's (above 1: slower now)."""
+    now, before = result.routes["engine"], result.routes.get("earlier", RouteRun("not run"))
+    if now.status == "ok" and before.status == "ok" and before.seconds > 0:
+        return now.seconds / before.seconds
+    return None
+
+
 def table_rows(results: list[CaseResult]) -> list[tuple]:
-    """One row of strings per case, in HEADER order."""
+    """One row of strings per case, in ``header(results)`` order."""
     rows = []
+    extra = _with_earlier(results)
     for r in results:
         simp, nosimp, eng = (r.routes[k] for k in ("simplified", "nosimp", "engine"))
         agree = "-" if r.agreement is None else f"{r.agreement:.0e}"
@@ -296,19 +348,20 @@ def table_rows(results: list[CaseResult]) -> list[tuple]:
                      _time_cell(eng), _fmt(_ratio(r, "nosimp"), ".1f"),
                      _fmt(_ratio(r, "simplified"), ".1f"), _fmt(simp.ops, "d"),
                      _fmt(nosimp.ops, "d"), _fmt(eng.ops, "d"), _fmt(eng.memory_mib, ".0f"),
-                     agree))
+                     agree) + ((_time_cell(r.routes["earlier"]),
+                                _fmt(_earlier_ratio(r), ".2f")) if extra else ()))
     return rows
 
 
-def format_text(rows: list[tuple]) -> str:
-    widths = [max(len(str(row[i])) for row in [HEADER, *rows]) for i in range(len(HEADER))]
-    lines = ["  ".join(str(c).rjust(w) for c, w in zip(row, widths)) for row in [HEADER, *rows]]
+def format_text(rows: list[tuple], head: tuple = HEADER) -> str:
+    widths = [max(len(str(row[i])) for row in [head, *rows]) for i in range(len(head))]
+    lines = ["  ".join(str(c).rjust(w) for c, w in zip(row, widths)) for row in [head, *rows]]
     lines.insert(1, "  ".join("-" * w for w in widths))
     return "\n".join(lines)
 
 
-def format_markdown(rows: list[tuple]) -> str:
-    lines = ["| " + " | ".join(HEADER) + " |", "|" + "---|" * len(HEADER)]
+def format_markdown(rows: list[tuple], head: tuple = HEADER) -> str:
+    lines = ["| " + " | ".join(head) + " |", "|" + "---|" * len(head)]
     lines += ["| " + " | ".join(row) + " |" for row in rows]
     return "\n".join(lines)
 
@@ -356,7 +409,35 @@ def targets(results: list[CaseResult], import_time: float | None) -> list[tuple[
                           "import failed" if import_time is None else f"{import_time:.3f} s")))
     out.append(_memory_target(results))
     out.append(_size_target(results))
+    if _with_earlier(results):
+        out.append(_earlier_target(results))
     return out
+
+
+#: allowance for the noise of one-process timings: relative, and absolute for
+#: the cases that take a few tens of milliseconds
+EARLIER_SLACK = (0.10, 0.010)
+
+
+def _earlier_target(results: list[CaseResult]) -> tuple[str, str, str]:
+    """No case slower than in the earlier checkout (issue 12), beyond the
+    timing noise; cases the earlier checkout could not finish count as
+    faster now."""
+    rel, absolute = EARLIER_SLACK
+    slower, compared = [], 0
+    for r in results:
+        now, before = r.routes["engine"], r.routes["earlier"]
+        if before.status != "ok":
+            continue
+        compared += 1
+        if now.status != "ok" or now.seconds > before.seconds * (1 + rel) + absolute:
+            slower.append(f"{r.name} ({_fmt(_earlier_ratio(r), '.2f')}x)")
+    ratios = [x for x in (_earlier_ratio(r) for r in results) if x is not None]
+    detail = (f"{compared} cases compared, geometric mean eng/earlier "
+              f"{_fmt(geometric_mean(ratios), '.2f')}"
+              + (f"; slower: {', '.join(slower)}" if slower else ""))
+    return (f"no case slower than the earlier checkout (beyond {rel:.0%} + {absolute * 1000:g} ms)",
+            *_verdict(None if not compared else not slower, detail))
 
 
 def _foodchain_targets(results: list[CaseResult]) -> list[tuple[str, str, str]]:
@@ -398,7 +479,7 @@ def _size_target(results: list[CaseResult]) -> tuple[str, str, str]:
 def report(results: list[CaseResult], import_time: float | None, timeout: float,
            load: tuple = ()) -> str:
     rows = table_rows(results)
-    lines = [format_text(rows), ""]
+    lines = [format_text(rows, header(results)), ""]
     if load:
         lines.append("load average (1 min) at start / end: "
                      + " / ".join(f"{x:.2f}" for x in load) + f" on {os.cpu_count()} cores")
@@ -503,6 +584,9 @@ def parse_args(argv=None) -> argparse.Namespace:
     parser.add_argument("--json", type=Path, help="also write the raw measurements as JSON here")
     parser.add_argument("--check-cases", action="store_true",
                         help="only check the cases numerically (no timing)")
+    parser.add_argument("--earlier", type=Path, metavar="CHECKOUT",
+                        help="also time the engine of another checkout of this project "
+                             "(e.g. a git worktree of an older commit), alternating run by run")
     args = parser.parse_args(argv)
     args.cases = _expand(args.cases) if args.cases else list(
         QUICK_CASES if args.quick else CASE_NAMES)
@@ -512,6 +596,13 @@ def parse_args(argv=None) -> argparse.Namespace:
     unknown = set(args.routes) - set(ROUTES)
     if unknown:
         parser.error(f"unknown route(s) {', '.join(sorted(unknown))}; choose from {ROUTES}")
+    if args.earlier is not None:
+        source = args.earlier / "src" if (args.earlier / "src" / "criticality").is_dir() \
+            else args.earlier
+        if not (source / "criticality" / "__init__.py").is_file():
+            parser.error(f"--earlier {args.earlier}: no criticality package under it "
+                         f"(expected {args.earlier}/src/criticality)")
+        args.earlier = source.resolve()
     return args
 
 
@@ -535,12 +626,12 @@ def main(argv=None) -> int:
     if args.check_cases:
         return 1 if check_cases(args.cases) else 0
     load_start = os.getloadavg()[0]
-    results = [run_case(name, args.routes, args.repeat, args.timeout, args.points)
-               for name in args.cases]
+    results = [run_case(name, args.routes, args.repeat, args.timeout, args.points,
+                        args.earlier) for name in args.cases]
     import_time = import_seconds()
     print(report(results, import_time, args.timeout, (load_start, os.getloadavg()[0])))
     if args.markdown:
-        args.markdown.write_text(format_markdown(table_rows(results)) + "\n")
+        args.markdown.write_text(format_markdown(table_rows(results), header(results)) + "\n")
     if args.json:
         args.json.write_text(json.dumps(_json_ready(results, import_time, args.timeout),
                                         indent=1))
