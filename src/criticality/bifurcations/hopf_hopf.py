@@ -232,8 +232,10 @@ def _resonance(target, W1, W2, ctx):
 def _coefficients(prep, target, sub, W1, W2, ratio, K):
     taylor = prep.taylor.map(lambda c: K(sub(c)), K)
     A = taylor.jacobian()
-    N = QuadraticExtension(K, -W1, "nu", root=sympy.I * sympy.sqrt(target.to_sympy(W1)))
-    N2 = QuadraticExtension(K, -W2, "nu2", root=sympy.I * sympy.sqrt(target.to_sympy(W2)))
+    # the printed generators I*sqrt(W) are formed only if an output needs them
+    N = QuadraticExtension(K, -W1, "nu", root=lambda: sympy.I * sympy.sqrt(target.to_sympy(W1)))
+    N2 = QuadraticExtension(K, -W2, "nu2",
+                            root=lambda: sympy.I * sympy.sqrt(target.to_sympy(W2)))
     eb1 = critical_eigenbasis(K, A, W1, N)
     eb2 = critical_eigenbasis(K, A, W2, N2)
     p11 = N(projection_c1(taylor, eb1)) / eb1.qq
