@@ -101,7 +101,8 @@ def reduce_to_center_manifold(taylor: TaylorForms, eb: Eigenbasis, order: int) -
                 g1[(k - b, b)] = alpha
             if beta:
                 g2[(k - b, b)] = beta
-            stable.append([y[i] - alpha * e1[i] - beta * e2[i] for i in range(n)])
+            if k < order:  # the stable part of the top degree feeds no h
+                stable.append([y[i] - alpha * e1[i] - beta * e2[i] for i in range(n)])
         if k == order:
             break
         rhs = _subtract_drift(K, stable, h, g1, g2, k, n)
