@@ -15,6 +15,8 @@ by an element of another tower (:meth:`Tower.substitute`).
 
 from __future__ import annotations
 
+from fractions import Fraction
+
 from dataclasses import dataclass
 from typing import Any, Callable, Iterable, Sequence, Union
 
@@ -233,9 +235,15 @@ class Tower:
         R, T = K.ring, target.ring
         x = K(x)
         num, den = K.numerator(x), K.denominator(x)
-        dropped = [i for i, s in enumerate(K.symbols) if s not in target.symbols]
+        if not target.symbols:  # down to QQ: the fraction of two constants
+            try:
+                return target(Fraction(R.constant(num), R.constant(den)))
+            except ValueError:
+                raise CriticalityError("internal: a dropped generator is still present") from None
+        dropped = [s for s in K.symbols if s not in target.symbols]
         for p in (num, den):
-            if any(m[i] for m in R.to_dict(p) for i in dropped):
+            degrees = R.degrees(p)  # one C call, not a walk over the monomials
+            if any(degrees.get(s, 0) > 0 for s in dropped):
                 raise CriticalityError("internal: a dropped generator is still present")
         return target.from_ring(R.project(num, T), R.project(den, T))
 
