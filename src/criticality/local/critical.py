@@ -280,7 +280,7 @@ def _real_root_count(probe, low, body, x, positive) -> int:
     scales = (Fraction(1, 100), Fraction(1, 10), 1, 10, 100)
     sample = _sampler(probe, low, body, x, symbols)
     for trial in range(15):
-        point = [Fraction(rng.randint(1, 97), 97) * rng.choice(scales) for s in symbols]
+        point = [Fraction(rng.randint(1, 97), 97) * rng.choice(scales) for _ in symbols]
         p = sample(point)
         if p is None or not p.is_sqf:
             continue
