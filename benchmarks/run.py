@@ -320,7 +320,7 @@ EARLIER_HEADER = ("earlier [s]", "eng/earlier")
 
 
 def _with_earlier(results: list[CaseResult]) -> bool:
-    return any(r.routes.get("earlier", RouteRun("not run")).status != "not run" for r in results)
+    return any(r.routes["earlier"].status != "not run" for r in results)
 
 
 def header(results: list[CaseResult]) -> tuple:
@@ -329,7 +329,7 @@ def header(results: list[CaseResult]) -> tuple:
 
 def _earlier_ratio(result: CaseResult) -> float | None:
     """This engine's time over the earlier checkout's (above 1: slower now)."""
-    now, before = result.routes["engine"], result.routes.get("earlier", RouteRun("not run"))
+    now, before = result.routes["engine"], result.routes["earlier"]
     if now.status == "ok" and before.status == "ok" and before.seconds > 0:
         return now.seconds / before.seconds
     return None

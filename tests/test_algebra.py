@@ -265,6 +265,23 @@ def test_ring_view_agrees_on_both_fields_and_with_sympy(x):
         assert mine == ref_factors
 
 
+@pytest.mark.parametrize("backend", ["flint", "sympy"])
+def test_projection_drops_a_generator_and_refuses_one_still_present(backend):
+    """Tower.project moves an element free of the dropped parameter down, to
+    QQ as to a smaller field of rational functions, and refuses an element
+    that still holds it (common practice, no source)."""
+    from criticality.errors import CriticalityError
+    mu = sympy.Symbol("mu", real=True)
+    for params, value in (((mu,), sympy.Rational(-5, 7)), ((mu, a), (a + 1) / (a ** 2 + 2))):
+        T = Tower(params, backend=backend)
+        down = T.fresh(drop=mu)
+        assert mu not in down.base.symbols
+        x = down.project(T.convert(value))
+        assert sympy.cancel(down.to_sympy(x) - value) == 0
+        with pytest.raises(CriticalityError, match="dropped generator"):
+            down.project(T.convert(value + mu))
+
+
 @settings(max_examples=40, deadline=None)
 @given(x=rational_functions(), point=st.tuples(*[st.fractions(-5, 5, max_denominator=7)] * 3))
 def test_rational_evaluator_agrees_with_sympy_substitution(x, point):
